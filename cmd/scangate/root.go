@@ -1,0 +1,67 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"runtime/debug"
+
+	"github.com/spf13/cobra"
+)
+
+func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
+	root := &cobra.Command{
+		Use:   "scangate",
+		Short: "Check column-store model manifests for segment waste and scan-cost budgets",
+		Long: "scangate reads model manifests, validates them against the manifest JSON Schema,\n" +
+			"computes each table's segment layout, scan cost and growth, and reports graded\n" +
+			"findings with fix hints. Exit codes: 0 clean, 1 findings at or above --fail-on,\n" +
+			"2 invalid input or usage.",
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.SetIn(stdin)
+	root.SetOut(stdout)
+	root.SetErr(stderr)
+	root.AddCommand(newCheck(), newVersion())
+	return root
+}
+
+func newVersion() *cobra.Command {
+	return &cobra.Command{
+		Use:   "version",
+		Short: "Print the module version and the revision it was built from",
+		Args:  cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			_, err := fmt.Fprintln(cmd.OutOrStdout(), versionLine())
+			return err
+		},
+	}
+}
+
+// versionLine reads the version and VCS revision the Go toolchain stamped into the binary.
+func versionLine() string {
+	info, ok := debug.ReadBuildInfo()
+	if !ok {
+		return "scangate (unknown version)"
+	}
+	version := info.Main.Version
+	if version == "" {
+		version = "(devel)"
+	}
+	line := "scangate " + version
+	var rev, modified string
+	for _, s := range info.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			if s.Value == "true" {
+				modified = "+dirty"
+			}
+		}
+	}
+	if rev != "" {
+		line += fmt.Sprintf(" (revision %s%s)", rev[:min(12, len(rev))], modified)
+	}
+	return line + " " + info.GoVersion
+}

@@ -1,0 +1,19 @@
+module github.com/scangate/scangate
+
+go 1.26
+
+require (
+	github.com/fatih/color v1.19.0
+	github.com/mattn/go-isatty v0.0.24
+	github.com/santhosh-tekuri/jsonschema/v6 v6.0.3
+	github.com/spf13/cobra v1.10.2
+	go.yaml.in/yaml/v3 v3.0.6
+	golang.org/x/text v0.14.0
+)
+
+require (
+	github.com/inconshreveable/mousetrap v1.1.0 // indirect
+	github.com/mattn/go-colorable v0.1.14 // indirect
+	github.com/spf13/pflag v1.0.9 // indirect
+	golang.org/x/sys v0.42.0 // indirect
+)

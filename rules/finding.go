@@ -1,0 +1,92 @@
+// Package rules runs the checks of scangate over a validated manifest and returns
+// graded findings. Each rule lives in a file of its own; registry.go lists them.
+package rules
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// Severity grades a finding. The order matters: a gate fails at or above a level.
+type Severity int
+
+// Severities from least to most severe.
+const (
+	Note Severity = iota + 1
+	Warning
+	Error
+)
+
+func (s Severity) String() string {
+	switch s {
+	case Note:
+		return "note"
+	case Warning:
+		return "warning"
+	case Error:
+		return "error"
+	}
+	return fmt.Sprintf("severity(%d)", int(s))
+}
+
+// ParseSeverity reads "error", "warning" or "note".
+func ParseSeverity(s string) (Severity, error) {
+	switch strings.ToLower(s) {
+	case "error":
+		return Error, nil
+	case "warning":
+		return Warning, nil
+	case "note":
+		return Note, nil
+	}
+	return 0, fmt.Errorf("unknown severity %q; use error, warning or note", s)
+}
+
+// Finding is one graded result, at the node of the manifest it is about.
+type Finding struct {
+	Rule     string
+	Severity Severity
+	File     string
+	Pos      schema.Pos
+	Table    string // "" for findings about the file as a whole
+	Subject  string // what within the table the finding is about, stable across line moves
+	Message  string // one line, with the numbers
+	Hints    []string
+	// Numbers are the figures behind the message, for machine-readable reports.
+	Numbers map[string]float64
+}
+
+// Less orders findings by file, line, column, then rule, so output is deterministic.
+func Less(a, b Finding) bool {
+	if a.File != b.File {
+		return a.File < b.File
+	}
+	if a.Pos.Line != b.Pos.Line {
+		return a.Pos.Line < b.Pos.Line
+	}
+	if a.Pos.Col != b.Pos.Col {
+		return a.Pos.Col < b.Pos.Col
+	}
+	if a.Rule != b.Rule {
+		return a.Rule < b.Rule
+	}
+	return a.Message < b.Message
+}
+
+// SchemaFindings turns a loader error into findings of the schema rule, one per problem.
+func SchemaFindings(e *schema.Error) []Finding {
+	out := make([]Finding, 0, len(e.Problems))
+	for _, p := range e.Problems {
+		out = append(out, Finding{
+			Rule:     Schema.ID,
+			Severity: Schema.Default,
+			File:     e.File,
+			Pos:      p.Pos,
+			Subject:  p.Path,
+			Message:  p.Text(),
+		})
+	}
+	return out
+}

@@ -1,0 +1,153 @@
+package layout
+
+import "math"
+
+// TaskGroup is Count identical tasks of Ms each: the full segments of a partition
+// all cost the same, so a billion segments are a handful of groups, not a billion tasks.
+type TaskGroup struct {
+	Count int64
+	Ms    float64
+}
+
+// Schedule list-schedules the groups in order on cores (each task to the core that
+// frees first, ties to the lowest core), the way an engine dispatches segments, and
+// returns the makespan and the lower bound max(sum/cores, longest task) that no
+// schedule can beat. Tasks with a non-positive or non-finite Ms count as free; cores
+// below 1 count as 1.
+func Schedule(groups []TaskGroup, cores int) (makespan, bound float64) {
+	m := max(cores, 1)
+	h := newCoreHeap(m)
+	var sum, longest float64
+	for _, g := range groups {
+		c, t := g.Count, g.Ms
+		if c <= 0 || !(t > 0) || math.IsInf(t, 1) {
+			continue
+		}
+		sum = float64(float64(c)*t) + sum
+		longest = max(longest, t)
+		if c <= 4*int64(m) {
+			h.run(c, t)
+			continue
+		}
+		h.bulk(c, t)
+	}
+	for _, l := range h.load {
+		makespan = max(makespan, l)
+	}
+	return makespan, max(sum/float64(m), longest)
+}
+
+// coreHeap is a binary min-heap of cores ordered by (load, index), so the root is the
+// core that frees first with ties to the lowest index.
+type coreHeap struct {
+	load []float64
+	heap []int
+}
+
+func newCoreHeap(m int) *coreHeap {
+	h := &coreHeap{load: make([]float64, m), heap: make([]int, m)}
+	for i := range h.heap {
+		h.heap[i] = i // all loads 0: index order is a valid heap
+	}
+	return h
+}
+
+func (h *coreHeap) less(a, b int) bool {
+	la, lb := h.load[a], h.load[b]
+	return la < lb || (la == lb && a < b)
+}
+
+func (h *coreHeap) down(i int) {
+	n := len(h.heap)
+	for {
+		l := 2*i + 1
+		if l >= n {
+			return
+		}
+		j := l
+		if r := l + 1; r < n && h.less(h.heap[r], h.heap[l]) {
+			j = r
+		}
+		if !h.less(h.heap[j], h.heap[i]) {
+			return
+		}
+		h.heap[i], h.heap[j] = h.heap[j], h.heap[i]
+		i = j
+	}
+}
+
+func (h *coreHeap) init() {
+	for i := len(h.heap)/2 - 1; i >= 0; i-- {
+		h.down(i)
+	}
+}
+
+// run assigns c tasks of t one at a time.
+func (h *coreHeap) run(c int64, t float64) {
+	for range c {
+		h.load[h.heap[0]] += t
+		h.down(0)
+	}
+}
+
+// bulk assigns c identical tasks at once. Core i's j-th new task would end at
+// L_i + (j+1)t, and one-at-a-time list scheduling takes the c smallest start keys
+// L_i + j*t (ties to the lower core). Bisection finds a level T below the c-th smallest
+// key; every key under T is assigned in one step, the few left at T one at a time.
+func (h *coreHeap) bulk(c int64, t float64) {
+	m := int64(len(h.load))
+	// below counts the keys under level T, capped at c so it cannot overflow.
+	below := func(T float64) int64 {
+		var s int64
+		for _, l := range h.load {
+			if T > l {
+				k := math.Ceil((T - l) / t)
+				if !(k < float64(c)) {
+					return c
+				}
+				s += int64(k)
+				if s >= c {
+					return c
+				}
+			}
+		}
+		return s
+	}
+	lo, hi := h.load[0], h.load[0]
+	for _, l := range h.load {
+		lo, hi = min(lo, l), max(hi, l)
+	}
+	// At hi every core has at least c/m + 1 keys below it: m*(c/m+1) > c.
+	hi += float64(c/m+2) * t
+	for range 2000 { // halving the gap; ends far sooner, when lo and hi are adjacent floats
+		mid := lo + (hi-lo)/2
+		if mid <= lo || mid >= hi {
+			break
+		}
+		if below(mid) < c {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	var done int64
+	for i, l := range h.load {
+		if lo > l {
+			k := int64(math.Ceil((lo - l) / t))
+			h.load[i] = l + float64(float64(k)*t)
+			done += k
+		}
+	}
+	left := c - done
+	// Only when t is below the float spacing at this level can many keys share one
+	// float; hand those out in whole rounds, which is what the cores would do.
+	if left > 4*m {
+		q := left/m - 1
+		for i, l := range h.load {
+			h.load[i] = l + float64(float64(q)*t)
+		}
+		left -= q * m
+	}
+	h.init()
+	h.run(left, t)
+}

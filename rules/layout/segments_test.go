@@ -1,0 +1,87 @@
+package layout
+
+import (
+	"math"
+	"testing"
+
+	"github.com/scangate/scangate/schema"
+)
+
+func TestSegments(t *testing.T) {
+	// Spec: ceil(rows / S), 0 rows → 0, no overflow near MaxInt64.
+	for _, c := range []struct{ rows, s, want int64 }{
+		{0, 100, 0}, {1, 100, 1}, {100, 100, 1}, {101, 100, 2}, {-5, 100, 0},
+		{math.MaxInt64, 1, math.MaxInt64}, {math.MaxInt64, 1 << 23, 1 << 40}, {1e15, 1 << 23, 119_209_290},
+	} {
+		if got := Segments(c.rows, c.s); got != c.want {
+			t.Errorf("Segments(%d, %d) = %d, want %d", c.rows, c.s, got, c.want)
+		}
+	}
+}
+
+func TestComputeWorked(t *testing.T) {
+	// Worked by hand, S = 100, overhead 1.5 ms:
+	//   partitions 250 (open), 130, 70 → ceil 3 + 2 + 1 = 6 segments, R = 450 rows;
+	//   ideal ceil(450/100) = 5, excess 6 - 5 = 1, fill 450/(6*100) = 0.75;
+	//   closed: 2 + 1 = 3 segments, 200 rows → ideal 2, excess 1;
+	//   fixed overhead 6 * 1.5 = 9 ms.
+	parts := []Partition{{Name: "day 1", Rows: 250, Open: true}, {Name: "day 2", Rows: 130}, {Name: "day 3", Rows: 70}}
+	got := Compute(parts, 100, 1.5)
+	want := Layout{Partitions: 3, Rows: 450, Segments: 6, Ideal: 5, Excess: 1, Fill: 0.75,
+		ClosedSegments: 3, ClosedIdeal: 2, ClosedExcess: 1, FixedMs: 9}
+	if got != want {
+		t.Errorf("Compute = %+v\nwant      %+v", got, want)
+	}
+	// No rows: no segments, fill 0, everything finite.
+	if got := Compute([]Partition{{Rows: 0}}, 100, 1.5); got != (Layout{Partitions: 1}) {
+		t.Errorf("empty: %+v", got)
+	}
+	if got := Compute(parts, 100, math.Inf(1)); got.FixedMs != 0 {
+		t.Errorf("infinite overhead: %v", got.FixedMs)
+	}
+}
+
+func TestComputeDesignExample(t *testing.T) {
+	// DESIGN.md §3: 7.2G rows, 14 days + 23 months, 15% growth, 8Mi-row segments.
+	// Every closed partition fills its segments but the last: the excess is at most one
+	// segment per closed partition (36) and the open one is not counted.
+	p, err := Expand(timeTable(7_200_000_000, 0.15, schema.Tier{Grain: schema.Day, Keep: 14}, schema.Tier{Grain: schema.Month, Keep: 23}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	l := Compute(p, 8<<20, 1.5)
+	if l.Partitions != 37 || l.Rows != 7_200_000_000 || l.Excess < 1 || l.ClosedExcess > 36 || l.Segments != l.ClosedSegments+Segments(p[0].Rows, 8<<20) {
+		t.Errorf("%+v", l)
+	}
+	if l.FixedMs != float64(l.Segments)*1.5 || l.Fill <= 0 || l.Fill > 1 {
+		t.Errorf("fixed %v fill %v", l.FixedMs, l.Fill)
+	}
+}
+
+func TestScanColumnWorked(t *testing.T) {
+	// Worked by hand: 3 partitions of 1000 rows, S = 1000, a random bool column.
+	// Each segment: 1000/8 = 125 bytes of 1-bit indexes + a 2-byte dictionary = 127 bytes;
+	// theta = 200 MB/s = 200,000 bytes/ms, task 1.5 + 127/200000 = 1.500635 ms.
+	// CPU 3 * 1.500635 = 4.501905; 2 cores: makespan 2 tasks on core 0 = 3.00127;
+	// bound max(4.501905/2, 1.500635) = 2.2509525.
+	e := schema.Engine{SegmentRows: 1000, Cores: 2, SegmentOverheadMs: 1.5, ScanMBPerS: 200}
+	parts := []Partition{{Rows: 1000}, {Rows: 1000}, {Rows: 1000}}
+	s := ScanColumn(schema.Column{Type: "bool"}, 3000, parts, e)
+	for _, c := range []struct {
+		name      string
+		got, want float64
+	}{{"bytes", s.Bytes, 381}, {"cpu", s.CPUMs, 4.501905}, {"wall", s.WallMs, 3.00127}, {"bound", s.BoundMs, 2.2509525}} {
+		if math.Abs(c.got-c.want) > 1e-12 {
+			t.Errorf("%s = %v, want %v", c.name, c.got, c.want)
+		}
+	}
+	// CPU is N*f + B/theta, and B is ColumnBytes, on an uneven layout.
+	parts = []Partition{{Rows: 2500, Open: true}, {Rows: 300}, {Rows: 3000}, {Rows: 999}}
+	c := schema.Column{Type: "int64", Distinct: 400}
+	s = ScanColumn(c, 0, parts, e)
+	b := ColumnBytes(c, parts, 1000)
+	n := Compute(parts, 1000, 1.5).Segments
+	if s.Bytes != b || math.Abs(s.CPUMs-(float64(n)*1.5+b/200000)) > 1e-9 || s.WallMs < s.BoundMs {
+		t.Errorf("%+v, bytes %v, segments %d", s, b, n)
+	}
+}

@@ -1,0 +1,32 @@
+package rules
+
+import "fmt"
+
+// NeedlessPartitioning fires when a table with several partitions would fit in one segment.
+var NeedlessPartitioning = Rule{
+	ID:      "needless-partitioning",
+	Default: Note,
+	Title:   "Several partitions for a table that fits in one segment",
+	Why: "A table whose rows fit in a single segment gains nothing from partitions: each one " +
+		"adds a segment of its own, with its own dictionaries and its fixed scan cost, and the " +
+		"refresh has more pieces to process.",
+	Fix:   "Use partitions: {scheme: none} for the table.",
+	Check: checkNeedlessPartitioning,
+}
+
+func checkNeedlessPartitioning(t *Table) []Finding {
+	l := t.Layout
+	if l.Partitions < 2 || l.Rows > t.Engine.SegmentRows {
+		return nil
+	}
+	msg := fmt.Sprintf("%d partitions and %s segments hold %s rows, which fit in one segment of %s rows",
+		l.Partitions, num(l.Segments), count(l.Rows), count(t.Engine.SegmentRows))
+	extra := float64(l.Segments-l.Ideal) * t.Engine.SegmentOverheadMs
+	hints := []string{fmt.Sprintf("use partitions: {scheme: none}: %s -> %s segments, %s ms per scan",
+		num(l.Segments), num(l.Ideal), signed(-extra))}
+	return []Finding{t.finding(Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+		"partitions": float64(l.Partitions),
+		"segments":   float64(l.Segments),
+		"rows":       float64(l.Rows),
+	})}
+}

@@ -1,0 +1,79 @@
+// Package report writes findings for people and for pipelines.
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/fatih/color"
+	"github.com/scangate/scangate/rules"
+)
+
+// Summary counts what a run looked at.
+type Summary struct {
+	Files   int // manifests read
+	Invalid int // of which could not be checked (schema findings)
+	Tables  int // tables analysed
+}
+
+// Text writes findings in the GNU style, "path:line:col: severity: message [rule]",
+// each followed by indented hint lines, then one summary line. Colour is used only
+// when asked for; the caller decides from the terminal, NO_COLOR and --no-color.
+func Text(w io.Writer, findings []rules.Finding, s Summary, useColor bool) error {
+	paint := func(c *color.Color) func(a ...any) string {
+		if useColor {
+			c.EnableColor()
+		} else {
+			c.DisableColor()
+		}
+		return c.SprintFunc()
+	}
+	bold := paint(color.New(color.Bold))
+	faint := paint(color.New(color.Faint))
+	sev := map[rules.Severity]func(a ...any) string{
+		rules.Error:   paint(color.New(color.FgRed, color.Bold)),
+		rules.Warning: paint(color.New(color.FgYellow, color.Bold)),
+		rules.Note:    paint(color.New(color.FgCyan)),
+	}
+	var b strings.Builder
+	for _, f := range findings {
+		loc := f.File
+		if f.Pos.Line > 0 {
+			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+		}
+		fmt.Fprintf(&b, "%s: %s: %s %s\n", bold(loc), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"))
+		for _, h := range f.Hints {
+			fmt.Fprintf(&b, "    hint: %s\n", h)
+		}
+	}
+	b.WriteString(SummaryLine(findings, s))
+	b.WriteByte('\n')
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// SummaryLine is one line: what was checked and the findings by severity.
+func SummaryLine(findings []rules.Finding, s Summary) string {
+	n := map[rules.Severity]int{}
+	for _, f := range findings {
+		n[f.Severity]++
+	}
+	line := fmt.Sprintf("%s, %s: ", plural(s.Files, "file"), plural(s.Tables, "table"))
+	if len(findings) == 0 {
+		line += "no findings"
+	} else {
+		line += fmt.Sprintf("%s, %s, %s", plural(n[rules.Error], "error"), plural(n[rules.Warning], "warning"), plural(n[rules.Note], "note"))
+	}
+	if s.Invalid > 0 {
+		line += fmt.Sprintf("; %s could not be checked", plural(s.Invalid, "file"))
+	}
+	return line
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return fmt.Sprintf("1 %s", word)
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}

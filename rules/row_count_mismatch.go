@@ -1,0 +1,55 @@
+package rules
+
+import (
+	"fmt"
+	"math"
+)
+
+// RowCountMismatch fires when a list table's declared rows and its listed partitions
+// disagree by more than 1%.
+var RowCountMismatch = Rule{
+	ID:      "row-count-mismatch",
+	Default: Error,
+	Title:   "Declared rows and listed partitions disagree",
+	Why: "A list-partitioned table may declare its rows and also list each partition's rows. " +
+		"When the two differ by more than 1%, one of them is stale, and every figure scangate " +
+		"computes for the table (segments, scan cost, memory) rests on the listed partitions.",
+	Fix: "Update rows to the sum of the listed partitions, correct the partition that is " +
+		"wrong, or drop rows and let the listed partitions speak for the table.",
+	Check: checkRowCountMismatch,
+}
+
+// mismatchTolerance is the relative difference accepted between the two counts.
+const mismatchTolerance = 0.01
+
+func checkRowCountMismatch(t *Table) []Finding {
+	if !t.Spec.RowsDeclared || len(t.Spec.Partitions.Items) == 0 {
+		return nil
+	}
+	var sum int64
+	for _, it := range t.Spec.Partitions.Items {
+		sum += it.Rows
+	}
+	declared := t.Spec.Rows
+	diff := float64(sum) - float64(declared)
+	rel := math.Inf(1)
+	if declared > 0 {
+		rel = diff / float64(declared)
+	} else if sum == 0 {
+		rel = 0
+	}
+	if math.Abs(rel) <= mismatchTolerance {
+		return nil
+	}
+	share := "all"
+	if !math.IsInf(rel, 0) {
+		share = fmt.Sprintf("%+.1f%%", rel*100)
+	}
+	msg := fmt.Sprintf("rows declares %s (%s) but the %d listed partitions sum to %s (%s), more than 1%% apart",
+		count(declared), num(declared), len(t.Spec.Partitions.Items), count(sum), share)
+	hints := []string{fmt.Sprintf("set rows: %d, or correct the listed partitions; the layout is computed from the listed %s rows", sum, count(sum))}
+	return []Finding{t.finding(Error, t.Spec.RowsPos, "rows", msg, hints, map[string]float64{
+		"declared_rows": float64(declared),
+		"listed_rows":   float64(sum),
+	})}
+}

@@ -1,0 +1,93 @@
+package rules
+
+import "fmt"
+
+// ScanOverhead fires when the fixed per-segment CPU of one full scan nears or passes
+// the budget.
+var ScanOverhead = Rule{
+	ID:      "scan-overhead",
+	Default: Error,
+	Title:   "Fixed per-segment CPU of a full scan is over budget",
+	Why: "Every scan pays segment_overhead_ms of CPU per segment to dispatch it and merge its " +
+		"result, however few rows the segment holds. Segments x segment_overhead_ms is paid by " +
+		"every query that scans the table, before a single byte is read. Above the budget it " +
+		"is an error; above 80% of it, a warning.",
+	Fix: "Reduce the segment count: coarser partitions, fewer even partitions, merged listed " +
+		"partitions, or a larger engine segment size where the deployment allows it. The hint " +
+		"names the smallest change that fits the budget and its effect.",
+	Check: checkScanOverhead,
+}
+
+// overheadWarnShare is the share of the budget above which a warning is raised.
+const overheadWarnShare = 0.8
+
+func checkScanOverhead(t *Table) []Finding {
+	b := t.Budgets.ScanOverheadMs
+	if b == nil {
+		return nil
+	}
+	f := t.Layout.FixedMs
+	sev := Severity(0)
+	switch {
+	case f > *b:
+		sev = Error
+	case f > overheadWarnShare**b:
+		sev = Warning
+	default:
+		return nil
+	}
+	msg := fmt.Sprintf("a full scan pays %s ms of fixed CPU for %s segments (%s ms each), %s of the %s ms budget",
+		ms(f), num(t.Layout.Segments), ms(t.Engine.SegmentOverheadMs), pct(f / *b), ms(*b))
+	allowed := int64(*b / t.Engine.SegmentOverheadMs)
+	var hints []string
+	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
+		hints = append(hints, fitHint(o, fits, t.effect(o)))
+	}
+	hints = append(hints, fmt.Sprintf("the budget allows at most %s segments; the table's %s rows need at least %s",
+		num(allowed), count(t.Layout.Rows), num(t.Layout.Ideal)))
+	return []Finding{t.finding(sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
+		"fixed_ms":  f,
+		"budget_ms": *b,
+		"segments":  float64(t.Layout.Segments),
+	})}
+}
+
+// bestFit finds the least disruptive option whose figure fits the budget: first a
+// partition change keeping the most partitions, then the smallest larger segment size.
+// Without one that fits, it returns the option that comes closest (fits false); ok is
+// false when no option improves on today.
+func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Option, fits, ok bool) {
+	var best, closest *Option
+	opts := t.Options()
+	for i := range opts {
+		o := &opts[i]
+		if closest == nil || figure(*o) < figure(*closest) {
+			closest = o
+		}
+		if figure(*o) > budget {
+			continue
+		}
+		switch {
+		case best == nil,
+			best.Engine && !o.Engine,
+			!best.Engine && !o.Engine && o.Layout.Partitions > best.Layout.Partitions,
+			best.Engine && o.Engine && o.SegmentRows < best.SegmentRows:
+			best = o
+		}
+	}
+	if best != nil {
+		return *best, true, true
+	}
+	if closest != nil && figure(*closest) < today {
+		return *closest, false, true
+	}
+	return Option{}, false, false
+}
+
+// fitHint words the result of bestFit.
+func fitHint(o Option, fits bool, effect string) string {
+	if fits {
+		return fmt.Sprintf("%s: %s", o.Change, effect)
+	}
+	return fmt.Sprintf("no single change tried fits the budget; the closest is to %s: %s", o.Change, effect)
+}

@@ -1,0 +1,62 @@
+package rules
+
+import "fmt"
+
+// ScanTime fires when the estimated wall time of a full scan of the table's widest
+// column nears or passes the budget.
+var ScanTime = Rule{
+	ID:      "scan-time",
+	Default: Error,
+	Title:   "Estimated full scan of the widest column is over the time budget",
+	Why: "A full scan runs one task per segment: the fixed per-segment CPU plus the segment's " +
+		"encoded bytes at the engine's scan rate. The tasks are spread over the engine's cores " +
+		"in partition order, each to the core that frees first; the estimate is when the last " +
+		"core finishes. It needs column profiles; without them the rule stays quiet. Above the " +
+		"budget it is an error; above 80% of it, a warning.",
+	Fix: "Fewer, fuller segments cut the fixed part; a better encoded column (lower " +
+		"cardinality, sorted or clustered order) cuts the byte part; more cores cut both. The " +
+		"hint names the smallest layout change that fits and its effect.",
+	Check: checkScanTime,
+}
+
+// scanWarnShare is the share of the budget above which a warning is raised.
+const scanWarnShare = 0.8
+
+func checkScanTime(t *Table) []Finding {
+	b := t.Budgets.ScanMs
+	if b == nil || t.Widest == nil {
+		return nil
+	}
+	w := t.Scan.WallMs
+	sev := Severity(0)
+	switch {
+	case w > *b:
+		sev = Error
+	case w > scanWarnShare**b:
+		sev = Warning
+	default:
+		return nil
+	}
+	msg := fmt.Sprintf("a full scan of column %s (%s encoded, %s segments) takes about %s ms on %d cores, %s of the %s ms budget",
+		t.Widest.Name, size(t.Scan.Bytes), num(t.Layout.Segments), ms(w), t.Engine.Cores, pct(w / *b), ms(*b))
+	var hints []string
+	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Scan.WallMs }, *b, w); ok {
+		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.effect(o), ms(w), ms(o.Scan.WallMs))))
+	}
+	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > t.Engine.Cores {
+		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %d or more cores", ms(t.Scan.CPUMs), cores))
+	}
+	return []Finding{t.finding(sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
+		"wall_ms":   w,
+		"bound_ms":  t.Scan.BoundMs,
+		"cpu_ms":    t.Scan.CPUMs,
+		"budget_ms": *b,
+		"bytes":     t.Scan.Bytes,
+	})}
+}
+
+// coresNeeded is the fewest cores whose even share of the CPU fits the budget.
+func coresNeeded(cpuMs, budget float64) int {
+	n := int(cpuMs/budget) + 1
+	return max(n, 1)
+}

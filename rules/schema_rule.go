@@ -1,0 +1,14 @@
+package rules
+
+// Schema is raised by the loader, not by a check: a manifest that breaks the JSON
+// Schema or cannot be read is never analysed, and the run exits with code 2.
+var Schema = Rule{
+	ID:      "schema",
+	Default: Error,
+	Title:   "The manifest must be readable and match the manifest JSON Schema",
+	Why: "Every number scangate computes comes from the manifest. A value it cannot read, " +
+		"an unknown key or a missing setting would make the arithmetic silently wrong, so the " +
+		"file is refused as a whole and every problem in it is listed with its line and column.",
+	Fix: "Change the value at the reported line and column as the message says. The manifest " +
+		"reference in the README lists every key, its type and its default.",
+}

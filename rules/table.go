@@ -1,0 +1,75 @@
+package rules
+
+import (
+	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/schema"
+)
+
+// Table is one table with the numbers every rule needs, computed once.
+type Table struct {
+	File    string
+	Spec    schema.Table
+	Engine  schema.Engine
+	Budgets schema.Budgets // the model's budgets with the table's own on top
+	Parts   []layout.Partition
+	Layout  layout.Layout
+	// Widest is the column with the largest encoded size, nil without column profiles;
+	// Scan is the estimated full scan of it.
+	Widest *schema.Column
+	Scan   layout.Scan
+
+	options []Option // candidate changes, computed when a rule first asks
+	optDone bool
+}
+
+// Analyze computes the layout of every table of m. A table whose partitions cannot be
+// expanded is left out; the loader refuses such manifests before they get here.
+func Analyze(m *schema.Manifest) []*Table {
+	out := make([]*Table, 0, len(m.Tables))
+	for _, spec := range m.Tables {
+		parts, err := layout.Expand(spec)
+		if err != nil {
+			continue
+		}
+		t := &Table{
+			File:    m.File,
+			Spec:    spec,
+			Engine:  m.Engine,
+			Budgets: m.Budgets.Override(spec.Budgets),
+			Parts:   parts,
+			Layout:  layout.Compute(parts, m.Engine.SegmentRows, m.Engine.SegmentOverheadMs),
+		}
+		t.Widest, t.Scan = widest(spec, parts, m.Engine)
+		out = append(out, t)
+	}
+	return out
+}
+
+// widest finds the column whose full scan costs most, and that scan.
+func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*schema.Column, layout.Scan) {
+	var best *schema.Column
+	var bestScan layout.Scan
+	for i := range spec.Columns {
+		c := &spec.Columns[i]
+		s := layout.ScanColumn(*c, spec.Rows, parts, e)
+		if best == nil || s.Bytes > bestScan.Bytes {
+			best, bestScan = c, s
+		}
+	}
+	return best, bestScan
+}
+
+// finding fills in what every finding of a table shares.
+// Run sets the rule ID.
+func (t *Table) finding(sev Severity, pos schema.Pos, subject, msg string, hints []string, nums map[string]float64) Finding {
+	return Finding{
+		Severity: sev,
+		File:     t.File,
+		Pos:      pos,
+		Table:    t.Spec.Name,
+		Subject:  subject,
+		Message:  t.Spec.Name + ": " + msg,
+		Hints:    hints,
+		Numbers:  nums,
+	}
+}

@@ -1,0 +1,251 @@
+package schema
+
+import (
+	"encoding/json"
+	"fmt"
+	"strconv"
+)
+
+// MaxPartitions bounds the partitions one table may generate, so a policy such as
+// keep: 1000000000 days is refused instead of exhausting memory.
+const MaxPartitions = 1_000_000
+
+// decoder turns a validated tree into a Manifest. The schema has already checked
+// shapes and types, so decoding only parses quantities and checks what a JSON Schema
+// cannot say (unique names, tier order, exact whole numbers).
+type decoder struct {
+	t        *tree
+	problems []Problem
+}
+
+func (t *tree) decode() (*Manifest, []Problem) {
+	d := &decoder{t: t}
+	root := t.root.(map[string]any)
+	m := &Manifest{Format: 1, Pos: d.pos("")}
+	m.Model, _ = root["model"].(string)
+	m.Engine = d.engine("/engine", root["engine"].(map[string]any))
+	if b, ok := root["budgets"].(map[string]any); ok {
+		m.Budgets = d.budgets("/budgets", b)
+	}
+	names := map[string]Pos{}
+	for i, raw := range root["tables"].([]any) {
+		ptr := "/tables/" + strconv.Itoa(i)
+		tb := d.table(ptr, raw.(map[string]any))
+		if first, dup := names[tb.Name]; dup {
+			d.fail(ptr+"/name", fmt.Sprintf("table %q is already declared at line %d; table names must be unique", tb.Name, first.Line))
+		} else {
+			names[tb.Name] = d.pos(ptr + "/name")
+		}
+		m.Tables = append(m.Tables, tb)
+	}
+	return m, d.problems
+}
+
+func (d *decoder) pos(ptr string) Pos {
+	if l, ok := d.t.at[ptr]; ok && l.value != nil {
+		return Pos{l.value.Line, l.value.Column}
+	}
+	return Pos{1, 1}
+}
+
+// keyPos is where a key is written; findings about a whole section point there.
+func (d *decoder) keyPos(ptr string) Pos {
+	if l, ok := d.t.at[ptr]; ok && l.key != nil {
+		return Pos{l.key.Line, l.key.Column}
+	}
+	return d.pos(ptr)
+}
+
+func (d *decoder) fail(ptr, msg string) {
+	d.problems = append(d.problems, Problem{Pos: d.pos(ptr), Path: ptr, Message: msg})
+}
+
+func (d *decoder) count(ptr string, v any, positive bool) int64 {
+	n, err := quantity(v, MaxCount, "rows or values", ParseCount)
+	if err == nil && positive && n == 0 {
+		err = fmt.Errorf("must be > 0")
+	}
+	if err != nil {
+		d.fail(ptr, err.Error())
+	}
+	return n
+}
+
+func (d *decoder) bytes(ptr string, v any) int64 {
+	n, err := quantity(v, MaxBytes, "bytes", ParseBytes)
+	if err != nil {
+		d.fail(ptr, err.Error())
+	}
+	return n
+}
+
+func quantity(v any, limit int64, unit string, parse func(string) (int64, error)) (int64, error) {
+	switch x := v.(type) {
+	case json.Number:
+		return parseNumber(string(x), limit, unit)
+	case string:
+		return parse(x)
+	}
+	return 0, fmt.Errorf("must be a quantity, not %T", v)
+}
+
+func number(v any) float64 {
+	if n, ok := v.(json.Number); ok {
+		f, _ := n.Float64()
+		return f
+	}
+	return 0
+}
+
+func (d *decoder) engine(ptr string, e map[string]any) Engine {
+	out := Engine{
+		Cores:             DefaultCores,
+		SegmentOverheadMs: DefaultSegmentOverheadMs,
+		ScanMBPerS:        DefaultScanMBPerS,
+		Pos:               d.keyPos(ptr),
+		SegmentRowsPos:    d.pos(ptr + "/segment_rows"),
+		MemoryPos:         d.pos(ptr + "/memory"),
+	}
+	out.SegmentRows = d.count(ptr+"/segment_rows", e["segment_rows"], true)
+	if v, ok := e["cores"]; ok {
+		out.Cores = int(number(v))
+	}
+	if v, ok := e["segment_overhead_ms"]; ok {
+		out.SegmentOverheadMs = number(v)
+	}
+	if v, ok := e["scan_mb_per_s"]; ok {
+		out.ScanMBPerS = number(v)
+	}
+	if v, ok := e["memory"]; ok {
+		out.Memory = d.bytes(ptr+"/memory", v)
+	}
+	out.RefreshParallelism = out.Cores
+	if v, ok := e["refresh_parallelism"]; ok {
+		out.RefreshParallelism = int(number(v))
+	}
+	return out
+}
+
+func (d *decoder) budgets(ptr string, b map[string]any) Budgets {
+	out := Budgets{Pos: d.keyPos(ptr)}
+	if v, ok := b["scan_overhead_ms"]; ok {
+		f := number(v)
+		out.ScanOverheadMs = &f
+	}
+	if v, ok := b["scan_ms"]; ok {
+		f := number(v)
+		out.ScanMs = &f
+	}
+	if v, ok := b["refresh_memory"]; ok {
+		n := d.bytes(ptr+"/refresh_memory", v)
+		out.RefreshMemory = &n
+	}
+	return out
+}
+
+func (d *decoder) table(ptr string, raw map[string]any) Table {
+	t := Table{Pos: d.pos(ptr), RowsPos: d.pos(ptr)}
+	t.Name, _ = raw["name"].(string)
+	if v, ok := raw["rows"]; ok {
+		t.Rows = d.count(ptr+"/rows", v, false)
+		t.RowsDeclared = true
+		t.RowsPos = d.pos(ptr + "/rows")
+	}
+	if v, ok := raw["growth_per_year"]; ok {
+		t.GrowthPerYear = number(v)
+	}
+	if b, ok := raw["budgets"].(map[string]any); ok {
+		t.Budgets = d.budgets(ptr+"/budgets", b)
+	}
+	t.Partitions = d.partitions(ptr+"/partitions", raw["partitions"].(map[string]any))
+	if t.Partitions.Scheme == SchemeList && !t.RowsDeclared {
+		for _, it := range t.Partitions.Items {
+			t.Rows += it.Rows // each item is <= MaxCount and items are bounded by the file size
+		}
+		if t.Rows > MaxCount {
+			d.fail(ptr+"/partitions", fmt.Sprintf("the listed partitions sum to %s rows, above the limit of %s", group(t.Rows), group(MaxCount)))
+		}
+	}
+	cols, _ := raw["columns"].([]any)
+	seen := map[string]int{}
+	for i, c := range cols {
+		cp := ptr + "/columns/" + strconv.Itoa(i)
+		col := d.column(cp, c.(map[string]any))
+		if line, dup := seen[col.Name]; dup {
+			d.fail(cp+"/name", fmt.Sprintf("column %q is already profiled at line %d; column names must be unique", col.Name, line))
+		}
+		seen[col.Name] = col.Pos.Line
+		t.Columns = append(t.Columns, col)
+	}
+	return t
+}
+
+func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
+	p := Partitions{Pos: d.keyPos(ptr)}
+	s, _ := raw["scheme"].(string)
+	p.Scheme = Scheme(s)
+	switch p.Scheme {
+	case SchemeEven:
+		p.Count = int(number(raw["count"]))
+		if p.Count > MaxPartitions {
+			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", group(int64(p.Count)), group(MaxPartitions)))
+		}
+	case SchemeTime:
+		total := 0.0
+		for i, raw := range raw["tiers"].([]any) {
+			tp := ptr + "/tiers/" + strconv.Itoa(i)
+			tm := raw.(map[string]any)
+			g, _ := tm["grain"].(string)
+			keep := number(tm["keep"])
+			tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: d.pos(tp)}
+			if i > 0 {
+				prev := p.Tiers[i-1]
+				if tier.Grain.Rank() <= prev.Grain.Rank() {
+					d.fail(tp+"/grain", fmt.Sprintf("grain %s must be coarser than the %s of the tier before it; tiers go from newest to oldest, finer to coarser", tier.Grain, prev.Grain))
+				}
+			}
+			total += keep
+			p.Tiers = append(p.Tiers, tier)
+		}
+		if total > MaxPartitions {
+			d.fail(ptr+"/tiers", fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
+		}
+	case SchemeList:
+		names := map[string]int{}
+		for i, raw := range raw["items"].([]any) {
+			ip := ptr + "/items/" + strconv.Itoa(i)
+			im := raw.(map[string]any)
+			it := Item{Pos: d.pos(ip)}
+			it.Name, _ = im["name"].(string)
+			it.Rows = d.count(ip+"/rows", im["rows"], false)
+			if line, dup := names[it.Name]; dup {
+				d.fail(ip+"/name", fmt.Sprintf("partition %q is already listed at line %d; partition names must be unique", it.Name, line))
+			}
+			names[it.Name] = it.Pos.Line
+			p.Items = append(p.Items, it)
+		}
+	}
+	return p
+}
+
+func (d *decoder) column(ptr string, raw map[string]any) Column {
+	c := Column{Pos: d.pos(ptr), Order: Random}
+	c.Name, _ = raw["name"].(string)
+	c.Type, _ = raw["type"].(string)
+	if v, ok := raw["distinct"]; ok {
+		c.Distinct = d.count(ptr+"/distinct", v, true)
+	}
+	if v, ok := raw["avg_length"]; ok {
+		c.AvgLength = number(v)
+	}
+	if v, ok := raw["order"].(string); ok {
+		c.Order = Order(v)
+	}
+	if v, ok := raw["run_length"]; ok {
+		c.RunLength = d.count(ptr+"/run_length", v, true)
+	}
+	if v, ok := raw["encoded_bytes"]; ok {
+		c.EncodedBytes = d.bytes(ptr+"/encoded_bytes", v)
+	}
+	return c
+}

@@ -1,0 +1,109 @@
+package schema
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"regexp"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"go.yaml.in/yaml/v3"
+)
+
+// Load reads one manifest (YAML or JSON), validates it against the embedded JSON Schema
+// and decodes it. Invalid input returns an *Error listing every problem with its line
+// and column; the manifest is nil then.
+func Load(file string, data []byte, lim Limits) (*Manifest, error) {
+	fail := func(ps ...Problem) (*Manifest, error) { return nil, &Error{File: file, Problems: ps} }
+	if lim.MaxFileBytes > 0 && len(data) > lim.MaxFileBytes {
+		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several manifests", len(data), lim.MaxFileBytes)})
+	}
+	if p := encodingProblem(data); p != nil {
+		return fail(*p)
+	}
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; a manifest starts with \"format: 1\""})
+		}
+		return fail(syntaxProblem(err, data))
+	}
+	var next yaml.Node
+	if err := dec.Decode(&next); err == nil {
+		return fail(Problem{Pos: Pos{next.Line, next.Column}, Message: "file holds more than one YAML document; put each manifest in a file of its own"})
+	} else if !errors.Is(err, io.EOF) {
+		return fail(syntaxProblem(err, data))
+	}
+	if len(doc.Content) == 0 {
+		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; a manifest starts with \"format: 1\""})
+	}
+	t := &tree{at: map[string]located{}, lim: lim}
+	root, p := t.convert(doc.Content[0], "", nil, 0)
+	if p != nil {
+		return fail(*p)
+	}
+	t.root = root
+	if ps := t.validate(); len(ps) > 0 {
+		return fail(ps...)
+	}
+	m, ps := t.decode()
+	if len(ps) > 0 {
+		sortProblems(ps)
+		return fail(ps...)
+	}
+	m.File = file
+	return m, nil
+}
+
+var yamlLine = regexp.MustCompile(`^yaml: (?:line (\d+): )?(.*)$`)
+
+// syntaxProblem positions a parser error. The YAML parser reports a line but no column,
+// so the column is the first tab on that line when tabs are the trouble, else the first
+// non-blank character.
+func syntaxProblem(err error, data []byte) Problem {
+	msg := err.Error()
+	line := 1
+	if m := yamlLine.FindStringSubmatch(msg); m != nil {
+		if m[1] != "" {
+			line, _ = strconv.Atoi(m[1])
+		}
+		msg = m[2]
+	}
+	lines := strings.Split(string(data), "\n")
+	col := 1
+	tabs := strings.Contains(msg, "tab")
+	if line >= 1 && line <= len(lines) {
+		text := lines[line-1]
+		indent := text[:len(text)-len(strings.TrimLeft(text, " \t"))]
+		if i := strings.IndexByte(indent, '\t'); i >= 0 {
+			col, tabs = i+1, true
+		} else if i := strings.IndexFunc(text, func(r rune) bool { return r != ' ' }); i >= 0 {
+			col = i + 1
+		}
+	}
+	hint := "fix the YAML syntax"
+	if tabs {
+		hint = "indent with spaces; YAML does not allow tabs for indentation"
+	}
+	return Problem{Pos: Pos{line, col}, Message: fmt.Sprintf("invalid YAML: %s; %s", msg, hint)}
+}
+
+// encodingProblem refuses input that is not text before the parser sees it.
+func encodingProblem(data []byte) *Problem {
+	if bytes.HasPrefix(data, []byte{0xFF, 0xFE}) || bytes.HasPrefix(data, []byte{0xFE, 0xFF}) {
+		return &Problem{Pos: Pos{1, 1}, Message: "file is UTF-16; save it as UTF-8"}
+	}
+	body := bytes.TrimPrefix(data, []byte{0xEF, 0xBB, 0xBF})
+	if i := bytes.IndexByte(body, 0); i >= 0 || !utf8.Valid(body) {
+		line := 1 + bytes.Count(body[:max(i, 0)], []byte{'\n'})
+		if i < 0 {
+			line = 1
+		}
+		return &Problem{Pos: Pos{line, 1}, Message: "file is not UTF-8 text (binary data or another encoding); a manifest is YAML or JSON in UTF-8"}
+	}
+	return nil
+}

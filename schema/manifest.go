@@ -1,0 +1,172 @@
+package schema
+
+// Pos is a 1-based line and column in a manifest file.
+type Pos struct {
+	Line int
+	Col  int
+}
+
+// Scheme names a partition policy.
+type Scheme string
+
+// The partition schemes of format 1.
+const (
+	SchemeNone Scheme = "none"
+	SchemeEven Scheme = "even"
+	SchemeTime Scheme = "time"
+	SchemeList Scheme = "list"
+)
+
+// Grain is the length of one period of a time tier.
+type Grain string
+
+// The grains of format 1, finest first.
+const (
+	Day     Grain = "day"
+	Week    Grain = "week"
+	Month   Grain = "month"
+	Quarter Grain = "quarter"
+	Year    Grain = "year"
+)
+
+// Grains lists every grain from finest to coarsest.
+var Grains = []Grain{Day, Week, Month, Quarter, Year}
+
+// Days is the mean length of one period in days (a year of 365.25 days).
+func (g Grain) Days() float64 {
+	switch g {
+	case Day:
+		return 1
+	case Week:
+		return 7
+	case Month:
+		return 365.25 / 12
+	case Quarter:
+		return 365.25 / 4
+	case Year:
+		return 365.25
+	}
+	return 0
+}
+
+// Rank orders grains from finest (0) to coarsest; -1 for an unknown grain.
+func (g Grain) Rank() int {
+	for i, x := range Grains {
+		if x == g {
+			return i
+		}
+	}
+	return -1
+}
+
+// Manifest is one validated manifest file.
+type Manifest struct {
+	File    string // path as given by the user, "-" for standard input
+	Format  int
+	Model   string
+	Engine  Engine
+	Budgets Budgets
+	Tables  []Table
+	Pos     Pos
+}
+
+// Engine holds the engine settings with defaults applied.
+type Engine struct {
+	SegmentRows        int64
+	Cores              int
+	SegmentOverheadMs  float64
+	ScanMBPerS         float64
+	Memory             int64 // bytes; 0 when not declared
+	RefreshParallelism int
+	Pos                Pos // the engine key
+	SegmentRowsPos     Pos
+	MemoryPos          Pos
+}
+
+// Engine defaults of format 1.
+const (
+	DefaultCores             = 8
+	DefaultSegmentOverheadMs = 1.5
+	DefaultScanMBPerS        = 200
+)
+
+// Budgets are optional limits; a nil field is not budgeted.
+type Budgets struct {
+	ScanOverheadMs *float64
+	ScanMs         *float64
+	RefreshMemory  *int64 // bytes
+	Pos            Pos
+}
+
+// Override returns b with every field that own sets replaced by own's value.
+func (b Budgets) Override(own Budgets) Budgets {
+	out := b
+	if own.ScanOverheadMs != nil {
+		out.ScanOverheadMs = own.ScanOverheadMs
+	}
+	if own.ScanMs != nil {
+		out.ScanMs = own.ScanMs
+	}
+	if own.RefreshMemory != nil {
+		out.RefreshMemory = own.RefreshMemory
+	}
+	return out
+}
+
+// Table is one table of the manifest.
+type Table struct {
+	Name          string
+	Rows          int64
+	RowsDeclared  bool // false when a list table leaves rows to its items
+	GrowthPerYear float64
+	Partitions    Partitions
+	Columns       []Column
+	Budgets       Budgets // the table's own, not merged with the model's
+	Pos           Pos     // the table's mapping (its first key)
+	RowsPos       Pos     // the rows value, or the table when rows is omitted
+}
+
+// Partitions is a table's partition policy.
+type Partitions struct {
+	Scheme Scheme
+	Count  int    // even
+	Tiers  []Tier // time, newest first
+	Items  []Item // list
+	Pos    Pos    // the partitions key
+}
+
+// Tier is a run of Keep periods of one Grain.
+type Tier struct {
+	Grain Grain
+	Keep  int
+	Pos   Pos
+}
+
+// Item is one listed partition.
+type Item struct {
+	Name string
+	Rows int64
+	Pos  Pos
+}
+
+// Order is how rows are ordered by a column.
+type Order string
+
+// Column orders.
+const (
+	Random    Order = "random"
+	Sorted    Order = "sorted"
+	Clustered Order = "clustered"
+)
+
+// Column is an optional column profile.
+type Column struct {
+	Name         string
+	Type         string
+	Distinct     int64 // 0 when not declared
+	AvgLength    float64
+	Order        Order
+	RunLength    int64 // 0 when not declared
+	EncodedBytes int64 // 0 when not declared
+	Pos          Pos
+}

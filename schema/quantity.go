@@ -1,0 +1,96 @@
+package schema
+
+import (
+	"fmt"
+	"math/big"
+	"strings"
+)
+
+// MaxCount is the largest row or value count a manifest may declare. The arithmetic is
+// checked for overflow up to here; larger tables do not exist in practice.
+const MaxCount int64 = 1_000_000_000_000_000
+
+// MaxBytes is the largest byte size a manifest may declare (1 EiB).
+const MaxBytes int64 = 1 << 60
+
+var countSuffixes = []struct {
+	suffix string
+	factor int64
+}{
+	// Two-letter suffixes first, so "Mi" is not read as "M".
+	{"Ki", 1 << 10}, {"Mi", 1 << 20}, {"Gi", 1 << 30}, {"Ti", 1 << 40},
+	{"k", 1e3}, {"M", 1e6}, {"G", 1e9}, {"T", 1e12},
+}
+
+var byteUnits = []struct {
+	suffix string
+	factor int64
+}{
+	{"KiB", 1 << 10}, {"MiB", 1 << 20}, {"GiB", 1 << 30}, {"TiB", 1 << 40}, {"PiB", 1 << 50},
+	{"kB", 1e3}, {"KB", 1e3}, {"MB", 1e6}, {"GB", 1e9}, {"TB", 1e12}, {"PB", 1e15},
+	{"B", 1},
+}
+
+// ParseCount reads a count: "7200000", "7.2G", "8Mi". The result is exact: the decimal
+// mantissa is multiplied as a rational number, and a result that is not whole is an error.
+func ParseCount(s string) (int64, error) {
+	mant, factor := s, int64(1)
+	for _, u := range countSuffixes {
+		if strings.HasSuffix(s, u.suffix) {
+			mant, factor = strings.TrimSuffix(s, u.suffix), u.factor
+			break
+		}
+	}
+	return exact(s, mant, factor, MaxCount, "rows or values", false)
+}
+
+// ParseBytes reads a byte size: "500MB", "64GiB", or a whole number of bytes.
+func ParseBytes(s string) (int64, error) {
+	mant, factor := s, int64(1)
+	for _, u := range byteUnits {
+		if strings.HasSuffix(s, u.suffix) {
+			mant, factor = strings.TrimSuffix(s, u.suffix), u.factor
+			break
+		}
+	}
+	return exact(s, mant, factor, MaxBytes, "bytes", false)
+}
+
+// parseNumber reads a plain YAML or JSON number (exponents allowed) as a whole count.
+func parseNumber(num string, limit int64, unit string) (int64, error) {
+	return exact(num, num, 1, limit, unit, true)
+}
+
+func exact(whole, mant string, factor, limit int64, unit string, allowExp bool) (int64, error) {
+	if mant == "" || strings.ContainsAny(mant, "_/ ") || (!allowExp && strings.ContainsAny(mant, "eE+-")) {
+		return 0, fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
+	}
+	var r big.Rat
+	if _, ok := r.SetString(mant); !ok {
+		return 0, fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
+	}
+	r.Mul(&r, new(big.Rat).SetInt64(factor))
+	if !r.IsInt() {
+		return 0, fmt.Errorf("%q is %s, not a whole number of %s", whole, r.FloatString(3), unit)
+	}
+	n := r.Num()
+	if n.Sign() < 0 {
+		return 0, fmt.Errorf("%q is negative; it must be >= 0", whole)
+	}
+	if n.Cmp(big.NewInt(limit)) > 0 {
+		return 0, fmt.Errorf("%q is above the limit of %s %s", whole, group(limit), unit)
+	}
+	return n.Int64(), nil
+}
+
+// group writes n with thousands separators: 1,000,000.
+func group(n int64) string {
+	s := fmt.Sprint(n)
+	if n < 0 {
+		return "-" + group(-n)
+	}
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}

@@ -1,0 +1,262 @@
+package schema
+
+import (
+	"bytes"
+	_ "embed"
+	"fmt"
+	"sort"
+	"strings"
+	"sync"
+
+	"github.com/santhosh-tekuri/jsonschema/v6"
+	"github.com/santhosh-tekuri/jsonschema/v6/kind"
+	"golang.org/x/text/message"
+)
+
+//go:embed manifest.schema.json
+var manifestSchema []byte
+
+// ManifestSchema returns the embedded JSON Schema of the manifest format.
+func ManifestSchema() []byte { return bytes.Clone(manifestSchema) }
+
+const manifestSchemaURL = "https://github.com/scangate/scangate/schema/manifest.schema.json"
+
+var compiled = sync.OnceValues(func() (*jsonschema.Schema, error) {
+	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(manifestSchema))
+	if err != nil {
+		return nil, err
+	}
+	c := jsonschema.NewCompiler()
+	if err := c.AddResource(manifestSchemaURL, doc); err != nil {
+		return nil, err
+	}
+	return c.Compile(manifestSchemaURL)
+})
+
+var printer = message.NewPrinter(message.MatchLanguage("en"))
+
+// validate checks the document against the schema and returns one problem per
+// failing leaf, positioned at the value (or key) it is about.
+func (t *tree) validate() []Problem {
+	sch, err := compiled()
+	if err != nil {
+		// The schema is embedded and compiled in tests; reaching this is a build defect.
+		panic(fmt.Sprintf("embedded manifest schema does not compile: %v", err))
+	}
+	err = sch.Validate(t.root)
+	if err == nil {
+		return nil
+	}
+	ve, ok := err.(*jsonschema.ValidationError)
+	if !ok {
+		return []Problem{{Message: err.Error()}}
+	}
+	var leaves []*jsonschema.ValidationError
+	collectLeaves(ve, &leaves)
+	seen := map[string]bool{}
+	var out []Problem
+	for _, l := range leaves {
+		for _, p := range t.describe(l) {
+			if k := p.Path + "\x00" + p.Message; !seen[k] {
+				seen[k] = true
+				out = append(out, p)
+			}
+		}
+	}
+	sortProblems(out)
+	return out
+}
+
+func collectLeaves(e *jsonschema.ValidationError, out *[]*jsonschema.ValidationError) {
+	if len(e.Causes) == 0 {
+		*out = append(*out, e)
+		return
+	}
+	for _, c := range e.Causes {
+		collectLeaves(c, out)
+	}
+}
+
+// describe words a schema failure the way a manifest author thinks of it.
+func (t *tree) describe(e *jsonschema.ValidationError) []Problem {
+	ptr := pointer(e.InstanceLocation)
+	loc := t.at[ptr]
+	at := func(p string, l located, msg string) Problem {
+		n := l.value
+		if n == nil {
+			n = l.key
+		}
+		pr := problemAt(n, p, msg)
+		return *pr
+	}
+	switch k := e.ErrorKind.(type) {
+	case *kind.AdditionalProperties:
+		// Point at each unknown key itself, and say which keys are allowed.
+		var out []Problem
+		for _, name := range k.Properties {
+			p := child(ptr, name)
+			l := t.at[p]
+			if l.key != nil {
+				l.value = l.key
+			}
+			out = append(out, at(p, l, fmt.Sprintf("unknown key %q; allowed here: %s", name, t.allowedKeys(e))))
+		}
+		return out
+	case *kind.FalseSchema:
+		name := ""
+		if n := len(e.InstanceLocation); n > 0 {
+			name = e.InstanceLocation[n-1]
+		}
+		if loc.key != nil {
+			loc.value = loc.key
+		}
+		return []Problem{at(ptr, loc, fmt.Sprintf("%q is not allowed here%s; remove it", name, t.schemeContext(e)))}
+	case *kind.Required:
+		return []Problem{at(ptr, loc, fmt.Sprintf("missing required key %s%s", quoteList(k.Missing), t.schemeContext(e)))}
+	case *kind.Type:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be %s, not %s", typeWords(k.Want, e.SchemaURL), k.Got))}
+	case *kind.Minimum:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be >= %s", k.Want.RatString()))}
+	case *kind.ExclusiveMinimum:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be > %s", k.Want.RatString()))}
+	case *kind.Maximum:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be <= %s", k.Want.RatString()))}
+	case *kind.Pattern:
+		return []Problem{at(ptr, loc, patternWords(fmt.Sprint(k.Got), e.SchemaURL))}
+	case *kind.Const:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be %v", k.Want))}
+	case *kind.Enum:
+		return []Problem{at(ptr, loc, fmt.Sprintf("%v is not one of %s", k.Got, enumWords(k.Want)))}
+	case *kind.MinItems:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must list at least %d item(s)", k.Want))}
+	case *kind.MinLength:
+		return []Problem{at(ptr, loc, "must not be empty")}
+	case *kind.MaxLength:
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be at most %d characters", k.Want))}
+	}
+	return []Problem{at(ptr, loc, e.ErrorKind.LocalizedString(printer))}
+}
+
+// allowedKeys lists the properties the failing object's schema declares.
+func (t *tree) allowedKeys(e *jsonschema.ValidationError) string {
+	keys := schemaKeys(strings.TrimSuffix(e.SchemaURL, "/additionalProperties"))
+	if len(keys) == 0 {
+		return "see the manifest reference"
+	}
+	return strings.Join(keys, ", ")
+}
+
+// schemeContext names the partition scheme when a rule depends on it.
+func (t *tree) schemeContext(e *jsonschema.ValidationError) string {
+	if !strings.Contains(e.SchemaURL, "/partitions/allOf/") {
+		return ""
+	}
+	loc := e.InstanceLocation
+	for i := len(loc); i >= 0; i-- {
+		if obj, ok := valueAt(t.root, loc[:i]).(map[string]any); ok {
+			if s, ok := obj["scheme"].(string); ok {
+				return fmt.Sprintf(" with scheme %s", s)
+			}
+		}
+	}
+	return ""
+}
+
+var schemaDoc = sync.OnceValue(func() any {
+	doc, _ := jsonschema.UnmarshalJSON(bytes.NewReader(manifestSchema))
+	return doc
+})
+
+// schemaKeys lists, sorted, the properties of the schema object at url's fragment.
+func schemaKeys(url string) []string {
+	_, frag, _ := strings.Cut(url, "#")
+	var tokens []string
+	if frag != "" {
+		tokens = strings.Split(strings.TrimPrefix(frag, "/"), "/")
+	}
+	obj, _ := valueAt(schemaDoc(), tokens).(map[string]any)
+	props, _ := obj["properties"].(map[string]any)
+	keys := make([]string, 0, len(props))
+	for k := range props {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}
+
+func valueAt(v any, tokens []string) any {
+	for _, tok := range tokens {
+		switch x := v.(type) {
+		case map[string]any:
+			v = x[tok]
+		case []any:
+			i := 0
+			if _, err := fmt.Sscan(tok, &i); err != nil || i < 0 || i >= len(x) {
+				return nil
+			}
+			v = x[i]
+		default:
+			return nil
+		}
+	}
+	return v
+}
+
+func typeWords(want []string, schemaURL string) string {
+	switch {
+	case strings.Contains(schemaURL, "/$defs/count"):
+		return `a whole number or a count with a suffix such as "8Mi" or "7.2G"`
+	case strings.Contains(schemaURL, "/$defs/bytes"):
+		return `a byte size such as "500MB" or "64GiB"`
+	}
+	words := make([]string, len(want))
+	for i, w := range want {
+		switch w {
+		case "object":
+			words[i] = "a mapping"
+		case "array":
+			words[i] = "a list"
+		case "integer":
+			words[i] = "a whole number"
+		default:
+			words[i] = "a " + w
+		}
+	}
+	return strings.Join(words, " or ")
+}
+
+func patternWords(got, schemaURL string) string {
+	if strings.Contains(schemaURL, "/$defs/bytes") {
+		return fmt.Sprintf("%q is not a byte size; write a number with a unit: B, kB, MB, GB, TB, PB or KiB, MiB, GiB, TiB, PiB (e.g. \"64GiB\")", got)
+	}
+	return fmt.Sprintf("%q is not a count; write digits with an optional suffix k, M, G, T (powers of 1000) or Ki, Mi, Gi, Ti (powers of 1024), e.g. \"8Mi\"", got)
+}
+
+func enumWords(want []any) string {
+	s := make([]string, len(want))
+	for i, w := range want {
+		s[i] = fmt.Sprint(w)
+	}
+	return strings.Join(s, ", ")
+}
+
+func quoteList(names []string) string {
+	q := make([]string, len(names))
+	for i, n := range names {
+		q[i] = fmt.Sprintf("%q", n)
+	}
+	return strings.Join(q, ", ")
+}
+
+func sortProblems(ps []Problem) {
+	sort.SliceStable(ps, func(i, j int) bool {
+		a, b := ps[i], ps[j]
+		if a.Pos.Line != b.Pos.Line {
+			return a.Pos.Line < b.Pos.Line
+		}
+		if a.Pos.Col != b.Pos.Col {
+			return a.Pos.Col < b.Pos.Col
+		}
+		return a.Message < b.Message
+	})
+}
