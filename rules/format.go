@@ -66,6 +66,9 @@ func ms(x float64) string {
 
 // pct writes a fraction as a whole percentage.
 func pct(f float64) string {
+	if f > 0 && f < 0.1 {
+		return strconv.FormatFloat(f*100, 'f', 1, 64) + "%"
+	}
 	return strconv.FormatFloat(math.Round(f*100), 'f', 0, 64) + "%"
 }
 

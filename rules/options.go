@@ -50,17 +50,19 @@ func (t *Table) Options() []Option {
 		one.Partitions = schema.Partitions{Scheme: schema.SchemeNone, Pos: p.Pos}
 		specs = append(specs, Option{Change: "use partitions: {scheme: none}", Spec: one})
 	}
+	// Larger segments alone, and with each partition change: when the budget allows
+	// fewer segments than the rows need at today's size, only the pair fits.
+	partitionOnly := len(specs)
 	for _, k := range largerSegments {
 		s := t.Engine.SegmentRows
 		if s > schema.MaxCount/k {
 			break
 		}
-		specs = append(specs, Option{
-			Change:      fmt.Sprintf("raise engine.segment_rows from %s to %s", count(s), count(s*k)),
-			Engine:      true,
-			Spec:        t.Spec,
-			SegmentRows: s * k,
-		})
+		raise := fmt.Sprintf("raise engine.segment_rows from %s to %s", count(s), count(s*k))
+		specs = append(specs, Option{Change: raise, Engine: true, Spec: t.Spec, SegmentRows: s * k})
+		for _, p := range specs[:partitionOnly] {
+			specs = append(specs, Option{Change: p.Change + " and " + raise, Engine: true, Window: p.Window, Spec: p.Spec, SegmentRows: s * k})
+		}
 	}
 	for _, o := range specs {
 		if o.SegmentRows == 0 {
@@ -209,7 +211,9 @@ func mergePair(spec schema.Table, s int64) []Option {
 	bestAt, bestSaved := -1, int64(0)
 	for i := 0; i+1 < len(items); i++ {
 		a, b := items[i].Rows, items[i+1].Rows
-		if saved := layout.Segments(a, s) + layout.Segments(b, s) - layout.Segments(a+b, s); saved > bestSaved {
+		saved := layout.Segments(a, s) + layout.Segments(b, s) - layout.Segments(a+b, s)
+		// Among equal savings, merge the smallest pair: the least disruptive change.
+		if saved > bestSaved || (saved == bestSaved && saved > 0 && a+b < items[bestAt].Rows+items[bestAt+1].Rows) {
 			bestAt, bestSaved = i, saved
 		}
 	}

@@ -43,8 +43,10 @@ func checkScanOverhead(t *Table) []Finding {
 	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
 		hints = append(hints, fitHint(o, fits, t.effect(o)))
 	}
-	hints = append(hints, fmt.Sprintf("the budget allows at most %s segments; the table's %s rows need at least %s",
-		num(allowed), count(t.Layout.Rows), num(t.Layout.Ideal)))
+	if allowed < t.Layout.Ideal {
+		hints = append(hints, fmt.Sprintf("the budget allows at most %s segments, but %s rows need at least %s segments of %s rows: no partition change alone can fit",
+			num(allowed), count(t.Layout.Rows), num(t.Layout.Ideal), count(t.Engine.SegmentRows)))
+	}
 	return []Finding{t.finding(sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
 		"fixed_ms":  f,
 		"budget_ms": *b,
@@ -52,10 +54,10 @@ func checkScanOverhead(t *Table) []Finding {
 	})}
 }
 
-// bestFit finds the least disruptive option whose figure fits the budget: first a
-// partition change keeping the most partitions, then the smallest larger segment size.
-// Without one that fits, it returns the option that comes closest (fits false); ok is
-// false when no option improves on today.
+// bestFit finds the least disruptive option whose figure fits the budget: a partition
+// change before an engine change, a smaller segment size before a larger one, and the
+// most partitions kept. Without one that fits, it returns the option that comes
+// closest (fits false); ok is false when no option improves on today.
 func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Option, fits, ok bool) {
 	var best, closest *Option
 	opts := t.Options()
@@ -64,14 +66,7 @@ func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Op
 		if closest == nil || figure(*o) < figure(*closest) {
 			closest = o
 		}
-		if figure(*o) > budget {
-			continue
-		}
-		switch {
-		case best == nil,
-			best.Engine && !o.Engine,
-			!best.Engine && !o.Engine && o.Layout.Partitions > best.Layout.Partitions,
-			best.Engine && o.Engine && o.SegmentRows < best.SegmentRows:
+		if figure(*o) <= budget && (best == nil || lessDisruptive(*o, *best)) {
 			best = o
 		}
 	}
@@ -82,6 +77,16 @@ func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Op
 		return *closest, false, true
 	}
 	return Option{}, false, false
+}
+
+func lessDisruptive(a, b Option) bool {
+	if a.Engine != b.Engine {
+		return !a.Engine
+	}
+	if a.SegmentRows != b.SegmentRows {
+		return a.SegmentRows < b.SegmentRows
+	}
+	return a.Layout.Partitions > b.Layout.Partitions
 }
 
 // fitHint words the result of bestFit.

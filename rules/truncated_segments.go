@@ -39,9 +39,9 @@ func checkTruncatedSegments(t *Table) []Finding {
 	var hints []string
 	if o, ok := t.bestTrim(); ok {
 		hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.effect(o)))
-		// A recent window kept fine is often what incremental refresh needs; offer it too.
-		if w, ok := t.bestWindow(); ok && w.Change != o.Change {
-			hints = append(hints, fmt.Sprintf("or %s: %s", w.Change, t.effect(w)))
+		// The change with the fewest segments, when it is another one, is worth a look too.
+		if f, ok := t.fewestSegments(); ok && f.Change != o.Change {
+			hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.effect(f)))
 		}
 	}
 	return []Finding{t.finding(sev, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
@@ -72,17 +72,11 @@ func closedFill(t *Table) float64 {
 // partitions (fewer segments breaks a tie); failing that, the one with fewest segments.
 func (t *Table) bestTrim() (Option, bool) {
 	target := t.Layout.Segments - (t.Layout.ClosedExcess+1)/2
-	var best, fewest *Option
+	var best *Option
 	opts := t.Options()
 	for i := range opts {
 		o := &opts[i]
-		if o.Engine || o.Layout.Segments >= t.Layout.Segments {
-			continue
-		}
-		if fewest == nil || o.Layout.Segments < fewest.Layout.Segments {
-			fewest = o
-		}
-		if o.Layout.Segments > target {
+		if o.Engine || o.Layout.Segments > target {
 			continue
 		}
 		if best == nil || o.Layout.Partitions > best.Layout.Partitions ||
@@ -90,21 +84,29 @@ func (t *Table) bestTrim() (Option, bool) {
 			best = o
 		}
 	}
-	switch {
-	case best != nil:
+	if best != nil {
 		return *best, true
-	case fewest != nil:
-		return *fewest, true
 	}
-	return Option{}, false
+	return t.fewestSegments()
 }
 
-// bestWindow is the tiered option that keeps a recent window fine, if it saves segments.
-func (t *Table) bestWindow() (Option, bool) {
-	for _, o := range t.Options() {
-		if o.Window && o.Layout.Segments < t.Layout.Segments {
-			return o, true
+// fewestSegments is the partition change with the fewest segments; among equals, the
+// one that keeps the most partitions.
+func (t *Table) fewestSegments() (Option, bool) {
+	var best *Option
+	opts := t.Options()
+	for i := range opts {
+		o := &opts[i]
+		if o.Engine || o.Layout.Segments >= t.Layout.Segments {
+			continue
+		}
+		if best == nil || o.Layout.Segments < best.Layout.Segments ||
+			(o.Layout.Segments == best.Layout.Segments && o.Layout.Partitions > best.Layout.Partitions) {
+			best = o
 		}
 	}
-	return Option{}, false
+	if best == nil {
+		return Option{}, false
+	}
+	return *best, true
 }

@@ -75,8 +75,7 @@ func checkAll(inputs []input) ([]rules.Finding, report.Summary) {
 	return findings, sum
 }
 
-// parseFailOn reads --fail-on; "never" is 0, which no severity reaches... inverted:
-// it returns the lowest severity that fails, or 0 for never.
+// parseFailOn reads --fail-on: the lowest severity that fails the run, 0 for never.
 func parseFailOn(s string) (rules.Severity, error) {
 	if s == "never" {
 		return 0, nil
@@ -105,9 +104,13 @@ func exitFor(findings []rules.Finding, sum report.Summary, threshold rules.Sever
 }
 
 // useColor colours only a terminal, and never with --no-color or NO_COLOR set.
+// CLICOLOR_FORCE=1 colours any output (a common convention; tests use it).
 func useColor(w any, noColor bool) bool {
 	if noColor || os.Getenv("NO_COLOR") != "" {
 		return false
+	}
+	if v := os.Getenv("CLICOLOR_FORCE"); v != "" && v != "0" {
+		return true
 	}
 	f, ok := w.(*os.File)
 	return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd()))

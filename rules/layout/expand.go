@@ -136,8 +136,7 @@ func expandTime(t schema.Table) ([]Partition, error) {
 			return nil, fmt.Errorf("table %q: tier %d keeps %d periods, need at least 1", t.Name, i+1, tr.Keep)
 		}
 		if int64(tr.Keep) > MaxPartitions || total+int64(tr.Keep) > MaxPartitions {
-			// Report the full count; keep is an int, so a uint64 sum of up to 2^31 tiers
-			// of at most 2^63 each can still carry: saturate.
+			// Name the full count in the error; the sum saturates so huge keeps cannot wrap.
 			var sum uint64
 			for _, x := range tiers {
 				s, carry := bits.Add64(sum, uint64(max(x.Keep, 0)), 0)
@@ -268,7 +267,7 @@ func apportionGrowth(out []Partition, tiers []schema.Tier, rows int64, g float64
 	floors := make([]int64, n)
 	rems := lw // reuse: weights are no longer needed once the quota is taken
 	for i := range lw {
-		q := fr * (lw[i] / total)
+		q := float64(fr * (lw[i] / total)) // rounded before q - f: no FMA
 		f := math.Floor(q)
 		switch {
 		case !(f > 0):
@@ -293,14 +292,15 @@ func fixup(floors []int64, rems []float64, rows int64) {
 	n := int64(len(floors))
 	// Sum with saturation so even absurd float error cannot overflow.
 	var got int64
+	over := false
 	for _, f := range floors {
 		if got > rows-f {
-			got = rows + 1
+			over = true
 			break
 		}
 		got += f
 	}
-	if got > rows {
+	if over {
 		removeExcess(floors, rems, rows)
 		return
 	}
@@ -348,8 +348,8 @@ func removeExcess(floors []int64, rems []float64, rows int64) {
 	excess := func() int64 {
 		var s int64
 		for _, f := range floors {
-			if s > rows-f {
-				return math.MaxInt64 // saturate: still far too many
+			if s > math.MaxInt64-f {
+				return math.MaxInt64 // saturate: the sum would overflow
 			}
 			s += f
 		}

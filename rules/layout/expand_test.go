@@ -2,6 +2,7 @@ package layout
 
 import (
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -202,5 +203,30 @@ func BenchmarkExpandTime(b *testing.B) {
 				}
 			}
 		})
+	}
+}
+
+func TestFixup(t *testing.T) {
+	// Float quotas can miss the total either way; fixup must land on it exactly,
+	// never below zero, adding to the largest remainders and taking from the smallest.
+	for _, c := range []struct {
+		floors []int64
+		rems   []float64
+		rows   int64
+		want   []int64
+	}{
+		{[]int64{1, 1, 1}, []float64{0.2, 0.9, 0.5}, 5, []int64{1, 2, 2}},           // 2 short: the two largest remainders
+		{[]int64{1, 1, 1}, []float64{0.5, 0.5, 0.5}, 4, []int64{2, 1, 1}},           // tie: the lower index
+		{[]int64{0, 0}, []float64{0.1, 0.2}, 5, []int64{2, 3}},                      // short by more than n: whole rounds first
+		{[]int64{3, 3, 3}, []float64{0.2, 0.9, 0.5}, 8, []int64{2, 3, 3}},           // 1 over: the smallest remainder
+		{[]int64{3, 3, 3}, []float64{0.5, 0.5, 0.5}, 8, []int64{3, 3, 2}},           // tie: the higher index gives (mirror)
+		{[]int64{0, 5, 0}, []float64{0, 0, 0}, 2, []int64{0, 2, 0}},                 // never below zero
+		{[]int64{math.MaxInt64, math.MaxInt64}, []float64{0, 0}, 10, []int64{5, 5}}, // the sum overflows an int64
+	} {
+		f := slices.Clone(c.floors)
+		fixup(f, c.rems, c.rows)
+		if !slices.Equal(f, c.want) {
+			t.Errorf("fixup(%v, %v, %d) = %v, want %v", c.floors, c.rems, c.rows, f, c.want)
+		}
 	}
 }

@@ -118,7 +118,7 @@ func (h *coreHeap) bulk(c int64, t float64) {
 		lo, hi = min(lo, l), max(hi, l)
 	}
 	// At hi every core has at least c/m + 1 keys below it: m*(c/m+1) > c.
-	hi += float64(c/m+2) * t
+	hi += float64(float64(c/m+2) * t)
 	for range 2000 { // halving the gap; ends far sooner, when lo and hi are adjacent floats
 		mid := lo + (hi-lo)/2
 		if mid <= lo || mid >= hi {

@@ -5,6 +5,8 @@ import (
 	"math/rand/v2"
 	"strconv"
 	"testing"
+
+	"github.com/scangate/scangate/schema"
 )
 
 // bruteSchedule is list scheduling written the obvious way: one task at a time to
@@ -53,6 +55,15 @@ func TestScheduleMatchesBruteForce(t *testing.T) {
 		want := bruteSchedule(groups, cores)
 		if math.Abs(got-want) > 1e-9*max(1, want) {
 			t.Fatalf("case %d: cores %d groups %v: makespan %v, brute force %v", i, cores, groups, got, want)
+		}
+	}
+	// More cores, larger groups.
+	for i := range 300 {
+		cores := 1 + r.IntN(64)
+		groups := randomGroups(r, 1000)
+		got, _ := Schedule(groups, cores)
+		if want := bruteSchedule(groups, cores); math.Abs(got-want) > 1e-9*max(1, want) {
+			t.Fatalf("wide case %d: cores %d groups %v: makespan %v, brute force %v", i, cores, groups, got, want)
 		}
 	}
 	// Bulk path after uneven loads, many tasks.
@@ -113,5 +124,18 @@ func BenchmarkSchedule(b *testing.B) {
 				Schedule(groups, cores)
 			}
 		})
+	}
+}
+
+func BenchmarkScanColumn(b *testing.B) {
+	// A million day partitions with growth: a million distinct part-empty segment sizes.
+	parts, err := Expand(timeTable(1e15, 0.15, schema.Tier{Grain: schema.Day, Keep: MaxPartitions}))
+	if err != nil {
+		b.Fatal(err)
+	}
+	e := schema.Engine{SegmentRows: 1 << 23, Cores: 8, SegmentOverheadMs: 1.5, ScanMBPerS: 200}
+	c := schema.Column{Type: "int64", Distinct: 400_000}
+	for b.Loop() {
+		ScanColumn(c, 1e15, parts, e)
 	}
 }
