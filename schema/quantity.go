@@ -62,7 +62,7 @@ func parseNumber(num string, limit int64, unit string) (int64, error) {
 }
 
 func exact(whole, mant string, factor, limit int64, unit string, allowExp bool) (int64, error) {
-	if mant == "" || strings.ContainsAny(mant, "_/ ") || (!allowExp && strings.ContainsAny(mant, "eE+-")) {
+	if mant == "" || strings.ContainsAny(mant, "_/ ") || (!allowExp && !plainDecimal(mant)) {
 		return 0, fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
 	}
 	var r big.Rat
@@ -81,6 +81,22 @@ func exact(whole, mant string, factor, limit int64, unit string, allowExp bool) 
 		return 0, fmt.Errorf("%q is above the limit of %s %s", whole, group(limit), unit)
 	}
 	return n.Int64(), nil
+}
+
+// plainDecimal reports whether s is digits with an optional fraction, as the schema's
+// pattern allows; big.Rat alone would also read "0x10", "0b11", "1p3" and "5.".
+func plainDecimal(s string) bool {
+	whole, frac, dot := strings.Cut(s, ".")
+	return digits(whole) && (!dot || digits(frac))
+}
+
+func digits(s string) bool {
+	for _, c := range s {
+		if c < '0' || c > '9' {
+			return false
+		}
+	}
+	return s != ""
 }
 
 // group writes n with thousands separators: 1,000,000.

@@ -12,7 +12,7 @@ import (
 
 // MaxPartitions caps the partitions generated for one table, so a typo such as
 // keep: 10000000000 is reported as an error instead of exhausting memory.
-const MaxPartitions = 1_000_000
+const MaxPartitions = schema.MaxPartitions
 
 // Partition is one partition of a table after its scheme is expanded; segments never
 // span partitions, so the layout is computed from these.
