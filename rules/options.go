@@ -23,7 +23,7 @@ type Option struct {
 
 // recentWindow is how many periods of a grain a tiered layout keeps fine before it
 // merges older periods into a coarser grain: about two weeks, two months, half a
-// year, a year (common practice for incremental refresh windows).
+// year, a year (common practice for a recent window reloaded on every refresh).
 var recentWindow = map[schema.Grain]int{schema.Day: 14, schema.Week: 8, schema.Month: 6, schema.Quarter: 4}
 
 // largerSegments are the segment sizes tried, as multiples of today's.

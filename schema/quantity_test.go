@@ -22,16 +22,16 @@ func TestParseCount(t *testing.T) {
 	}{
 		{"0", 0},
 		{"7200000", 7_200_000},
-		{"8Mi", 8_388_608},          // IEC 80000-13: 8 x 2^20
-		{"0.5Ki", 512},              // IEC 80000-13: 0.5 x 2^10
-		{"3Gi", 3_221_225_472},      // IEC 80000-13: 3 x 2^30
-		{"2Ti", 2_199_023_255_552},  // IEC 80000-13: 2 x 2^40
-		{"7.2G", 7_200_000_000},     // SI (BIPM SI Brochure): 7.2 x 10^9
-		{"1.3M", 1_300_000},         // SI (BIPM SI Brochure): 1.3 x 10^6
-		{"400k", 400_000},           // SI (BIPM SI Brochure): 400 x 10^3
-		{"2.5k", 2_500},             // SI (BIPM SI Brochure): 2.5 x 10^3
+		{"8Mi", 8_388_608},               // IEC 80000-13: 8 x 2^20
+		{"0.5Ki", 512},                   // IEC 80000-13: 0.5 x 2^10
+		{"3Gi", 3_221_225_472},           // IEC 80000-13: 3 x 2^30
+		{"2Ti", 2_199_023_255_552},       // IEC 80000-13: 2 x 2^40
+		{"7.2G", 7_200_000_000},          // SI (BIPM SI Brochure): 7.2 x 10^9
+		{"1.3M", 1_300_000},              // SI (BIPM SI Brochure): 1.3 x 10^6
+		{"400k", 400_000},                // SI (BIPM SI Brochure): 400 x 10^3
+		{"2.5k", 2_500},                  // SI (BIPM SI Brochure): 2.5 x 10^3
 		{"1.000001T", 1_000_001_000_000}, // SI (BIPM SI Brochure): 1.000001 x 10^12
-		{"1000T", schema.MaxCount},  // SI (BIPM SI Brochure): 10^3 x 10^12, the limit itself
+		{"1000T", schema.MaxCount},       // SI (BIPM SI Brochure): 10^3 x 10^12, the limit itself
 	}
 	for _, c := range cases {
 		got, err := schema.ParseCount(c.in)
@@ -91,18 +91,18 @@ func TestParseBytes(t *testing.T) {
 		{"12", 12},
 		{"0B", 0},
 		{"1B", 1},
-		{"64GiB", 68_719_476_736},          // IEC 80000-13: 64 x 2^30
-		{"48GiB", 51_539_607_552},          // IEC 80000-13: 48 x 2^30
-		{"1.5KiB", 1_536},                  // IEC 80000-13: 1.5 x 2^10
-		{"2MiB", 2_097_152},                // IEC 80000-13: 2 x 2^20
-		{"1TiB", 1_099_511_627_776},        // IEC 80000-13: 2^40
-		{"1PiB", 1_125_899_906_842_624},    // IEC 80000-13: 2^50
-		{"500MB", 500_000_000},             // SI (BIPM SI Brochure): 500 x 10^6
-		{"3kB", 3_000},                     // SI (BIPM SI Brochure): 3 x 10^3
-		{"2.5GB", 2_500_000_000},           // SI (BIPM SI Brochure): 2.5 x 10^9
-		{"4TB", 4_000_000_000_000},         // SI (BIPM SI Brochure): 4 x 10^12
-		{"1PB", 1_000_000_000_000_000},     // SI (BIPM SI Brochure): 10^15
-		{"1024PiB", schema.MaxBytes},       // IEC 80000-13: 2^10 x 2^50, the limit itself
+		{"64GiB", 68_719_476_736},       // IEC 80000-13: 64 x 2^30
+		{"48GiB", 51_539_607_552},       // IEC 80000-13: 48 x 2^30
+		{"1.5KiB", 1_536},               // IEC 80000-13: 1.5 x 2^10
+		{"2MiB", 2_097_152},             // IEC 80000-13: 2 x 2^20
+		{"1TiB", 1_099_511_627_776},     // IEC 80000-13: 2^40
+		{"1PiB", 1_125_899_906_842_624}, // IEC 80000-13: 2^50
+		{"500MB", 500_000_000},          // SI (BIPM SI Brochure): 500 x 10^6
+		{"3kB", 3_000},                  // SI (BIPM SI Brochure): 3 x 10^3
+		{"2.5GB", 2_500_000_000},        // SI (BIPM SI Brochure): 2.5 x 10^9
+		{"4TB", 4_000_000_000_000},      // SI (BIPM SI Brochure): 4 x 10^12
+		{"1PB", 1_000_000_000_000_000},  // SI (BIPM SI Brochure): 10^15
+		{"1024PiB", schema.MaxBytes},    // IEC 80000-13: 2^10 x 2^50, the limit itself
 	}
 	for _, c := range cases {
 		got, err := schema.ParseBytes(c.in)
@@ -162,9 +162,8 @@ func TestParseCountRoundTrip(t *testing.T) {
 	}
 }
 
-// Decimal mantissas are exact: "a.kkkG" is a*10^9 + k*10^6 for every k, with none of the
-// drift a float64 multiplication would bring (7.2*1e9, 4.35*1e9 and others are off by one
-// ulp in binary floating point).
+// Decimal mantissas are exact: "a.kkkG" is a*10^9 + k*10^6 for every k. A float64 product
+// misses about one k in twenty (0.067 * 1e9 is not 67,000,000 in binary floating point).
 func TestParseCountDecimalMantissaExact(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
 	as := []int64{0, 1, 4, 7, 99, 999_999}
