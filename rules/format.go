@@ -69,7 +69,7 @@ func pct(f float64) string {
 	if f > 0 && f < 0.1 {
 		return strconv.FormatFloat(f*100, 'f', 1, 64) + "%"
 	}
-	return strconv.FormatFloat(math.Round(f*100), 'f', 0, 64) + "%"
+	return num(int64(math.Round(min(f*100, 1e15)))) + "%"
 }
 
 // size writes bytes in binary units: 1.5 GiB.

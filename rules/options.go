@@ -138,32 +138,48 @@ func withTiers(spec schema.Table, tiers []schema.Tier, change string) Option {
 func tierWords(tiers []schema.Tier) string {
 	w := make([]string, len(tiers))
 	for i, t := range tiers {
-		w[i] = fmt.Sprintf("%d %s %s", t.Keep, t.Grain, plural(int64(t.Keep), "partition", "partitions"))
+		w[i] = fmt.Sprintf("%s %s %s", num(int64(t.Keep)), t.Grain, plural(int64(t.Keep), "partition", "partitions"))
 	}
 	return strings.Join(w, " + ")
 }
 
-// evenOptions finds the largest partition count below today's whose split wastes no
-// segment, or failing that the count with the fewest segments.
+// evenOptions offers the largest partition count below today's whose split wastes no
+// segment (or, failing that, the count with the fewest segments), and a few much
+// smaller counts for tables with far too many partitions.
 func evenOptions(spec schema.Table, s int64) []Option {
 	c := spec.Partitions.Count
-	best, bestSeg := 0, int64(math.MaxInt64)
-	for k := c - 1; k >= 1; k-- {
+	segs := func(k int) int64 {
 		q, r := spec.Rows/int64(k), spec.Rows%int64(k)
-		seg := int64(k-int(r))*layout.Segments(q, s) + r*layout.Segments(q+1, s)
-		if seg < bestSeg {
+		return int64(k-int(r))*layout.Segments(q, s) + r*layout.Segments(q+1, s)
+	}
+	ideal := layout.Segments(spec.Rows, s)
+	best, bestSeg := 0, int64(math.MaxInt64)
+	// Scanning down from c stops at the first waste-free count; cap the scan so a
+	// million-partition table stays cheap.
+	for k := c - 1; k >= 1 && k >= c-100_000; k-- {
+		if seg := segs(k); seg < bestSeg {
 			best, bestSeg = k, seg
-		}
-		if seg == layout.Segments(spec.Rows, s) {
-			break
+			if seg == ideal {
+				break
+			}
 		}
 	}
-	if best == 0 {
-		return nil
+	counts := []int{}
+	if best > 0 {
+		counts = append(counts, best)
 	}
-	o := spec
-	o.Partitions.Count = best
-	return []Option{{Change: fmt.Sprintf("use count: %d", best), Spec: o}}
+	for _, div := range []int{10, 100, 1000} {
+		if k := c / div; k >= 1 && k != best {
+			counts = append(counts, k)
+		}
+	}
+	var out []Option
+	for _, k := range counts {
+		o := spec
+		o.Partitions.Count = k
+		out = append(out, Option{Change: fmt.Sprintf("use count: %d", k), Spec: o})
+	}
+	return out
 }
 
 // listOptions merges neighbouring listed partitions until each holds at least one

@@ -43,8 +43,8 @@ func checkScanTime(t *Table) []Finding {
 	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Scan.WallMs }, *b, w); ok {
 		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.effect(o), ms(w), ms(o.Scan.WallMs))))
 	}
-	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > t.Engine.Cores {
-		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %d or more cores", ms(t.Scan.CPUMs), cores))
+	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > int64(t.Engine.Cores) {
+		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", ms(t.Scan.CPUMs), num(cores)))
 	}
 	return []Finding{t.finding(sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
 		"wall_ms":   w,
@@ -56,7 +56,6 @@ func checkScanTime(t *Table) []Finding {
 }
 
 // coresNeeded is the fewest cores whose even share of the CPU fits the budget.
-func coresNeeded(cpuMs, budget float64) int {
-	n := int(cpuMs/budget) + 1
-	return max(n, 1)
+func coresNeeded(cpuMs, budget float64) int64 {
+	return max(int64(min(cpuMs/budget, 1e15))+1, 1)
 }

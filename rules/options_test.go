@@ -1,0 +1,108 @@
+package rules
+
+import (
+	"math"
+	"testing"
+
+	"github.com/scangate/scangate/schema"
+)
+
+func load(t *testing.T, src string) *schema.Manifest {
+	t.Helper()
+	m, err := schema.Load("case.yaml", []byte(src), schema.DefaultLimits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// Merging tiers keeps the span covered: 14 days + 23 months is 14 + 23 x 30.4375 =
+// 714.06 days, 23.46 months, rounded up to 24 month periods (hand-computed).
+func TestMergeFromCoversSpan(t *testing.T) {
+	tiers := []schema.Tier{{Grain: schema.Day, Keep: 14}, {Grain: schema.Month, Keep: 23}}
+	got, next := mergeFrom(tiers, 0, schema.Month, 0)
+	if len(got) != 1 || got[0].Grain != schema.Month || got[0].Keep != 24 || next != 2 {
+		t.Fatalf("mergeFrom = %+v, %d; want 24 months, 2", got, next)
+	}
+	// A 14-day window of 730 days, then (730 - 14) / 30.4375 = 23.52 -> 24 months.
+	got, _ = mergeFrom([]schema.Tier{{Grain: schema.Day, Keep: 730}}, 0, schema.Month, 14)
+	if len(got) != 2 || got[0].Keep != 14 || got[1].Keep != 24 {
+		t.Fatalf("window merge = %+v; want 14 days + 24 months", got)
+	}
+}
+
+// 40M rows in 8 even partitions of 5M with 8Mi-row segments: 8 segments; 5 partitions of
+// 8M rows are 5 segments = ceil(40M / 8,388,608) = 5, the ideal (hand-computed), so
+// count 5 is the largest waste-free count below 8.
+func TestEvenOptionFindsWasteFreeCount(t *testing.T) {
+	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 40M, partitions: {scheme: even, count: 8}}]\n")
+	tb := Analyze(m)[0]
+	o, ok := tb.bestTrim()
+	if !ok || o.Spec.Partitions.Count != 5 || o.Layout.Segments != 5 {
+		t.Fatalf("bestTrim = %+v (ok %v); want count 5 with 5 segments", o.Change, ok)
+	}
+	if e := tb.effect(o); e != "8 -> 5 segments, -4.5 ms per scan" {
+		t.Errorf("effect = %q", e)
+	}
+}
+
+// The fixed budget of 1,000 ms at 1.5 ms per segment allows 666 segments; 1M rows at
+// 1,000 rows per segment need 1,000; doubling the segment size gives 500 (750 ms), the
+// smallest change that fits.
+func TestBestFitPrefersSmallestChange(t *testing.T) {
+	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 1000}\ntables: [{name: t, rows: 1M, partitions: {scheme: none}}]\n")
+	tb := Analyze(m)[0]
+	o, fits, ok := bestFit(tb, func(o Option) float64 { return o.Layout.FixedMs }, 1000, tb.Layout.FixedMs)
+	if !ok || !fits || o.SegmentRows != 2000 || o.Layout.FixedMs != 750 {
+		t.Fatalf("bestFit = %q fits %v ok %v, %v ms", o.Change, fits, ok, o.Layout.FixedMs)
+	}
+}
+
+// Tables at the 10^15-row limit run through every rule without overflow: every number a
+// finding carries is finite and segments stay positive.
+func TestLimitSizedTables(t *testing.T) {
+	m := load(t, `format: 1
+model: m
+engine: {segment_rows: 1}
+budgets: {scan_overhead_ms: 1, scan_ms: 1}
+tables:
+  - name: t
+    rows: 1000T
+    growth_per_year: 0.5
+    partitions: {scheme: time, tiers: [{grain: day, keep: 6000}, {grain: year, keep: 3}]}
+    columns: [{name: c, type: string, avg_length: 100}]
+  - name: l
+    rows: 1000T
+    partitions: {scheme: list, items: [{name: a, rows: 500T}, {name: b, rows: 500T}]}
+`)
+	fs := Run(m)
+	if len(fs) == 0 {
+		t.Fatal("want findings")
+	}
+	for _, f := range fs {
+		for k, v := range f.Numbers {
+			if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+				t.Errorf("%s: %s = %v", f.Rule, k, v)
+			}
+		}
+	}
+	for _, tb := range Analyze(m) {
+		if tb.Layout.Segments <= 0 || tb.Layout.Segments < tb.Layout.Ideal {
+			t.Errorf("%s: segments %d, ideal %d", tb.Spec.Name, tb.Layout.Segments, tb.Layout.Ideal)
+		}
+	}
+}
+
+// Hand-checked formatting of the figures messages carry.
+func TestFormat(t *testing.T) {
+	for _, c := range []struct{ got, want string }{
+		{count(8 << 20), "8Mi"}, {count(7_200_000_000), "7.2G"}, {count(400_000), "400k"},
+		{count(1_460_000), "1.46M"}, {count(999), "999"}, {num(1460), "1,460"}, {num(-909), "-909"},
+		{ms(1.5), "1.5"}, {ms(1319.4), "1,319"}, {pct(0.876), "88%"}, {pct(0.0007), "0.1%"},
+		{size(1 << 30), "1 GiB"}, {size(1536), "1.5 KiB"},
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+}
