@@ -68,7 +68,7 @@ func runCase(t *testing.T, path string) {
 		}
 		got = rules.SchemaFindings(se)
 	} else {
-		got = rules.Run(m)
+		got = rules.Run(m, rules.Config{})
 	}
 	matched := make([]bool, len(got))
 	for _, w := range wants {

@@ -36,7 +36,7 @@ func TestMergeFromCoversSpan(t *testing.T) {
 // count 5 is the largest waste-free count below 8.
 func TestEvenOptionFindsWasteFreeCount(t *testing.T) {
 	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 40M, partitions: {scheme: even, count: 8}}]\n")
-	tb := Analyze(m)[0]
+	tb := Analyze(m, Config{})[0]
 	o, ok := tb.bestTrim()
 	if !ok || o.Spec.Partitions.Count != 5 || o.Layout.Segments != 5 {
 		t.Fatalf("bestTrim = %+v (ok %v); want count 5 with 5 segments", o.Change, ok)
@@ -51,7 +51,7 @@ func TestEvenOptionFindsWasteFreeCount(t *testing.T) {
 // smallest change that fits.
 func TestBestFitPrefersSmallestChange(t *testing.T) {
 	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 1000}\ntables: [{name: t, rows: 1M, partitions: {scheme: none}}]\n")
-	tb := Analyze(m)[0]
+	tb := Analyze(m, Config{})[0]
 	o, fits, ok := bestFit(tb, func(o Option) float64 { return o.Layout.FixedMs }, 1000, tb.Layout.FixedMs)
 	if !ok || !fits || o.SegmentRows != 2000 || o.Layout.FixedMs != 750 {
 		t.Fatalf("bestFit = %q fits %v ok %v, %v ms", o.Change, fits, ok, o.Layout.FixedMs)
@@ -75,7 +75,7 @@ tables:
     rows: 1000T
     partitions: {scheme: list, items: [{name: a, rows: 500T}, {name: b, rows: 500T}]}
 `)
-	fs := Run(m)
+	fs := Run(m, Config{})
 	if len(fs) == 0 {
 		t.Fatal("want findings")
 	}
@@ -86,7 +86,7 @@ tables:
 			}
 		}
 	}
-	for _, tb := range Analyze(m) {
+	for _, tb := range Analyze(m, Config{}) {
 		if tb.Layout.Segments <= 0 || tb.Layout.Segments < tb.Layout.Ideal {
 			t.Errorf("%s: segments %d, ideal %d", tb.Spec.Name, tb.Layout.Segments, tb.Layout.Ideal)
 		}

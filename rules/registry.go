@@ -2,6 +2,7 @@ package rules
 
 import (
 	"sort"
+	"time"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -16,6 +17,12 @@ type Rule struct {
 	// Check returns the rule's findings for one analysed table; nil for rules raised
 	// elsewhere (schema).
 	Check func(t *Table) []Finding
+}
+
+// Config is what a run knows beyond the manifest: the date forecasts count from and the
+// settings a project may tune. The zero value is the documented default.
+type Config struct {
+	Today time.Time // the date forecasts and waivers are judged on; zero means now (UTC)
 }
 
 // All lists every rule, sorted by ID.
@@ -44,9 +51,9 @@ func Lookup(id string) (Rule, bool) {
 }
 
 // Run analyses every table of m and returns the findings of every rule, sorted.
-func Run(m *schema.Manifest) []Finding {
+func Run(m *schema.Manifest, cfg Config) []Finding {
 	var out []Finding
-	for _, t := range Analyze(m) {
+	for _, t := range Analyze(m, cfg) {
 		for _, r := range All() {
 			if r.Check == nil {
 				continue

@@ -7,6 +7,7 @@ import (
 
 // Table is one table with the numbers every rule needs, computed once.
 type Table struct {
+	Config  Config
 	File    string
 	Spec    schema.Table
 	Engine  schema.Engine
@@ -24,7 +25,7 @@ type Table struct {
 
 // Analyze computes the layout of every table of m. A table whose partitions cannot be
 // expanded is left out; the loader refuses such manifests before they get here.
-func Analyze(m *schema.Manifest) []*Table {
+func Analyze(m *schema.Manifest, cfg Config) []*Table {
 	out := make([]*Table, 0, len(m.Tables))
 	for _, spec := range m.Tables {
 		parts, err := layout.Expand(spec)
@@ -32,6 +33,7 @@ func Analyze(m *schema.Manifest) []*Table {
 			continue
 		}
 		t := &Table{
+			Config:  cfg,
 			File:    m.File,
 			Spec:    spec,
 			Engine:  m.Engine,

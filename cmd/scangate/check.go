@@ -69,7 +69,7 @@ func checkAll(inputs []input) ([]rules.Finding, report.Summary) {
 			continue
 		}
 		sum.Tables += len(m.Tables)
-		findings = append(findings, rules.Run(m)...)
+		findings = append(findings, rules.Run(m, rules.Config{})...)
 	}
 	sort.SliceStable(findings, func(i, j int) bool { return rules.Less(findings[i], findings[j]) })
 	return findings, sum
