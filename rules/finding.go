@@ -3,6 +3,8 @@
 package rules
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"strings"
 
@@ -89,4 +91,16 @@ func SchemaFindings(e *schema.Error) []Finding {
 		})
 	}
 	return out
+}
+
+// Fingerprint identifies a finding across runs and edits: a hash of the rule, the file's
+// path relative to the repository root, the table and the finding's subject. Line numbers
+// are left out on purpose, so moving a table or editing elsewhere keeps it.
+func Fingerprint(f Finding, uri string) string {
+	h := sha256.New()
+	for _, part := range []string{f.Rule, uri, f.Table, f.Subject} {
+		h.Write([]byte(part))
+		h.Write([]byte{0})
+	}
+	return hex.EncodeToString(h.Sum(nil)[:16])
 }

@@ -90,3 +90,15 @@ func plural(n int64, one, many string) string {
 	}
 	return many
 }
+
+// Thousands, Millis, Percent and Rows format figures the way findings do, for reports.
+func Thousands(n int64) string { return num(n) }
+
+// Millis writes milliseconds as findings do: one decimal below 100.
+func Millis(x float64) string { return ms(x) }
+
+// Percent writes a fraction as a percentage.
+func Percent(f float64) string { return pct(f) }
+
+// Rows writes a count with the manifest's suffixes: 8Mi, 7.2G.
+func Rows(n int64) string { return count(n) }

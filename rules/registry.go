@@ -52,8 +52,16 @@ func Lookup(id string) (Rule, bool) {
 
 // Run analyses every table of m and returns the findings of every rule, sorted.
 func Run(m *schema.Manifest, cfg Config) []Finding {
+	_, fs := Check(m, cfg)
+	return fs
+}
+
+// Check analyses every table of m and returns the tables with their numbers and the
+// findings of every rule, sorted; reports show both.
+func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
+	tables := Analyze(m, cfg)
 	var out []Finding
-	for _, t := range Analyze(m, cfg) {
+	for _, t := range tables {
 		for _, r := range All() {
 			if r.Check == nil {
 				continue
@@ -65,5 +73,5 @@ func Run(m *schema.Manifest, cfg Config) []Finding {
 		}
 	}
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
-	return out
+	return tables, out
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/big"
+	"regexp"
 	"strconv"
 	"strings"
 
@@ -125,16 +126,6 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 }
 
 func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Node, ptr string, depth int) *Problem {
-	// Each merge counts as a node and a level: a merge key that refers to its own mapping
-	// would otherwise recurse until the stack overflows, and merges of merges of merges
-	// would take exponential time without ever converting a node.
-	t.nodes++
-	if t.nodes > t.lim.MaxNodes {
-		return problemAt(m, ptr, fmt.Sprintf("the document expands to more than %d nodes (aliases included); simplify it or raise the limit", t.lim.MaxNodes))
-	}
-	if depth > t.lim.MaxDepth {
-		return problemAt(m, ptr, fmt.Sprintf("merge keys (<<) nest deeper than %d levels; a merge key must not refer to the mapping that holds it", t.lim.MaxDepth))
-	}
 	target := m
 	for target.Kind == yaml.AliasNode {
 		target = target.Alias
@@ -142,7 +133,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	switch target.Kind {
 	case yaml.SequenceNode:
 		for _, e := range target.Content {
-			if p := t.merge(out, seen, e, ptr, depth+1); p != nil {
+			if p := t.merge(out, seen, e, ptr, depth); p != nil {
 				return p
 			}
 		}
@@ -154,7 +145,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	for i := 0; i+1 < len(target.Content); i += 2 {
 		k, v := target.Content[i], target.Content[i+1]
 		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
-			if p := t.merge(out, seen, v, ptr, depth+1); p != nil {
+			if p := t.merge(out, seen, v, ptr, depth); p != nil {
 				return p
 			}
 			continue
@@ -171,6 +162,8 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	}
 	return nil
 }
+
+var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
 
 // scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number.
 func scalar(n *yaml.Node, ptr string) (any, *Problem) {
@@ -206,6 +199,10 @@ func scalar(n *yaml.Node, ptr string) (any, *Problem) {
 		}
 		if err != nil {
 			return nil, problemAt(n, ptr, fmt.Sprintf("%q is not a valid number", n.Value))
+		}
+		// Keep the number as written when it is valid JSON, so messages quote the user.
+		if text := strings.ReplaceAll(n.Value, "_", ""); jsonNumber.MatchString(text) {
+			return json.Number(text), nil
 		}
 		return json.Number(strconv.FormatFloat(f, 'g', -1, 64)), nil
 	default:

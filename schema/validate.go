@@ -260,3 +260,9 @@ func sortProblems(ps []Problem) {
 		return a.Message < b.Message
 	})
 }
+
+//go:embed output.schema.json
+var outputSchema []byte
+
+// OutputSchema returns the JSON Schema of the JSON report.
+func OutputSchema() []byte { return bytes.Clone(outputSchema) }

@@ -3,7 +3,10 @@ package main
 import (
 	"fmt"
 	"os"
+	"runtime"
 	"sort"
+	"sync"
+	"time"
 
 	"github.com/mattn/go-isatty"
 	"github.com/scangate/scangate/rules"
@@ -13,7 +16,8 @@ import (
 )
 
 func newCheck() *cobra.Command {
-	var failOn string
+	var failOn, output, today string
+	var formats []string
 	var noColor bool
 	cmd := &cobra.Command{
 		Use:   "check [PATH...]",
@@ -21,58 +25,121 @@ func newCheck() *cobra.Command {
 		Long: "check validates each manifest against the manifest JSON Schema, computes every\n" +
 			"table's segment layout and scan cost, and prints graded findings with fix hints.\n" +
 			"PATH is a file, a directory (every *.yaml, *.yml, *.json below it that holds\n" +
-			"\"format:\"), or - for standard input; the default is the current directory.",
-		Example: "  scangate check testdata/demo\n  scangate check --fail-on warning models/\n  cat model.yaml | scangate check -",
+			"\"format:\"), or - for standard input; the default is the current directory.\n\n" +
+			"Formats: text, json, sarif, github, markdown, junit. --format NAME writes to\n" +
+			"standard output (or to --output), --format NAME=FILE to a file; repeat it for\n" +
+			"several. Without --format: text, plus github when GITHUB_ACTIONS=true.",
+		Example: "  scangate check testdata/demo\n" +
+			"  scangate check --fail-on warning models/\n" +
+			"  scangate check --format text --format sarif=out/scangate.sarif .\n" +
+			"  cat model.yaml | scangate check -",
 		RunE: func(cmd *cobra.Command, args []string) error {
 			threshold, err := parseFailOn(failOn)
 			if err != nil {
-				return &exitError{code: exitInvalid, msg: err.Error()}
+				return usageError(err)
+			}
+			cfg, err := runConfig(today)
+			if err != nil {
+				return usageError(err)
+			}
+			outs, err := parseOutputs(formats, output, os.Getenv("GITHUB_ACTIONS") == "true")
+			if err != nil {
+				return usageError(err)
 			}
 			inputs, err := collect(args, cmd.InOrStdin(), schema.DefaultLimits.MaxFileBytes)
 			if err != nil {
-				return &exitError{code: exitInvalid, msg: err.Error()}
+				return usageError(err)
 			}
-			findings, sum := checkAll(inputs)
-			out := cmd.OutOrStdout()
-			if err := report.Text(out, findings, sum, useColor(out, noColor)); err != nil {
-				return &exitError{code: exitInvalid, msg: err.Error()}
+			files, findings := checkAll(inputs, cfg)
+			res := &report.Result{
+				Version:  moduleVersion(),
+				FailOn:   threshold,
+				Files:    files,
+				Findings: findings,
+				Summary:  report.Summarize(files),
 			}
-			return exitFor(findings, sum, threshold)
+			stdout := cmd.OutOrStdout()
+			if err := emit(outs, res, stdout, useColor(stdout, noColor)); err != nil {
+				return usageError(err)
+			}
+			return exitFor(res)
 		},
 	}
 	cmd.Flags().StringVar(&failOn, "fail-on", "error", "exit 1 when a finding is at or above this severity: error, warning, note or never")
 	cmd.Flags().BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
+	cmd.Flags().StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE (text, json, sarif, github, markdown, junit); repeatable")
+	cmd.Flags().StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
+	cmd.Flags().StringVar(&today, "today", "", "the date forecasts count from, YYYY-MM-DD (default: today, UTC)")
 	return cmd
 }
 
-// checkAll loads and checks every input; unreadable and invalid files become schema findings.
-func checkAll(inputs []input) ([]rules.Finding, report.Summary) {
-	var findings []rules.Finding
-	sum := report.Summary{Files: len(inputs)}
-	for _, in := range inputs {
-		if in.err != nil {
-			sum.Invalid++
-			findings = append(findings, rules.Finding{
-				Rule: rules.Schema.ID, Severity: rules.Error, File: in.name,
-				Message: fmt.Sprintf("cannot read the file: %v", in.err),
-			})
-			continue
-		}
-		m, err := schema.Load(in.name, in.data, schema.DefaultLimits)
+func usageError(err error) error { return &exitError{code: exitInvalid, msg: err.Error()} }
+
+// runConfig builds the rules' configuration from the flags.
+func runConfig(today string) (rules.Config, error) {
+	cfg := rules.Config{Today: time.Now().UTC().Truncate(24 * time.Hour)}
+	if today != "" {
+		d, err := time.Parse("2006-01-02", today)
 		if err != nil {
-			sum.Invalid++
-			if se, ok := err.(*schema.Error); ok {
-				findings = append(findings, rules.SchemaFindings(se)...)
-				continue
-			}
-			findings = append(findings, rules.Finding{Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Message: err.Error()})
-			continue
+			return cfg, fmt.Errorf("--today %q: write the date as YYYY-MM-DD", today)
 		}
-		sum.Tables += len(m.Tables)
-		findings = append(findings, rules.Run(m, rules.Config{})...)
+		cfg.Today = d
+	}
+	return cfg, nil
+}
+
+// checkAll loads and checks every input on a bounded pool of workers and returns the
+// files in input order and the findings sorted; unreadable and invalid files become
+// schema findings and never stop the others.
+func checkAll(inputs []input, cfg rules.Config) ([]report.File, []rules.Finding) {
+	files := make([]report.File, len(inputs))
+	found := make([][]rules.Finding, len(inputs))
+	root := repositoryRoot()
+	jobs := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), max(len(inputs), 1)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range jobs {
+				files[i], found[i] = checkOne(inputs[i], root, cfg)
+			}
+		}()
+	}
+	for i := range inputs {
+		jobs <- i
+	}
+	close(jobs)
+	wg.Wait()
+	var findings []rules.Finding
+	for _, fs := range found {
+		findings = append(findings, fs...)
 	}
 	sort.SliceStable(findings, func(i, j int) bool { return rules.Less(findings[i], findings[j]) })
-	return findings, sum
+	return files, findings
+}
+
+func checkOne(in input, root string, cfg rules.Config) (report.File, []rules.Finding) {
+	f := report.File{Name: in.name, URI: repositoryPath(root, in.name)}
+	if in.err != nil {
+		f.Invalid = true
+		return f, []rules.Finding{{
+			Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Subject: "read",
+			Message: fmt.Sprintf("cannot read the file: %v", in.err),
+		}}
+	}
+	m, err := schema.Load(in.name, in.data, schema.DefaultLimits)
+	if err != nil {
+		f.Invalid = true
+		if se, ok := err.(*schema.Error); ok {
+			return f, rules.SchemaFindings(se)
+		}
+		return f, []rules.Finding{{Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Message: err.Error()}}
+	}
+	f.Model = m.Model
+	tables, findings := rules.Check(m, cfg)
+	f.Tables = tables
+	return f, findings
 }
 
 // parseFailOn reads --fail-on: the lowest severity that fails the run, 0 for never.
@@ -88,17 +155,12 @@ func parseFailOn(s string) (rules.Severity, error) {
 }
 
 // exitFor is 2 when any input was invalid, 1 when a finding reaches the threshold, else 0.
-func exitFor(findings []rules.Finding, sum report.Summary, threshold rules.Severity) error {
-	if sum.Invalid > 0 {
+func exitFor(r *report.Result) error {
+	switch {
+	case r.Summary.Invalid > 0:
 		return &exitError{code: exitInvalid}
-	}
-	if threshold == 0 {
-		return nil
-	}
-	for _, f := range findings {
-		if f.Severity >= threshold {
-			return &exitError{code: exitFindings}
-		}
+	case r.Failed():
+		return &exitError{code: exitFindings}
 	}
 	return nil
 }

@@ -3,8 +3,10 @@
 package main
 
 import (
+	"fmt"
 	"io"
 	"os"
+	"runtime/debug"
 )
 
 func main() {
@@ -28,7 +30,14 @@ type exitError struct {
 func (e *exitError) Error() string { return e.msg }
 
 // run executes the command line and returns the process exit code.
-func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
+	// A panic is a bug in scangate; the pipeline still gets a clear line and exit 2.
+	defer func() {
+		if p := recover(); p != nil {
+			fmt.Fprintf(stderr, "scangate: internal error: %v\n%s\nPlease report this with the input that caused it.\n", p, debug.Stack())
+			code = exitInvalid
+		}
+	}()
 	root := newRoot(stdin, stdout, stderr)
 	root.SetArgs(args)
 	err := root.Execute()

@@ -10,17 +10,10 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
-// Summary counts what a run looked at.
-type Summary struct {
-	Files   int // manifests read
-	Invalid int // of which could not be checked (schema findings)
-	Tables  int // tables analysed
-}
-
 // Text writes findings in the GNU style, "path:line:col: severity: message [rule]",
 // each followed by indented hint lines, then one summary line. Colour is used only
 // when asked for; the caller decides from the terminal, NO_COLOR and --no-color.
-func Text(w io.Writer, findings []rules.Finding, s Summary, useColor bool) error {
+func Text(w io.Writer, r *Result, useColor bool) error {
 	paint := func(c *color.Color) func(a ...any) string {
 		if useColor {
 			c.EnableColor()
@@ -37,7 +30,7 @@ func Text(w io.Writer, findings []rules.Finding, s Summary, useColor bool) error
 		rules.Note:    paint(color.New(color.FgCyan)),
 	}
 	var b strings.Builder
-	for _, f := range findings {
+	for _, f := range r.Findings {
 		loc := f.File
 		if f.Pos.Line > 0 {
 			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
@@ -47,7 +40,7 @@ func Text(w io.Writer, findings []rules.Finding, s Summary, useColor bool) error
 			fmt.Fprintf(&b, "    hint: %s\n", h)
 		}
 	}
-	b.WriteString(SummaryLine(findings, s))
+	b.WriteString(SummaryLine(r.Findings, r.Summary))
 	b.WriteByte('\n')
 	_, err := io.WriteString(w, b.String())
 	return err

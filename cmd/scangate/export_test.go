@@ -1,0 +1,10 @@
+package main
+
+import "github.com/scangate/scangate/rules/report"
+
+// The escaping functions live in the report package; these hooks let the CLI tests
+// check them beside the end-to-end run.
+var (
+	escapeDataForTest     = report.EscapeData
+	escapePropertyForTest = report.EscapeProperty
+)

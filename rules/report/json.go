@@ -1,0 +1,169 @@
+package report
+
+import (
+	"encoding/json"
+	"io"
+	"math"
+	"sort"
+
+	"github.com/scangate/scangate/rules"
+)
+
+// JSONSchemaVersion is the version of the JSON report's shape (schema/output.schema.json).
+// It changes only when a field is removed or changes meaning.
+const JSONSchemaVersion = 1
+
+type jsonReport struct {
+	SchemaVersion int           `json:"schema_version"`
+	Tool          jsonTool      `json:"tool"`
+	FailOn        string        `json:"fail_on"`
+	Failed        bool          `json:"failed"`
+	Summary       jsonSummary   `json:"summary"`
+	Files         []jsonFile    `json:"files"`
+	Findings      []jsonFinding `json:"findings"`
+}
+
+type jsonTool struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+type jsonSummary struct {
+	Files        int `json:"files"`
+	InvalidFiles int `json:"invalid_files"`
+	Tables       int `json:"tables"`
+	Errors       int `json:"errors"`
+	Warnings     int `json:"warnings"`
+	Notes        int `json:"notes"`
+}
+
+type jsonFile struct {
+	Path   string      `json:"path"`
+	URI    string      `json:"uri"`
+	Model  string      `json:"model,omitempty"`
+	Valid  bool        `json:"valid"`
+	Tables []jsonTable `json:"tables"`
+}
+
+type jsonTable struct {
+	Name                 string   `json:"name"`
+	Line                 int      `json:"line"`
+	Column               int      `json:"column"`
+	Scheme               string   `json:"scheme"`
+	Rows                 int64    `json:"rows"`
+	SegmentRows          int64    `json:"segment_rows"`
+	Partitions           int      `json:"partitions"`
+	Segments             int64    `json:"segments"`
+	IdealSegments        int64    `json:"ideal_segments"`
+	ExcessSegments       int64    `json:"excess_segments"`
+	Fill                 float64  `json:"fill"`
+	FixedOverheadMs      float64  `json:"fixed_overhead_ms"`
+	ScanOverheadBudgetMs *float64 `json:"scan_overhead_budget_ms,omitempty"`
+	WidestColumn         string   `json:"widest_column,omitempty"`
+	ScanWallMs           *float64 `json:"scan_wall_ms,omitempty"`
+	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
+}
+
+type jsonFinding struct {
+	Rule        string             `json:"rule"`
+	Severity    string             `json:"severity"`
+	Fails       bool               `json:"fails"`
+	File        string             `json:"file"`
+	URI         string             `json:"uri"`
+	Line        int                `json:"line"`
+	Column      int                `json:"column"`
+	Table       string             `json:"table,omitempty"`
+	Message     string             `json:"message"`
+	Hints       []string           `json:"hints"`
+	Fingerprint string             `json:"fingerprint"`
+	Numbers     map[string]float64 `json:"numbers"`
+}
+
+// JSON writes the versioned machine-readable report (schema/output.schema.json).
+func JSON(w io.Writer, r *Result) error {
+	n := r.Counts()
+	doc := jsonReport{
+		SchemaVersion: JSONSchemaVersion,
+		Tool:          jsonTool{Name: "scangate", Version: r.Version},
+		FailOn:        failOnName(r.FailOn),
+		Failed:        r.Failed(),
+		Summary: jsonSummary{
+			Files: r.Summary.Files, InvalidFiles: r.Summary.Invalid, Tables: r.Summary.Tables,
+			Errors: n[rules.Error], Warnings: n[rules.Warning], Notes: n[rules.Note],
+		},
+		Files:    []jsonFile{},
+		Findings: []jsonFinding{},
+	}
+	for _, f := range r.Files {
+		jf := jsonFile{Path: f.Name, URI: f.URI, Model: f.Model, Valid: !f.Invalid, Tables: []jsonTable{}}
+		for _, t := range f.Tables {
+			jf.Tables = append(jf.Tables, tableJSON(t))
+		}
+		doc.Files = append(doc.Files, jf)
+	}
+	for _, f := range r.Findings {
+		nums := map[string]float64{}
+		for k, v := range f.Numbers {
+			nums[k] = round(v)
+		}
+		hints := f.Hints
+		if hints == nil {
+			hints = []string{}
+		}
+		doc.Findings = append(doc.Findings, jsonFinding{
+			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.Fails(f),
+			File: f.File, URI: r.uri(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
+			Table: f.Table, Message: f.Message, Hints: hints,
+			Fingerprint: r.Fingerprint(f), Numbers: nums,
+		})
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	return enc.Encode(doc)
+}
+
+func tableJSON(t *rules.Table) jsonTable {
+	l := t.Layout
+	jt := jsonTable{
+		Name: t.Spec.Name, Line: t.Spec.Pos.Line, Column: t.Spec.Pos.Col,
+		Scheme: string(t.Spec.Partitions.Scheme), Rows: l.Rows, SegmentRows: t.Engine.SegmentRows,
+		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
+		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
+		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
+	}
+	if t.Widest != nil {
+		wall := round(t.Scan.WallMs)
+		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
+	}
+	return jt
+}
+
+// round keeps six decimals: enough for any figure a person reads, and it hides the
+// last-bit differences floating point may show between machines.
+func round(x float64) float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0
+	}
+	if math.Abs(x) >= 1e15 {
+		return math.Round(x)
+	}
+	return math.Round(x*1e6) / 1e6
+}
+
+func failOnName(s rules.Severity) string {
+	if s == 0 {
+		return "never"
+	}
+	return s.String()
+}
+
+// sortedKeys returns a map's keys in order, so no output depends on map order.
+func sortedKeys[V any](m map[string]V) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}

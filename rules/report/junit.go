@@ -1,0 +1,101 @@
+package report
+
+import (
+	"encoding/xml"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/scangate/scangate/rules"
+)
+
+type junitSuites struct {
+	XMLName  xml.Name     `xml:"testsuites"`
+	Name     string       `xml:"name,attr"`
+	Tests    int          `xml:"tests,attr"`
+	Failures int          `xml:"failures,attr"`
+	Suites   []junitSuite `xml:"testsuite"`
+}
+
+type junitSuite struct {
+	Name     string      `xml:"name,attr"`
+	Tests    int         `xml:"tests,attr"`
+	Failures int         `xml:"failures,attr"`
+	Cases    []junitCase `xml:"testcase"`
+}
+
+type junitCase struct {
+	Name      string         `xml:"name,attr"`
+	Classname string         `xml:"classname,attr"`
+	File      string         `xml:"file,attr,omitempty"`
+	Line      int            `xml:"line,attr,omitempty"`
+	Failures  []junitFailure `xml:"failure"`
+}
+
+type junitFailure struct {
+	Message string `xml:"message,attr"`
+	Type    string `xml:"type,attr"`
+	Text    string `xml:",chardata"`
+}
+
+// JUnit writes JUnit XML: a test suite per manifest, a test case per table, and a
+// failure per finding at or above the failing level. An invalid manifest is one case,
+// "schema", with a failure per problem.
+func JUnit(w io.Writer, r *Result) error {
+	doc := junitSuites{Name: "scangate"}
+	for _, f := range r.Files {
+		suite := junitSuite{Name: f.URI}
+		byTable := map[string][]rules.Finding{}
+		var fileLevel []rules.Finding
+		for _, x := range r.Findings {
+			if x.File != f.Name || !r.Fails(x) {
+				continue
+			}
+			if x.Table == "" {
+				fileLevel = append(fileLevel, x)
+			} else {
+				byTable[x.Table] = append(byTable[x.Table], x)
+			}
+		}
+		if f.Invalid || len(fileLevel) > 0 {
+			suite.Cases = append(suite.Cases, junitCase{Name: "schema", Classname: f.URI, File: f.URI, Failures: failures(fileLevel)})
+		}
+		for _, t := range f.Tables {
+			suite.Cases = append(suite.Cases, junitCase{
+				Name: t.Spec.Name, Classname: f.Model, File: f.URI, Line: t.Spec.Pos.Line,
+				Failures: failures(byTable[t.Spec.Name]),
+			})
+		}
+		for _, c := range suite.Cases {
+			suite.Tests++
+			if len(c.Failures) > 0 {
+				suite.Failures++
+			}
+		}
+		doc.Tests += suite.Tests
+		doc.Failures += suite.Failures
+		doc.Suites = append(doc.Suites, suite)
+	}
+	if _, err := io.WriteString(w, xml.Header); err != nil {
+		return err
+	}
+	enc := xml.NewEncoder(w)
+	enc.Indent("", "  ")
+	if err := enc.Encode(doc); err != nil {
+		return err
+	}
+	_, err := io.WriteString(w, "\n")
+	return err
+}
+
+func failures(fs []rules.Finding) []junitFailure {
+	var out []junitFailure
+	for _, f := range fs {
+		text := fmt.Sprintf("%s:%d:%d: %s: %s", f.File, f.Pos.Line, f.Pos.Col, f.Severity, f.Message)
+		if len(f.Hints) > 0 {
+			text += "\nhint: " + strings.Join(f.Hints, "\nhint: ")
+		}
+		out = append(out, junitFailure{Message: f.Message, Type: f.Rule + " (" + f.Severity.String() + ")", Text: text})
+	}
+	return out
+}

@@ -1,0 +1,88 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/scangate/scangate/rules"
+)
+
+// Markdown writes a summary for a job page or a pull-request comment: a verdict line, a
+// table of tables with their layout against the budget, then the findings grouped by
+// severity with their hints.
+func Markdown(w io.Writer, r *Result) error {
+	var b strings.Builder
+	n := r.Counts()
+	verdict := "passed"
+	if r.Failed() {
+		verdict = "failed"
+	}
+	fmt.Fprintf(&b, "### scangate %s\n\n", verdict)
+	fmt.Fprintf(&b, "%s (the gate fails at %s).\n\n", mdEscape(SummaryLine(r.Findings, r.Summary)), failOnName(r.FailOn))
+	if r.Summary.Tables > 0 {
+		b.WriteString("| file | table | partitions | segments | ideal | fill | fixed ms per scan | budget ms |\n")
+		b.WriteString("|---|---|--:|--:|--:|--:|--:|--:|\n")
+		for _, f := range r.Files {
+			for _, t := range f.Tables {
+				l := t.Layout
+				budget := "–"
+				if t.Budgets.ScanOverheadMs != nil {
+					budget = rules.Millis(*t.Budgets.ScanOverheadMs)
+				}
+				fmt.Fprintf(&b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
+					code(f.Name), code(t.Spec.Name), rules.Thousands(int64(l.Partitions)), rules.Thousands(l.Segments),
+					rules.Thousands(l.Ideal), rules.Percent(l.Fill), rules.Millis(l.FixedMs), budget)
+			}
+		}
+		b.WriteString("\n")
+	}
+	for _, sev := range []rules.Severity{rules.Error, rules.Warning, rules.Note} {
+		if n[sev] == 0 {
+			continue
+		}
+		fmt.Fprintf(&b, "#### %s (%d)\n\n", map[rules.Severity]string{rules.Error: "Errors", rules.Warning: "Warnings", rules.Note: "Notes"}[sev], n[sev])
+		for _, f := range r.Findings {
+			if f.Severity != sev {
+				continue
+			}
+			loc := f.File
+			if f.Pos.Line > 0 {
+				loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+			}
+			fmt.Fprintf(&b, "- %s **%s**: %s\n", code(loc), f.Rule, mdEscape(f.Message))
+			for _, h := range f.Hints {
+				fmt.Fprintf(&b, "  - hint: %s\n", mdEscape(h))
+			}
+		}
+		b.WriteString("\n")
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// mdEscape backslash-escapes the characters Markdown would read as markup.
+func mdEscape(s string) string {
+	var b strings.Builder
+	for _, r := range s {
+		if strings.ContainsRune("\\`*_[]<>|#!{}", r) {
+			b.WriteByte('\\')
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// code wraps s in a code span, with a fence longer than any backtick run inside it, and
+// escapes the pipe, which ends a table cell even inside a code span.
+func code(s string) string {
+	fence := "`"
+	for strings.Contains(s, fence) {
+		fence += "`"
+	}
+	s = strings.ReplaceAll(s, "|", "\\|")
+	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") {
+		s = " " + s + " "
+	}
+	return fence + s + fence
+}

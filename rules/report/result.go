@@ -1,0 +1,85 @@
+package report
+
+import (
+	"github.com/scangate/scangate/rules"
+)
+
+// Result is everything one run produced, in the order reports show it. Every writer
+// renders the same Result, so the formats never disagree.
+type Result struct {
+	Version  string         // scangate's version, as `scangate version` prints it
+	FailOn   rules.Severity // the lowest severity that fails the run; 0 for never
+	Files    []File         // in the order the inputs were given and walked
+	Findings []rules.Finding
+	Summary  Summary
+}
+
+// File is one input and what was computed for it.
+type File struct {
+	Name    string // as reported: the path given or found, "<stdin>" for standard input
+	URI     string // path relative to the repository root, with forward slashes
+	Model   string
+	Invalid bool // could not be read or broke the schema; its findings say why
+	Tables  []*rules.Table
+}
+
+// Summary counts what a run looked at.
+type Summary struct {
+	Files   int // manifests read
+	Invalid int // of which could not be checked (schema findings)
+	Tables  int // tables analysed
+}
+
+// Summarize counts the files and tables of r.
+func Summarize(files []File) Summary {
+	s := Summary{Files: len(files)}
+	for _, f := range files {
+		if f.Invalid {
+			s.Invalid++
+		}
+		s.Tables += len(f.Tables)
+	}
+	return s
+}
+
+// Counts tallies findings by severity.
+func (r *Result) Counts() map[rules.Severity]int {
+	n := map[rules.Severity]int{}
+	for _, f := range r.Findings {
+		n[f.Severity]++
+	}
+	return n
+}
+
+// Failed reports whether the run fails: an invalid input, or a finding at or above FailOn.
+func (r *Result) Failed() bool {
+	if r.Summary.Invalid > 0 {
+		return true
+	}
+	for _, f := range r.Findings {
+		if r.FailOn != 0 && f.Severity >= r.FailOn {
+			return true
+		}
+	}
+	return false
+}
+
+// Fails reports whether one finding counts toward failing the run.
+func (r *Result) Fails(f rules.Finding) bool {
+	return f.Rule == rules.Schema.ID || (r.FailOn != 0 && f.Severity >= r.FailOn)
+}
+
+// uri is the repository-relative path of a finding's file.
+func (r *Result) uri(file string) string {
+	for _, f := range r.Files {
+		if f.Name == file {
+			return f.URI
+		}
+	}
+	return file
+}
+
+// Fingerprint is the stable identity of a finding in this run.
+func (r *Result) Fingerprint(f rules.Finding) string {
+	return rules.Fingerprint(f, r.uri(f.File))
+}

@@ -1,0 +1,89 @@
+package report
+
+import (
+	"io"
+	"strings"
+
+	"github.com/owenrumney/go-sarif/v3/pkg/report/v210/sarif"
+	"github.com/scangate/scangate/rules"
+)
+
+// InformationURI is where the SARIF report sends readers for the tool.
+const InformationURI = "https://github.com/scangate/scangate"
+
+// fingerprintKey names scangate's partial fingerprint; the suffix is the algorithm's version.
+const fingerprintKey = "scangateFinding/v1"
+
+// SARIF writes a SARIF 2.1.0 log (OASIS standard): one run, a rule descriptor for every
+// rule, and a result per finding located relative to the repository root (%SRCROOT%).
+func SARIF(w io.Writer, r *Result) error {
+	log := sarif.NewReport()
+	run := sarif.NewRunWithInformationURI("scangate", InformationURI)
+	run.Tool.Driver.WithVersion(r.Version)
+	index := map[string]int{}
+	for i, rule := range rules.All() {
+		index[rule.ID] = i
+		run.Tool.Driver.Rules = append(run.Tool.Driver.Rules, sarif.NewRule(rule.ID).
+			WithName(ruleName(rule.ID)).
+			WithShortDescription(sarif.NewMultiformatMessageString().WithText(rule.Title)).
+			WithFullDescription(sarif.NewMultiformatMessageString().WithText(rule.Why)).
+			WithHelp(sarif.NewMultiformatMessageString().
+				WithText(rule.Why+"\n\nFix: "+rule.Fix).
+				WithMarkdown("**"+rule.Title+"**\n\n"+rule.Why+"\n\n**Fix:** "+rule.Fix)).
+			WithHelpURI(InformationURI+"#rules").
+			WithDefaultConfiguration(sarif.NewReportingConfiguration().WithLevel(level(rule.Default))))
+	}
+	for _, f := range r.Findings {
+		text := f.Message
+		for _, h := range f.Hints {
+			text += "\nhint: " + h
+		}
+		loc := sarif.NewArtifactLocation().WithURI(r.uri(f.File)).WithURIBaseID("%SRCROOT%")
+		phys := sarif.NewPhysicalLocation().WithArtifactLocation(loc)
+		if f.Pos.Line > 0 {
+			phys.WithRegion(sarif.NewRegion().WithStartLine(f.Pos.Line).WithStartColumn(f.Pos.Col))
+		}
+		res := sarif.NewRuleResult(f.Rule).
+			WithRuleIndex(index[f.Rule]).
+			WithLevel(level(f.Severity)).
+			WithMessage(sarif.NewMessage().WithText(text)).
+			AddLocation(sarif.NewLocation().WithPhysicalLocation(phys)).
+			WithPartialFingerprints(map[string]string{fingerprintKey: r.Fingerprint(f)})
+		if len(f.Numbers) > 0 {
+			props := sarif.NewPropertyBag()
+			for _, k := range sortedKeys(f.Numbers) {
+				props.Add(k, round(f.Numbers[k]))
+			}
+			res.WithProperties(props)
+		}
+		run.AddResult(res)
+	}
+	log.AddRun(run)
+	if err := log.PrettyWrite(w); err != nil {
+		return err
+	}
+	_, err := io.WriteString(w, "\n")
+	return err
+}
+
+func level(s rules.Severity) string {
+	switch s {
+	case rules.Error:
+		return "error"
+	case rules.Warning:
+		return "warning"
+	}
+	return "note"
+}
+
+// ruleName turns a rule ID into the PascalCase name SARIF viewers show: scan-overhead ->
+// ScanOverhead.
+func ruleName(id string) string {
+	var b strings.Builder
+	for _, part := range strings.Split(id, "-") {
+		if part != "" {
+			b.WriteString(strings.ToUpper(part[:1]) + part[1:])
+		}
+	}
+	return b.String()
+}
