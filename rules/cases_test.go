@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
@@ -22,9 +23,10 @@ type want struct {
 	severity string
 	col      int
 	fragment string
+	waived   bool
 }
 
-var wantEntry = regexp.MustCompile(`^\s*([a-z-]+)(?:/(error|warning|note))?(?:@(\d+))?\s*(?:("(?:[^"\\]|\\.)*"))?\s*$`)
+var wantEntry = regexp.MustCompile(`^\s*([a-z-]+)(?:/(error|warning|note))?(?:@(\d+))?(\s+waived)?\s*(?:("(?:[^"\\]|\\.)*"))?\s*$`)
 
 func readWants(t *testing.T, path string, data []byte) []want {
 	var out []want
@@ -41,12 +43,12 @@ func readWants(t *testing.T, path string, data []byte) []want {
 			}
 			col, _ := strconv.Atoi(m[3])
 			frag := ""
-			if m[4] != "" {
-				if frag, err = strconv.Unquote(m[4]); err != nil {
-					t.Fatalf("%s:%d: bad fragment %s: %v", path, i+1, m[4], err)
+			if m[5] != "" {
+				if frag, err = strconv.Unquote(m[5]); err != nil {
+					t.Fatalf("%s:%d: bad fragment %s: %v", path, i+1, m[5], err)
 				}
 			}
-			out = append(out, want{line: i + 1, rule: m[1], severity: m[2], col: col, fragment: frag})
+			out = append(out, want{line: i + 1, rule: m[1], severity: m[2], col: col, fragment: frag, waived: m[4] != ""})
 		}
 	}
 	return out
@@ -68,7 +70,7 @@ func runCase(t *testing.T, path string) {
 		}
 		got = rules.SchemaFindings(se)
 	} else {
-		got = rules.Run(m, rules.Config{})
+		got = rules.Run(m, rules.Config{Today: caseToday})
 	}
 	matched := make([]bool, len(got))
 	for _, w := range wants {
@@ -76,7 +78,7 @@ func runCase(t *testing.T, path string) {
 		for i, f := range got {
 			if matched[i] || f.Pos.Line != w.line || f.Rule != w.rule ||
 				(w.severity != "" && f.Severity.String() != w.severity) ||
-				(w.col != 0 && f.Pos.Col != w.col) ||
+				(w.col != 0 && f.Pos.Col != w.col) || w.waived != (f.Waiver != nil) ||
 				!strings.Contains(f.Message, w.fragment) {
 				continue
 			}
@@ -106,6 +108,10 @@ func ifSet(prefix, s string) string {
 	}
 	return prefix + s
 }
+
+// caseToday is the date every case is judged on, so waivers and forecasts do not
+// depend on the day the tests run.
+var caseToday = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 
 // TestRuleCases runs every annotated manifest under testdata/rules and testdata/bad.
 func TestRuleCases(t *testing.T) {
@@ -157,8 +163,9 @@ func TestRuleDocs(t *testing.T) {
 			t.Errorf("duplicate rule ID %s", r.ID)
 		}
 		seen[r.ID] = true
-		if !regexp.MustCompile(`^[a-z]+(-[a-z]+)*$`).MatchString(r.ID) || r.Title == "" || r.Why == "" || r.Fix == "" || r.Default == 0 {
-			t.Errorf("rule %q is missing its ID form, title, why, fix or default severity", r.ID)
+		if !regexp.MustCompile(`^[a-z]+(-[a-z]+)*$`).MatchString(r.ID) || r.Title == "" || r.Why == "" || r.Fix == "" || r.Default == 0 ||
+			r.How == "" || r.Bad == "" || r.Good == "" {
+			t.Errorf("rule %q is missing its ID form, title, why, fix, how, bad or good snippet, or default severity", r.ID)
 		}
 	}
 }

@@ -58,7 +58,15 @@ type Finding struct {
 	Hints    []string
 	// Numbers are the figures behind the message, for machine-readable reports.
 	Numbers map[string]float64
+	// Waiver is the manifest's waiver that accepts this finding, nil if none.
+	Waiver *schema.Waiver
+	// Baselined is set when the finding was already recorded in the baseline file.
+	Baselined bool
 }
+
+// Accepted reports whether the finding is accepted debt (waived or baselined) and so
+// never counts toward the exit code.
+func (f Finding) Accepted() bool { return f.Waiver != nil || f.Baselined }
 
 // Less orders findings by file, line, column, then rule, so output is deterministic.
 func Less(a, b Finding) bool {

@@ -12,6 +12,13 @@ var NeedlessPartitioning = Rule{
 		"refresh has more pieces to process.",
 	Fix:   "Use partitions: {scheme: none} for the table.",
 	Check: checkNeedlessPartitioning,
+	How:   "A table with two or more partitions whose rows are at most engine.segment_rows.",
+	Bad: `  - name: tariffs
+    rows: 5000
+    partitions: {scheme: even, count: 4}`,
+	Good: `  - name: tariffs
+    rows: 5000
+    partitions: {scheme: none}`,
 }
 
 func checkNeedlessPartitioning(t *Table) []Finding {

@@ -2,9 +2,8 @@ package rules
 
 import (
 	"fmt"
-	"math"
-	"strings"
 
+	"github.com/scangate/scangate/rules/advisor"
 	"github.com/scangate/scangate/rules/layout"
 	"github.com/scangate/scangate/schema"
 )
@@ -21,11 +20,6 @@ type Option struct {
 	Scan        layout.Scan // of the same widest column; zero without profiles
 }
 
-// recentWindow is how many periods of a grain a tiered layout keeps fine before it
-// merges older periods into a coarser grain: about two weeks, two months, half a
-// year, a year (common practice for a recent window reloaded on every refresh).
-var recentWindow = map[schema.Grain]int{schema.Day: 14, schema.Week: 8, schema.Month: 6, schema.Quarter: 4}
-
 // largerSegments are the segment sizes tried, as multiples of today's.
 var largerSegments = []int64{2, 4, 8}
 
@@ -36,19 +30,10 @@ func (t *Table) Options() []Option {
 	}
 	t.optDone = true
 	var specs []Option
-	p := t.Spec.Partitions
-	switch p.Scheme {
-	case schema.SchemeTime:
-		specs = append(specs, timeOptions(t.Spec)...)
-	case schema.SchemeEven:
-		specs = append(specs, evenOptions(t.Spec, t.Engine.SegmentRows)...)
-	case schema.SchemeList:
-		specs = append(specs, listOptions(t.Spec, t.Engine.SegmentRows)...)
-	}
-	if p.Scheme != schema.SchemeNone && t.Layout.Rows <= t.Engine.SegmentRows {
-		one := t.Spec
-		one.Partitions = schema.Partitions{Scheme: schema.SchemeNone, Pos: p.Pos}
-		specs = append(specs, Option{Change: "use partitions: {scheme: none}", Spec: one})
+	// The partition changes come from the advisor, so hints and the plan's sweep name
+	// layouts alike.
+	for _, v := range advisor.Variants(t.Spec, t.Engine.SegmentRows) {
+		specs = append(specs, Option{Change: v.Change, Window: v.Window, Spec: v.Spec})
 	}
 	// Larger segments alone, and with each partition change: when the budget allows
 	// fewer segments than the rows need at today's size, only the pair fits.
@@ -83,131 +68,6 @@ func (t *Table) Options() []Option {
 	return t.options
 }
 
-// timeOptions coarsens one tier at a time to each coarser grain, absorbing later tiers
-// the new grain is not finer than; for the newest tier it also tries keeping a recent
-// window fine and merging the rest.
-func timeOptions(spec schema.Table) []Option {
-	tiers := spec.Partitions.Tiers
-	var out []Option
-	for i, tier := range tiers {
-		for _, g := range schema.Grains[tier.Grain.Rank()+1:] {
-			if i > 0 && g.Rank() <= tiers[i-1].Grain.Rank() {
-				continue
-			}
-			merged, j := mergeFrom(tiers, i, g, 0)
-			out = append(out, withTiers(spec, merged, fmt.Sprintf("turn %s into %s", tierWords(tiers[i:j]), tierWords(merged[i:i+1]))))
-			if w, ok := recentWindow[tier.Grain]; ok && i == 0 && tier.Keep > w {
-				merged, _ := mergeFrom(tiers, 0, g, w)
-				if len(merged) > 1 && merged[1].Grain == g {
-					o := withTiers(spec, merged, fmt.Sprintf("keep %s partitions for %d %ss, then merge into %ss (%s)", tier.Grain, w, tier.Grain, g, tierWords(merged[:2])))
-					o.Window = true
-					out = append(out, o)
-				}
-			}
-		}
-	}
-	return out
-}
-
-// mergeFrom rewrites tiers from i on: keep the first `window` periods of tier i as they
-// are, then cover the rest of tier i and every later tier no coarser than g with periods
-// of g. It returns the new tiers and the index of the first tier left untouched.
-func mergeFrom(tiers []schema.Tier, i int, g schema.Grain, window int) ([]schema.Tier, int) {
-	span := 0.0
-	j := i
-	for ; j < len(tiers) && tiers[j].Grain.Rank() <= g.Rank(); j++ {
-		span += float64(tiers[j].Keep) * tiers[j].Grain.Days()
-	}
-	out := append([]schema.Tier(nil), tiers[:i]...)
-	if window > 0 {
-		out = append(out, schema.Tier{Grain: tiers[i].Grain, Keep: window, Pos: tiers[i].Pos})
-		span -= float64(window) * tiers[i].Grain.Days()
-	}
-	// Round up: the periods must still cover the whole span the tiers kept.
-	keep := max(1, int(math.Ceil(span/g.Days()-1e-9)))
-	out = append(out, schema.Tier{Grain: g, Keep: keep, Pos: tiers[i].Pos})
-	return append(out, tiers[j:]...), j
-}
-
-func withTiers(spec schema.Table, tiers []schema.Tier, change string) Option {
-	s := spec
-	s.Partitions.Tiers = tiers
-	return Option{Change: change, Spec: s}
-}
-
-func tierWords(tiers []schema.Tier) string {
-	w := make([]string, len(tiers))
-	for i, t := range tiers {
-		w[i] = fmt.Sprintf("%s %s %s", num(int64(t.Keep)), t.Grain, plural(int64(t.Keep), "partition", "partitions"))
-	}
-	return strings.Join(w, " + ")
-}
-
-// evenOptions offers the largest partition count below today's whose split wastes no
-// segment (or, failing that, the count with the fewest segments), and a few much
-// smaller counts for tables with far too many partitions.
-func evenOptions(spec schema.Table, s int64) []Option {
-	c := spec.Partitions.Count
-	segs := func(k int) int64 {
-		q, r := spec.Rows/int64(k), spec.Rows%int64(k)
-		return int64(k-int(r))*layout.Segments(q, s) + r*layout.Segments(q+1, s)
-	}
-	ideal := layout.Segments(spec.Rows, s)
-	best, bestSeg := 0, int64(math.MaxInt64)
-	// Scanning down from c stops at the first waste-free count; cap the scan so a
-	// million-partition table stays cheap.
-	for k := c - 1; k >= 1 && k >= c-100_000; k-- {
-		if seg := segs(k); seg < bestSeg {
-			best, bestSeg = k, seg
-			if seg == ideal {
-				break
-			}
-		}
-	}
-	counts := []int{}
-	if best > 0 {
-		counts = append(counts, best)
-	}
-	for _, div := range []int{10, 100, 1000} {
-		if k := c / div; k >= 1 && k != best {
-			counts = append(counts, k)
-		}
-	}
-	var out []Option
-	for _, k := range counts {
-		o := spec
-		o.Partitions.Count = k
-		out = append(out, Option{Change: fmt.Sprintf("use count: %d", k), Spec: o})
-	}
-	return out
-}
-
-// listOptions merges neighbouring listed partitions until each holds at least one
-// full segment.
-func listOptions(spec schema.Table, s int64) []Option {
-	var items []schema.Item
-	var names []string
-	for _, it := range spec.Partitions.Items {
-		if n := len(items); n > 0 && items[n-1].Rows < s {
-			items[n-1].Rows += it.Rows
-			items[n-1].Name += "+" + it.Name
-			continue
-		}
-		items = append(items, it)
-	}
-	if len(items) == len(spec.Partitions.Items) {
-		return mergePair(spec, s)
-	}
-	for _, it := range items {
-		if strings.Contains(it.Name, "+") {
-			names = append(names, it.Name)
-		}
-	}
-	o := spec
-	o.Partitions.Items = items
-	return []Option{{Change: fmt.Sprintf("merge neighbouring listed partitions so each holds at least %s rows (%s)", count(s), strings.Join(names, ", ")), Spec: o}}
-}
-
 // effect words an option's result against today's layout.
 func (t *Table) effect(o Option) string {
 	return fmt.Sprintf("%s -> %s segments, %s ms per scan", num(t.Layout.Segments), num(o.Layout.Segments), signed(o.Layout.FixedMs-t.Layout.FixedMs))
@@ -218,28 +78,4 @@ func signed(x float64) string {
 		return "+" + ms(x)
 	}
 	return ms(x)
-}
-
-// mergePair merges the two neighbouring listed partitions whose merge saves the most
-// segments, for lists whose partitions each already fill a segment.
-func mergePair(spec schema.Table, s int64) []Option {
-	items := spec.Partitions.Items
-	bestAt, bestSaved := -1, int64(0)
-	for i := 0; i+1 < len(items); i++ {
-		a, b := items[i].Rows, items[i+1].Rows
-		saved := layout.Segments(a, s) + layout.Segments(b, s) - layout.Segments(a+b, s)
-		// Among equal savings, merge the smallest pair: the least disruptive change.
-		if saved > bestSaved || (saved == bestSaved && saved > 0 && a+b < items[bestAt].Rows+items[bestAt+1].Rows) {
-			bestAt, bestSaved = i, saved
-		}
-	}
-	if bestAt < 0 {
-		return nil
-	}
-	merged := append([]schema.Item(nil), items[:bestAt]...)
-	pair := schema.Item{Name: items[bestAt].Name + "+" + items[bestAt+1].Name, Rows: items[bestAt].Rows + items[bestAt+1].Rows, Pos: items[bestAt].Pos}
-	merged = append(append(merged, pair), items[bestAt+2:]...)
-	o := spec
-	o.Partitions.Items = merged
-	return []Option{{Change: fmt.Sprintf("merge listed partitions %q and %q", items[bestAt].Name, items[bestAt+1].Name), Spec: o}}
 }

@@ -16,21 +16,6 @@ func load(t *testing.T, src string) *schema.Manifest {
 	return m
 }
 
-// Merging tiers keeps the span covered: 14 days + 23 months is 14 + 23 x 30.4375 =
-// 714.06 days, 23.46 months, rounded up to 24 month periods (hand-computed).
-func TestMergeFromCoversSpan(t *testing.T) {
-	tiers := []schema.Tier{{Grain: schema.Day, Keep: 14}, {Grain: schema.Month, Keep: 23}}
-	got, next := mergeFrom(tiers, 0, schema.Month, 0)
-	if len(got) != 1 || got[0].Grain != schema.Month || got[0].Keep != 24 || next != 2 {
-		t.Fatalf("mergeFrom = %+v, %d; want 24 months, 2", got, next)
-	}
-	// A 14-day window of 730 days, then (730 - 14) / 30.4375 = 23.52 -> 24 months.
-	got, _ = mergeFrom([]schema.Tier{{Grain: schema.Day, Keep: 730}}, 0, schema.Month, 14)
-	if len(got) != 2 || got[0].Keep != 14 || got[1].Keep != 24 {
-		t.Fatalf("window merge = %+v; want 14 days + 24 months", got)
-	}
-}
-
 // 40M rows in 8 even partitions of 5M with 8Mi-row segments: 8 segments; 5 partitions of
 // 8M rows are 5 segments = ceil(40M / 8,388,608) = 5, the ideal (hand-computed), so
 // count 5 is the largest waste-free count below 8.

@@ -4,7 +4,7 @@ import "fmt"
 
 // PartitionCount fires when one table has more partitions than an engine handles well.
 var PartitionCount = Rule{
-	ID:      "partition-count",
+	ID:      partitionCountID,
 	Default: Warning,
 	Title:   "More than 5,000 partitions in one table",
 	Why: "Every partition carries metadata, its own refresh work and at least one segment. " +
@@ -12,24 +12,35 @@ var PartitionCount = Rule{
 		"slow down whatever the row counts (a rule of thumb, from memory, common practice).",
 	Fix: "Use a coarser grain for older periods (tiers), fewer even partitions, or merge " +
 		"listed partitions. The hint names the coarser layout and its partition count.",
-	Check: checkPartitionCount,
+	Params: []Param{partitionLimit},
+	Check:  checkPartitionCount,
+	How:    "The partitions the scheme expands to (sum of keep over the tiers, count, or the listed items) against limit.",
+	Bad: `    partitions:
+      scheme: time
+      tiers: [{grain: day, keep: 6000}]`,
+	Good: `    partitions:
+      scheme: time
+      tiers: [{grain: day, keep: 31}, {grain: month, keep: 196}]`,
 }
 
+const partitionCountID = "partition-count"
+
 // partitionLimit is the most partitions one table should have.
-const partitionLimit = 5000
+var partitionLimit = Param{Name: "limit", Default: 5000, Doc: "Most partitions one table may have before a warning (default 5,000)."}
 
 func checkPartitionCount(t *Table) []Finding {
 	n := int64(t.Layout.Partitions)
-	if n <= partitionLimit {
+	limit := int64(t.Config.Value(partitionCountID, partitionLimit))
+	if n <= limit {
 		return nil
 	}
-	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", num(n), num(partitionLimit))
+	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", num(n), num(limit))
 	var hints []string
 	var best *Option
 	opts := t.Options()
 	for i := range opts {
 		o := &opts[i]
-		if o.Engine || o.Layout.Partitions > partitionLimit {
+		if o.Engine || int64(o.Layout.Partitions) > limit {
 			continue
 		}
 		// Prefer the layout that keeps the most partitions under the limit.
@@ -42,6 +53,6 @@ func checkPartitionCount(t *Table) []Finding {
 	}
 	return []Finding{t.finding(Warning, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"partitions": float64(n),
-		"limit":      partitionLimit,
+		"limit":      float64(limit),
 	})}
 }

@@ -2,7 +2,6 @@ package rules
 
 import (
 	"sort"
-	"time"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -14,24 +13,33 @@ type Rule struct {
 	Title   string   // one line
 	Why     string   // why it matters
 	Fix     string   // how to fix it
+	How     string   // how the number behind it is computed
+	Bad     string   // a manifest snippet that raises it
+	Good    string   // the same snippet fixed
+	// Params are the thresholds a project may tune in .scangate.yaml.
+	Params []Param
 	// Check returns the rule's findings for one analysed table; nil for rules raised
 	// elsewhere (schema).
 	Check func(t *Table) []Finding
 }
 
-// Config is what a run knows beyond the manifest: the date forecasts count from and the
-// settings a project may tune. The zero value is the documented default.
-type Config struct {
-	Today time.Time // the date forecasts and waivers are judged on; zero means now (UTC)
+// Param is one tunable threshold of a rule.
+type Param struct {
+	Name    string
+	Default float64
+	Doc     string
 }
 
 // All lists every rule, sorted by ID.
 func All() []Rule {
 	all := []Rule{
 		Schema,
+		ExpiredWaiver,
+		UnusedWaiver,
 		TruncatedSegments,
 		ScanOverhead,
 		ScanTime,
+		BudgetForecast,
 		RowCountMismatch,
 		NeedlessPartitioning,
 		PartitionCount,
@@ -62,15 +70,18 @@ func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 	tables := Analyze(m, cfg)
 	var out []Finding
 	for _, t := range tables {
+		var own []Finding
 		for _, r := range All() {
-			if r.Check == nil {
+			if r.Check == nil || cfg.off(r.ID) {
 				continue
 			}
 			for _, f := range r.Check(t) {
 				f.Rule = r.ID
-				out = append(out, f)
+				f.Severity = cfg.severity(r.ID, f.Severity)
+				own = append(own, f)
 			}
 		}
+		out = append(out, applyWaivers(t, own, cfg)...)
 	}
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
 	return tables, out

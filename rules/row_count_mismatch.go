@@ -3,12 +3,13 @@ package rules
 import (
 	"fmt"
 	"math"
+	"strconv"
 )
 
 // RowCountMismatch fires when a list table's declared rows and its listed partitions
 // disagree by more than 1%.
 var RowCountMismatch = Rule{
-	ID:      "row-count-mismatch",
+	ID:      rowCountMismatchID,
 	Default: Error,
 	Title:   "Declared rows and listed partitions disagree",
 	Why: "A list-partitioned table may declare its rows and also list each partition's rows. " +
@@ -16,11 +17,25 @@ var RowCountMismatch = Rule{
 		"computes for the table (segments, scan cost, memory) rests on the listed partitions.",
 	Fix: "Update rows to the sum of the listed partitions, correct the partition that is " +
 		"wrong, or drop rows and let the listed partitions speak for the table.",
-	Check: checkRowCountMismatch,
+	Params: []Param{mismatchTolerance},
+	Check:  checkRowCountMismatch,
+	How:    "The sum of the listed partitions' rows against the table's rows; the relative difference must stay within tolerance.",
+	Bad: `  - name: billing_lines
+    rows: 150M
+    partitions:
+      scheme: list
+      items: [{name: "2025", rows: 70M}, {name: "2026", rows: 70M}]   # 140M`,
+	Good: `  - name: billing_lines
+    rows: 140M
+    partitions:
+      scheme: list
+      items: [{name: "2025", rows: 70M}, {name: "2026", rows: 70M}]`,
 }
 
+const rowCountMismatchID = "row-count-mismatch"
+
 // mismatchTolerance is the relative difference accepted between the two counts.
-const mismatchTolerance = 0.01
+var mismatchTolerance = Param{Name: "tolerance", Default: 0.01, Doc: "Relative difference accepted between declared and listed rows (default 0.01, 1%)."}
 
 func checkRowCountMismatch(t *Table) []Finding {
 	if !t.Spec.RowsDeclared || len(t.Spec.Partitions.Items) == 0 {
@@ -38,15 +53,16 @@ func checkRowCountMismatch(t *Table) []Finding {
 	} else if sum == 0 {
 		rel = 0
 	}
-	if math.Abs(rel) <= mismatchTolerance {
+	tol := t.Config.Value(rowCountMismatchID, mismatchTolerance)
+	if math.Abs(rel) <= tol {
 		return nil
 	}
 	share := "all"
 	if !math.IsInf(rel, 0) {
 		share = fmt.Sprintf("%+.1f%%", rel*100)
 	}
-	msg := fmt.Sprintf("rows declares %s (%s) but the %d listed partitions sum to %s (%s), more than 1%% apart",
-		count(declared), num(declared), len(t.Spec.Partitions.Items), count(sum), share)
+	msg := fmt.Sprintf("rows declares %s (%s) but the %d listed partitions sum to %s (%s), more than %s apart",
+		count(declared), num(declared), len(t.Spec.Partitions.Items), count(sum), share, strconv.FormatFloat(tol*100, 'f', -1, 64)+"%")
 	hints := []string{fmt.Sprintf("set rows: %d, or correct the listed partitions; the layout is computed from the listed %s rows", sum, count(sum))}
 	return []Finding{t.finding(Error, t.Spec.RowsPos, "rows", msg, hints, map[string]float64{
 		"declared_rows": float64(declared),

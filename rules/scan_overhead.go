@@ -5,7 +5,7 @@ import "fmt"
 // ScanOverhead fires when the fixed per-segment CPU of one full scan nears or passes
 // the budget.
 var ScanOverhead = Rule{
-	ID:      "scan-overhead",
+	ID:      scanOverheadID,
 	Default: Error,
 	Title:   "Fixed per-segment CPU of a full scan is over budget",
 	Why: "Every scan pays segment_overhead_ms of CPU per segment to dispatch it and merge its " +
@@ -14,12 +14,29 @@ var ScanOverhead = Rule{
 		"is an error; above 80% of it, a warning.",
 	Fix: "Reduce the segment count: coarser partitions, fewer even partitions, merged listed " +
 		"partitions, or a larger engine segment size where the deployment allows it. The hint " +
-		"names the smallest change that fits the budget and its effect.",
-	Check: checkScanOverhead,
+		"names the layout `scangate plan` recommends (the least disruptive one that fits every " +
+		"budget) and its effect.",
+	Params: []Param{overheadWarnShare},
+	Check:  checkScanOverhead,
+	How:    "segments x engine.segment_overhead_ms, the fixed CPU of one full scan, against budgets.scan_overhead_ms (the table's own budget, else the manifest's, else the project config's). An error above the budget, a warning above warn_share of it.",
+	Bad: `engine: {segment_rows: 8Mi, segment_overhead_ms: 1.5}
+budgets: {scan_overhead_ms: 500}
+tables:
+  - name: meter_reads
+    rows: 4.8G
+    partitions: {scheme: time, tiers: [{grain: day, keep: 730}]}  # 730 segments: 1,095 ms`,
+	Good: `engine: {segment_rows: 32Mi, segment_overhead_ms: 1.5}
+budgets: {scan_overhead_ms: 500}
+tables:
+  - name: meter_reads
+    rows: 4.8G
+    partitions: {scheme: time, tiers: [{grain: month, keep: 24}]}  # 144 segments: 216 ms`,
 }
 
+const scanOverheadID = "scan-overhead"
+
 // overheadWarnShare is the share of the budget above which a warning is raised.
-const overheadWarnShare = 0.8
+var overheadWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
 
 func checkScanOverhead(t *Table) []Finding {
 	b := t.Budgets.ScanOverheadMs
@@ -31,7 +48,7 @@ func checkScanOverhead(t *Table) []Finding {
 	switch {
 	case f > *b:
 		sev = Error
-	case f > overheadWarnShare**b:
+	case f > t.Config.Value(scanOverheadID, overheadWarnShare)**b:
 		sev = Warning
 	default:
 		return nil
@@ -40,7 +57,10 @@ func checkScanOverhead(t *Table) []Finding {
 		ms(f), num(t.Layout.Segments), ms(t.Engine.SegmentOverheadMs), pct(f / *b), ms(*b))
 	allowed := int64(*b / t.Engine.SegmentOverheadMs)
 	var hints []string
-	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
+	// The plan's recommendation first, so check and plan name the same layout.
+	if h, _, _, ok := t.recommended(); ok {
+		hints = append(hints, h)
+	} else if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
 		hints = append(hints, fitHint(o, fits, t.effect(o)))
 	}
 	if allowed < t.Layout.Ideal {

@@ -5,7 +5,7 @@ import "fmt"
 // ScanTime fires when the estimated wall time of a full scan of the table's widest
 // column nears or passes the budget.
 var ScanTime = Rule{
-	ID:      "scan-time",
+	ID:      scanTimeID,
 	Default: Error,
 	Title:   "Estimated full scan of the widest column is over the time budget",
 	Why: "A full scan runs one task per segment: the fixed per-segment CPU plus the segment's " +
@@ -16,11 +16,31 @@ var ScanTime = Rule{
 	Fix: "Fewer, fuller segments cut the fixed part; a better encoded column (lower " +
 		"cardinality, sorted or clustered order) cuts the byte part; more cores cut both. The " +
 		"hint names the smallest layout change that fits and its effect.",
-	Check: checkScanTime,
+	Params: []Param{scanWarnShare},
+	Check:  checkScanTime,
+	How:    "Each segment is a task of segment_overhead_ms plus its encoded bytes of the widest column at scan_mb_per_s; tasks are list-scheduled in partition order on cores cores and the estimate is the makespan. Encoded bytes come from the column profile (a per-segment dictionary plus bit-packed or run-length encoded indexes) or encoded_bytes.",
+	Bad: `engine: {segment_rows: 1Mi, cores: 4}
+budgets: {scan_ms: 1000}
+tables:
+  - name: events
+    rows: 2G
+    partitions: {scheme: none}
+    columns:
+      - {name: payload_id, type: int64}     # unique values: 8 bytes a row and more`,
+	Good: `engine: {segment_rows: 1Mi, cores: 16}
+budgets: {scan_ms: 1000}
+tables:
+  - name: events
+    rows: 2G
+    partitions: {scheme: none}
+    columns:
+      - {name: payload_id, type: int64, order: sorted}`,
 }
 
+const scanTimeID = "scan-time"
+
 // scanWarnShare is the share of the budget above which a warning is raised.
-const scanWarnShare = 0.8
+var scanWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
 
 func checkScanTime(t *Table) []Finding {
 	b := t.Budgets.ScanMs
@@ -32,7 +52,7 @@ func checkScanTime(t *Table) []Finding {
 	switch {
 	case w > *b:
 		sev = Error
-	case w > scanWarnShare**b:
+	case w > t.Config.Value(scanTimeID, scanWarnShare)**b:
 		sev = Warning
 	default:
 		return nil

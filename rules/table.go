@@ -21,13 +21,16 @@ type Table struct {
 
 	options []Option // candidate changes, computed when a rule first asks
 	optDone bool
+	index   int     // the table's place in the manifest, for the advisor
+	advice  *advice // the advisor's view of the manifest, shared by its tables
 }
 
 // Analyze computes the layout of every table of m. A table whose partitions cannot be
 // expanded is left out; the loader refuses such manifests before they get here.
 func Analyze(m *schema.Manifest, cfg Config) []*Table {
 	out := make([]*Table, 0, len(m.Tables))
-	for _, spec := range m.Tables {
+	adv := newAdvice(m)
+	for i, spec := range m.Tables {
 		parts, err := layout.Expand(spec)
 		if err != nil {
 			continue
@@ -40,6 +43,8 @@ func Analyze(m *schema.Manifest, cfg Config) []*Table {
 			Budgets: m.Budgets.Override(spec.Budgets),
 			Parts:   parts,
 			Layout:  layout.Compute(parts, m.Engine.SegmentRows, m.Engine.SegmentOverheadMs),
+			index:   i,
+			advice:  adv,
 		}
 		t.Widest, t.Scan = widest(spec, parts, m.Engine)
 		out = append(out, t)

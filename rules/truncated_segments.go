@@ -4,7 +4,7 @@ import "fmt"
 
 // TruncatedSegments fires when partition boundaries leave segments part-empty.
 var TruncatedSegments = Rule{
-	ID:      "truncated-segments",
+	ID:      truncatedSegmentsID,
 	Default: Warning,
 	Title:   "Partitions leave segments part-empty",
 	Why: "A segment never spans two partitions, so every partition ends in a segment that " +
@@ -13,14 +13,36 @@ var TruncatedSegments = Rule{
 		"ceil(rows / segment_rows); the newest time partition is still filling and is not counted.",
 	Fix: "Use coarser partitions (a coarser grain, fewer even partitions, merged listed " +
 		"partitions), or keep a short recent window fine-grained and merge older periods. The " +
-		"hint names the change with the fewest segments and its effect.",
-	Check: checkTruncatedSegments,
+		"hint names the layout `scangate plan` recommends and its effect, and, when that also " +
+		"changes the segment size, the partition change alone.",
+	Params: []Param{truncWarnMin, truncWarnShare},
+	Check:  checkTruncatedSegments,
+	How:    "For every closed partition p of r_p rows, ceil(r_p / segment_rows) segments; the ideal is ceil(sum r_p / segment_rows); the excess is their difference. A warning from max(warn_min, warn_share x segments) excess segments, else a note from 1.",
+	Bad: `engine: {segment_rows: 8Mi}
+tables:
+  - name: meter_reads
+    rows: 4.8G
+    partitions:
+      scheme: time
+      tiers:
+        - {grain: day, keep: 730}   # 6.6M rows a day: every day ends in a part-empty segment`,
+	Good: `engine: {segment_rows: 8Mi}
+tables:
+  - name: meter_reads
+    rows: 4.8G
+    partitions:
+      scheme: time
+      tiers:
+        - {grain: day, keep: 14}    # a recent window stays fine
+        - {grain: month, keep: 24}  # older periods merged: 200M rows a month`,
 }
 
-// Thresholds of DESIGN §5: a warning from max(8, N/10) excess segments, else a note.
-const (
-	truncWarnMin   = 8
-	truncWarnShare = 10 // N/10
+const truncatedSegmentsID = "truncated-segments"
+
+// A warning from max(warn_min, warn_share x segments) excess segments, else a note.
+var (
+	truncWarnMin   = Param{Name: "warn_min", Default: 8, Doc: "Excess segments from which a warning is raised however small the table (default 8)."}
+	truncWarnShare = Param{Name: "warn_share", Default: 0.1, Doc: "Share of the table's segments from which excess segments raise a warning (default 0.1)."}
 )
 
 func checkTruncatedSegments(t *Table) []Finding {
@@ -30,18 +52,31 @@ func checkTruncatedSegments(t *Table) []Finding {
 		return nil
 	}
 	sev := Note
-	if e >= max(truncWarnMin, l.ClosedSegments/truncWarnShare) {
+	cfg := t.Config
+	if float64(e) >= max(cfg.Value(truncatedSegmentsID, truncWarnMin), cfg.Value(truncatedSegmentsID, truncWarnShare)*float64(l.ClosedSegments)) {
 		sev = Warning
 	}
 	msg := fmt.Sprintf("%s excess %s: partitions hold %s segments where %s would do (fill %s), %s ms of fixed CPU per scan",
 		num(e), plural(e, "segment", "segments"), num(l.ClosedSegments), num(l.ClosedIdeal), pct(closedFill(t)),
 		ms(float64(e)*t.Engine.SegmentOverheadMs))
 	var hints []string
-	if o, ok := t.bestTrim(); ok {
-		hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.effect(o)))
-		// The change with the fewest segments, when it is another one, is worth a look too.
-		if f, ok := t.fewestSegments(); ok && f.Change != o.Change {
-			hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.effect(f)))
+	// The plan's recommendation first, so check and plan name the same layout; when it
+	// changes the engine's segment size, the partition change alone follows.
+	rec, c, _, ok := t.recommended()
+	if ok {
+		hints = append(hints, rec)
+	}
+	if !ok || c.Engine {
+		if o, ok := t.bestTrim(); ok {
+			if len(hints) == 0 {
+				hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.effect(o)))
+				// The change with the fewest segments, when it is another one, is worth a look too.
+				if f, ok := t.fewestSegments(); ok && f.Change != o.Change {
+					hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.effect(f)))
+				}
+			} else {
+				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", count(t.Engine.SegmentRows), o.Change, t.effect(o)))
+			}
 		}
 	}
 	return []Finding{t.finding(sev, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{

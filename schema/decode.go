@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"strconv"
+	"time"
 )
 
 // MaxPartitions bounds the partitions one table may generate, so a policy such as
@@ -18,14 +19,17 @@ type decoder struct {
 	problems []Problem
 }
 
-func (t *tree) decode() (*Manifest, []Problem) {
+func (t *tree) decode(project *ProjectConfig) (*Manifest, []Problem) {
 	d := &decoder{t: t}
 	root := t.root.(map[string]any)
 	m := &Manifest{Format: 1, Pos: d.pos("")}
 	m.Model, _ = root["model"].(string)
-	m.Engine = d.engine("/engine", root["engine"].(map[string]any))
+	m.Engine = d.engine("/engine", root["engine"].(map[string]any), project)
+	if project != nil {
+		m.Budgets = project.Budgets
+	}
 	if b, ok := root["budgets"].(map[string]any); ok {
-		m.Budgets = d.budgets("/budgets", b)
+		m.Budgets = m.Budgets.Override(d.budgets("/budgets", b))
 	}
 	names := map[string]Pos{}
 	for i, raw := range root["tables"].([]any) {
@@ -97,7 +101,71 @@ func number(v any) float64 {
 	return 0
 }
 
-func (d *decoder) engine(ptr string, e map[string]any) Engine {
+// EngineSettings are the engine fields one source sets; nil fields are left to the next
+// source in the resolution order (manifest, then profile, then defaults).
+type EngineSettings struct {
+	SegmentRows        *int64
+	Cores              *int
+	SegmentOverheadMs  *float64
+	ScanMBPerS         *float64
+	Memory             *int64
+	RefreshParallelism *int
+}
+
+// over returns s with every field of top that is set replacing s's.
+func (s EngineSettings) over(top EngineSettings) EngineSettings {
+	if top.SegmentRows != nil {
+		s.SegmentRows = top.SegmentRows
+	}
+	if top.Cores != nil {
+		s.Cores = top.Cores
+	}
+	if top.SegmentOverheadMs != nil {
+		s.SegmentOverheadMs = top.SegmentOverheadMs
+	}
+	if top.ScanMBPerS != nil {
+		s.ScanMBPerS = top.ScanMBPerS
+	}
+	if top.Memory != nil {
+		s.Memory = top.Memory
+	}
+	if top.RefreshParallelism != nil {
+		s.RefreshParallelism = top.RefreshParallelism
+	}
+	return s
+}
+
+// engineSettings decodes the engine fields of a manifest's engine block or a profile.
+func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
+	var s EngineSettings
+	if v, ok := e["segment_rows"]; ok {
+		n := d.count(ptr+"/segment_rows", v, true)
+		s.SegmentRows = &n
+	}
+	if v, ok := e["cores"]; ok {
+		n := int(number(v))
+		s.Cores = &n
+	}
+	if v, ok := e["segment_overhead_ms"]; ok {
+		f := number(v)
+		s.SegmentOverheadMs = &f
+	}
+	if v, ok := e["scan_mb_per_s"]; ok {
+		f := number(v)
+		s.ScanMBPerS = &f
+	}
+	if v, ok := e["memory"]; ok {
+		n := d.bytes(ptr+"/memory", v)
+		s.Memory = &n
+	}
+	if v, ok := e["refresh_parallelism"]; ok {
+		n := int(number(v))
+		s.RefreshParallelism = &n
+	}
+	return s
+}
+
+func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) Engine {
 	out := Engine{
 		Cores:             DefaultCores,
 		SegmentOverheadMs: DefaultSegmentOverheadMs,
@@ -106,22 +174,51 @@ func (d *decoder) engine(ptr string, e map[string]any) Engine {
 		SegmentRowsPos:    d.pos(ptr + "/segment_rows"),
 		MemoryPos:         d.pos(ptr + "/memory"),
 	}
-	out.SegmentRows = d.count(ptr+"/segment_rows", e["segment_rows"], true)
-	if v, ok := e["cores"]; ok {
-		out.Cores = int(number(v))
+	var s EngineSettings
+	if name, ok := e["profile"].(string); ok {
+		out.Profile = name
+		prof, found := project.profile(name)
+		switch {
+		case project == nil:
+			d.fail(ptr+"/profile", fmt.Sprintf("engine profile %q needs a project config (.scangate.yaml) that defines it under engines:; none was found (use --config)", name))
+		case !found:
+			d.fail(ptr+"/profile", fmt.Sprintf("unknown engine profile %q; %s defines: %s", name, project.File, project.profileNames()))
+		default:
+			s = prof
+			// Values from the profile are reported at the profile line.
+			out.SegmentRowsPos, out.MemoryPos = d.pos(ptr+"/profile"), d.pos(ptr+"/profile")
+		}
 	}
-	if v, ok := e["segment_overhead_ms"]; ok {
-		out.SegmentOverheadMs = number(v)
+	own := d.engineSettings(ptr, e)
+	if own.SegmentRows != nil {
+		out.SegmentRowsPos = d.pos(ptr + "/segment_rows")
 	}
-	if v, ok := e["scan_mb_per_s"]; ok {
-		out.ScanMBPerS = number(v)
+	if own.Memory != nil {
+		out.MemoryPos = d.pos(ptr + "/memory")
 	}
-	if v, ok := e["memory"]; ok {
-		out.Memory = d.bytes(ptr+"/memory", v)
+	s = s.over(own)
+	if s.SegmentRows == nil {
+		if out.Profile != "" && len(d.problems) == 0 {
+			d.fail(ptr+"/profile", fmt.Sprintf("profile %q sets no segment_rows; set it in the profile or in the manifest", out.Profile))
+		}
+	} else {
+		out.SegmentRows = *s.SegmentRows
+	}
+	if s.Cores != nil {
+		out.Cores = *s.Cores
+	}
+	if s.SegmentOverheadMs != nil {
+		out.SegmentOverheadMs = *s.SegmentOverheadMs
+	}
+	if s.ScanMBPerS != nil {
+		out.ScanMBPerS = *s.ScanMBPerS
+	}
+	if s.Memory != nil {
+		out.Memory = *s.Memory
 	}
 	out.RefreshParallelism = out.Cores
-	if v, ok := e["refresh_parallelism"]; ok {
-		out.RefreshParallelism = int(number(v))
+	if s.RefreshParallelism != nil {
+		out.RefreshParallelism = *s.RefreshParallelism
 	}
 	return out
 }
@@ -158,6 +255,10 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 		t.Budgets = d.budgets(ptr+"/budgets", b)
 	}
 	t.Partitions = d.partitions(ptr+"/partitions", raw["partitions"].(map[string]any))
+	ws, _ := raw["waivers"].([]any)
+	for i, w := range ws {
+		t.Waivers = append(t.Waivers, d.waiver(ptr+"/waivers/"+strconv.Itoa(i), w.(map[string]any)))
+	}
 	if t.Partitions.Scheme == SchemeList && !t.RowsDeclared {
 		for _, it := range t.Partitions.Items {
 			t.Rows += it.Rows // each item is <= MaxCount and items are bounded by the file size
@@ -248,4 +349,17 @@ func (d *decoder) column(ptr string, raw map[string]any) Column {
 		c.EncodedBytes = d.bytes(ptr+"/encoded_bytes", v)
 	}
 	return c
+}
+
+func (d *decoder) waiver(ptr string, raw map[string]any) Waiver {
+	w := Waiver{Pos: d.pos(ptr)}
+	w.Rule, _ = raw["rule"].(string)
+	w.Reason, _ = raw["reason"].(string)
+	date, _ := raw["expires"].(string)
+	t, err := time.Parse("2006-01-02", date)
+	if err != nil {
+		d.fail(ptr+"/expires", fmt.Sprintf("%q is not a calendar date; write it as YYYY-MM-DD", date))
+	}
+	w.Expires = t
+	return w
 }

@@ -17,9 +17,40 @@ import (
 // and decodes it. Invalid input returns an *Error listing every problem with its line
 // and column; the manifest is nil then.
 func Load(file string, data []byte, lim Limits) (*Manifest, error) {
-	fail := func(ps ...Problem) (*Manifest, error) { return nil, &Error{File: file, Problems: ps} }
+	return LoadWith(file, data, Options{Limits: lim})
+}
+
+// Options tune a load: the limits, and the project config whose engine profiles and
+// budgets the manifest builds on (nil for none).
+type Options struct {
+	Limits  Limits
+	Project *ProjectConfig
+}
+
+// LoadWith is Load with a project config: engine fields resolve manifest first, then the
+// named profile, then the defaults; budgets resolve table, then manifest, then project.
+func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
+	t, ps := parse(data, o.Limits, "a manifest starts with \"format: 1\"")
+	if len(ps) == 0 {
+		ps = t.validate(manifestDoc)
+	}
+	if len(ps) > 0 {
+		return nil, &Error{File: file, Problems: ps}
+	}
+	m, ps := t.decode(o.Project)
+	if len(ps) > 0 {
+		sortProblems(ps)
+		return nil, &Error{File: file, Problems: ps}
+	}
+	m.File = file
+	return m, nil
+}
+
+// parse reads one YAML or JSON document into a tree, enforcing the limits.
+func parse(data []byte, lim Limits, start string) (*tree, []Problem) {
+	fail := func(p Problem) (*tree, []Problem) { return nil, []Problem{p} }
 	if lim.MaxFileBytes > 0 && len(data) > lim.MaxFileBytes {
-		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several manifests", len(data), lim.MaxFileBytes)})
+		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several files", len(data), lim.MaxFileBytes)})
 	}
 	if p := encodingProblem(data); p != nil {
 		return fail(*p)
@@ -28,18 +59,18 @@ func Load(file string, data []byte, lim Limits) (*Manifest, error) {
 	var doc yaml.Node
 	if err := dec.Decode(&doc); err != nil {
 		if errors.Is(err, io.EOF) {
-			return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; a manifest starts with \"format: 1\""})
+			return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
 		}
 		return fail(syntaxProblem(err, data))
 	}
 	var next yaml.Node
 	if err := dec.Decode(&next); err == nil {
-		return fail(Problem{Pos: Pos{next.Line, next.Column}, Message: "file holds more than one YAML document; put each manifest in a file of its own"})
+		return fail(Problem{Pos: Pos{next.Line, next.Column}, Message: "file holds more than one YAML document; put each in a file of its own"})
 	} else if !errors.Is(err, io.EOF) {
 		return fail(syntaxProblem(err, data))
 	}
 	if len(doc.Content) == 0 {
-		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; a manifest starts with \"format: 1\""})
+		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
 	}
 	t := &tree{at: map[string]located{}, lim: lim}
 	root, p := t.convert(doc.Content[0], "", nil, 0)
@@ -47,16 +78,7 @@ func Load(file string, data []byte, lim Limits) (*Manifest, error) {
 		return fail(*p)
 	}
 	t.root = root
-	if ps := t.validate(); len(ps) > 0 {
-		return fail(ps...)
-	}
-	m, ps := t.decode()
-	if len(ps) > 0 {
-		sortProblems(ps)
-		return fail(ps...)
-	}
-	m.File = file
-	return m, nil
+	return t, nil
 }
 
 var yamlLine = regexp.MustCompile(`^yaml: (?:line (\d+): )?(.*)$`)

@@ -1,5 +1,7 @@
 package schema
 
+import "time"
+
 // Pos is a 1-based line and column in a manifest file.
 type Pos struct {
 	Line int
@@ -70,8 +72,9 @@ type Manifest struct {
 	Pos     Pos
 }
 
-// Engine holds the engine settings with defaults applied.
+// Engine holds the engine settings with the profile and defaults applied.
 type Engine struct {
+	Profile            string // the project profile the settings start from, "" for none
 	SegmentRows        int64
 	Cores              int
 	SegmentOverheadMs  float64
@@ -122,6 +125,7 @@ type Table struct {
 	Partitions    Partitions
 	Columns       []Column
 	Budgets       Budgets // the table's own, not merged with the model's
+	Waivers       []Waiver
 	Pos           Pos     // the table's mapping (its first key)
 	RowsPos       Pos     // the rows value, or the table when rows is omitted
 }
@@ -169,4 +173,12 @@ type Column struct {
 	RunLength    int64 // 0 when not declared
 	EncodedBytes int64 // 0 when not declared
 	Pos          Pos
+}
+
+// Waiver accepts the findings of one rule on a table up to and including Expires.
+type Waiver struct {
+	Rule    string
+	Reason  string
+	Expires time.Time // a date, midnight UTC
+	Pos     Pos
 }

@@ -126,6 +126,16 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 }
 
 func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Node, ptr string, depth int) *Problem {
+	// Each merge counts as a node and a level: a merge key that refers to its own mapping
+	// would otherwise recurse until the stack overflows, and merges of merges of merges
+	// would take exponential time without ever converting a node.
+	t.nodes++
+	if t.nodes > t.lim.MaxNodes {
+		return problemAt(m, ptr, fmt.Sprintf("the document expands to more than %d nodes (aliases included); simplify it or raise the limit", t.lim.MaxNodes))
+	}
+	if depth > t.lim.MaxDepth {
+		return problemAt(m, ptr, fmt.Sprintf("merge keys (<<) nest deeper than %d levels; a merge key must not refer to the mapping that holds it", t.lim.MaxDepth))
+	}
 	target := m
 	for target.Kind == yaml.AliasNode {
 		target = target.Alias
@@ -133,7 +143,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	switch target.Kind {
 	case yaml.SequenceNode:
 		for _, e := range target.Content {
-			if p := t.merge(out, seen, e, ptr, depth); p != nil {
+			if p := t.merge(out, seen, e, ptr, depth+1); p != nil {
 				return p
 			}
 		}
@@ -145,7 +155,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	for i := 0; i+1 < len(target.Content); i += 2 {
 		k, v := target.Content[i], target.Content[i+1]
 		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
-			if p := t.merge(out, seen, v, ptr, depth); p != nil {
+			if p := t.merge(out, seen, v, ptr, depth+1); p != nil {
 				return p
 			}
 			continue

@@ -19,29 +19,41 @@ var manifestSchema []byte
 // ManifestSchema returns the embedded JSON Schema of the manifest format.
 func ManifestSchema() []byte { return bytes.Clone(manifestSchema) }
 
-const manifestSchemaURL = "https://github.com/scangate/scangate/schema/manifest.schema.json"
+// document is one embedded JSON Schema, compiled on first use and shared by every load.
+type document struct {
+	url      string
+	raw      []byte
+	compiled func() (*jsonschema.Schema, error)
+	doc      func() any
+}
 
-var compiled = sync.OnceValues(func() (*jsonschema.Schema, error) {
-	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(manifestSchema))
-	if err != nil {
-		return nil, err
-	}
-	c := jsonschema.NewCompiler()
-	if err := c.AddResource(manifestSchemaURL, doc); err != nil {
-		return nil, err
-	}
-	return c.Compile(manifestSchemaURL)
-})
+func newDocument(url string, raw []byte) *document {
+	d := &document{url: url, raw: raw}
+	d.doc = sync.OnceValue(func() any {
+		v, _ := jsonschema.UnmarshalJSON(bytes.NewReader(raw))
+		return v
+	})
+	d.compiled = sync.OnceValues(func() (*jsonschema.Schema, error) {
+		c := jsonschema.NewCompiler()
+		if err := c.AddResource(url, d.doc()); err != nil {
+			return nil, err
+		}
+		return c.Compile(url)
+	})
+	return d
+}
+
+var manifestDoc = newDocument("https://github.com/scangate/scangate/schema/manifest.schema.json", manifestSchema)
 
 var printer = message.NewPrinter(message.MatchLanguage("en"))
 
 // validate checks the document against the schema and returns one problem per
 // failing leaf, positioned at the value (or key) it is about.
-func (t *tree) validate() []Problem {
-	sch, err := compiled()
+func (t *tree) validate(d *document) []Problem {
+	sch, err := d.compiled()
 	if err != nil {
 		// The schema is embedded and compiled in tests; reaching this is a build defect.
-		panic(fmt.Sprintf("embedded manifest schema does not compile: %v", err))
+		panic(fmt.Sprintf("embedded schema %s does not compile: %v", d.url, err))
 	}
 	err = sch.Validate(t.root)
 	if err == nil {
@@ -56,7 +68,7 @@ func (t *tree) validate() []Problem {
 	seen := map[string]bool{}
 	var out []Problem
 	for _, l := range leaves {
-		for _, p := range t.describe(l) {
+		for _, p := range t.describe(d, l) {
 			if k := p.Path + "\x00" + p.Message; !seen[k] {
 				seen[k] = true
 				out = append(out, p)
@@ -78,7 +90,7 @@ func collectLeaves(e *jsonschema.ValidationError, out *[]*jsonschema.ValidationE
 }
 
 // describe words a schema failure the way a manifest author thinks of it.
-func (t *tree) describe(e *jsonschema.ValidationError) []Problem {
+func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	ptr := pointer(e.InstanceLocation)
 	loc := t.at[ptr]
 	at := func(p string, l located, msg string) Problem {
@@ -99,7 +111,7 @@ func (t *tree) describe(e *jsonschema.ValidationError) []Problem {
 			if l.key != nil {
 				l.value = l.key
 			}
-			out = append(out, at(p, l, fmt.Sprintf("unknown key %q; allowed here: %s", name, t.allowedKeys(e))))
+			out = append(out, at(p, l, fmt.Sprintf("unknown key %q; allowed here: %s", name, t.allowedKeys(d, e))))
 		}
 		return out
 	case *kind.FalseSchema:
@@ -138,8 +150,8 @@ func (t *tree) describe(e *jsonschema.ValidationError) []Problem {
 }
 
 // allowedKeys lists the properties the failing object's schema declares.
-func (t *tree) allowedKeys(e *jsonschema.ValidationError) string {
-	keys := schemaKeys(strings.TrimSuffix(e.SchemaURL, "/additionalProperties"))
+func (t *tree) allowedKeys(d *document, e *jsonschema.ValidationError) string {
+	keys := schemaKeys(d, strings.TrimSuffix(e.SchemaURL, "/additionalProperties"))
 	if len(keys) == 0 {
 		return "see the manifest reference"
 	}
@@ -162,19 +174,14 @@ func (t *tree) schemeContext(e *jsonschema.ValidationError) string {
 	return ""
 }
 
-var schemaDoc = sync.OnceValue(func() any {
-	doc, _ := jsonschema.UnmarshalJSON(bytes.NewReader(manifestSchema))
-	return doc
-})
-
 // schemaKeys lists, sorted, the properties of the schema object at url's fragment.
-func schemaKeys(url string) []string {
+func schemaKeys(d *document, url string) []string {
 	_, frag, _ := strings.Cut(url, "#")
 	var tokens []string
 	if frag != "" {
 		tokens = strings.Split(strings.TrimPrefix(frag, "/"), "/")
 	}
-	obj, _ := valueAt(schemaDoc(), tokens).(map[string]any)
+	obj, _ := valueAt(d.doc(), tokens).(map[string]any)
 	props, _ := obj["properties"].(map[string]any)
 	keys := make([]string, 0, len(props))
 	for k := range props {

@@ -6,7 +6,6 @@ import (
 	"runtime"
 	"sort"
 	"sync"
-	"time"
 
 	"github.com/mattn/go-isatty"
 	"github.com/scangate/scangate/rules"
@@ -16,7 +15,7 @@ import (
 )
 
 func newCheck() *cobra.Command {
-	var failOn, output, today string
+	var failOn, output, today, configFile, baselineFile string
 	var formats []string
 	var noColor bool
 	cmd := &cobra.Command{
@@ -38,25 +37,34 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			cfg, err := runConfig(today)
+			proj, err := loadProject(configFile, args)
 			if err != nil {
-				return usageError(err)
+				return configError(cmd, err)
+			}
+			cfg, err := proj.rulesConfig(today)
+			if err != nil {
+				return configError(cmd, err)
 			}
 			outs, err := parseOutputs(formats, output, os.Getenv("GITHUB_ACTIONS") == "true")
 			if err != nil {
 				return usageError(err)
 			}
-			inputs, err := collect(args, cmd.InOrStdin(), schema.DefaultLimits.MaxFileBytes)
+			inputs, err := collectFiltered(args, cmd.InOrStdin(), schema.DefaultLimits.MaxFileBytes, proj.keep)
 			if err != nil {
 				return usageError(err)
 			}
-			files, findings := checkAll(inputs, cfg)
+			files, findings := checkAll(inputs, cfg, proj.config)
 			res := &report.Result{
 				Version:  moduleVersion(),
 				FailOn:   threshold,
 				Files:    files,
 				Findings: findings,
 				Summary:  report.Summarize(files),
+			}
+			if baselineFile != "" {
+				if res.Baseline, err = applyBaseline(baselineFile, res); err != nil {
+					return usageError(err)
+				}
 			}
 			stdout := cmd.OutOrStdout()
 			if err := emit(outs, res, stdout, useColor(stdout, noColor)); err != nil {
@@ -69,29 +77,30 @@ func newCheck() *cobra.Command {
 	cmd.Flags().BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
 	cmd.Flags().StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE (text, json, sarif, github, markdown, junit); repeatable")
 	cmd.Flags().StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
-	cmd.Flags().StringVar(&today, "today", "", "the date forecasts count from, YYYY-MM-DD (default: today, UTC)")
+	cmd.Flags().StringVar(&today, "today", "", "the date waivers and forecasts are judged on, YYYY-MM-DD (default: today, UTC)")
+	cmd.Flags().StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
+	cmd.Flags().StringVar(&baselineFile, "baseline", "", "baseline file: findings recorded there are listed but do not fail the run")
 	return cmd
 }
 
 func usageError(err error) error { return &exitError{code: exitInvalid, msg: err.Error()} }
 
-// runConfig builds the rules' configuration from the flags.
-func runConfig(today string) (rules.Config, error) {
-	cfg := rules.Config{Today: time.Now().UTC().Truncate(24 * time.Hour)}
-	if today != "" {
-		d, err := time.Parse("2006-01-02", today)
-		if err != nil {
-			return cfg, fmt.Errorf("--today %q: write the date as YYYY-MM-DD", today)
+// configError reports an invalid project config the way manifest errors are reported:
+// every problem at its line and column, then exit 2.
+func configError(cmd *cobra.Command, err error) error {
+	if se, ok := err.(*schema.Error); ok {
+		for _, p := range se.Problems {
+			fmt.Fprintf(cmd.ErrOrStderr(), "%s:%d:%d: error: %s [config]\n", se.File, p.Pos.Line, p.Pos.Col, p.Text())
 		}
-		cfg.Today = d
+		return &exitError{code: exitInvalid, msg: "the project config is invalid; fix it and run again"}
 	}
-	return cfg, nil
+	return usageError(err)
 }
 
 // checkAll loads and checks every input on a bounded pool of workers and returns the
 // files in input order and the findings sorted; unreadable and invalid files become
 // schema findings and never stop the others.
-func checkAll(inputs []input, cfg rules.Config) ([]report.File, []rules.Finding) {
+func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]report.File, []rules.Finding) {
 	files := make([]report.File, len(inputs))
 	found := make([][]rules.Finding, len(inputs))
 	root := repositoryRoot()
@@ -102,7 +111,7 @@ func checkAll(inputs []input, cfg rules.Config) ([]report.File, []rules.Finding)
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				files[i], found[i] = checkOne(inputs[i], root, cfg)
+				files[i], found[i] = checkOne(inputs[i], root, cfg, proj)
 			}
 		}()
 	}
@@ -119,7 +128,7 @@ func checkAll(inputs []input, cfg rules.Config) ([]report.File, []rules.Finding)
 	return files, findings
 }
 
-func checkOne(in input, root string, cfg rules.Config) (report.File, []rules.Finding) {
+func checkOne(in input, root string, cfg rules.Config, proj *schema.ProjectConfig) (report.File, []rules.Finding) {
 	f := report.File{Name: in.name, URI: repositoryPath(root, in.name)}
 	if in.err != nil {
 		f.Invalid = true
@@ -128,7 +137,7 @@ func checkOne(in input, root string, cfg rules.Config) (report.File, []rules.Fin
 			Message: fmt.Sprintf("cannot read the file: %v", in.err),
 		}}
 	}
-	m, err := schema.Load(in.name, in.data, schema.DefaultLimits)
+	m, err := schema.LoadWith(in.name, in.data, schema.Options{Limits: schema.DefaultLimits, Project: proj})
 	if err != nil {
 		f.Invalid = true
 		if se, ok := err.(*schema.Error); ok {

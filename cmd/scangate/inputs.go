@@ -30,6 +30,12 @@ var manifestMarker = regexp.MustCompile(`(?m)(^|[{,\s])["']?format["']?\s*:`)
 // files as given, directories walked for *.yaml, *.yml and *.json files that hold
 // "format:", "-" read from stdin. A path that does not exist is a usage error.
 func collect(paths []string, stdin io.Reader, maxBytes int) ([]input, error) {
+	return collectFiltered(paths, stdin, maxBytes, nil)
+}
+
+// collectFiltered is collect with a filter for files found by walking directories (the
+// project's include and exclude globs); nil keeps every file.
+func collectFiltered(paths []string, stdin io.Reader, maxBytes int, keep func(string) bool) ([]input, error) {
 	if len(paths) == 0 {
 		paths = []string{"."}
 	}
@@ -46,7 +52,7 @@ func collect(paths []string, stdin io.Reader, maxBytes int) ([]input, error) {
 		}
 		switch {
 		case info.IsDir():
-			found, err := walk(p, maxBytes)
+			found, err := walk(p, maxBytes, keep)
 			if err != nil {
 				return nil, err
 			}
@@ -64,7 +70,7 @@ func collect(paths []string, stdin io.Reader, maxBytes int) ([]input, error) {
 }
 
 // walk finds the manifests below dir, skipping hidden directories, sorted by path.
-func walk(dir string, maxBytes int) ([]input, error) {
+func walk(dir string, maxBytes int, keep func(string) bool) ([]input, error) {
 	var names []string
 	err := filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
 		if err != nil {
@@ -92,7 +98,9 @@ func walk(dir string, maxBytes int) ([]input, error) {
 		} else if !d.Type().IsRegular() {
 			return nil // FIFOs, sockets and devices are never manifests
 		}
-		names = append(names, path)
+		if keep == nil || keep(path) {
+			names = append(names, path)
+		}
 		return nil
 	})
 	if err != nil {

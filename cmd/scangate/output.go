@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/scangate/scangate/rules/report"
@@ -25,16 +26,25 @@ var writers = map[string]func(io.Writer, *report.Result) error{
 	"junit":    report.JUnit,
 }
 
-const formatNames = "text, json, sarif, github, markdown, junit"
+// checkFormats are the formats check writes, in the order its help lists them.
+var checkFormats = []string{"text", "json", "sarif", "github", "markdown", "junit"}
 
-// parseOutputs reads the --format and --output flags. Without --format the report is
-// text, plus github annotations when running in a GitHub Actions job.
+// parseOutputs reads check's --format and --output flags. Without --format the report
+// is text, plus github annotations when running in a GitHub Actions job.
 func parseOutputs(formats []string, output string, inActions bool) ([]destination, error) {
+	defaults := []string{"text"}
+	if inActions && output == "" {
+		defaults = append(defaults, "github")
+	}
+	return parseFormats(formats, output, defaults, checkFormats)
+}
+
+// parseFormats reads --format NAME or NAME=FILE (repeatable) and --output for a command
+// that knows the formats in known; defaults apply when no --format is given. check and
+// diff share it, so both read the flags the same way.
+func parseFormats(formats []string, output string, defaults, known []string) ([]destination, error) {
 	if len(formats) == 0 {
-		formats = []string{"text"}
-		if inActions && output == "" {
-			formats = append(formats, "github")
-		}
+		formats = defaults
 	}
 	toStdout := 0
 	for _, f := range formats {
@@ -49,8 +59,8 @@ func parseOutputs(formats []string, output string, inActions bool) ([]destinatio
 	seenPath := map[string]bool{}
 	for _, f := range formats {
 		name, path, _ := strings.Cut(f, "=")
-		if _, ok := writers[name]; !ok && name != "text" {
-			return nil, fmt.Errorf("--format %q: unknown format; use one of %s", f, formatNames)
+		if !slices.Contains(known, name) {
+			return nil, fmt.Errorf("--format %q: unknown format; use one of %s", f, strings.Join(known, ", "))
 		}
 		if strings.Contains(f, "=") && path == "" {
 			return nil, fmt.Errorf("--format %q: give a file after =, or drop the = to write to standard output", f)
@@ -70,19 +80,31 @@ func parseOutputs(formats []string, output string, inActions bool) ([]destinatio
 	return outs, nil
 }
 
-// emit renders every report first, then writes the files atomically, then stdout; a
-// report that fails to render leaves nothing written.
+// emit writes check's reports; see writeOutputs.
 func emit(outs []destination, r *report.Result, stdout io.Writer, color bool) error {
+	render := func(format string, w io.Writer, color bool) error {
+		if format == "text" {
+			return report.Text(w, r, color)
+		}
+		return writers[format](w, r)
+	}
+	after := func(o destination) error {
+		if o.format == "github" {
+			return appendStepSummary(r)
+		}
+		return nil
+	}
+	return writeOutputs(outs, render, stdout, color, after)
+}
+
+// writeOutputs renders every report first, then writes the files atomically, then
+// stdout; a report that fails to render leaves nothing written. Only text to stdout is
+// coloured. after, if set, runs for each destination once its bytes are out.
+func writeOutputs(outs []destination, render func(format string, w io.Writer, color bool) error, stdout io.Writer, color bool, after func(destination) error) error {
 	rendered := make([][]byte, len(outs))
 	for i, o := range outs {
 		var b bytes.Buffer
-		var err error
-		if o.format == "text" {
-			err = report.Text(&b, r, color && o.path == "")
-		} else {
-			err = writers[o.format](&b, r)
-		}
-		if err != nil {
+		if err := render(o.format, &b, color && o.path == ""); err != nil {
 			return fmt.Errorf("writing the %s report: %v", o.format, err)
 		}
 		rendered[i] = b.Bytes()
@@ -100,8 +122,8 @@ func emit(outs []destination, r *report.Result, stdout io.Writer, color bool) er
 				return err
 			}
 		}
-		if o.format == "github" {
-			if err := appendStepSummary(r); err != nil {
+		if after != nil {
+			if err := after(o); err != nil {
 				return err
 			}
 		}

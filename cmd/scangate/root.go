@@ -22,7 +22,9 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.SetIn(stdin)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	root.AddCommand(newCheck(), newVersion())
+	root.AddCommand(newCheck(), newVersion(), newBaseline(), newRules(), newExplain(), newSchemaCmd(), newInit())
+	root.AddCommand(newPlan())
+	root.AddCommand(newDiff())
 	return root
 }
 

@@ -28,6 +28,32 @@ func ExpectedDistinct(d, n float64) float64 {
 	return min(v, d, n)
 }
 
+// SampleDistinct is the expected number of distinct values among n rows taken at
+// random, without replacement, from a table of total rows that holds d values equally
+// often (total/d rows each): d(1 - (1 - n/total)^(total/d)). This is the usual closed
+// form of Yao's (1977) exact product, with each of a value's total/d rows falling in
+// the sample independently with probability n/total. Unlike Cardenas' draws with
+// replacement it is exact at both ends: n when every row is unique (d = total), d when
+// the sample is the whole table; as total grows it tends to ExpectedDistinct(d, n).
+// The segment of a randomly ordered column is such a sample of the table's rows.
+func SampleDistinct(d, n, total float64) float64 {
+	if !(n > 0) {
+		return 0
+	}
+	if !(d > 1) {
+		return min(1, n)
+	}
+	if math.IsInf(total, 1) || math.IsNaN(total) {
+		return ExpectedDistinct(d, n)
+	}
+	d = min(d, total) // a table holds at most one value per row
+	if n >= total {
+		return d
+	}
+	v := -d * math.Expm1(total/d*math.Log1p(-n/total))
+	return min(v, d, n)
+}
+
 // IndexBits is the dictionary index width: max(1, ceil(log2 ds)) for ds distinct values
 // (ds <= 1 → 1). It uses the float's exponent rather than math.Log2, so it agrees with
 // bits.Len64(uint64(ds)-1) for every integer ds >= 2, even just above a power of two
@@ -73,17 +99,32 @@ func varintBytes(v int64) int {
 	return (bits.Len64(uint64(v)) + 6) / 7
 }
 
+// Size is the estimated encoded size of a column in one segment, in its two parts.
+type Size struct {
+	Index      float64 // the dictionary index stream: run-length / bit-packed hybrid
+	Dictionary float64 // the segment's own dictionary: distinct values x value width
+}
+
+// Bytes is the whole encoded size, index stream plus dictionary.
+func (s Size) Bytes() float64 { return s.Index + s.Dictionary }
+
 // SegmentBytes estimates the encoded bytes of column c in one segment of n rows of a
 // table of tableRows rows, with a dictionary per segment: the index stream plus the
 // dictionary. The scan cost of a column is driven by this number.
 func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
+	return SegmentSize(c, tableRows, n).Bytes()
+}
+
+// SegmentSize is SegmentBytes split into the index stream and the dictionary. A
+// measured encoded_bytes is spread over the rows and counted as index stream.
+func SegmentSize(c schema.Column, tableRows, n int64) Size {
 	if n <= 0 {
-		return 0
+		return Size{}
 	}
 	tableRows = max(tableRows, n) // a segment is never larger than its table
 	fn, fr := float64(n), float64(tableRows)
 	if c.EncodedBytes > 0 {
-		return float64(c.EncodedBytes) * fn / fr
+		return Size{Index: float64(c.EncodedBytes) * fn / fr}
 	}
 	d := c.Distinct
 	if d <= 0 {
@@ -95,39 +136,155 @@ func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
 	d = min(max(d, 1), tableRows)
 	fd := float64(d)
 	vb := ValueBytes(c)
-	random := func() float64 {
-		ds := ExpectedDistinct(fd, fn)
-		w := IndexBits(ds)
-		return float64(fn*float64(w)/8) + float64(ds*vb)
+	// A random segment is a sample of the table's rows; neighbouring rows hold
+	// different values with probability 1 - 1/d, independently.
+	random := func() Size {
+		ds := SampleDistinct(fd, fn, fr)
+		return Size{randomIndexBytes(fn, IndexBits(ds), 1-1/fd), float64(ds * vb)}
 	}
 	switch c.Order {
 	case schema.Sorted:
-		// Equal values are adjacent: about n*d/R + 1 of them meet in a segment, one run each.
-		ds := min(fn, fd, float64(fn*fd)/fr+1)
-		w := IndexBits(ds)
-		runLen := int64(math.Ceil(fn / ds))
-		rle := float64(ds * float64((w+7)/8+varintBytes(runLen)))
-		// A hybrid encoder bit-packs when runs are too short to pay for themselves.
-		idx := min(rle, float64(fn*float64(w)/8))
-		return idx + float64(ds*vb)
+		// Equal values are adjacent, d runs of R/d rows: the d - 1 value changes lie
+		// among the R - 1 neighbouring pairs, so a segment meets 1 + (n-1)(d-1)/(R-1)
+		// values (about n*d/R + 1), one run each.
+		ds := 1.0
+		if n > 1 && d > 1 {
+			ds = min(fn, 1+float64(fn-1)*(fd-1)/(fr-1))
+		}
+		return Size{sortedIndexBytes(fn, ds), float64(ds * vb)}
 	case schema.Clustered:
 		l := c.RunLength
 		if l <= 0 {
 			l = max(1, tableRows/d)
 		}
-		runs := n / l
-		if n%l != 0 {
-			runs++
+		// Runs of l rows start anywhere relative to the segment, so it meets 1 + (n-1)/l
+		// of the table's R/l runs; the runs hold the d values equally often, and the
+		// next run repeats the value with probability 1/d.
+		fl := float64(min(l, tableRows))
+		ds := SampleDistinct(fd, 1+(fn-1)/fl, fr/fl)
+		changes := float64((fn-1)/fl) * (1 - 1/fd)
+		var idx float64
+		switch {
+		case d == 1 || changes <= 0:
+			idx = singleRunBytes(fn)
+		case changes < 1:
+			// Mostly one value (no index bits), sometimes two.
+			idx = float64((1-changes)*singleRunBytes(fn)) + float64(changes*runIndexBytes(fn, 1, 1, fn, 0))
+		default:
+			idx = runIndexBytes(fn, IndexBits(ds), changes, fl, 1/fd)
 		}
-		fruns := float64(runs)
-		ds := ExpectedDistinct(fd, fruns)
-		w := IndexBits(ds)
-		rle := float64(fruns * float64((w+7)/8+varintBytes(min(l, n))))
-		idx := min(rle, float64(fn*float64(w)/8))
-		// Never worse than bit-packing the same rows in random order.
-		return min(idx+float64(ds*vb), random())
+		return Size{idx, float64(ds * vb)}
 	}
 	return random()
+}
+
+// The index estimates follow the run-length / bit-packing hybrid encoding of the
+// Apache Parquet format (its RLE encoding, a published reference for the scheme):
+// indexes go in groups of 8; a group of one value joins a run-length run (a varint
+// header, then the value in ceil(w/8) bytes), any other group is bit-packed in w bytes,
+// consecutive bit-packed groups sharing one varint header. A segment of a single value
+// needs no index bits at all: one run header.
+
+// singleRunBytes is the index stream of n rows of one value: the header of one run.
+func singleRunBytes(n float64) float64 {
+	return float64(varintBytes(int64(math.Ceil(2 * n))))
+}
+
+// randomIndexBytes is the expected index stream of n indexes of w bits whose neighbours
+// differ independently with probability p (a randomly ordered column).
+func randomIndexBytes(n float64, w int, p float64) float64 {
+	if !(n > 0) {
+		return 0
+	}
+	p = min(max(p, 0), 1)
+	if p == 0 {
+		return singleRunBytes(n)
+	}
+	groups := n / 8
+	q := math.Pow(1-p, 7)     // a group holds one value: its 7 inner pairs are equal
+	uniform := groups * q     // run-length encoded groups
+	mixed := groups - uniform // bit-packed groups
+	after := max(groups-1, 0)
+	// A uniform group starts a run unless the group before is uniform with the same value;
+	// a mixed group starts a bit-packed run when it is first or follows a uniform group.
+	rleRuns := q + float64(after*q)*(1-float64(q*(1-p)))
+	bpRuns := (1 - q) + float64(after*(1-q))*q
+	return hybridBytes(w, uniform, mixed, rleRuns, bpRuns)
+}
+
+// sortedIndexBytes is the expected index stream of a segment of n rows meeting ds
+// values in one run each. A segment meets either floor(ds) or floor(ds)+1 values, and
+// the index width follows the count it really meets, so the two are mixed.
+func sortedIndexBytes(n, ds float64) float64 {
+	if !(n > 0) {
+		return 0
+	}
+	j := math.Floor(ds)
+	f := ds - j
+	cost := func(values float64) float64 {
+		if values <= 1 {
+			return singleRunBytes(n)
+		}
+		return runIndexBytes(n, IndexBits(values), values-1, n/(values-1), 0)
+	}
+	if f == 0 {
+		return cost(j)
+	}
+	return float64((1-f)*cost(j)) + float64(f*cost(j+1))
+}
+
+// runIndexBytes is the expected index stream of n indexes of w bits that change value
+// `changes` times. Runs start every l rows on average, anywhere relative to the groups
+// of 8, and a run repeats the value of the one before with probability m (so value
+// runs are k runs long with probability m^(k-1)(1-m)). A group is bit-packed when a
+// value change falls among its 7 inner pairs; a value run shorter than 15 rows may
+// hold no whole group, and then no run-length run either.
+func runIndexBytes(n float64, w int, changes, l, m float64) float64 {
+	if !(n > 0) {
+		return 0
+	}
+	groups := n / 8
+	l = max(l, 1)
+	// ⌊7/l⌋ or one more run starts fall inside a group; none of them changes the value
+	// with probability m^c.
+	c := math.Floor(7 / l)
+	f := 7/l - c
+	pSame := float64((1-f)*math.Pow(m, c)) + float64(f*math.Pow(m, c+1))
+	mixed := groups * (1 - pSame)
+	uniform := groups - mixed
+	rleRuns := min(uniform, (1+changes)*wholeGroupShare(l, m))
+	bpRuns := min(mixed, rleRuns+1) // bit-packed stretches lie between run-length runs
+	return hybridBytes(w, uniform, mixed, rleRuns, bpRuns)
+}
+
+// wholeGroupShare is the share of value runs that hold at least one whole group of 8:
+// a value run of L rows starting anywhere holds one with probability min(1, (L-7)/8),
+// and L = k*l with probability m^(k-1)(1-m).
+func wholeGroupShare(l, m float64) float64 {
+	share, pk, tail := 0.0, 1-m, 1.0 // pk = P(k), tail = P(K >= k)
+	for k := 1.0; tail > 0; k++ {
+		if k*l >= 15 {
+			return share + tail // every longer run holds a whole group
+		}
+		share += float64(pk * max(0, (k*l-7)/8))
+		tail -= pk
+		pk *= m
+	}
+	return share
+}
+
+// hybridBytes prices uniform groups in rleRuns run-length runs and mixed groups in
+// bpRuns bit-packed runs, each run with its varint header.
+func hybridBytes(w int, uniform, mixed, rleRuns, bpRuns float64) float64 {
+	b := mixed * float64(w)
+	if mixed > 0 && bpRuns > 0 {
+		b += float64(bpRuns * float64(varintBytes(int64(math.Ceil(2*mixed/bpRuns))+1)))
+	}
+	if uniform > 0 && rleRuns > 0 {
+		header := varintBytes(int64(math.Ceil(16 * uniform / rleRuns)))
+		b += float64(rleRuns * float64(header+(w+7)/8))
+	}
+	return b
 }
 
 // ColumnBytes is the encoded size of c over all segments of the partitions, the B_c

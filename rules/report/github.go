@@ -13,8 +13,11 @@ import (
 func GitHub(w io.Writer, r *Result) error {
 	var b strings.Builder
 	for _, f := range r.Findings {
+		if f.Accepted() {
+			continue // accepted debt is listed in the other reports, not annotated
+		}
 		cmd := map[rules.Severity]string{rules.Error: "error", rules.Warning: "warning", rules.Note: "notice"}[f.Severity]
-		props := []string{"file=" + EscapeProperty(r.uri(f.File))}
+		props := []string{"file=" + EscapeProperty(r.URI(f.File))}
 		if f.Pos.Line > 0 {
 			props = append(props, fmt.Sprintf("line=%d", f.Pos.Line), fmt.Sprintf("col=%d", f.Pos.Col))
 		}

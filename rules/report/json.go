@@ -35,6 +35,10 @@ type jsonSummary struct {
 	Errors       int `json:"errors"`
 	Warnings     int `json:"warnings"`
 	Notes        int `json:"notes"`
+	Waived       int `json:"waived"`
+	Baselined    int `json:"baselined"`
+	// BaselineFixed counts baseline entries no finding matched; present with --baseline.
+	BaselineFixed *int `json:"baseline_fixed,omitempty"`
 }
 
 type jsonFile struct {
@@ -77,11 +81,20 @@ type jsonFinding struct {
 	Hints       []string           `json:"hints"`
 	Fingerprint string             `json:"fingerprint"`
 	Numbers     map[string]float64 `json:"numbers"`
+	Waiver      *jsonWaiver        `json:"waiver,omitempty"`
+	Baselined   bool               `json:"baselined"`
+}
+
+type jsonWaiver struct {
+	Reason  string `json:"reason"`
+	Expires string `json:"expires"`
+	Line    int    `json:"line"`
 }
 
 // JSON writes the versioned machine-readable report (schema/output.schema.json).
 func JSON(w io.Writer, r *Result) error {
 	n := r.Counts()
+	waived, baselined := r.Accepted()
 	doc := jsonReport{
 		SchemaVersion: JSONSchemaVersion,
 		Tool:          jsonTool{Name: "scangate", Version: r.Version},
@@ -90,9 +103,14 @@ func JSON(w io.Writer, r *Result) error {
 		Summary: jsonSummary{
 			Files: r.Summary.Files, InvalidFiles: r.Summary.Invalid, Tables: r.Summary.Tables,
 			Errors: n[rules.Error], Warnings: n[rules.Warning], Notes: n[rules.Note],
+			Waived: waived, Baselined: baselined,
 		},
 		Files:    []jsonFile{},
 		Findings: []jsonFinding{},
+	}
+	if r.Baseline != nil {
+		fixed := r.Baseline.Fixed
+		doc.Summary.BaselineFixed = &fixed
 	}
 	for _, f := range r.Files {
 		jf := jsonFile{Path: f.Name, URI: f.URI, Model: f.Model, Valid: !f.Invalid, Tables: []jsonTable{}}
@@ -110,12 +128,16 @@ func JSON(w io.Writer, r *Result) error {
 		if hints == nil {
 			hints = []string{}
 		}
-		doc.Findings = append(doc.Findings, jsonFinding{
+		jf := jsonFinding{
 			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.Fails(f),
-			File: f.File, URI: r.uri(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
+			File: f.File, URI: r.URI(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
 			Table: f.Table, Message: f.Message, Hints: hints,
-			Fingerprint: r.Fingerprint(f), Numbers: nums,
-		})
+			Fingerprint: r.Fingerprint(f), Numbers: nums, Baselined: f.Baselined,
+		}
+		if w := f.Waiver; w != nil {
+			jf.Waiver = &jsonWaiver{Reason: w.Reason, Expires: w.Expires.Format("2006-01-02"), Line: w.Pos.Line}
+		}
+		doc.Findings = append(doc.Findings, jf)
 	}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")

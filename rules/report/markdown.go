@@ -19,7 +19,7 @@ func Markdown(w io.Writer, r *Result) error {
 		verdict = "failed"
 	}
 	fmt.Fprintf(&b, "### scangate %s\n\n", verdict)
-	fmt.Fprintf(&b, "%s (the gate fails at %s).\n\n", mdEscape(SummaryLine(r.Findings, r.Summary)), failOnName(r.FailOn))
+	fmt.Fprintf(&b, "%s (the gate fails at %s).\n\n", mdEscape(SummaryLine(r)), failOnName(r.FailOn))
 	if r.Summary.Tables > 0 {
 		b.WriteString("| file | table | partitions | segments | ideal | fill | fixed ms per scan | budget ms |\n")
 		b.WriteString("|---|---|--:|--:|--:|--:|--:|--:|\n")
@@ -43,22 +43,37 @@ func Markdown(w io.Writer, r *Result) error {
 		}
 		fmt.Fprintf(&b, "#### %s (%d)\n\n", map[rules.Severity]string{rules.Error: "Errors", rules.Warning: "Warnings", rules.Note: "Notes"}[sev], n[sev])
 		for _, f := range r.Findings {
-			if f.Severity != sev {
-				continue
+			if f.Severity == sev && !f.Accepted() {
+				mdFinding(&b, f, "")
 			}
-			loc := f.File
-			if f.Pos.Line > 0 {
-				loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
-			}
-			fmt.Fprintf(&b, "- %s **%s**: %s\n", code(loc), f.Rule, mdEscape(f.Message))
-			for _, h := range f.Hints {
-				fmt.Fprintf(&b, "  - hint: %s\n", mdEscape(h))
+		}
+		b.WriteString("\n")
+	}
+	if waived, baselined := r.Accepted(); waived+baselined > 0 {
+		fmt.Fprintf(&b, "#### Accepted debt (%d)\n\n", waived+baselined)
+		for _, f := range r.Findings {
+			switch {
+			case f.Waiver != nil:
+				mdFinding(&b, f, fmt.Sprintf(" (waived until %s: %s)", f.Waiver.Expires.Format("2006-01-02"), mdEscape(f.Waiver.Reason)))
+			case f.Baselined:
+				mdFinding(&b, f, " (baselined)")
 			}
 		}
 		b.WriteString("\n")
 	}
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+func mdFinding(b *strings.Builder, f rules.Finding, note string) {
+	loc := f.File
+	if f.Pos.Line > 0 {
+		loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+	}
+	fmt.Fprintf(b, "- %s **%s** %s: %s%s\n", code(loc), f.Severity, f.Rule, mdEscape(f.Message), note)
+	for _, h := range f.Hints {
+		fmt.Fprintf(b, "  - hint: %s\n", mdEscape(h))
+	}
 }
 
 // mdEscape backslash-escapes the characters Markdown would read as markup.

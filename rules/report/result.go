@@ -12,6 +12,14 @@ type Result struct {
 	Files    []File         // in the order the inputs were given and walked
 	Findings []rules.Finding
 	Summary  Summary
+	Baseline *BaselineUse // nil without --baseline
+}
+
+// BaselineUse says which baseline a run was compared with and how many of its entries
+// no longer match a finding (fixed since it was written).
+type BaselineUse struct {
+	File  string
+	Fixed int
 }
 
 // File is one input and what was computed for it.
@@ -42,13 +50,28 @@ func Summarize(files []File) Summary {
 	return s
 }
 
-// Counts tallies findings by severity.
+// Counts tallies the findings that are not accepted debt, by severity.
 func (r *Result) Counts() map[rules.Severity]int {
 	n := map[rules.Severity]int{}
 	for _, f := range r.Findings {
-		n[f.Severity]++
+		if !f.Accepted() {
+			n[f.Severity]++
+		}
 	}
 	return n
+}
+
+// Accepted counts waived and baselined findings.
+func (r *Result) Accepted() (waived, baselined int) {
+	for _, f := range r.Findings {
+		switch {
+		case f.Waiver != nil:
+			waived++
+		case f.Baselined:
+			baselined++
+		}
+	}
+	return waived, baselined
 }
 
 // Failed reports whether the run fails: an invalid input, or a finding at or above FailOn.
@@ -57,20 +80,24 @@ func (r *Result) Failed() bool {
 		return true
 	}
 	for _, f := range r.Findings {
-		if r.FailOn != 0 && f.Severity >= r.FailOn {
+		if r.Fails(f) {
 			return true
 		}
 	}
 	return false
 }
 
-// Fails reports whether one finding counts toward failing the run.
+// Fails reports whether one finding counts toward failing the run: schema problems
+// always do, accepted debt (waived or baselined) never does.
 func (r *Result) Fails(f rules.Finding) bool {
-	return f.Rule == rules.Schema.ID || (r.FailOn != 0 && f.Severity >= r.FailOn)
+	if f.Rule == rules.Schema.ID {
+		return true
+	}
+	return !f.Accepted() && r.FailOn != 0 && f.Severity >= r.FailOn
 }
 
-// uri is the repository-relative path of a finding's file.
-func (r *Result) uri(file string) string {
+// URI is the repository-relative path of a finding's file.
+func (r *Result) URI(file string) string {
 	for _, f := range r.Files {
 		if f.Name == file {
 			return f.URI
@@ -81,5 +108,5 @@ func (r *Result) uri(file string) string {
 
 // Fingerprint is the stable identity of a finding in this run.
 func (r *Result) Fingerprint(f rules.Finding) string {
-	return rules.Fingerprint(f, r.uri(f.File))
+	return rules.Fingerprint(f, r.URI(f.File))
 }

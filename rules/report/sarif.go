@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"io"
 	"strings"
 
@@ -38,7 +39,7 @@ func SARIF(w io.Writer, r *Result) error {
 		for _, h := range f.Hints {
 			text += "\nhint: " + h
 		}
-		loc := sarif.NewArtifactLocation().WithURI(r.uri(f.File)).WithURIBaseID("%SRCROOT%")
+		loc := sarif.NewArtifactLocation().WithURI(r.URI(f.File)).WithURIBaseID("%SRCROOT%")
 		phys := sarif.NewPhysicalLocation().WithArtifactLocation(loc)
 		if f.Pos.Line > 0 {
 			phys.WithRegion(sarif.NewRegion().WithStartLine(f.Pos.Line).WithStartColumn(f.Pos.Col))
@@ -49,6 +50,21 @@ func SARIF(w io.Writer, r *Result) error {
 			WithMessage(sarif.NewMessage().WithText(text)).
 			AddLocation(sarif.NewLocation().WithPhysicalLocation(phys)).
 			WithPartialFingerprints(map[string]string{fingerprintKey: r.Fingerprint(f)})
+		switch {
+		case f.Waiver != nil:
+			res.WithSuppressions([]*sarif.Suppression{sarif.NewSuppression().WithKind("inSource").
+				WithJustification(fmt.Sprintf("%s (waived until %s)", f.Waiver.Reason, f.Waiver.Expires.Format("2006-01-02")))})
+		case f.Baselined:
+			res.WithSuppressions([]*sarif.Suppression{sarif.NewSuppression().WithKind("external").
+				WithJustification("recorded in the baseline " + r.Baseline.File)})
+		}
+		if r.Baseline != nil {
+			state := "new"
+			if f.Baselined {
+				state = "unchanged"
+			}
+			res.WithBaselineState(state)
+		}
 		if len(f.Numbers) > 0 {
 			props := sarif.NewPropertyBag()
 			for _, k := range sortedKeys(f.Numbers) {

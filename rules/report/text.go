@@ -30,33 +30,57 @@ func Text(w io.Writer, r *Result, useColor bool) error {
 		rules.Note:    paint(color.New(color.FgCyan)),
 	}
 	var b strings.Builder
-	for _, f := range r.Findings {
+	line := func(f rules.Finding, note string) {
 		loc := f.File
 		if f.Pos.Line > 0 {
 			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
 		}
-		fmt.Fprintf(&b, "%s: %s: %s %s\n", bold(loc), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"))
+		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"), note)
 		for _, h := range f.Hints {
 			fmt.Fprintf(&b, "    hint: %s\n", h)
 		}
 	}
-	b.WriteString(SummaryLine(r.Findings, r.Summary))
+	for _, f := range r.Findings {
+		if f.Baselined {
+			continue
+		}
+		note := ""
+		if w := f.Waiver; w != nil {
+			note = faint(fmt.Sprintf(" (waived until %s: %s)", w.Expires.Format("2006-01-02"), w.Reason))
+		}
+		line(f, note)
+	}
+	if _, baselined := r.Accepted(); baselined > 0 {
+		fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", r.Baseline.File)
+		for _, f := range r.Findings {
+			if f.Baselined {
+				line(f, "")
+			}
+		}
+	}
+	if r.Baseline != nil && r.Baseline.Fixed > 0 {
+		fmt.Fprintf(&b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
+			plural(r.Baseline.Fixed, "baseline entry"), r.Baseline.File)
+	}
+	b.WriteString(SummaryLine(r))
 	b.WriteByte('\n')
 	_, err := io.WriteString(w, b.String())
 	return err
 }
 
-// SummaryLine is one line: what was checked and the findings by severity.
-func SummaryLine(findings []rules.Finding, s Summary) string {
-	n := map[rules.Severity]int{}
-	for _, f := range findings {
-		n[f.Severity]++
-	}
+// SummaryLine is one line: what was checked and the findings by severity, accepted
+// debt counted apart.
+func SummaryLine(r *Result) string {
+	n := r.Counts()
+	s := r.Summary
 	line := fmt.Sprintf("%s, %s: ", plural(s.Files, "file"), plural(s.Tables, "table"))
-	if len(findings) == 0 {
+	if n[rules.Error]+n[rules.Warning]+n[rules.Note] == 0 {
 		line += "no findings"
 	} else {
 		line += fmt.Sprintf("%s, %s, %s", plural(n[rules.Error], "error"), plural(n[rules.Warning], "warning"), plural(n[rules.Note], "note"))
+	}
+	if waived, baselined := r.Accepted(); waived+baselined > 0 {
+		line += fmt.Sprintf(" (%d waived, %d baselined)", waived, baselined)
 	}
 	if s.Invalid > 0 {
 		line += fmt.Sprintf("; %s could not be checked", plural(s.Invalid, "file"))
@@ -67,6 +91,9 @@ func SummaryLine(findings []rules.Finding, s Summary) string {
 func plural(n int, word string) string {
 	if n == 1 {
 		return fmt.Sprintf("1 %s", word)
+	}
+	if strings.HasSuffix(word, "y") {
+		return fmt.Sprintf("%d %sies", n, strings.TrimSuffix(word, "y"))
 	}
 	return fmt.Sprintf("%d %ss", n, word)
 }

@@ -1,0 +1,197 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"strings"
+	"time"
+
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/schema"
+	"github.com/spf13/cobra"
+)
+
+// planOptions are the plan command's flags, parsed.
+type planOptions struct {
+	table   string
+	set     advisor.Settings
+	today   time.Time
+	horizon int
+	svg     string
+}
+
+// maxHorizon bounds --horizon: fifty years of months is already far past any plan.
+const maxHorizon = 600
+
+func newPlan() *cobra.Command {
+	var table, segRows, today, svg string
+	var fixed bool
+	var horizon int
+	cmd := &cobra.Command{
+		Use:   "plan MANIFEST",
+		Short: "Show each table's layout, a what-if sweep, the recommended layout and a growth forecast",
+		Long: "plan prints, for each table of one manifest (or --table), its segment layout today,\n" +
+			"a what-if sweep over segment capacities and partition layouts with the Pareto front\n" +
+			"of fixed ms per scan against refresh memory, the recommended layout with the\n" +
+			"manifest snippet that produces it, and a month-by-month forecast of when growth\n" +
+			"breaks each budget. MANIFEST is a file or - for standard input.\n" +
+			"Exit codes: 0 planned, 2 invalid input or usage.",
+		Example: "  scangate plan testdata/demo/meter-telemetry.yaml --table meter_reads\n" +
+			"  scangate plan model.yaml --segment-rows 8Mi,16Mi,32Mi --horizon 36\n" +
+			"  scangate plan model.yaml --fixed-segment-rows --svg plan.svg",
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			opt := planOptions{table: table, horizon: horizon, svg: svg}
+			opt.set.FixedSegmentRows = fixed
+			var err error
+			if opt.set.Capacities, err = parseCapacities(segRows); err != nil {
+				return usageError(err)
+			}
+			if horizon < 1 || horizon > maxHorizon {
+				return usageError(fmt.Errorf("--horizon %d: give a number of months from 1 to %d", horizon, maxHorizon))
+			}
+			cfg, err := runConfig(today)
+			if err != nil {
+				return usageError(err)
+			}
+			opt.today = cfg.Today
+			m, err := loadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr())
+			if err != nil {
+				return err
+			}
+			idx, err := pickTables(m, table)
+			if err != nil {
+				return usageError(err)
+			}
+			plans := makePlans(m, idx, opt)
+			if svg != "" {
+				if err := writeFileAtomic(svg, planSVG(m, plans)); err != nil {
+					return usageError(err)
+				}
+			}
+			_, err = io.WriteString(cmd.OutOrStdout(), renderPlans(m, plans, opt))
+			return err
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&table, "table", "", "plan only this table")
+	f.StringVar(&segRows, "segment-rows", "", "segment capacities to try, comma-separated counts (default 1Mi,2Mi,4Mi,8Mi,16Mi; today's is always added)")
+	f.BoolVar(&fixed, "fixed-segment-rows", false, "the deployment cannot change engine.segment_rows: recommend partition changes only")
+	f.StringVar(&today, "today", "", "the date the forecast counts from, YYYY-MM-DD (default: today, UTC)")
+	f.IntVar(&horizon, "horizon", 24, "months to forecast")
+	f.StringVar(&svg, "svg", "", "also draw segment fill and the sweep's front per table to this SVG file")
+	return cmd
+}
+
+// parseCapacities reads --segment-rows: counts as manifests write them, comma-separated.
+func parseCapacities(s string) ([]int64, error) {
+	if s == "" {
+		return nil, nil
+	}
+	var out []int64
+	for _, part := range strings.Split(s, ",") {
+		part = strings.TrimSpace(part)
+		n, err := schema.ParseCount(part)
+		if err != nil {
+			return nil, fmt.Errorf("--segment-rows %q: %v", s, err)
+		}
+		if n < 1 {
+			return nil, fmt.Errorf("--segment-rows %q: a segment holds at least 1 row, got %q", s, part)
+		}
+		out = append(out, n)
+	}
+	return out, nil
+}
+
+// loadOne reads and validates one manifest; schema problems are printed to stderr in
+// the check command's style, each at its line and column, and end the run with exit 2.
+func loadOne(path string, stdin io.Reader, stderr io.Writer) (*schema.Manifest, error) {
+	var in input
+	if path == "-" {
+		data, err := readLimited(stdin, schema.DefaultLimits.MaxFileBytes)
+		in = input{name: stdinName, data: data, err: err}
+	} else {
+		info, err := os.Stat(path)
+		if err != nil {
+			return nil, usageError(fmt.Errorf("cannot read %s: %v", path, unwrapPath(err)))
+		}
+		if info.IsDir() {
+			return nil, usageError(fmt.Errorf("%s is a directory; plan reads one manifest file", path))
+		}
+		in = readFile(path, schema.DefaultLimits.MaxFileBytes)
+	}
+	if in.err != nil {
+		return nil, usageError(fmt.Errorf("cannot read %s: %v", in.name, in.err))
+	}
+	m, err := schema.Load(in.name, in.data, schema.DefaultLimits)
+	if err == nil {
+		return m, nil
+	}
+	se, ok := err.(*schema.Error)
+	if !ok {
+		return nil, usageError(fmt.Errorf("%s: %v", in.name, err))
+	}
+	for _, f := range rules.SchemaFindings(se) {
+		loc := f.File
+		if f.Pos.Line > 0 {
+			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+		}
+		fmt.Fprintf(stderr, "%s: error: %s [%s]\n", loc, f.Message, f.Rule)
+	}
+	return nil, usageError(fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name))
+}
+
+// pickTables is every table, or the one --table names.
+func pickTables(m *schema.Manifest, name string) ([]int, error) {
+	var idx, all []int
+	var names []string
+	for i, t := range m.Tables {
+		all = append(all, i)
+		names = append(names, t.Name)
+		if t.Name == name {
+			idx = append(idx, i)
+		}
+	}
+	if name == "" {
+		return all, nil
+	}
+	if len(idx) == 0 {
+		return nil, fmt.Errorf("--table %q: %s has no such table; it has %s", name, m.File, strings.Join(names, ", "))
+	}
+	return idx, nil
+}
+
+// tablePlan is everything plan prints about one table.
+type tablePlan struct {
+	index    int
+	spec     schema.Table
+	sweep    *advisor.Sweep
+	now      *advisor.Forecast // today's layout
+	rec      *advisor.Forecast // the recommended (or closest) layout, when it differs
+	holds    *advisor.Candidate
+	problems string // why the table could not be laid out, if it could not
+}
+
+func makePlans(m *schema.Manifest, idx []int, opt planOptions) []tablePlan {
+	md := advisor.NewModel(m)
+	var out []tablePlan
+	for _, i := range idx {
+		p := tablePlan{index: i, spec: m.Tables[i], sweep: md.Sweep(i, opt.set)}
+		if p.sweep.Today < 0 {
+			p.problems = "its partitions cannot be laid out"
+			out = append(out, p)
+			continue
+		}
+		p.now, _ = md.Forecast(i, p.spec, m.Engine.SegmentRows, opt.today, opt.horizon)
+		if c, _, ok := p.sweep.Pick(); ok && !c.Today() {
+			p.rec, _ = md.Forecast(i, c.Spec, c.SegmentRows, opt.today, opt.horizon)
+		}
+		if p.spec.GrowthPerYear != 0 {
+			p.holds = md.Holds(p.sweep, opt.horizon)
+		}
+		out = append(out, p)
+	}
+	return out
+}

@@ -1,0 +1,431 @@
+package main
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/schema"
+)
+
+// planWidth is the terminal width the plan is written for; only the manifest snippet,
+// which must stay exact, may run longer.
+const planWidth = 80
+
+var (
+	cnt  = advisor.Count
+	num  = advisor.Num
+	msf  = advisor.Ms
+	pctf = advisor.Pct
+	size = advisor.Size
+)
+
+// renderPlans writes the plan of every table, separated by blank lines.
+func renderPlans(m *schema.Manifest, plans []tablePlan, opt planOptions) string {
+	var b strings.Builder
+	for n, p := range plans {
+		if n > 0 {
+			b.WriteString("\n")
+		}
+		renderPlan(&b, m, p, opt)
+	}
+	return b.String()
+}
+
+func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOptions) {
+	e := m.Engine
+	t := p.spec
+	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", t.Name, m.File, t.Pos.Line, t.Pos.Col)
+	if p.problems != "" {
+		fmt.Fprintf(b, "   %s\n", p.problems)
+		return
+	}
+	sw := p.sweep
+	now := &sw.Candidates[sw.Today]
+	growth := "no growth"
+	if t.GrowthPerYear != 0 {
+		growth = fmt.Sprintf("growing %s a year", pctf(t.GrowthPerYear))
+	}
+	para(b, "   ", fmt.Sprintf("%s rows, %s; segments of %s rows, %d cores, %s ms per segment per scan.",
+		cnt(now.Rows), growth, cnt(e.SegmentRows), e.Cores, msf(e.SegmentOverheadMs)))
+
+	b.WriteString("\nLayout today\n")
+	renderGroups(b, t, e.SegmentRows)
+	l := now.Layout
+	fmt.Fprintf(b, "   segments %s, ideal %s, excess %s, fill %s\n", num(l.Segments), num(l.Ideal), num(l.Excess), pctf(l.Fill))
+	if l.ClosedExcess != l.Excess {
+		fmt.Fprintf(b, "   excess outside the open partition: %s (what truncated-segments counts)\n", num(l.ClosedExcess))
+	}
+	budgets := m.Budgets.Override(t.Budgets)
+	row := func(name, value, limitName string, limit *float64, fig float64) {
+		s := fmt.Sprintf("   %-26s %12s", name, value)
+		if limit != nil && *limit > 0 {
+			s += fmt.Sprintf("   %-9s %-12s %s", limitName, limitText(limitName, *limit), pctf(fig / *limit))
+		}
+		b.WriteString(strings.TrimRight(s, " ") + "\n")
+	}
+	row("fixed CPU per full scan", msf(l.FixedMs)+" ms", "budget", budgets.ScanOverheadMs, l.FixedMs)
+	if now.Widest != "" {
+		row("scan wall, "+clip(now.Widest, 16), msf(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
+	} else {
+		b.WriteString("   scan wall: needs column profiles\n")
+	}
+	if sw.Profiled {
+		name := "refresh peak (model)"
+		if len(t.Columns) == 0 {
+			name = "refresh peak (others)" // this table's own size is unknown without profiles
+		}
+		row(name, size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
+		if budgets.RefreshMemory != nil {
+			row("", "", "budget", bytesLimit(*budgets.RefreshMemory), now.Peak)
+		}
+	}
+
+	renderSweep(b, sw, e.SegmentRows)
+	renderRecommendation(b, p, now)
+	renderForecast(b, p, opt)
+}
+
+// limitText writes a budget in its unit: ms for the scan budgets, bytes for memory.
+func limitText(kind string, v float64) string {
+	if kind == "engine" || v >= 1<<20 {
+		return size(v)
+	}
+	return msf(v) + " ms"
+}
+
+func bytesLimit(n int64) *float64 {
+	if n <= 0 {
+		return nil
+	}
+	v := float64(n)
+	return &v
+}
+
+// group is one line of the layout today: a tier, the even split, one listed partition.
+type group struct {
+	label            string
+	count            int
+	minRows, maxRows int64
+	minSeg, maxSeg   int64
+	minFill, maxFill float64 // of each partition's last segment
+	open             bool
+}
+
+func renderGroups(b *strings.Builder, t schema.Table, s int64) {
+	parts, err := layout.Expand(t)
+	if err != nil {
+		return
+	}
+	var gs []group
+	for n, p := range parts {
+		label := p.Name
+		switch {
+		case p.Tier >= 0:
+			label = string(t.Partitions.Tiers[p.Tier].Grain)
+		case t.Partitions.Scheme == schema.SchemeEven:
+			label = "even"
+		}
+		seg := layout.Segments(p.Rows, s)
+		fill := 0.0
+		if seg > 0 {
+			fill = float64(p.Rows-(seg-1)*s) / float64(s)
+		}
+		k := len(gs) - 1
+		sameTier := k >= 0 && p.Tier >= 0 && parts[n-1].Tier == p.Tier
+		if sameTier || (k >= 0 && p.Tier < 0 && label == "even") {
+			g := &gs[k]
+			g.count++
+			g.minRows, g.maxRows = min(g.minRows, p.Rows), max(g.maxRows, p.Rows)
+			g.minSeg, g.maxSeg = min(g.minSeg, seg), max(g.maxSeg, seg)
+			g.minFill, g.maxFill = min(g.minFill, fill), max(g.maxFill, fill)
+			continue
+		}
+		gs = append(gs, group{label, 1, p.Rows, p.Rows, seg, seg, fill, fill, p.Open})
+	}
+	const maxLines = 12 // a long list is summarised; the sweep and snippet carry the rest
+	rows := [][]string{}
+	for n, g := range gs {
+		if n == maxLines && len(gs) > maxLines+1 {
+			rows = append(rows, []string{fmt.Sprintf("... %d more", len(gs)-maxLines), "", "", "", ""})
+			break
+		}
+		rows = append(rows, []string{g.label, num(int64(g.count)), span(cnt(g.minRows), cnt(g.maxRows)),
+			span(num(g.minSeg), num(g.maxSeg)), span(pctf(g.minFill), pctf(g.maxFill))})
+	}
+	grid(b, "   ", []column{{head: "partitions", clip: true}, {head: "count", right: true},
+		{head: "rows each"}, {head: "segments"}, {head: "last segment full"}}, rows)
+	if len(parts) > 0 && parts[0].Open {
+		fmt.Fprintf(b, "   the newest %s is the open partition (still filling; not counted as excess)\n", gs[0].label)
+	}
+}
+
+// span writes a range, or one value when both ends agree.
+func span(lo, hi string) string {
+	if lo == hi {
+		return lo
+	}
+	return lo + ".." + hi
+}
+
+// clip shortens s to n runes with a trailing "~".
+func clip(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "~"
+}
+
+func renderSweep(b *strings.Builder, sw *advisor.Sweep, today int64) {
+	mem := "less refresh memory"
+	if !sw.Profiled {
+		mem = "smaller segments (without column profiles the segment size stands in for refresh memory)"
+	}
+	fmt.Fprintf(b, "\nWhat-if sweep: %d layouts\n", len(sw.Candidates))
+	para(b, "   ", fmt.Sprintf("* Pareto front: fewer fixed ms per scan against %s; > recommended; = today; ! breaks a budget; # segment size fixed", mem))
+	var rows [][]string
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		mark := []byte("   ")
+		if c.Front {
+			mark[0] = '*'
+		}
+		switch {
+		case k == sw.Recommended:
+			mark[1] = '>'
+		case c.Today():
+			mark[1] = '='
+		}
+		switch {
+		case c.Locked:
+			mark[2] = '#'
+		case !c.Fits:
+			mark[2] = '!'
+		}
+		wall, peak := "-", "-"
+		if c.Widest != "" {
+			wall = msf(c.WallMs)
+		}
+		if sw.Profiled {
+			peak = size(c.Peak)
+		}
+		rows = append(rows, []string{string(mark), cnt(c.SegmentRows), c.Label, num(int64(c.Layout.Partitions)),
+			num(c.Layout.Segments), msf(c.Layout.FixedMs), wall, peak})
+	}
+	grid(b, "   ", []column{{}, {head: "seg"}, {head: "partitions", clip: true}, {head: "parts", right: true},
+		{head: "segs", right: true}, {head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
+}
+
+func renderRecommendation(b *strings.Builder, p tablePlan, now *advisor.Candidate) {
+	sw := p.sweep
+	c, fits, ok := sw.Pick()
+	b.WriteString("\n")
+	switch {
+	case !ok:
+		para(b, "", "Recommended: no layout in the sweep fits every budget or comes closer than today's; try other capacities with --segment-rows.")
+		return
+	case c.Today():
+		line := "Recommended: keep today's layout; it fits every budget"
+		if len(c.Warnings) > 0 {
+			line += " (still warns: " + strings.Join(c.Warnings, "; ") + ")"
+		}
+		para(b, "", line+".")
+		return
+	case fits:
+		para(b, "", "Recommended: "+c.Change+".")
+	default:
+		para(b, "", "No layout in the sweep fits every budget. Closest: "+c.Change+".")
+	}
+	fmt.Fprintf(b, "   %-15s %s -> %s\n", "segments", num(now.Layout.Segments), num(c.Layout.Segments))
+	fmt.Fprintf(b, "   %-15s %s -> %s ms per scan (%s ms)\n", "fixed CPU", msf(now.Layout.FixedMs), msf(c.Layout.FixedMs), advisor.Signed(c.Layout.FixedMs-now.Layout.FixedMs))
+	if c.Widest != "" {
+		fmt.Fprintf(b, "   %-15s %s -> %s ms (%s)\n", "scan wall", msf(now.WallMs), msf(c.WallMs), clip(c.Widest, 30))
+	}
+	if sw.Profiled {
+		fmt.Fprintf(b, "   %-15s %s -> %s\n", "refresh peak", size(now.Peak), size(c.Peak))
+	}
+	fmt.Fprintf(b, "   %-15s %s -> %s\n", "partitions", num(int64(now.Layout.Partitions)), num(int64(c.Layout.Partitions)))
+	for _, miss := range c.Misses {
+		para(b, "   ", "still breaks: "+miss)
+	}
+	for _, w := range c.Warnings {
+		para(b, "   ", "still warns: "+w)
+	}
+	if c.Engine {
+		para(b, "   ", "segment_rows is an engine setting: every table of the model moves with it (the sweep checked that none breaks its scan budgets).")
+	}
+	b.WriteString("\n")
+	for _, line := range strings.Split(strings.TrimRight(advisor.Snippet(c), "\n"), "\n") {
+		b.WriteString("   " + line + "\n")
+	}
+}
+
+func renderForecast(b *strings.Builder, p tablePlan, opt planOptions) {
+	fc := p.now
+	if fc == nil {
+		return
+	}
+	end := advisor.Month(advisor.AddMonths(opt.today, opt.horizon))
+	b.WriteString("\n")
+	if p.spec.GrowthPerYear == 0 {
+		para(b, "", fmt.Sprintf("Forecast: no growth_per_year, so the table's own figures stay as today through %s.", end))
+	} else {
+		para(b, "", fmt.Sprintf("Forecast from %s for %d months at %s growth a year, today's layout:",
+			opt.today.Format("2006-01-02"), opt.horizon, pctf(p.spec.GrowthPerYear)))
+	}
+	if len(fc.Crossings) > 0 {
+		var rows [][]string
+		for _, c := range fc.Crossings {
+			when := "already over today"
+			switch {
+			case c.Month < 0:
+				when = fmt.Sprintf("not by %s (%s)", end, c.Format(c.Value))
+			case c.Month > 0:
+				when = fmt.Sprintf("%s (%s)", advisor.Month(c.Date), c.Format(c.Value))
+			}
+			rows = append(rows, []string{c.Name, c.Format(c.Limit), c.Format(c.Now), when})
+		}
+		grid(b, "   ", []column{{head: "budget", clip: true}, {head: "limit", right: true}, {head: "today", right: true}, {head: "first crossed"}}, rows)
+	}
+	if p.spec.GrowthPerYear == 0 {
+		return
+	}
+	// Every quarter, the last month and each month a budget is first crossed.
+	months := []int{opt.horizon}
+	for t := 0; t < opt.horizon; t += 3 {
+		months = append(months, t)
+	}
+	for _, c := range fc.Crossings {
+		if c.Month > 0 {
+			months = append(months, c.Month)
+		}
+	}
+	slices.Sort(months)
+	months = slices.Compact(months)
+	var rows [][]string
+	for _, t := range months {
+		pr := fc.Months[t]
+		wall, peak := "-", "-"
+		if pr.Widest != "" {
+			wall = msf(pr.WallMs)
+		}
+		if p.sweep.Profiled {
+			peak = size(pr.Peak)
+		}
+		rows = append(rows, []string{advisor.Month(pr.Date), cnt(pr.Rows), num(pr.Layout.Segments), msf(pr.Layout.FixedMs), wall, peak})
+	}
+	grid(b, "   ", []column{{head: "month"}, {head: "rows", right: true}, {head: "segs", right: true},
+		{head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
+	if p.rec != nil {
+		what := "The recommended layout"
+		if p.sweep.Recommended < 0 {
+			what = "The closest layout"
+		}
+		para(b, "", what+" "+holdsText(p.rec, end)+".")
+	}
+	if h := p.holds; h != nil {
+		if h.Today() {
+			para(b, "", fmt.Sprintf("Today's layout holds every budget through %s.", end))
+		} else {
+			para(b, "", fmt.Sprintf("Holds every budget through %s: %s (%s segments, %s ms per scan today).", end, h.Change, num(h.Layout.Segments), msf(h.Layout.FixedMs)))
+		}
+	} else {
+		para(b, "", fmt.Sprintf("No layout in the sweep holds every budget through %s; try larger capacities with --segment-rows or a shorter --horizon.", end))
+	}
+}
+
+// holdsText says until when a layout's forecast stays within every budget.
+func holdsText(fc *advisor.Forecast, end string) string {
+	first := -1
+	var cross advisor.Crossing
+	for _, c := range fc.Crossings {
+		if c.Month >= 0 && (first < 0 || c.Month < first) {
+			first, cross = c.Month, c
+		}
+	}
+	switch {
+	case first < 0:
+		return "holds every budget through " + end
+	case first == 0:
+		return fmt.Sprintf("is over the %s from the start (%s)", cross.Name, cross.Format(cross.Now))
+	}
+	return fmt.Sprintf("holds through %s; the %s of %s breaks in %s (%s)",
+		advisor.Month(advisor.AddMonths(fc.Start, first-1)), cross.Name, cross.Format(cross.Limit), advisor.Month(cross.Date), cross.Format(cross.Value))
+}
+
+// para writes text word-wrapped to planWidth, every line starting with indent.
+func para(b *strings.Builder, indent, text string) {
+	line := indent
+	for _, w := range strings.Fields(text) {
+		if len([]rune(line))+1+len([]rune(w)) > planWidth && strings.TrimSpace(line) != "" {
+			b.WriteString(strings.TrimRight(line, " ") + "\n")
+			line = indent + "  "
+		}
+		if strings.TrimSpace(line) != "" {
+			line += " "
+		}
+		line += w
+	}
+	b.WriteString(line + "\n")
+}
+
+// column is one column of a grid: its heading, alignment, and whether it may be
+// shortened to keep the grid within planWidth.
+type column struct {
+	head  string
+	right bool
+	clip  bool
+}
+
+// grid writes rows under their headings, each column as wide as its widest cell; when
+// the lines would pass planWidth, the clippable column gives up the difference.
+func grid(b *strings.Builder, indent string, cols []column, rows [][]string) {
+	w := make([]int, len(cols))
+	for i, c := range cols {
+		w[i] = runes(c.head)
+		for _, r := range rows {
+			w[i] = max(w[i], runes(r[i]))
+		}
+	}
+	total := runes(indent) + len(cols) - 1
+	for _, x := range w {
+		total += x
+	}
+	for i, c := range cols {
+		if c.clip && total > planWidth {
+			cut := min(total-planWidth, w[i]-8)
+			w[i] -= cut
+			total -= cut
+		}
+	}
+	line := func(cells []string) {
+		var l strings.Builder
+		l.WriteString(indent)
+		for i, cell := range cells {
+			if i > 0 {
+				l.WriteByte(' ')
+			}
+			cell = clip(cell, w[i])
+			pad := strings.Repeat(" ", w[i]-runes(cell))
+			if cols[i].right {
+				l.WriteString(pad + cell)
+			} else {
+				l.WriteString(cell + pad)
+			}
+		}
+		b.WriteString(strings.TrimRight(l.String(), " ") + "\n")
+	}
+	heads := make([]string, len(cols))
+	for i, c := range cols {
+		heads[i] = c.head
+	}
+	line(heads)
+	for _, r := range rows {
+		line(r)
+	}
+}
+
+func runes(s string) int { return len([]rune(s)) }

@@ -1,0 +1,151 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"path"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
+)
+
+// project is the run's project config: the file it came from and what it says.
+type project struct {
+	config *schema.ProjectConfig // nil without a config file
+	dir    string                // the config file's directory; globs are relative to it
+}
+
+// findConfig walks up from the first checked path (or the working directory) to the
+// repository root looking for .scangate.yaml; "" when there is none.
+func findConfig(paths []string) string {
+	start := "."
+	if len(paths) > 0 && paths[0] != "-" {
+		start = paths[0]
+	}
+	dir, err := filepath.Abs(start)
+	if err != nil {
+		return ""
+	}
+	if info, err := os.Stat(dir); err == nil && !info.IsDir() {
+		dir = filepath.Dir(dir)
+	}
+	for {
+		candidate := filepath.Join(dir, schema.ConfigFile)
+		if info, err := os.Stat(candidate); err == nil && info.Mode().IsRegular() {
+			return candidate
+		}
+		if _, err := os.Stat(filepath.Join(dir, ".git")); err == nil {
+			return "" // the repository root: configs above it belong to someone else
+		}
+		parent := filepath.Dir(dir)
+		if parent == dir {
+			return ""
+		}
+		dir = parent
+	}
+}
+
+// loadProject reads the config named by --config, or the one found from the paths.
+// A config that breaks its schema is an error with the file's line and column.
+func loadProject(flag string, paths []string) (project, error) {
+	file := flag
+	if file == "" {
+		file = findConfig(paths)
+		if file == "" {
+			return project{}, nil
+		}
+		if wd, err := os.Getwd(); err == nil {
+			if rel, err := filepath.Rel(wd, file); err == nil && !strings.HasPrefix(rel, "..") {
+				file = rel // report it the way the user would type it
+			}
+		}
+	}
+	in := readFile(file, schema.DefaultLimits.MaxFileBytes)
+	if in.err != nil {
+		return project{}, fmt.Errorf("cannot read the config %s: %v", file, in.err)
+	}
+	cfg, err := schema.LoadConfig(in.name, in.data, schema.DefaultLimits)
+	if err != nil {
+		return project{}, err
+	}
+	return project{config: cfg, dir: filepath.Dir(file)}, nil
+}
+
+// rulesConfig turns the project's rule settings and --today into the rules' Config.
+func (p project) rulesConfig(today string) (rules.Config, error) {
+	day := time.Now().UTC().Truncate(24 * time.Hour)
+	if today != "" {
+		d, err := time.Parse("2006-01-02", today)
+		if err != nil {
+			return rules.Config{}, fmt.Errorf("--today %q: write the date as YYYY-MM-DD", today)
+		}
+		day = d
+	}
+	return rules.ConfigFrom(p.config, day)
+}
+
+// keep applies the config's include and exclude globs to a file found by walking a
+// directory; files named on the command line are always checked.
+func (p project) keep(file string) bool {
+	if p.config == nil || (len(p.config.Include) == 0 && len(p.config.Exclude) == 0) {
+		return true
+	}
+	abs, err1 := filepath.Abs(file)
+	base, err2 := filepath.Abs(p.dir)
+	rel, err3 := filepath.Rel(base, abs)
+	if errors.Join(err1, err2, err3) != nil {
+		return true
+	}
+	rel = filepath.ToSlash(rel)
+	if len(p.config.Include) > 0 {
+		in := false
+		for _, g := range p.config.Include {
+			in = in || globMatch(g, rel)
+		}
+		if !in {
+			return false
+		}
+	}
+	for _, g := range p.config.Exclude {
+		if globMatch(g, rel) {
+			return false
+		}
+	}
+	return true
+}
+
+// globMatch matches a slash-separated path against a glob where ** stands for any
+// number of directories and the other wildcards work as in path.Match.
+func globMatch(pattern, name string) bool {
+	return matchParts(strings.Split(pattern, "/"), strings.Split(name, "/"))
+}
+
+func matchParts(pat, name []string) bool {
+	for len(pat) > 0 {
+		if pat[0] == "**" {
+			for i := 0; i <= len(name); i++ {
+				if matchParts(pat[1:], name[i:]) {
+					return true
+				}
+			}
+			return false
+		}
+		if len(name) == 0 {
+			return false
+		}
+		if ok, err := path.Match(pat[0], name[0]); err != nil || !ok {
+			return false
+		}
+		pat, name = pat[1:], name[1:]
+	}
+	return len(name) == 0
+}
+
+// runConfig is the rules' Config for a run without a project config.
+func runConfig(today string) (rules.Config, error) {
+	return project{}.rulesConfig(today)
+}

@@ -1,0 +1,64 @@
+package rules
+
+import (
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/scangate/scangate/rules/advisor"
+)
+
+// The advisor ranks layouts by the warnings the rules would raise; its default levels
+// must be the rules' defaults, and a project's settings must reach it.
+func TestAdvisorLevelsMatchRules(t *testing.T) {
+	if levels(Config{}) != advisor.DefaultLevels {
+		t.Errorf("the advisor's default levels %+v differ from the rules' %+v", advisor.DefaultLevels, levels(Config{}))
+	}
+	cfg := Config{Rules: map[string]RuleConfig{scanOverheadID: {Params: map[string]float64{"warn_share": 0.9}}}}
+	if levels(cfg).OverheadWarnShare != 0.9 {
+		t.Error("a project's warn_share does not reach the advisor")
+	}
+}
+
+// The advisor writes figures for the plan as the rules write them for findings.
+func TestAdvisorFormatsMatchRules(t *testing.T) {
+	for _, n := range []int64{0, 7, 999, 1000, 1460, 400_000, 1_460_000, 8 << 20, 7_200_000_000, 1 << 40, -909, 1e15} {
+		if advisor.Count(n) != count(n) || advisor.Num(n) != num(n) {
+			t.Errorf("%d: %s/%s against %s/%s", n, advisor.Count(n), advisor.Num(n), count(n), num(n))
+		}
+	}
+	for _, x := range []float64{0, 1.5, -4.5, 99.95, 100, 1319.4, -642.4, 0.0007, 0.876, 2.19, 1 << 30, 1536} {
+		if advisor.Ms(x) != ms(x) || advisor.Pct(x) != pct(x) || advisor.Size(x) != size(x) || advisor.Signed(x) != signed(x) {
+			t.Errorf("%v: %s %s %s %s against %s %s %s %s", x, advisor.Ms(x), advisor.Pct(x), advisor.Size(x), advisor.Signed(x), ms(x), pct(x), size(x), signed(x))
+		}
+	}
+}
+
+// The scan-overhead and truncated-segments hints lead with the sweep's recommendation:
+// 10,000 rows in 40 even partitions at 1,000 rows per segment (see the advisor's
+// TestSweepEvenByHand): count 10 at today's segment size, 40 -> 10 segments, 60 -> 15 ms.
+func TestHintsQuoteTheRecommendation(t *testing.T) {
+	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 50}\n"+
+		"tables: [{name: t, rows: 10000, partitions: {scheme: even, count: 40}}]\n")
+	fs := Run(m, Config{Today: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)})
+	if len(fs) != 2 {
+		t.Fatalf("want scan-overhead and truncated-segments, got %+v", fs)
+	}
+	for _, f := range fs {
+		if len(f.Hints) == 0 || f.Hints[0] != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+			t.Errorf("%s: hints %q", f.Rule, f.Hints)
+		}
+	}
+	// The engine change the recommendation makes is followed by the partition change alone.
+	m = load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 10}\n"+
+		"tables: [{name: t, rows: 10000, partitions: {scheme: even, count: 40}}]\n")
+	for _, f := range Run(m, Config{}) {
+		if f.Rule != TruncatedSegments.ID {
+			continue
+		}
+		if len(f.Hints) != 2 || !strings.Contains(f.Hints[0], "raise engine.segment_rows from 1k to 1Mi") ||
+			!strings.HasPrefix(f.Hints[1], "or, keeping engine.segment_rows at 1k, use count: 10: 40 -> 10 segments") {
+			t.Errorf("hints %q", f.Hints)
+		}
+	}
+}

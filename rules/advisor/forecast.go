@@ -1,0 +1,135 @@
+package advisor
+
+import (
+	"fmt"
+	"time"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// Projection is one month of a forecast: the table's figures with every table of the
+// model grown by its own growth_per_year.
+type Projection struct {
+	Month int       // 0 is today
+	Date  time.Time // today plus Month months
+	Figures
+	Peak float64 // the model's refresh peak
+}
+
+// Crossing is when one budget is first broken.
+type Crossing struct {
+	Budget string  // manifest key: scan_overhead_ms, scan_ms, refresh_memory, engine.memory
+	Name   string  // in words: "scan-overhead budget"
+	Unit   string  // "ms" or "bytes"
+	Limit  float64 //
+	Now    float64 // the figure today
+	Month  int     // first month above the limit: 0 already today, -1 not within the horizon
+	Date   time.Time
+	Value  float64 // the figure that month (at the horizon's end when never crossed)
+	Rows   int64   // the table's rows that month
+	Model  bool    // a model-wide figure (refresh memory), not the table's own
+}
+
+// Forecast projects one layout of a table month by month.
+type Forecast struct {
+	Table     string
+	Growth    float64
+	Start     time.Time
+	Horizon   int
+	Months    []Projection // 0..Horizon
+	Crossings []Crossing   // one per budget that applies, in a fixed order
+}
+
+// AddMonths is date plus n calendar months, the day kept or clamped to the month's
+// last day (2026-01-31 plus one month is 2026-02-28).
+func AddMonths(date time.Time, n int) time.Time {
+	y, m, d := date.Date()
+	first := time.Date(y, m+time.Month(n), 1, 0, 0, 0, 0, time.UTC)
+	last := first.AddDate(0, 1, -1).Day()
+	return time.Date(first.Year(), first.Month(), min(d, last), 0, 0, 0, 0, time.UTC)
+}
+
+// Forecast projects table i laid out as spec with segments of s rows for horizon
+// months from start, and finds the first month each budget is crossed.
+func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, horizon int) (*Forecast, error) {
+	fc := &Forecast{Table: spec.Name, Growth: spec.GrowthPerYear, Start: start, Horizon: horizon}
+	for t := 0; t <= horizon; t++ {
+		f, err := md.Evaluate(spec, s, t)
+		if err != nil {
+			return nil, err
+		}
+		fc.Months = append(fc.Months, Projection{Month: t, Date: AddMonths(start, t), Figures: f, Peak: md.Peak(i, f, s, t)})
+	}
+	b := md.Budgets(i)
+	type figure struct {
+		budget, name, unit string
+		limit              float64
+		value              func(Projection) float64
+		model              bool
+	}
+	var figs []figure
+	if b.ScanOverheadMs != nil {
+		figs = append(figs, figure{"scan_overhead_ms", "scan-overhead budget", "ms", *b.ScanOverheadMs, func(p Projection) float64 { return p.Layout.FixedMs }, false})
+	}
+	if b.ScanMs != nil && len(spec.Columns) > 0 {
+		figs = append(figs, figure{"scan_ms", "scan-time budget", "ms", *b.ScanMs, func(p Projection) float64 { return p.WallMs }, false})
+	}
+	if md.profiled {
+		if b.RefreshMemory != nil {
+			figs = append(figs, figure{"refresh_memory", "refresh-memory budget", "bytes", float64(*b.RefreshMemory), func(p Projection) float64 { return p.Peak }, true})
+		}
+		if mem := md.M.Engine.Memory; mem > 0 {
+			figs = append(figs, figure{"engine.memory", "engine memory", "bytes", float64(mem), func(p Projection) float64 { return p.Peak }, true})
+		}
+	}
+	for _, g := range figs {
+		c := Crossing{Budget: g.budget, Name: g.name, Unit: g.unit, Limit: g.limit, Now: g.value(fc.Months[0]), Month: -1, Model: g.model}
+		for _, p := range fc.Months {
+			if g.value(p) > g.limit {
+				c.Month, c.Date, c.Value, c.Rows = p.Month, p.Date, g.value(p), p.Rows
+				break
+			}
+		}
+		if c.Month < 0 {
+			last := fc.Months[len(fc.Months)-1]
+			c.Date, c.Value, c.Rows = last.Date, g.value(last), last.Rows
+		}
+		fc.Crossings = append(fc.Crossings, c)
+	}
+	return fc, nil
+}
+
+// Format writes a crossing's figure with its unit.
+func (c Crossing) Format(v float64) string {
+	if c.Unit == "bytes" {
+		return Size(v)
+	}
+	return Ms(v) + " ms"
+}
+
+// Holds returns the best candidate of the sweep (ranked as the recommendation) that
+// fits every budget today and still fits after months months of growth, or nil. The
+// figures only grow with the rows, so fitting at both ends is fitting throughout.
+func (md *Model) Holds(sw *Sweep, months int) *Candidate {
+	var best *Candidate
+	today := md.M.Engine.SegmentRows
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		if c.Locked || !c.Fits {
+			continue
+		}
+		if months > 0 {
+			f, err := md.Evaluate(c.Spec, c.SegmentRows, months)
+			if err != nil || len(md.misses(sw.Index, f, c.SegmentRows, months, md.Peak(sw.Index, f, c.SegmentRows, months))) > 0 {
+				continue
+			}
+		}
+		if best == nil || better(c, best, today) {
+			best = c
+		}
+	}
+	return best
+}
+
+// Month writes a forecast date as a month: 2026-09.
+func Month(t time.Time) string { return fmt.Sprintf("%04d-%02d", t.Year(), int(t.Month())) }

@@ -1,0 +1,102 @@
+package advisor
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// These write figures exactly as the rules' messages do (rules/format.go); a test in
+// package rules keeps the two in step.
+
+// Count writes a row or value count the way manifests write it: 8Mi, 7.2G, 400k.
+func Count(n int64) string {
+	for _, u := range []struct {
+		s string
+		f int64
+	}{{"Ti", 1 << 40}, {"Gi", 1 << 30}, {"Mi", 1 << 20}} {
+		if n >= u.f && n%u.f == 0 && n/u.f < 1024 {
+			return fmt.Sprintf("%d%s", n/u.f, u.s)
+		}
+	}
+	for _, u := range []struct {
+		s string
+		f float64
+	}{{"T", 1e12}, {"G", 1e9}, {"M", 1e6}, {"k", 1e3}} {
+		if float64(n) >= u.f {
+			return short(float64(n)/u.f) + u.s
+		}
+	}
+	return strconv.FormatInt(n, 10)
+}
+
+// short keeps three significant digits and drops trailing zeros: 7.2, 40, 1.46.
+func short(v float64) string {
+	prec := 2
+	switch {
+	case v >= 100:
+		prec = 0
+	case v >= 10:
+		prec = 1
+	}
+	s := strconv.FormatFloat(v, 'f', prec, 64)
+	if strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	return s
+}
+
+// Num writes an integer with thousands separators: 1,460.
+func Num(n int64) string {
+	if n < 0 {
+		return "-" + Num(-n)
+	}
+	s := strconv.FormatInt(n, 10)
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+// Ms writes milliseconds: one decimal below 100, whole and grouped above.
+func Ms(x float64) string {
+	if math.Abs(x) < 100 {
+		return strconv.FormatFloat(x, 'f', 1, 64)
+	}
+	return Num(int64(math.Round(x)))
+}
+
+// Signed writes a change in milliseconds with its sign: +1.5, -642.
+func Signed(x float64) string {
+	if x >= 0 {
+		return "+" + Ms(x)
+	}
+	return Ms(x)
+}
+
+// Pct writes a fraction as a whole percentage.
+func Pct(f float64) string {
+	if f > 0 && f < 0.1 {
+		return strconv.FormatFloat(f*100, 'f', 1, 64) + "%"
+	}
+	return Num(int64(math.Round(min(f*100, 1e15)))) + "%"
+}
+
+// Size writes bytes in binary units: 1.5 GiB.
+func Size(b float64) string {
+	units := []string{"B", "KiB", "MiB", "GiB", "TiB", "PiB", "EiB"}
+	i := 0
+	for b >= 1024 && i < len(units)-1 {
+		b /= 1024
+		i++
+	}
+	return short(b) + " " + units[i]
+}
+
+func plural(n int64, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}

@@ -1,0 +1,453 @@
+package advisor
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/schema"
+)
+
+// DefaultCapacities are the segment capacities a sweep tries without a list: 2^20 to
+// 2^24 rows (today's capacity is always added).
+var DefaultCapacities = []int64{1 << 20, 1 << 21, 1 << 22, 1 << 23, 1 << 24}
+
+// Levels are the thresholds the rules warn at (rules/scan_overhead.go, scan_time.go,
+// truncated_segments.go, partition_count.go); the recommendation avoids layouts that
+// would still warn. The rules pass a project's own values.
+type Levels struct {
+	OverheadWarnShare float64 // scan-overhead warns above this share of the budget
+	ScanWarnShare     float64 // scan-time warns above this share of the budget
+	TruncWarnMin      float64 // truncated-segments warns from max(TruncWarnMin, TruncWarnShare x N) excess
+	TruncWarnShare    float64
+	PartitionLimit    float64 // partition-count warns above this many partitions
+}
+
+// DefaultLevels are the rules' defaults; a test in package rules keeps them equal.
+var DefaultLevels = Levels{OverheadWarnShare: 0.8, ScanWarnShare: 0.8, TruncWarnMin: 8, TruncWarnShare: 0.1, PartitionLimit: 5000}
+
+// ForecastMonths is how far ahead the budget-forecast rule warns of a crossing.
+const ForecastMonths = 12
+
+// Settings choose what a sweep tries.
+type Settings struct {
+	Capacities       []int64 // segment capacities to try; nil: DefaultCapacities. Today's is always added.
+	FixedSegmentRows bool    // the deployment cannot change the segment capacity
+	Levels           Levels  // the zero value means DefaultLevels
+}
+
+func (s Settings) levels() Levels {
+	if s.Levels == (Levels{}) {
+		return DefaultLevels
+	}
+	return s.Levels
+}
+
+// Figures are the numbers of one table laid out one way.
+type Figures struct {
+	Rows   int64
+	Layout layout.Layout
+	Widest string  // the column with the largest encoded size; "" without profiles
+	WallMs float64 // estimated wall time of a full scan of it; 0 without profiles
+	Bytes  float64 // encoded size of the table's profiled columns
+}
+
+// Candidate is one layout of the sweep: a partition policy and a segment capacity.
+type Candidate struct {
+	Change      string // what to change, as a hint says it; "" for today's layout
+	Label       string // short name of the partition policy
+	Spec        schema.Table
+	SegmentRows int64
+	Engine      bool // another segment capacity than today's: an engine setting for the whole model
+	Locked      bool // Engine, but the capacity is fixed (Settings.FixedSegmentRows)
+	Window      bool // keeps a recent window fine and merges older periods
+	Figures
+	Peak     float64  // the model's refresh peak with this layout (layout.RefreshPeak)
+	Front    bool     // on the Pareto front of fixed ms against refresh memory
+	Fits     bool     // within every budget and the engine's memory
+	Misses   []string // the budgets it breaks, in words
+	Warnings []string // what check would still warn about, crossings within ForecastMonths included
+	order    int
+}
+
+// Today reports whether the candidate is the table's layout as it is.
+func (c *Candidate) Today() bool { return c.Change == "" }
+
+// Sweep is every candidate layout of one table, the front and the recommendation.
+type Sweep struct {
+	Table       string
+	Index       int // of the table in the manifest
+	Candidates  []Candidate
+	Today       int  // index of today's layout in Candidates
+	Recommended int  // index of the recommended layout; -1 when no candidate fits
+	Closest     int  // when none fits: the candidate that misses least, if better than today; else -1
+	Profiled    bool // the model has column profiles: the front's memory axis is the refresh peak
+}
+
+// Model is a manifest prepared for sweeps and forecasts; it caches the figures of the
+// tables a what-if leaves alone.
+type Model struct {
+	M           *schema.Manifest
+	rowBytes    float64 // the widest row of the model
+	profiled    bool
+	growth      bool // some table grows or shrinks
+	parallelism int
+	cache       map[figKey]*Figures // other tables' figures; a cache only, never ranged over
+}
+
+type figKey struct {
+	table int
+	s     int64
+	month int
+}
+
+// NewModel prepares m for sweeps and forecasts.
+func NewModel(m *schema.Manifest) *Model {
+	md := &Model{M: m, cache: map[figKey]*Figures{}}
+	for _, t := range m.Tables {
+		md.rowBytes = max(md.rowBytes, layout.RowBytes(t.Columns))
+		md.profiled = md.profiled || len(t.Columns) > 0
+		md.growth = md.growth || t.GrowthPerYear != 0
+	}
+	md.parallelism = m.Engine.RefreshParallelism
+	if md.parallelism < 1 {
+		md.parallelism = max(m.Engine.Cores, 1)
+	}
+	return md
+}
+
+// Profiled reports whether any table of the model has column profiles, without which
+// scan time and refresh memory are not estimated.
+func (md *Model) Profiled() bool { return md.profiled }
+
+// engineAt is the engine with another segment capacity.
+func (md *Model) engineAt(s int64) schema.Engine {
+	e := md.M.Engine
+	e.SegmentRows = s
+	return e
+}
+
+// Evaluate lays spec out in segments of s rows, with its rows grown for month months.
+func (md *Model) Evaluate(spec schema.Table, s int64, month int) (Figures, error) {
+	spec = Grow(spec, month)
+	parts, err := layout.Expand(spec)
+	if err != nil {
+		return Figures{}, err
+	}
+	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	e := md.engineAt(s)
+	best := -1.0
+	for _, c := range spec.Columns {
+		sc := layout.ScanColumn(c, spec.Rows, parts, e)
+		if sc.Bytes > best {
+			best, f.Widest, f.WallMs = sc.Bytes, c.Name, sc.WallMs
+		}
+		f.Bytes += layout.ColumnBytes(c, parts, s)
+	}
+	return f, nil
+}
+
+// other is the cached figures of table j as the manifest has it; nil when it cannot be
+// expanded (the loader refuses such manifests).
+func (md *Model) other(j int, s int64, month int) *Figures {
+	k := figKey{j, s, month}
+	if f, ok := md.cache[k]; ok {
+		return f
+	}
+	var fp *Figures
+	if f, err := md.Evaluate(md.M.Tables[j], s, month); err == nil {
+		fp = &f
+	}
+	md.cache[k] = fp
+	return fp
+}
+
+// Peak is the model's refresh peak when table i is laid out as f with segments of s rows
+// and the other tables as the manifest has them, all grown for month months.
+func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
+	bytes := f.Bytes
+	for j := range md.M.Tables {
+		if j == i {
+			continue
+		}
+		if o := md.other(j, s, month); o != nil {
+			bytes += o.Bytes
+		}
+	}
+	return layout.RefreshPeak(bytes, md.parallelism, s, md.rowBytes)
+}
+
+// Budgets are the budgets table i answers to: the model's with the table's own on top.
+func (md *Model) Budgets(i int) schema.Budgets {
+	return md.M.Budgets.Override(md.M.Tables[i].Budgets)
+}
+
+// misses lists the budgets table i breaks when laid out as f with segments of s rows in
+// month months and the model's refresh peaks at peak. With another segment capacity
+// than today's, a table of the model that fits its scan budgets today must still fit.
+func (md *Model) misses(i int, f Figures, s int64, month int, peak float64) []string {
+	var out []string
+	b := md.Budgets(i)
+	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
+		out = append(out, fmt.Sprintf("scan overhead %s ms > %s ms", Ms(f.Layout.FixedMs), Ms(*b.ScanOverheadMs)))
+	}
+	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
+		out = append(out, fmt.Sprintf("scan time %s ms > %s ms", Ms(f.WallMs), Ms(*b.ScanMs)))
+	}
+	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
+		out = append(out, fmt.Sprintf("refresh peak %s > engine memory %s", Size(peak), Size(float64(mem))))
+	}
+	if b.RefreshMemory != nil && md.profiled && peak > float64(*b.RefreshMemory) {
+		out = append(out, fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(float64(*b.RefreshMemory))))
+	}
+	if s != md.M.Engine.SegmentRows {
+		for j, t := range md.M.Tables {
+			if j == i {
+				continue
+			}
+			now, then := md.other(j, md.M.Engine.SegmentRows, month), md.other(j, s, month)
+			if now == nil || then == nil {
+				continue
+			}
+			if fitsScan(md.Budgets(j), *now) && !fitsScan(md.Budgets(j), *then) {
+				out = append(out, fmt.Sprintf("table %s over its scan budgets", t.Name))
+			}
+		}
+	}
+	return out
+}
+
+func fitsScan(b schema.Budgets, f Figures) bool {
+	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
+		return false
+	}
+	return b.ScanMs == nil || f.Widest == "" || f.WallMs <= *b.ScanMs
+}
+
+// warnings lists what the checks would still warn about for a layout that fits.
+func (md *Model) warnings(i int, f Figures, lv Levels) []string {
+	var out []string
+	b := md.Budgets(i)
+	if b.ScanOverheadMs != nil && f.Layout.FixedMs > lv.OverheadWarnShare**b.ScanOverheadMs {
+		out = append(out, fmt.Sprintf("scan overhead at %s of the budget", Pct(f.Layout.FixedMs / *b.ScanOverheadMs)))
+	}
+	if b.ScanMs != nil && f.Widest != "" && f.WallMs > lv.ScanWarnShare**b.ScanMs {
+		out = append(out, fmt.Sprintf("scan time at %s of the budget", Pct(f.WallMs / *b.ScanMs)))
+	}
+	l := f.Layout
+	if l.ClosedExcess >= 1 && float64(l.ClosedExcess) >= max(lv.TruncWarnMin, lv.TruncWarnShare*float64(l.ClosedSegments)) {
+		out = append(out, fmt.Sprintf("%s excess segments", Num(l.ClosedExcess)))
+	}
+	if float64(l.Partitions) > lv.PartitionLimit {
+		out = append(out, fmt.Sprintf("%s partitions", Num(int64(l.Partitions))))
+	}
+	return out
+}
+
+// capacities is the sorted, de-duplicated list a sweep tries, today's included.
+func (md *Model) capacities(s Settings) []int64 {
+	list := s.Capacities
+	if list == nil {
+		list = DefaultCapacities
+	}
+	out := append([]int64{md.M.Engine.SegmentRows}, list...)
+	slices.Sort(out)
+	return slices.Compact(out)
+}
+
+// Sweep evaluates every candidate layout of table i: today's policy and each variant,
+// at every capacity; marks the front; and picks the recommendation.
+func (md *Model) Sweep(i int, set Settings) *Sweep {
+	spec := md.M.Tables[i]
+	today := md.M.Engine.SegmentRows
+	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
+	order := 0
+	for _, s := range md.capacities(set) {
+		vs := append([]Variant{{Spec: spec}}, Variants(spec, s)...)
+		for _, v := range vs {
+			c := Candidate{Change: v.Change, Label: Label(v.Spec.Partitions), Spec: v.Spec, SegmentRows: s,
+				Engine: s != today, Window: v.Window, order: order}
+			order++
+			if c.Engine {
+				c.Locked = set.FixedSegmentRows
+				verb := "raise"
+				if s < today {
+					verb = "lower"
+				}
+				raise := fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
+				if c.Change == "" {
+					c.Change = raise
+				} else {
+					c.Change += " and " + raise
+				}
+			}
+			f, err := md.Evaluate(v.Spec, s, 0)
+			if err != nil {
+				continue
+			}
+			c.Figures = f
+			c.Peak = md.Peak(i, f, s, 0)
+			c.Misses = md.misses(i, f, s, 0, c.Peak)
+			c.Fits = len(c.Misses) == 0
+			if c.Fits {
+				c.Warnings = md.warnings(i, f, set.levels())
+				if md.growth {
+					// A layout that breaks a budget within the forecast's warning horizon
+					// would be flagged by budget-forecast: count it as a warning.
+					if g, err := md.Evaluate(v.Spec, s, ForecastMonths); err == nil {
+						if miss := md.misses(i, g, s, ForecastMonths, md.Peak(i, g, s, ForecastMonths)); len(miss) > 0 {
+							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", ForecastMonths, miss[0]))
+						}
+					}
+				}
+			}
+			if !c.Engine && c.Change == "" {
+				sw.Today = len(sw.Candidates)
+			}
+			sw.Candidates = append(sw.Candidates, c)
+		}
+	}
+	md.mark(sw)
+	return sw
+}
+
+// memAxis is the front's memory figure: the refresh peak, or, without column profiles,
+// the segment capacity (larger segments need more memory while a partition is built).
+func (sw *Sweep) memAxis(c *Candidate) float64 {
+	if sw.Profiled {
+		return c.Peak
+	}
+	return float64(c.SegmentRows)
+}
+
+// mark sets the front over the candidates that can be chosen, the recommendation and,
+// when nothing fits, the closest candidate.
+func (md *Model) mark(sw *Sweep) {
+	var idx []int
+	var pts []Point
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		if c.Locked {
+			continue
+		}
+		idx = append(idx, k)
+		pts = append(pts, Point{X: c.Layout.FixedMs, Y: sw.memAxis(c)})
+	}
+	for n, on := range Front(pts) {
+		sw.Candidates[idx[n]].Front = on
+	}
+	today := md.M.Engine.SegmentRows
+	for _, k := range idx {
+		c := &sw.Candidates[k]
+		if c.Fits && (sw.Recommended < 0 || better(c, &sw.Candidates[sw.Recommended], today)) {
+			sw.Recommended = k
+		}
+	}
+	if sw.Recommended >= 0 || sw.Today < 0 {
+		return
+	}
+	now := &sw.Candidates[sw.Today]
+	for _, k := range idx {
+		c := &sw.Candidates[k]
+		// Ties keep the first generated: the order is part of the output.
+		if closer(c, now) && (sw.Closest < 0 || closer(c, &sw.Candidates[sw.Closest])) {
+			sw.Closest = k
+		}
+	}
+}
+
+// better ranks candidates that fit: fewer warnings left; today's segment capacity (an
+// engine change moves every table); then the smaller capacity (less refresh memory);
+// then the most partitions kept (the least disruptive change, finer refreshes); then
+// the fewest fixed ms; then the order generated.
+func better(a, b *Candidate, today int64) bool {
+	if len(a.Warnings) != len(b.Warnings) {
+		return len(a.Warnings) < len(b.Warnings)
+	}
+	if (a.SegmentRows == today) != (b.SegmentRows == today) {
+		return a.SegmentRows == today
+	}
+	if a.SegmentRows != b.SegmentRows {
+		return a.SegmentRows < b.SegmentRows
+	}
+	if a.Layout.Partitions != b.Layout.Partitions {
+		return a.Layout.Partitions > b.Layout.Partitions
+	}
+	if a.Layout.FixedMs != b.Layout.FixedMs {
+		return a.Layout.FixedMs < b.Layout.FixedMs
+	}
+	return a.order < b.order
+}
+
+// closer reports whether a misses fewer budgets than b, or as many with fewer fixed ms.
+func closer(a, b *Candidate) bool {
+	if len(a.Misses) != len(b.Misses) {
+		return len(a.Misses) < len(b.Misses)
+	}
+	return a.Layout.FixedMs < b.Layout.FixedMs
+}
+
+// Effect words a candidate's result against today's layout, as the hints do:
+// "730 -> 302 segments, -642 ms per scan".
+func Effect(today, c *Candidate) string {
+	return fmt.Sprintf("%s -> %s segments, %s ms per scan", Num(today.Layout.Segments), Num(c.Layout.Segments), Signed(c.Layout.FixedMs-today.Layout.FixedMs))
+}
+
+// Pick returns the recommendation, or when nothing fits the closest candidate (fits
+// false); ok is false when there is neither.
+func (sw *Sweep) Pick() (c *Candidate, fits, ok bool) {
+	switch {
+	case sw.Recommended >= 0:
+		return &sw.Candidates[sw.Recommended], true, true
+	case sw.Closest >= 0:
+		return &sw.Candidates[sw.Closest], false, true
+	}
+	return nil, false, false
+}
+
+// Grow returns spec with its rows grown by growth_per_year for months months:
+// rows x (1+g)^(months/12), rounded, listed items and measured encoded sizes scaled
+// alike, capped at the format's limits.
+func Grow(spec schema.Table, months int) schema.Table {
+	g := spec.GrowthPerYear
+	if months == 0 || g == 0 || !(g > -1) {
+		return spec
+	}
+	k := math.Pow(1+g, float64(months)/12)
+	scale := func(n int64) int64 {
+		v := math.Round(float64(n) * k)
+		if !(v < float64(schema.MaxCount)) {
+			return schema.MaxCount
+		}
+		return int64(max(v, 0))
+	}
+	out := spec
+	out.Rows = scale(spec.Rows)
+	// A measured encoded size is today's; it grows with the rows. Distinct counts stay:
+	// growth adds rows, not necessarily values.
+	if len(spec.Columns) > 0 {
+		cols := slices.Clone(spec.Columns)
+		for n := range cols {
+			if cols[n].EncodedBytes > 0 {
+				v := math.Round(float64(cols[n].EncodedBytes) * k)
+				cols[n].EncodedBytes = int64(min(max(v, 1), float64(schema.MaxBytes)))
+			}
+		}
+		out.Columns = cols
+	}
+	if len(spec.Partitions.Items) > 0 {
+		items := make([]schema.Item, len(spec.Partitions.Items))
+		var sum int64
+		for n, it := range spec.Partitions.Items {
+			it.Rows = scale(it.Rows)
+			sum = min(sum+it.Rows, schema.MaxCount)
+			items[n] = it
+		}
+		out.Partitions.Items = items
+		if !spec.RowsDeclared {
+			out.Rows = sum
+		}
+	}
+	return out
+}

@@ -1,0 +1,106 @@
+package rules
+
+import (
+	"fmt"
+
+	"github.com/scangate/scangate/rules/advisor"
+)
+
+// BudgetForecast fires when growth takes a table across a budget within the next
+// advisor.ForecastMonths months (a constant for now).
+var BudgetForecast = Rule{
+	ID:      "budget-forecast",
+	Default: Warning,
+	Title:   "Growth crosses a budget within 12 months",
+	Why: "With growth_per_year a table holds more rows every month: more segments, longer " +
+		"scans, a larger refresh. A layout that fits today can break a budget soon after. The " +
+		"forecast grows every table of the model by its own rate, rows x (1+g)^(months/12), " +
+		"re-lays it out month by month from the run's date and reports the first month a " +
+		"budget (scan overhead, scan time, refresh memory, engine memory) is crossed. Budgets " +
+		"already broken today are left to the other rules.",
+	Fix: "Change the layout before that month: the hint names the layout from the sweep that " +
+		"holds every budget through the next 12 months; `scangate plan` shows the month by " +
+		"month forecast and every option. Or raise the budget if the growth is planned for.",
+	Check: checkBudgetForecast,
+	How: "Month t from the run's date (--today) holds rows x (1+g)^(t/12) rows for every table of " +
+		"the model, g its growth_per_year (listed items and measured encoded_bytes alike). Each " +
+		"month is laid out again; the rule reports the first month within 12 where the fixed CPU " +
+		"of a full scan, the scan wall time of the widest column, or the model's refresh peak " +
+		"(2 x encoded size + refresh_parallelism x segment_rows x row width) passes its budget or " +
+		"the engine's memory.",
+	Bad: `engine: {segment_rows: 1000}
+budgets: {scan_overhead_ms: 1500}
+tables:
+  - name: events
+    rows: 700k                 # 700 segments, 1,050 ms today
+    growth_per_year: 0.5       # 1,016 segments, 1,524 ms in month 11
+    partitions: {scheme: none}`,
+	Good: `engine: {segment_rows: 1Mi}  # 1 segment through the next 12 months
+budgets: {scan_overhead_ms: 1500}
+tables:
+  - name: events
+    rows: 700k
+    growth_per_year: 0.5
+    partitions: {scheme: none}`,
+}
+
+func checkBudgetForecast(t *Table) []Finding {
+	if t.advice == nil {
+		return nil
+	}
+	md := t.advice.model
+	// Only growth moves a table's own figures; the model's refresh peak, which every
+	// growing table moves, is reported once, on the first of them.
+	first := -1
+	for i, s := range md.M.Tables {
+		if s.GrowthPerYear != 0 {
+			first = i
+			break
+		}
+	}
+	if t.Spec.GrowthPerYear == 0 && first != t.index {
+		return nil
+	}
+	today := t.Config.today()
+	fc, err := md.Forecast(t.index, t.Spec, t.Engine.SegmentRows, today, advisor.ForecastMonths)
+	if err != nil {
+		return nil
+	}
+	end := advisor.Month(advisor.AddMonths(today, advisor.ForecastMonths))
+	var out []Finding
+	for _, c := range fc.Crossings {
+		if c.Month < 1 || (c.Model && first != t.index) || (!c.Model && t.Spec.GrowthPerYear == 0) {
+			continue
+		}
+		p := fc.Months[c.Month]
+		var msg string
+		switch c.Budget {
+		case "scan_overhead_ms":
+			msg = fmt.Sprintf("growing %s a year, it crosses the %s in %s: %s rows in %s segments pay %s of fixed CPU per scan (today %s)",
+				pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), count(p.Rows), num(p.Layout.Segments), c.Format(c.Value), c.Format(c.Now))
+		case "scan_ms":
+			msg = fmt.Sprintf("growing %s a year, it crosses the %s in %s: a full scan of column %s takes about %s with %s rows (today %s)",
+				pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), p.Widest, c.Format(c.Value), count(p.Rows), c.Format(c.Now))
+		default:
+			msg = fmt.Sprintf("with the model's growth, the refresh peak crosses the %s in %s: %s (today %s)",
+				budgetWords(c), advisor.Month(c.Date), c.Format(c.Value), c.Format(c.Now))
+		}
+		hint := fmt.Sprintf("no layout tried holds every budget through %s; `scangate plan --segment-rows` tries other segment sizes, or raise the budget", end)
+		if h := md.Holds(t.sweep(), advisor.ForecastMonths); h != nil && !h.Today() {
+			hint = fmt.Sprintf("%s holds every budget through %s: %s", h.Change, end, advisor.Effect(&t.sweep().Candidates[t.sweep().Today], h))
+		}
+		out = append(out, t.finding(Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{hint}, map[string]float64{
+			"month":  float64(c.Month),
+			"limit":  c.Limit,
+			"value":  c.Value,
+			"today":  c.Now,
+			"growth": t.Spec.GrowthPerYear,
+		}))
+	}
+	return out
+}
+
+// budgetWords names the crossed limit with its value: "500 ms scan-overhead budget".
+func budgetWords(c advisor.Crossing) string {
+	return c.Format(c.Limit) + " " + c.Name
+}

@@ -1,0 +1,458 @@
+// Package change compares two checked sets of manifests, a base and a head, and says
+// what the change does: each table's partitions, segments, fill and scan cost before and
+// after, the totals per model, and the findings it introduces, resolves and keeps. Gate
+// judges the result against a pull request's limits.
+//
+// It is pure: the caller loads and checks both sides (schema -> layout -> rules) and
+// passes the results in; no git, no files, no clock.
+package change
+
+import (
+	"sort"
+
+	"github.com/scangate/scangate/rules"
+)
+
+// File is one checked manifest on one side of a change.
+type File struct {
+	Name string // as reported: the path, or REV:path for a file read from a revision
+	// Key identifies the file on both sides: its repository path. Findings are
+	// fingerprinted with it, so a file keeps its findings' identity across the change.
+	Key     string
+	Model   string
+	Invalid bool // could not be read or broke the schema; its findings say why
+	Tables  []*rules.Table
+}
+
+// Side is everything checked on one side of the change.
+type Side struct {
+	Label    string // what the side is, for people: a revision, "working tree", a path
+	Files    []File
+	Findings []rules.Finding // of every file, schema findings of invalid files included
+}
+
+// FileStatus says what happened to a file.
+type FileStatus string
+
+// File statuses. A file is renamed when its path exists on one side only and a file
+// with the same model exists at a path found on the other side only (see match).
+const (
+	FileAdded   FileStatus = "added"
+	FileRemoved FileStatus = "removed"
+	FileRenamed FileStatus = "renamed"
+	FileKept    FileStatus = "kept" // the same path on both sides
+)
+
+// FileChange pairs a file of the base with one of the head; Base or Head is nil for an
+// added or removed file.
+type FileChange struct {
+	Status     FileStatus
+	Model      string
+	Base, Head *File
+}
+
+// Status says what happened to a table or a model.
+type Status string
+
+// Table and model statuses.
+const (
+	Added     Status = "added"
+	Removed   Status = "removed"
+	Changed   Status = "changed"
+	Unchanged Status = "unchanged"
+)
+
+// Figures are the numbers of one table on one side.
+type Figures struct {
+	Rows       int64
+	Partitions int
+	Segments   int64
+	Fill       float64  // rows / (segments x segment_rows)
+	FixedMs    float64  // fixed CPU ms of one full scan: segments x segment_overhead_ms
+	ScanWallMs *float64 // wall ms of a full scan of the widest column; nil without column profiles
+}
+
+func figuresOf(t *rules.Table) *Figures {
+	f := &Figures{
+		Rows: t.Layout.Rows, Partitions: t.Layout.Partitions, Segments: t.Layout.Segments,
+		Fill: t.Layout.Fill, FixedMs: t.Layout.FixedMs,
+	}
+	if t.Widest != nil {
+		w := t.Scan.WallMs
+		f.ScanWallMs = &w
+	}
+	return f
+}
+
+func (f *Figures) equal(g *Figures) bool {
+	if f == nil || g == nil {
+		return f == g
+	}
+	same := func(a, b *float64) bool { return (a == nil && b == nil) || (a != nil && b != nil && *a == *b) }
+	return f.Rows == g.Rows && f.Partitions == g.Partitions && f.Segments == g.Segments &&
+		f.Fill == g.Fill && f.FixedMs == g.FixedMs && same(f.ScanWallMs, g.ScanWallMs)
+}
+
+// TableChange is one table before and after; Before is nil for an added table, After
+// for a removed one.
+type TableChange struct {
+	Model, Name        string
+	Status             Status
+	BaseFile, HeadFile string // the files as reported; "" on the side without the table
+	// Moved is set when the table's file has another repository path in the head: the
+	// file was renamed, or the table moved to another file of its model.
+	Moved         bool
+	Before, After *Figures
+}
+
+// AddedMs is the fixed overhead per scan the change adds to the table: an added table
+// adds all of its own, a removed one takes all of its own away.
+func (t TableChange) AddedMs() float64 { return fixedMs(t.After) - fixedMs(t.Before) }
+
+// AddedSegments is the segments the change adds to the table, counted the same way.
+func (t TableChange) AddedSegments() int64 { return segments(t.After) - segments(t.Before) }
+
+func fixedMs(f *Figures) float64 {
+	if f == nil {
+		return 0
+	}
+	return f.FixedMs
+}
+
+func segments(f *Figures) int64 {
+	if f == nil {
+		return 0
+	}
+	return f.Segments
+}
+
+// Totals sum a model's tables on one side.
+type Totals struct {
+	Tables     int
+	Partitions int
+	Segments   int64
+	FixedMs    float64
+}
+
+// ModelChange is one model: its tables, and its totals before and after (nil on the
+// side without the model).
+type ModelChange struct {
+	Name          string
+	Status        Status
+	Tables        []TableChange // head order, then the removed tables in base order
+	Before, After *Totals
+}
+
+// FindingChange is one finding of the change. For an introduced or unchanged finding
+// it is the head's, for a resolved one the base's.
+type FindingChange struct {
+	Finding     rules.Finding
+	Fingerprint string
+	Was         rules.Severity // unchanged findings: the severity on the base side
+}
+
+// Escalated reports whether an unchanged finding got more severe.
+func (f FindingChange) Escalated() bool { return f.Was != 0 && f.Finding.Severity > f.Was }
+
+// Invalid is a file that could not be checked, on either side, with the schema
+// findings that say why.
+type Invalid struct {
+	Side     string // "base" or "head"
+	File     File
+	Findings []rules.Finding
+}
+
+// Diff is what a change does.
+type Diff struct {
+	Base, Head string // the sides' labels
+	Files      []FileChange
+	Models     []ModelChange // sorted by name
+	Introduced []FindingChange
+	Resolved   []FindingChange
+	Unchanged  []FindingChange
+	// Invalid lists the files that broke the schema. When it is not empty nothing was
+	// compared: the numbers of a file that cannot be read are unknown.
+	Invalid []Invalid
+}
+
+// Tables lists every table of every model, in report order.
+func (d *Diff) Tables() []TableChange {
+	var out []TableChange
+	for _, m := range d.Models {
+		out = append(out, m.Tables...)
+	}
+	return out
+}
+
+// Compare works out what changes from base to head. Tables are matched by model and
+// table name (first within the same file, then across files, so a table keeps its
+// identity when its file is renamed or the model is split); findings by fingerprint.
+func Compare(base, head Side) *Diff {
+	d := &Diff{Base: base.Label, Head: head.Label}
+	d.Invalid = append(invalid("base", base), invalid("head", head)...)
+	if len(d.Invalid) > 0 {
+		return d
+	}
+	var rename map[string]string // base key -> head key of renamed files
+	d.Files, rename = matchFiles(base.Files, head.Files)
+	d.Models = matchTables(base.Files, head.Files, rename)
+	d.Introduced, d.Resolved, d.Unchanged = matchFindings(base, head, rename)
+	return d
+}
+
+func invalid(side string, s Side) []Invalid {
+	var out []Invalid
+	for _, f := range s.Files {
+		if !f.Invalid {
+			continue
+		}
+		inv := Invalid{Side: side, File: f}
+		for _, x := range s.Findings {
+			if x.File == f.Name {
+				inv.Findings = append(inv.Findings, x)
+			}
+		}
+		out = append(out, inv)
+	}
+	return out
+}
+
+// matchFiles pairs the files of both sides by key. A base file whose key is gone and a
+// head file whose key is new are a rename when they hold the same model; among several
+// candidates the first by key wins, so the pairing is deterministic.
+func matchFiles(base, head []File) ([]FileChange, map[string]string) {
+	headKeys, baseKeys := map[string]bool{}, map[string]bool{}
+	for _, f := range head {
+		headKeys[f.Key] = true
+	}
+	for _, f := range base {
+		baseKeys[f.Key] = true
+	}
+	var gone, fresh []*File
+	var out []FileChange
+	for i := range base {
+		if !headKeys[base[i].Key] {
+			gone = append(gone, &base[i])
+		}
+	}
+	for i := range head {
+		if !baseKeys[head[i].Key] {
+			fresh = append(fresh, &head[i])
+		}
+	}
+	sort.SliceStable(gone, func(i, j int) bool { return gone[i].Key < gone[j].Key })
+	sort.SliceStable(fresh, func(i, j int) bool { return fresh[i].Key < fresh[j].Key })
+	rename := map[string]string{}
+	paired := map[*File]bool{}
+	for _, b := range gone {
+		for _, h := range fresh {
+			if !paired[h] && h.Model != "" && h.Model == b.Model {
+				paired[h], paired[b] = true, true
+				rename[b.Key] = h.Key
+				out = append(out, FileChange{Status: FileRenamed, Model: h.Model, Base: b, Head: h})
+				break
+			}
+		}
+	}
+	byKey := map[string]*File{}
+	for i := range base {
+		byKey[base[i].Key] = &base[i]
+	}
+	for i := range head {
+		h := &head[i]
+		switch b := byKey[h.Key]; {
+		case b != nil:
+			out = append(out, FileChange{Status: FileKept, Model: h.Model, Base: b, Head: h})
+		case !paired[h]:
+			out = append(out, FileChange{Status: FileAdded, Model: h.Model, Head: h})
+		}
+	}
+	for _, b := range gone {
+		if !paired[b] {
+			out = append(out, FileChange{Status: FileRemoved, Model: b.Model, Base: b})
+		}
+	}
+	sort.SliceStable(out, func(i, j int) bool { return fileKey(out[i]) < fileKey(out[j]) })
+	return out, rename
+}
+
+// fileKey orders file changes by the path they have in the head, else in the base.
+func fileKey(c FileChange) string {
+	if c.Head != nil {
+		return c.Head.Key
+	}
+	return c.Base.Key
+}
+
+type placed struct {
+	file  *File
+	key   string // the file's key, a base key translated through renames
+	table *rules.Table
+}
+
+// matchTables pairs tables by (file, model, table) first, then by (model, table) among
+// those left, and groups them by model.
+func matchTables(base, head []File, rename map[string]string) []ModelChange {
+	list := func(files []File, rename map[string]string) []placed {
+		var out []placed
+		for i := range files {
+			key := files[i].Key
+			if k, ok := rename[key]; ok {
+				key = k
+			}
+			for _, t := range files[i].Tables {
+				out = append(out, placed{&files[i], key, t})
+			}
+		}
+		return out
+	}
+	bs, hs := list(base, rename), list(head, nil)
+	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
+	used := make([]bool, len(bs))
+	for pass := 0; pass < 2; pass++ {
+		for i, h := range hs {
+			if pair[i] != 0 {
+				continue
+			}
+			for j, b := range bs {
+				if used[j] || b.file.Model != h.file.Model || b.table.Spec.Name != h.table.Spec.Name {
+					continue
+				}
+				if pass == 0 && b.key != h.key {
+					continue
+				}
+				used[j], pair[i] = true, j+1
+				break
+			}
+		}
+	}
+	models := map[string]*ModelChange{}
+	model := func(name string) *ModelChange {
+		if m, ok := models[name]; ok {
+			return m
+		}
+		m := &ModelChange{Name: name}
+		models[name] = m
+		return m
+	}
+	for i, h := range hs {
+		tc := TableChange{Model: h.file.Model, Name: h.table.Spec.Name, HeadFile: h.file.Name, After: figuresOf(h.table), Status: Added}
+		if pair[i] != 0 {
+			b := bs[pair[i]-1]
+			tc.BaseFile, tc.Before, tc.Moved = b.file.Name, figuresOf(b.table), b.file.Key != h.file.Key
+			tc.Status = Changed
+			if tc.Before.equal(tc.After) {
+				tc.Status = Unchanged
+			}
+		}
+		m := model(tc.Model)
+		m.Tables = append(m.Tables, tc)
+	}
+	for j, b := range bs {
+		if used[j] {
+			continue
+		}
+		m := model(b.file.Model)
+		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Spec.Name, BaseFile: b.file.Name, Before: figuresOf(b.table), Status: Removed})
+	}
+	// Models without tables still count: a model whose file lists no tables is rare, but
+	// a file's presence on a side is what makes the model exist there.
+	present := func(files []File) map[string]bool {
+		p := map[string]bool{}
+		for _, f := range files {
+			p[f.Model] = true
+			model(f.Model)
+		}
+		return p
+	}
+	inBase, inHead := present(base), present(head)
+	out := make([]ModelChange, 0, len(models))
+	for _, name := range sortedNames(models) {
+		m := models[name]
+		if inBase[name] {
+			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
+		}
+		if inHead[name] {
+			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
+		}
+		switch {
+		case m.Before == nil:
+			m.Status = Added
+		case m.After == nil:
+			m.Status = Removed
+		default:
+			m.Status = Unchanged
+			for _, t := range m.Tables {
+				if t.Status != Unchanged {
+					m.Status = Changed
+				}
+			}
+		}
+		out = append(out, *m)
+	}
+	return out
+}
+
+func totals(tables []TableChange, side func(TableChange) *Figures) *Totals {
+	t := &Totals{}
+	for _, tc := range tables {
+		if f := side(tc); f != nil {
+			t.Tables++
+			t.Partitions += f.Partitions
+			t.Segments += f.Segments
+			t.FixedMs += f.FixedMs
+		}
+	}
+	return t
+}
+
+func sortedNames[V any](m map[string]V) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}
+
+// matchFindings sorts the findings into introduced, resolved and unchanged by their
+// fingerprint (rule, repository path, table, subject; never the line). A base finding
+// of a renamed file is fingerprinted with the file's new path, so a rename alone
+// introduces and resolves nothing. Equal fingerprints pair up in order.
+func matchFindings(base, head Side, rename map[string]string) (introduced, resolved, unchanged []FindingChange) {
+	keyOf := func(files []File) map[string]string {
+		m := map[string]string{}
+		for _, f := range files {
+			m[f.Name] = f.Key
+		}
+		return m
+	}
+	baseKeys, headKeys := keyOf(base.Files), keyOf(head.Files)
+	pending := map[string][]int{}
+	baseFP := make([]string, len(base.Findings))
+	for i, f := range base.Findings {
+		key := baseKeys[f.File]
+		if k, ok := rename[key]; ok {
+			key = k
+		}
+		baseFP[i] = rules.Fingerprint(f, key)
+		pending[baseFP[i]] = append(pending[baseFP[i]], i)
+	}
+	matched := make([]bool, len(base.Findings))
+	for _, f := range head.Findings {
+		fp := rules.Fingerprint(f, headKeys[f.File])
+		if q := pending[fp]; len(q) > 0 {
+			pending[fp] = q[1:]
+			matched[q[0]] = true
+			unchanged = append(unchanged, FindingChange{Finding: f, Fingerprint: fp, Was: base.Findings[q[0]].Severity})
+			continue
+		}
+		introduced = append(introduced, FindingChange{Finding: f, Fingerprint: fp})
+	}
+	for i, f := range base.Findings {
+		if !matched[i] {
+			resolved = append(resolved, FindingChange{Finding: f, Fingerprint: baseFP[i]})
+		}
+	}
+	return introduced, resolved, unchanged
+}

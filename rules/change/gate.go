@@ -1,0 +1,239 @@
+package change
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/scangate/scangate/rules"
+)
+
+// Gate holds the limits a change must respect; a nil limit or a zero FailOnNew is off.
+type Gate struct {
+	MaxAddedMs       *float64 // fixed ms per scan a change may add to any one table
+	MaxAddedSegments *int64   // segments a change may add to any one table
+	// FailOnNew is the lowest severity of a new finding that fails the change. A finding
+	// that was already there but rose to this level (a warning become an error) counts
+	// as new: the change made it so.
+	FailOnNew rules.Severity
+}
+
+// Breach is one limit a change crosses.
+type Breach struct {
+	Kind    string // "added-ms", "added-segments" or "new-finding"
+	Model   string
+	Table   string
+	Value   float64 // what the change adds (ms or segments); 0 for a finding
+	Limit   float64
+	Message string // one line for people
+	Finding *FindingChange
+}
+
+// Check lists every breach, tables in report order then findings in report order.
+// Added milliseconds are compared after rounding to 6 decimals, the precision reports
+// print, so a change that adds exactly the limit passes on every machine.
+func (g Gate) Check(d *Diff) []Breach {
+	var out []Breach
+	labels := d.labels()
+	for _, t := range d.Tables() {
+		name := labels[[2]string{t.Model, t.Name}]
+		if g.MaxAddedMs != nil {
+			if added := Round(t.AddedMs()); added > *g.MaxAddedMs {
+				out = append(out, Breach{
+					Kind: "added-ms", Model: t.Model, Table: t.Name, Value: added, Limit: *g.MaxAddedMs,
+					Message: fmt.Sprintf("%s adds %s ms per scan, more than the %s ms allowed (--max-added-ms)", name, rules.Millis(added), Limit(*g.MaxAddedMs)),
+				})
+			}
+		}
+		if g.MaxAddedSegments != nil {
+			if added := t.AddedSegments(); added > *g.MaxAddedSegments {
+				out = append(out, Breach{
+					Kind: "added-segments", Model: t.Model, Table: t.Name, Value: float64(added), Limit: float64(*g.MaxAddedSegments),
+					Message: fmt.Sprintf("%s adds %s segments, more than the %s allowed (--max-added-segments)", name, rules.Thousands(added), rules.Thousands(*g.MaxAddedSegments)),
+				})
+			}
+		}
+	}
+	if g.FailOnNew == 0 {
+		return out
+	}
+	flag := fmt.Sprintf("(--fail-on-new %s)", g.FailOnNew)
+	for i := range d.Introduced {
+		f := &d.Introduced[i]
+		if f.Finding.Severity >= g.FailOnNew {
+			out = append(out, Breach{
+				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
+				Message: fmt.Sprintf("new %s [%s] at %s %s", f.Finding.Severity, f.Finding.Rule, Location(f.Finding), flag),
+			})
+		}
+	}
+	for i := range d.Unchanged {
+		f := &d.Unchanged[i]
+		if f.Escalated() && f.Was < g.FailOnNew && f.Finding.Severity >= g.FailOnNew {
+			out = append(out, Breach{
+				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
+				Message: fmt.Sprintf("[%s] at %s rose from %s to %s %s", f.Finding.Rule, Location(f.Finding), f.Was, f.Finding.Severity, flag),
+			})
+		}
+	}
+	return out
+}
+
+// modelOf is the model of the table a head finding is about.
+func modelOf(d *Diff, f rules.Finding) string {
+	for _, t := range d.Tables() {
+		if t.HeadFile == f.File && t.Name == f.Table {
+			return t.Model
+		}
+	}
+	return ""
+}
+
+// Location is file:line:col of a finding, or the file alone for one about the whole file.
+func Location(f rules.Finding) string {
+	if f.Pos.Line > 0 {
+		return fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+	}
+	return f.File
+}
+
+// Round keeps 6 decimals, as the reports do.
+func Round(x float64) float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0
+	}
+	if math.Abs(x) >= 1e15 {
+		return math.Round(x)
+	}
+	return math.Round(x*1e6) / 1e6
+}
+
+// Limit writes a limit as the user gave it: 500, 12.5.
+func Limit(x float64) string {
+	if x == math.Trunc(x) && math.Abs(x) < 1e15 {
+		return rules.Thousands(int64(x))
+	}
+	return fmt.Sprint(x)
+}
+
+// labels names each table for people: its name, or "name (model)" when two models of
+// the change hold a table of that name.
+func (d *Diff) labels() map[[2]string]string {
+	models := map[string]map[string]bool{}
+	for _, t := range d.Tables() {
+		if models[t.Name] == nil {
+			models[t.Name] = map[string]bool{}
+		}
+		models[t.Name][t.Model] = true
+	}
+	out := map[[2]string]string{}
+	for _, t := range d.Tables() {
+		label := t.Name
+		if len(models[t.Name]) > 1 {
+			label = fmt.Sprintf("%s (%s)", t.Name, t.Model)
+		}
+		out[[2]string{t.Model, t.Name}] = label
+	}
+	return out
+}
+
+// Label names a table for people, as Verdict and the breaches do.
+func (d *Diff) Label(t TableChange) string { return d.labels()[[2]string{t.Model, t.Name}] }
+
+// Verdict is one line saying what the change does to ms per scan: "adds 1,240 ms per
+// scan to meter_reads", "saves 180 ms per scan on pipes", both joined by "; ", or "no
+// change in segments or ms per scan". Tables are named largest change first, three at
+// most. A table whose segments change at no ms cost is named by its segments.
+func (d *Diff) Verdict() string {
+	if len(d.Invalid) > 0 {
+		n := len(d.Invalid)
+		return fmt.Sprintf("cannot compare: %d %s the schema or cannot be read", n, pick(n, "file breaks", "files break"))
+	}
+	var up, down []TableChange
+	for _, t := range d.Tables() {
+		ms, segs := Round(t.AddedMs()), t.AddedSegments()
+		switch {
+		case ms > 0 || (ms == 0 && segs > 0):
+			up = append(up, t)
+		case ms < 0 || (ms == 0 && segs < 0):
+			down = append(down, t)
+		}
+	}
+	if len(up) == 0 && len(down) == 0 {
+		return "no change in segments or ms per scan"
+	}
+	byMagnitude := func(ts []TableChange) {
+		sort.SliceStable(ts, func(i, j int) bool {
+			a, b := math.Abs(Round(ts[i].AddedMs())), math.Abs(Round(ts[j].AddedMs()))
+			if a != b {
+				return a > b
+			}
+			return abs(ts[i].AddedSegments()) > abs(ts[j].AddedSegments())
+		})
+	}
+	byMagnitude(up)
+	byMagnitude(down)
+	var parts []string
+	if len(up) > 0 {
+		parts = append(parts, d.clause("adds", "to", up))
+	}
+	if len(down) > 0 {
+		parts = append(parts, d.clause("saves", "on", down))
+	}
+	return strings.Join(parts, "; ")
+}
+
+// clause words one direction: "adds 1,240 ms per scan to a, 30.0 ms to b and 3 more tables".
+func (d *Diff) clause(verb, prep string, ts []TableChange) string {
+	var items []string
+	for i, t := range ts {
+		if i == 3 {
+			n := len(ts) - 3
+			items = append(items, fmt.Sprintf("%d more %s", n, pick(n, "table", "tables")))
+			break
+		}
+		unit := "ms"
+		amount := rules.Millis(math.Abs(Round(t.AddedMs())))
+		if Round(t.AddedMs()) == 0 {
+			n := abs(t.AddedSegments())
+			amount, unit = rules.Thousands(n), pick64(n, "segment", "segments")
+		} else if i == 0 {
+			unit = "ms per scan"
+		}
+		items = append(items, fmt.Sprintf("%s %s %s %s", amount, unit, prep, d.Label(t)))
+	}
+	s := verb + " "
+	for i, it := range items {
+		switch {
+		case i == 0:
+		case i == len(items)-1:
+			s += " and "
+		default:
+			s += ", "
+		}
+		s += it
+	}
+	return s
+}
+
+func abs(n int64) int64 {
+	if n < 0 {
+		return -n
+	}
+	return n
+}
+
+func pick(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+func pick64(n int64, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}

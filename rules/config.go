@@ -1,0 +1,106 @@
+package rules
+
+import (
+	"fmt"
+	"time"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// Config is what a run knows beyond the manifest: the date waivers and forecasts are
+// judged on and the rule settings of the project. The zero value is the documented
+// default.
+type Config struct {
+	Today time.Time // zero means the current date (UTC)
+	Rules map[string]RuleConfig
+}
+
+// RuleConfig is a project's setting for one rule.
+type RuleConfig struct {
+	Off      bool
+	Severity Severity // 0 keeps the rule's own grading
+	Params   map[string]float64
+}
+
+func (c Config) off(id string) bool { return c.Rules[id].Off }
+
+// severity applies a project's override to a finding's own severity.
+func (c Config) severity(id string, own Severity) Severity {
+	if s := c.Rules[id].Severity; s != 0 {
+		return s
+	}
+	return own
+}
+
+// Value is a rule's threshold: the project's setting or the parameter's default.
+func (c Config) Value(ruleID string, p Param) float64 {
+	if v, ok := c.Rules[ruleID].Params[p.Name]; ok {
+		return v
+	}
+	return p.Default
+}
+
+// today is the date waivers are judged on.
+func (c Config) today() time.Time {
+	if c.Today.IsZero() {
+		return time.Now().UTC().Truncate(24 * time.Hour)
+	}
+	return c.Today
+}
+
+// ConfigFrom turns a project config's rules section into the rules' Config, refusing
+// unknown rules, parameters and severities with the position they were written at.
+func ConfigFrom(p *schema.ProjectConfig, today time.Time) (Config, error) {
+	cfg := Config{Today: today, Rules: map[string]RuleConfig{}}
+	if p == nil {
+		return cfg, nil
+	}
+	var problems []schema.Problem
+	for _, id := range p.RuleIDs() {
+		set := p.Rules[id]
+		r, ok := Lookup(id)
+		if !ok || r.ID == Schema.ID {
+			problems = append(problems, schema.Problem{Pos: set.Pos, Path: "/rules/" + id, Message: fmt.Sprintf("unknown rule %q; `scangate rules` lists them", id)})
+			continue
+		}
+		rc := RuleConfig{Params: map[string]float64{}}
+		switch set.Severity {
+		case "":
+		case "off":
+			rc.Off = true
+		default:
+			sev, err := ParseSeverity(set.Severity)
+			if err != nil {
+				problems = append(problems, schema.Problem{Pos: set.Pos, Path: "/rules/" + id + "/severity", Message: err.Error() + " or off"})
+			}
+			rc.Severity = sev
+		}
+		for _, name := range set.ParamNames() {
+			known := false
+			for _, prm := range r.Params {
+				known = known || prm.Name == name
+			}
+			if !known {
+				problems = append(problems, schema.Problem{Pos: set.ParamPos[name], Path: "/rules/" + id + "/" + name, Message: fmt.Sprintf("rule %s has no setting %q; it has: %s", id, name, paramNames(r))})
+				continue
+			}
+			rc.Params[name] = set.Params[name]
+		}
+		cfg.Rules[id] = rc
+	}
+	if len(problems) > 0 {
+		return cfg, &schema.Error{File: p.File, Problems: problems}
+	}
+	return cfg, nil
+}
+
+func paramNames(r Rule) string {
+	if len(r.Params) == 0 {
+		return "severity only"
+	}
+	s := "severity"
+	for _, p := range r.Params {
+		s += ", " + p.Name
+	}
+	return s
+}

@@ -1,0 +1,48 @@
+package layout
+
+import (
+	"math"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// RowBytes is the uncompressed width of one row of the profiled columns: the sum of
+// their value widths (ValueBytes). 0 without column profiles.
+func RowBytes(cols []schema.Column) float64 {
+	var w float64
+	for _, c := range cols {
+		w += ValueBytes(c)
+	}
+	return w
+}
+
+// TableBytes is the encoded size of a table's profiled columns laid out in parts with
+// segments of segmentRows rows: the sum of their ColumnBytes. 0 without profiles.
+func TableBytes(cols []schema.Column, parts []Partition, segmentRows int64) float64 {
+	var b float64
+	for _, c := range cols {
+		b += ColumnBytes(c, parts, segmentRows)
+	}
+	return b
+}
+
+// RefreshPeak is the memory a full refresh of a model needs at its peak, the one place
+// this formula lives: the old copy of the model stays online while the new copy is
+// built (2 x its encoded size, modelBytes), and each of the parallelism partitions
+// processed at once holds one segment of uncompressed rows, segmentRows x rowBytes
+// (rowBytes: the widest row of the model, since any table may be the one in flight):
+//
+//	peak = 2 x modelBytes + parallelism x segmentRows x rowBytes
+//
+// Parallelism below 1 counts as 1; negative or non-finite inputs count as 0, so the
+// result is finite.
+func RefreshPeak(modelBytes float64, parallelism int, segmentRows int64, rowBytes float64) float64 {
+	if !(modelBytes > 0) || math.IsInf(modelBytes, 0) {
+		modelBytes = 0
+	}
+	if !(rowBytes > 0) || math.IsInf(rowBytes, 0) {
+		rowBytes = 0
+	}
+	inFlight := float64(float64(max(parallelism, 1)) * float64(max(segmentRows, 0)))
+	return float64(2*modelBytes) + float64(inFlight*rowBytes)
+}

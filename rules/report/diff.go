@@ -1,0 +1,99 @@
+package report
+
+import (
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/rules/change"
+)
+
+// DiffResult is everything one run of scangate diff produced. Every diff writer renders
+// the same DiffResult, so the formats never disagree.
+type DiffResult struct {
+	Version  string // scangate's version
+	Diff     *change.Diff
+	Gate     change.Gate
+	Breaches []change.Breach // Gate.Check(Diff)
+}
+
+// NewDiffResult judges d against g.
+func NewDiffResult(version string, d *change.Diff, g change.Gate) *DiffResult {
+	return &DiffResult{Version: version, Diff: d, Gate: g, Breaches: g.Check(d)}
+}
+
+// Failed reports whether the change fails the gate or could not be compared.
+func (r *DiffResult) Failed() bool { return len(r.Diff.Invalid) > 0 || len(r.Breaches) > 0 }
+
+// breaks reports whether f (an element of the Diff's finding lists) fails the gate.
+func (r *DiffResult) breaks(f *change.FindingChange) bool {
+	for _, b := range r.Breaches {
+		if b.Finding == f {
+			return true
+		}
+	}
+	return false
+}
+
+// changedTables are the tables whose figures differ, with added and removed ones.
+func (r *DiffResult) changedTables() []change.TableChange {
+	var out []change.TableChange
+	for _, t := range r.Diff.Tables() {
+		if t.Status != change.Unchanged {
+			out = append(out, t)
+		}
+	}
+	return out
+}
+
+// counts tallies the tables of the change by status.
+func (r *DiffResult) counts() (tables, changed int) {
+	for _, t := range r.Diff.Tables() {
+		tables++
+		if t.Status != change.Unchanged {
+			changed++
+		}
+	}
+	return tables, changed
+}
+
+// diffSummary is one line: what was compared and what changed.
+func (r *DiffResult) diffSummary() string {
+	d := r.Diff
+	if len(d.Invalid) > 0 {
+		return d.Verdict()
+	}
+	tables, changed := r.counts()
+	models := 0
+	for _, m := range d.Models {
+		if m.Status != change.Unchanged {
+			models++
+		}
+	}
+	return plural(len(d.Models), "model") + ", " + plural(tables, "table") + ": " +
+		itoa(changed) + " changed; findings: " + itoa(len(d.Introduced)) + " new, " +
+		itoa(len(d.Resolved)) + " resolved, " + itoa(len(d.Unchanged)) + " unchanged"
+}
+
+func itoa(n int) string { return rules.Thousands(int64(n)) }
+
+// gateWords says what the gate checks, for the reports: "--max-added-ms 500,
+// --fail-on-new error", or "no limits set".
+func (r *DiffResult) gateWords() string {
+	g := r.Gate
+	var parts []string
+	if g.MaxAddedMs != nil {
+		parts = append(parts, "--max-added-ms "+change.Limit(*g.MaxAddedMs))
+	}
+	if g.MaxAddedSegments != nil {
+		parts = append(parts, "--max-added-segments "+rules.Thousands(*g.MaxAddedSegments))
+	}
+	if g.FailOnNew != 0 {
+		parts = append(parts, "--fail-on-new "+g.FailOnNew.String())
+	}
+	if len(parts) == 0 {
+		return "no limits set"
+	}
+	s := parts[0]
+	for _, p := range parts[1:] {
+		s += ", " + p
+	}
+	return s
+}

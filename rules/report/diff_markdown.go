@@ -1,0 +1,110 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/scangate/scangate/rules/change"
+)
+
+// DiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,
+// a table of the changed tables and model totals (before → after, delta), the new
+// findings with their hints, findings that got more severe, and the resolved ones.
+func DiffMarkdown(w io.Writer, r *DiffResult) error {
+	d := r.Diff
+	var b strings.Builder
+	status := "passed"
+	if r.Failed() {
+		status = "failed"
+	}
+	fmt.Fprintf(&b, "### scangate diff %s\n\n", status)
+	fmt.Fprintf(&b, "**%s**\n\n", mdEscape(upperFirst(d.Verdict())))
+	fmt.Fprintf(&b, "Base %s, head %s: %s.\n\n", code(d.Base), code(d.Head), mdEscape(r.diffSummary()))
+	if len(d.Invalid) > 0 {
+		fmt.Fprintf(&b, "%s.\n\n", mdEscape(upperFirst(invalidWords(d))))
+		for _, inv := range d.Invalid {
+			for _, f := range inv.Findings {
+				fmt.Fprintf(&b, "- %s **%s**: %s\n", code(change.Location(f)), f.Rule, mdEscape(f.Message))
+			}
+		}
+		b.WriteString("\n")
+		_, err := io.WriteString(w, b.String())
+		return err
+	}
+	if len(r.Breaches) > 0 {
+		fmt.Fprintf(&b, "The gate failed (%s):\n\n", mdEscape(r.gateWords()))
+		for _, br := range r.Breaches {
+			fmt.Fprintf(&b, "- %s\n", mdEscape(br.Message))
+		}
+		b.WriteString("\n")
+	} else {
+		fmt.Fprintf(&b, "The gate passed (%s).\n\n", mdEscape(r.gateWords()))
+	}
+	if len(r.changedTables()) > 0 {
+		b.WriteString("| model | table | change | partitions | segments | fill | fixed ms per scan | scan wall ms |\n")
+		b.WriteString("|---|---|---|--:|--:|--:|--:|--:|\n")
+		for _, m := range d.Models {
+			if m.Status == change.Unchanged {
+				continue
+			}
+			for _, t := range m.Tables {
+				if t.Status == change.Unchanged {
+					continue
+				}
+				fmt.Fprintf(&b, "| %s | %s | %s |", code(m.Name), code(t.Name), t.Status)
+				for _, x := range tableMetrics(t) {
+					fmt.Fprintf(&b, " %s |", cell(x))
+				}
+				b.WriteString("\n")
+			}
+			tm := totalMetrics(m)
+			fmt.Fprintf(&b, "| %s | **total** | %s | %s | %s | %s | %s | %s |\n",
+				code(m.Name), m.Status, cell(tm[1]), cell(tm[2]), none, cell(tm[3]), none)
+		}
+		b.WriteString("\n")
+	}
+	section := func(title string, fs []change.FindingChange, hints bool, suffix func(change.FindingChange) string) {
+		if len(fs) == 0 {
+			return
+		}
+		fmt.Fprintf(&b, "#### %s (%d)\n\n", title, len(fs))
+		for _, fc := range fs {
+			f := fc.Finding
+			fmt.Fprintf(&b, "- %s **%s** (%s%s): %s\n", code(change.Location(f)), f.Rule, f.Severity, suffix(fc), mdEscape(f.Message))
+			if hints {
+				for _, h := range f.Hints {
+					fmt.Fprintf(&b, "  - hint: %s\n", mdEscape(h))
+				}
+			}
+		}
+		b.WriteString("\n")
+	}
+	nothing := func(change.FindingChange) string { return "" }
+	section("New findings", d.Introduced, true, nothing)
+	section("Findings that got more severe", worsened(d), true, func(f change.FindingChange) string { return ", was " + f.Was.String() })
+	section("Resolved findings", d.Resolved, false, nothing)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// cell writes a figure as "before → after (delta)", the value alone when it did not
+// change, and "– → after" or "before → –" for an added or removed table.
+func cell(x metric) string {
+	if x.before == x.after && (x.delta == "0" || x.delta == "0 pp" || x.delta == none) {
+		return x.before
+	}
+	s := x.before + " → " + x.after
+	if x.delta != none {
+		s += " (" + x.delta + ")"
+	}
+	return s
+}
+
+// upperFirst capitalises the first letter of a sentence.
+func upperFirst(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}

@@ -1,0 +1,300 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/fatih/color"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/rules/change"
+)
+
+// metric is one line of a table's before/after: the figure's name, both sides and the
+// delta as printed, and whether the change makes it worse (+1), better (-1) or neither.
+type metric struct {
+	name, before, after, delta string
+	worse                      int
+}
+
+const none = "–" // a side without the figure
+
+// tableMetrics are the figures a table change shows, in order.
+func tableMetrics(t change.TableChange) []metric {
+	var b, a change.Figures
+	if t.Before != nil {
+		b = *t.Before
+	}
+	if t.After != nil {
+		a = *t.After
+	}
+	side := func(f *change.Figures, s string) string {
+		if f == nil {
+			return none
+		}
+		return s
+	}
+	out := []metric{
+		{"partitions", side(t.Before, count(int64(b.Partitions))), side(t.After, count(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
+		{"segments", side(t.Before, count(b.Segments)), side(t.After, count(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
+		{"fill", side(t.Before, rules.Percent(b.Fill)), side(t.After, rules.Percent(a.Fill)), points(t), 0},
+		{"fixed ms per scan", side(t.Before, rules.Millis(b.FixedMs)), side(t.After, rules.Millis(a.FixedMs)), signedMs(t.AddedMs()), sign(change.Round(t.AddedMs()))},
+	}
+	if t.Before != nil && t.After != nil && t.Before.Fill > 0 && t.After.Fill > 0 {
+		out[2].worse = -sign(change.Round(a.Fill - b.Fill)) // fuller segments are better
+	}
+	wall := metric{name: "scan wall ms", before: none, after: none, delta: none}
+	if t.Before != nil && t.Before.ScanWallMs != nil {
+		wall.before = rules.Millis(*t.Before.ScanWallMs)
+	}
+	if t.After != nil && t.After.ScanWallMs != nil {
+		wall.after = rules.Millis(*t.After.ScanWallMs)
+	}
+	// A delta needs the scan on every side that has the table.
+	if wb, wa, ok := wallPair(t); ok && (wall.before != none || wall.after != none) {
+		wall.delta, wall.worse = signedMs(wa-wb), sign(change.Round(wa-wb))
+	}
+	return append(out, wall)
+}
+
+// totalMetrics are a model's totals before and after.
+func totalMetrics(m change.ModelChange) []metric {
+	b, a := zeroTotals(m.Before), zeroTotals(m.After)
+	side := func(t *change.Totals, s string) string {
+		if t == nil {
+			return none
+		}
+		return s
+	}
+	return []metric{
+		{"tables", side(m.Before, count(int64(b.Tables))), side(m.After, count(int64(a.Tables))), signedCount(int64(a.Tables - b.Tables)), 0},
+		{"partitions", side(m.Before, count(int64(b.Partitions))), side(m.After, count(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
+		{"segments", side(m.Before, count(b.Segments)), side(m.After, count(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
+		{"fixed ms per scan", side(m.Before, rules.Millis(b.FixedMs)), side(m.After, rules.Millis(a.FixedMs)), signedMs(a.FixedMs - b.FixedMs), sign(change.Round(a.FixedMs - b.FixedMs))},
+	}
+}
+
+func count(n int64) string { return rules.Thousands(n) }
+
+func sign(x float64) int {
+	switch {
+	case x > 0:
+		return 1
+	case x < 0:
+		return -1
+	}
+	return 0
+}
+
+// signedCount writes a count delta with its sign: +730, -12, 0.
+func signedCount(n int64) string {
+	if n > 0 {
+		return "+" + rules.Thousands(n)
+	}
+	return rules.Thousands(n)
+}
+
+// signedMs writes a millisecond delta with its sign, rounded as reports round: +1,095,
+// -1.5, 0.
+func signedMs(x float64) string {
+	x = change.Round(x)
+	switch {
+	case x > 0:
+		return "+" + rules.Millis(x)
+	case x < 0:
+		return rules.Millis(x)
+	}
+	return "0"
+}
+
+// points writes the change of fill in percentage points: +4.5 pp, -39 pp, 0 pp; none
+// when a side lacks the table.
+func points(t change.TableChange) string {
+	if t.Before == nil || t.After == nil {
+		return none
+	}
+	p := change.Round(t.After.Fill-t.Before.Fill) * 100
+	prec := 0
+	if math.Abs(p) < 10 {
+		prec = 1
+	}
+	s := strconv.FormatFloat(p, 'f', prec, 64)
+	if s == "0.0" || s == "-0.0" || s == "-0" {
+		return "0 pp"
+	}
+	if p > 0 {
+		s = "+" + s
+	}
+	return s + " pp"
+}
+
+// DiffText writes the change for a terminal: one block per changed table with its
+// figures before, after and the delta in aligned columns, the model totals, the new,
+// worsened and resolved findings in the GNU style, the gate, the verdict and one
+// summary line.
+func DiffText(w io.Writer, r *DiffResult, useColor bool) error {
+	paint := func(c *color.Color) func(a ...any) string {
+		if useColor {
+			c.EnableColor()
+		} else {
+			c.DisableColor()
+		}
+		return c.SprintFunc()
+	}
+	bold := paint(color.New(color.Bold))
+	faint := paint(color.New(color.Faint))
+	red := paint(color.New(color.FgRed, color.Bold))
+	green := paint(color.New(color.FgGreen))
+	sev := map[rules.Severity]func(a ...any) string{
+		rules.Error:   red,
+		rules.Warning: paint(color.New(color.FgYellow, color.Bold)),
+		rules.Note:    paint(color.New(color.FgCyan)),
+	}
+	d := r.Diff
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s %s -> %s\n", bold("scangate diff:"), d.Base, d.Head)
+	finding := func(f rules.Finding, suffix string) {
+		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(change.Location(f)), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"), suffix)
+		for _, h := range f.Hints {
+			fmt.Fprintf(&b, "    hint: %s\n", h)
+		}
+	}
+	if len(d.Invalid) > 0 {
+		b.WriteByte('\n')
+		for _, inv := range d.Invalid {
+			for _, f := range inv.Findings {
+				finding(f, "")
+			}
+		}
+		fmt.Fprintf(&b, "\n%s %s\n", red("cannot compare:"), invalidWords(d))
+		_, err := io.WriteString(w, b.String())
+		return err
+	}
+
+	// Every block shares one set of column widths, so the figures line up down the page.
+	type block struct {
+		title   string
+		metrics []metric
+	}
+	var blocks []block
+	for _, m := range d.Models {
+		if m.Status == change.Unchanged {
+			continue
+		}
+		for _, t := range m.Tables {
+			if t.Status == change.Unchanged {
+				continue
+			}
+			blocks = append(blocks, block{fmt.Sprintf("%s: %s (%s%s)", m.Name, t.Name, t.Status, filesWords(t)), tableMetrics(t)})
+		}
+		blocks = append(blocks, block{fmt.Sprintf("%s: model total (%s)", m.Name, m.Status), totalMetrics(m)})
+	}
+	widths := [4]int{0, len("before"), len("after"), len("delta")}
+	for _, bl := range blocks {
+		for _, x := range bl.metrics {
+			for i, s := range []string{x.name, x.before, x.after, x.delta} {
+				widths[i] = max(widths[i], utf8.RuneCountInString(s))
+			}
+		}
+	}
+	pad := func(s string, w int) string { return strings.Repeat(" ", max(0, w-utf8.RuneCountInString(s))) + s }
+	for _, bl := range blocks {
+		fmt.Fprintf(&b, "\n%s\n", bold(bl.title))
+		fmt.Fprintf(&b, "  %s  %s  %s  %s\n", strings.Repeat(" ", widths[0]), faint(pad("before", widths[1])), faint(pad("after", widths[2])), faint(pad("delta", widths[3])))
+		for _, x := range bl.metrics {
+			delta := pad(x.delta, widths[3])
+			switch x.worse {
+			case 1:
+				delta = red(delta)
+			case -1:
+				delta = green(delta)
+			}
+			fmt.Fprintf(&b, "  %s%s  %s  %s  %s\n", x.name, strings.Repeat(" ", widths[0]-len(x.name)), pad(x.before, widths[1]), pad(x.after, widths[2]), delta)
+		}
+	}
+
+	worse := worsened(d)
+	if len(d.Introduced) > 0 {
+		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("new findings (%d):", len(d.Introduced))))
+		for _, f := range d.Introduced {
+			finding(f.Finding, "")
+		}
+	}
+	if len(worse) > 0 {
+		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("findings that got more severe (%d):", len(worse))))
+		for _, f := range worse {
+			finding(f.Finding, faint(" (was "+f.Was.String()+")"))
+		}
+	}
+	if len(d.Resolved) > 0 {
+		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("resolved findings (%d):", len(d.Resolved))))
+		for _, f := range d.Resolved {
+			fmt.Fprintf(&b, "%s: %s %s: %s %s\n", bold(change.Location(f.Finding)), green("resolved"), f.Finding.Severity, f.Finding.Message, faint("["+f.Finding.Rule+"]"))
+		}
+	}
+
+	b.WriteByte('\n')
+	if r.Failed() {
+		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), r.gateWords())
+		for _, br := range r.Breaches {
+			fmt.Fprintf(&b, "  %s\n", br.Message)
+		}
+	} else {
+		fmt.Fprintf(&b, "%s %s\n", green("gate passed:"), r.gateWords())
+	}
+	fmt.Fprintf(&b, "%s\n%s\n", bold(d.Verdict()), r.diffSummary())
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// filesWords names where a table is: ", in b.yaml", or ", a.yaml -> b.yaml" when its
+// file was renamed or it moved to another file.
+func filesWords(t change.TableChange) string {
+	switch {
+	case t.BaseFile == "":
+		return ", in " + t.HeadFile
+	case t.HeadFile == "":
+		return ", was in " + t.BaseFile
+	case t.Moved:
+		return ", " + t.BaseFile + " -> " + t.HeadFile
+	}
+	return ", in " + t.HeadFile
+}
+
+// worsened are the unchanged findings whose severity rose.
+func worsened(d *change.Diff) []change.FindingChange {
+	var out []change.FindingChange
+	for _, f := range d.Unchanged {
+		if f.Escalated() {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
+// invalidWords says which side holds the files that could not be checked.
+func invalidWords(d *change.Diff) string {
+	var base, head int
+	for _, inv := range d.Invalid {
+		if inv.Side == "base" {
+			base++
+		} else {
+			head++
+		}
+	}
+	var parts []string
+	if base > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the base (%s)", plural(base, "file"), d.Base))
+	}
+	if head > 0 {
+		parts = append(parts, fmt.Sprintf("%s of the head (%s)", plural(head, "file"), d.Head))
+	}
+	verb := "break"
+	if base+head == 1 {
+		verb = "breaks"
+	}
+	return strings.Join(parts, " and ") + " " + verb + " the schema or cannot be read; fix the errors above and run again"
+}
