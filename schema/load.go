@@ -88,13 +88,26 @@ var yamlLine = regexp.MustCompile(`^yaml: (?:line (\d+): )?(.*)$`)
 // non-blank character.
 func syntaxProblem(err error, data []byte) Problem {
 	msg := err.Error()
-	line := 1
+	line, reported := 1, false
 	if m := yamlLine.FindStringSubmatch(msg); m != nil {
 		if m[1] != "" {
 			line, _ = strconv.Atoi(m[1])
+			reported = true
 		}
 		msg = m[2]
 	}
+	// The parser (unlike the scanner) reports the 0-based line of the construct it was
+	// reading; "did not find expected" is how its errors start.
+	parserError := strings.HasPrefix(msg, "did not find expected")
+	if parserError && reported {
+		line++
+	}
+	// At the end of the input the parser points past the last line; name the last one.
+	last := strings.Count(string(data), "\n")
+	if len(data) > 0 && data[len(data)-1] != '\n' {
+		last++
+	}
+	line = max(1, min(line, last))
 	lines := strings.Split(string(data), "\n")
 	col := 1
 	tabs := strings.Contains(msg, "tab")
@@ -108,6 +121,9 @@ func syntaxProblem(err error, data []byte) Problem {
 		}
 	}
 	hint := "fix the YAML syntax"
+	if strings.HasPrefix(msg, "did not find expected ',' or") {
+		hint = "a flow mapping {...} or list [...] on this line is not closed"
+	}
 	if tabs {
 		hint = "indent with spaces; YAML does not allow tabs for indentation"
 	}

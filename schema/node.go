@@ -17,14 +17,19 @@ import (
 type Limits struct {
 	MaxFileBytes int // larger files are refused before parsing
 	MaxDepth     int // nesting of mappings and sequences
-	MaxNodes     int // nodes visited, aliases expanded, so an alias bomb stops early
+	MaxNodes     int // nodes visited in all, aliases expanded
+	// MaxAliasNodes bounds the nodes reached through aliases and merge keys, so an alias
+	// bomb stops after a little work however small the file; 0 means no separate bound.
+	MaxAliasNodes int
 }
 
 // DefaultLimits are generous for hand-written manifests and small for an attacker.
 var DefaultLimits = Limits{
 	MaxFileBytes: 8 << 20,
 	MaxDepth:     64,
-	MaxNodes:     2_000_000,
+	MaxNodes:     4_000_000,
+	// Sharing a profile or a partition policy by alias costs a few hundred nodes.
+	MaxAliasNodes: 100_000,
 }
 
 // located is what the loader remembers of each JSON pointer: where its key and its
@@ -37,10 +42,12 @@ type located struct {
 // tree is a YAML document turned into JSON-like values (map[string]any, []any,
 // string, bool, nil, json.Number) plus the position of every pointer.
 type tree struct {
-	root  any
-	at    map[string]located
-	nodes int
-	lim   Limits
+	root       any
+	at         map[string]located
+	nodes      int
+	inAlias    int // how many aliases deep the conversion is
+	aliasNodes int
+	lim        Limits
 }
 
 // pointer joins escaped JSON pointer tokens (RFC 6901).
@@ -57,21 +64,38 @@ func pointer(tokens []string) string {
 	return b.String()
 }
 
+// count charges one node to the limits: every node to MaxNodes, nodes reached through
+// an alias also to MaxAliasNodes.
+func (t *tree) count(n *yaml.Node) *Problem {
+	t.nodes++
+	if t.nodes > t.lim.MaxNodes {
+		return problemAt(n, "", fmt.Sprintf("the document holds or expands to more than %s nodes (aliases included); split it or expand fewer aliases", group(int64(t.lim.MaxNodes))))
+	}
+	if t.inAlias > 0 {
+		t.aliasNodes++
+		if t.lim.MaxAliasNodes > 0 && t.aliasNodes > t.lim.MaxAliasNodes {
+			return problemAt(n, "", fmt.Sprintf("aliases expand to more than %s nodes; expand fewer aliases", group(int64(t.lim.MaxAliasNodes))))
+		}
+	}
+	return nil
+}
+
 func child(ptr, token string) string {
 	return ptr + pointer([]string{token})
 }
 
 func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any, *Problem) {
-	t.nodes++
-	if t.nodes > t.lim.MaxNodes {
-		return nil, problemAt(n, ptr, fmt.Sprintf("the document expands to more than %d nodes (aliases included); simplify it or raise the limit", t.lim.MaxNodes))
+	if p := t.count(n); p != nil {
+		return nil, p
 	}
 	if depth > t.lim.MaxDepth {
-		return nil, problemAt(n, ptr, fmt.Sprintf("nesting deeper than %d levels; a manifest needs far fewer", t.lim.MaxDepth))
+		return nil, problemAt(n, "", fmt.Sprintf("nesting deeper than %d levels; a manifest needs far fewer", t.lim.MaxDepth))
 	}
 	if n.Kind == yaml.AliasNode {
 		// The alias's target is recorded at this pointer, but errors point at the alias.
+		t.inAlias++
 		v, p := t.convert(n.Alias, ptr, key, depth+1)
+		t.inAlias--
 		if p == nil {
 			t.at[ptr] = located{key: key, value: n}
 		}
@@ -129,14 +153,17 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	// Each merge counts as a node and a level: a merge key that refers to its own mapping
 	// would otherwise recurse until the stack overflows, and merges of merges of merges
 	// would take exponential time without ever converting a node.
-	t.nodes++
-	if t.nodes > t.lim.MaxNodes {
-		return problemAt(m, ptr, fmt.Sprintf("the document expands to more than %d nodes (aliases included); simplify it or raise the limit", t.lim.MaxNodes))
+	if p := t.count(m); p != nil {
+		return p
 	}
 	if depth > t.lim.MaxDepth {
 		return problemAt(m, ptr, fmt.Sprintf("merge keys (<<) nest deeper than %d levels; a merge key must not refer to the mapping that holds it", t.lim.MaxDepth))
 	}
 	target := m
+	if target.Kind == yaml.AliasNode {
+		t.inAlias++
+		defer func() { t.inAlias-- }()
+	}
 	for target.Kind == yaml.AliasNode {
 		target = target.Alias
 	}

@@ -4,7 +4,9 @@ import (
 	"bytes"
 	_ "embed"
 	"fmt"
+	"math/big"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -128,11 +130,11 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	case *kind.Type:
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be %s, not %s", typeWords(k.Want, e.SchemaURL), k.Got))}
 	case *kind.Minimum:
-		return []Problem{at(ptr, loc, fmt.Sprintf("must be >= %s", k.Want.RatString()))}
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be >= %s", ratWords(k.Want)))}
 	case *kind.ExclusiveMinimum:
-		return []Problem{at(ptr, loc, fmt.Sprintf("must be > %s", k.Want.RatString()))}
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be > %s", ratWords(k.Want)))}
 	case *kind.Maximum:
-		return []Problem{at(ptr, loc, fmt.Sprintf("must be <= %s", k.Want.RatString()))}
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be <= %s", ratWords(k.Want)))}
 	case *kind.Pattern:
 		return []Problem{at(ptr, loc, patternWords(fmt.Sprint(k.Got), e.SchemaURL))}
 	case *kind.Const:
@@ -232,7 +234,22 @@ func typeWords(want []string, schemaURL string) string {
 	return strings.Join(words, " or ")
 }
 
+// ratWords writes a schema bound as a plain decimal: -0.99, not -99/100.
+func ratWords(r *big.Rat) string {
+	if r.IsInt() {
+		return r.Num().String()
+	}
+	f, _ := r.Float64()
+	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
 func patternWords(got, schemaURL string) string {
+	if strings.HasSuffix(schemaURL, "/expires") {
+		return fmt.Sprintf("%q is not a date; write it as YYYY-MM-DD (ISO 8601)", got)
+	}
+	if !strings.Contains(schemaURL, "/$defs/count") && !strings.Contains(schemaURL, "/$defs/bytes") {
+		return fmt.Sprintf("%q does not have the expected form", got)
+	}
 	if strings.Contains(schemaURL, "/$defs/bytes") {
 		return fmt.Sprintf("%q is not a byte size; write a number with a unit: B, kB, MB, GB, TB, PB or KiB, MiB, GiB, TiB, PiB (e.g. \"64GiB\")", got)
 	}
