@@ -122,7 +122,7 @@ func syntaxProblem(err error, data []byte) Problem {
 	}
 	hint := "fix the YAML syntax"
 	if strings.HasPrefix(msg, "did not find expected ',' or") {
-		hint = "a flow mapping {...} or list [...] on this line is not closed"
+		hint = "look on this line for a missing comma, colon or closing bracket"
 	}
 	if tabs {
 		hint = "indent with spaces; YAML does not allow tabs for indentation"

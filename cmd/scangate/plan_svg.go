@@ -15,8 +15,8 @@ import (
 // ms-against-memory chart on the right.
 const (
 	svgWidth  = 960
-	bandH     = 300
-	chartTop  = 50
+	bandH     = 310
+	chartTop  = 60
 	chartH    = 190
 	fillLeft  = 50
 	fillW     = 400
@@ -37,7 +37,7 @@ func planSVG(m *schema.Manifest, plans []tablePlan) []byte {
 	fmt.Fprintf(&b, `<rect width="%d" height="%d" fill="#ffffff"/>`+"\n", svgWidth, h)
 	for n, p := range plans {
 		fmt.Fprintf(&b, `<g transform="translate(0,%d)">`+"\n", n*bandH)
-		fmt.Fprintf(&b, `<text x="10" y="20" font-size="14" font-weight="bold">%s</text>`+"\n", esc(p.spec.Name))
+		fmt.Fprintf(&b, `<text x="10" y="18" font-size="14" font-weight="bold">%s</text>`+"\n", esc(p.spec.Name))
 		if p.problems == "" {
 			fillChart(&b, m, p)
 			frontChart(&b, p.sweep)
@@ -79,21 +79,30 @@ func fillChart(b *bytes.Buffer, m *schema.Manifest, p tablePlan) {
 		}
 		bars = append(bars, sum/float64(j-i))
 	}
-	title := fmt.Sprintf("segment fill by partition, oldest to newest (%s rows per segment)", advisor.Count(s))
+	note := "oldest left, newest right"
 	if per > 1 {
-		title += fmt.Sprintf(", %d partitions per bar", per)
+		note += fmt.Sprintf(", %d partitions per bar", per)
 	}
-	fmt.Fprintf(b, `<text x="%d" y="%d">%s</text>`+"\n", fillLeft, chartTop-12, esc(title))
+	fmt.Fprintf(b, `<text x="%d" y="%d">segment fill by partition (%s rows per segment)</text>`+"\n", fillLeft, chartTop-22, advisor.Count(s))
+	fmt.Fprintf(b, `<text x="%d" y="%d" font-size="9">%s</text>`+"\n", fillLeft, chartTop-8, esc(note))
 	axes(b, fillLeft, fillW, "100%", "0%")
 	w := float64(fillW) / float64(len(bars))
 	for i, f := range bars {
 		bh := f * chartH
 		fmt.Fprintf(b, `<rect x="%s" y="%s" width="%s" height="%s" fill="%s"/>`+"\n",
-			f1(fillLeft+float64(i)*w), f1(chartTop+chartH-bh), f1(max(w-0.5, 0.3)), f1(bh), fillColour(f))
+			f1(fillLeft+float64(i)*w), f1(chartTop+chartH-bh), f1(barWidth(w)), f1(bh), fillColour(f))
 	}
 	l := p.sweep.Candidates[p.sweep.Today].Layout
-	fmt.Fprintf(b, `<text x="%d" y="%d">%s partitions, %s segments (ideal %s), fill %s</text>`+"\n",
-		fillLeft, chartTop+chartH+18, advisor.Num(int64(l.Partitions)), advisor.Num(l.Segments), advisor.Num(l.Ideal), advisor.Pct(l.Fill))
+	fmt.Fprintf(b, `<text x="%d" y="%d">%s, %s (ideal %s), fill %s</text>`+"\n",
+		fillLeft, chartTop+chartH+18, counted(int64(l.Partitions), "partition"), counted(l.Segments, "segment"), advisor.Num(l.Ideal), advisor.Pct(l.Fill))
+}
+
+// barWidth leaves a gap between bars only where there is room for one.
+func barWidth(w float64) float64 {
+	if w < 3 {
+		return w
+	}
+	return w - 1
 }
 
 func fillColour(f float64) string {
@@ -143,22 +152,39 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 		x0, x1 = min(x0, c.Layout.FixedMs), max(x1, c.Layout.FixedMs)
 		y0, y1 = min(y0, mem(c)), max(y1, mem(c))
 	}
-	if x1 == x0 {
-		x1 = x0 + 1
+	// Fixed ms span orders of magnitude across segment sizes: a log scale keeps the
+	// cheap end readable. A flat axis puts every point in its middle.
+	logX := x0 > 0 && x1/x0 >= 5
+	px := func(v float64) float64 {
+		switch {
+		case x1 == x0:
+			return frontLeft + frontW/2
+		case logX:
+			return frontLeft + math.Log(v/x0)/math.Log(x1/x0)*frontW
+		}
+		return frontLeft + (v-x0)/(x1-x0)*frontW
 	}
-	if y1 == y0 {
-		y1 = y0 + 1
+	py := func(v float64) float64 {
+		if y1 == y0 {
+			return chartTop + chartH/2
+		}
+		return chartTop + chartH - (v-y0)/(y1-y0)*chartH
 	}
-	px := func(v float64) float64 { return frontLeft + (v-x0)/(x1-x0)*frontW }
-	py := func(v float64) float64 { return chartTop + chartH - (v-y0)/(y1-y0)*chartH }
 	axis := "refresh peak"
 	if !sw.Profiled {
 		axis = "segment size"
 	}
-	fmt.Fprintf(b, `<text x="%d" y="%d">fixed ms per scan (across) against %s (up); front joined</text>`+"\n", frontLeft, chartTop-12, axis)
-	axes(b, frontLeft, frontW, memText(y1), memText(y0))
+	scale := ""
+	if logX {
+		scale = ", log scale"
+	}
+	fmt.Fprintf(b, `<text x="%d" y="%d">sweep: fixed ms per scan (across%s) against %s (up)</text>`+"\n", frontLeft, chartTop-22, scale, axis)
+	fmt.Fprintf(b, `<text x="%d" y="%d" font-size="9">blue: the Pareto front, joined; grey: the other layouts</text>`+"\n", frontLeft, chartTop-8)
+	axes(b, frontLeft, frontW, memText(y1), memText(y0)) // equal when flat: both label the one value
 	fmt.Fprintf(b, `<text x="%d" y="%d">%s ms</text>`+"\n", frontLeft, chartTop+chartH+14, advisor.Ms(x0))
-	fmt.Fprintf(b, `<text x="%d" y="%d" text-anchor="end">%s ms</text>`+"\n", frontLeft+frontW, chartTop+chartH+14, advisor.Ms(x1))
+	if x1 != x0 {
+		fmt.Fprintf(b, `<text x="%d" y="%d" text-anchor="end">%s ms</text>`+"\n", frontLeft+frontW, chartTop+chartH+14, advisor.Ms(x1))
+	}
 	var front []*advisor.Candidate
 	for _, c := range cs {
 		colour := "#9e9e9e"
@@ -184,8 +210,17 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 		}
 		b.WriteString(`"/>` + "\n")
 	}
-	for _, c := range front {
-		fmt.Fprintf(b, `<text x="%s" y="%s" font-size="9">%s</text>`+"\n", f1(px(c.Layout.FixedMs)+5), f1(py(mem(c))-4),
+	for i, c := range front {
+		// Alternate above and below the point so neighbouring labels do not collide.
+		dy := -4.0
+		if i%2 == 1 {
+			dy = 12
+		}
+		x, anchor := px(c.Layout.FixedMs)+5, "start"
+		if x > frontLeft+frontW/2 { // keep the label inside the picture
+			x, anchor = x-10, "end"
+		}
+		fmt.Fprintf(b, `<text x="%s" y="%s" font-size="9" text-anchor="%s">%s</text>`+"\n", f1(x), f1(py(mem(c))+dy), anchor,
 			esc(fmt.Sprintf("%s %s: %s ms, %s", advisor.Count(c.SegmentRows), c.Label, advisor.Ms(c.Layout.FixedMs), memText(mem(c)))))
 	}
 	mark := func(k int, colour, what string, dy int) {
@@ -195,8 +230,16 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 		c := &sw.Candidates[k]
 		fmt.Fprintf(b, `<circle cx="%s" cy="%s" r="6" fill="none" stroke="%s" stroke-width="2"/>`+"\n", f1(px(c.Layout.FixedMs)), f1(py(mem(c))), colour)
 		fmt.Fprintf(b, `<text x="%d" y="%d" fill="%s">%s</text>`+"\n", frontLeft, chartTop+chartH+28+dy, colour,
-			esc(fmt.Sprintf("%s: %s %s, %s segments, %s ms, %s", what, advisor.Count(c.SegmentRows), c.Label, advisor.Num(c.Layout.Segments), advisor.Ms(c.Layout.FixedMs), memText(mem(c)))))
+			esc(fmt.Sprintf("%s: %s %s, %s, %s ms, %s", what, advisor.Count(c.SegmentRows), c.Label, counted(c.Layout.Segments, "segment"), advisor.Ms(c.Layout.FixedMs), memText(mem(c)))))
 	}
 	mark(sw.Today, "#6a1b9a", "today", 0)
 	mark(sw.Recommended, "#2e7d32", "recommended", 14)
+}
+
+// counted writes "1 segment", "730 segments".
+func counted(n int64, what string) string {
+	if n == 1 {
+		return "1 " + what
+	}
+	return advisor.Num(n) + " " + what + "s"
 }

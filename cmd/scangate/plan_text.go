@@ -59,18 +59,19 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOpt
 		fmt.Fprintf(b, "   excess outside the open partition: %s (what truncated-segments counts)\n", num(l.ClosedExcess))
 	}
 	budgets := m.Budgets.Override(t.Budgets)
+	var rows [][]string
 	row := func(name, value, limitName string, limit *float64, fig float64) {
-		s := fmt.Sprintf("   %-26s %12s", name, value)
+		r := []string{name, value, "", ""}
 		if limit != nil && *limit > 0 {
-			s += fmt.Sprintf("   %-9s %-12s %s", limitName, limitText(limitName, *limit), pctf(fig / *limit))
+			r[2], r[3] = limitName+" "+limitText(limitName, *limit), pctf(fig / *limit)
 		}
-		b.WriteString(strings.TrimRight(s, " ") + "\n")
+		rows = append(rows, r)
 	}
 	row("fixed CPU per full scan", msf(l.FixedMs)+" ms", "budget", budgets.ScanOverheadMs, l.FixedMs)
 	if now.Widest != "" {
-		row("scan wall, "+clip(now.Widest, 16), msf(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
+		row("scan wall, "+now.Widest, msf(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
 	} else {
-		b.WriteString("   scan wall: needs column profiles\n")
+		rows = append(rows, []string{"scan wall", "-", "needs column profiles", ""})
 	}
 	if sw.Profiled {
 		name := "refresh peak (model)"
@@ -82,6 +83,7 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOpt
 			row("", "", "budget", bytesLimit(*budgets.RefreshMemory), now.Peak)
 		}
 	}
+	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)
 
 	renderSweep(b, sw, e.SegmentRows)
 	renderRecommendation(b, p, now)
@@ -236,6 +238,7 @@ func renderRecommendation(b *strings.Builder, p tablePlan, now *advisor.Candidat
 		return
 	case fits:
 		para(b, "", "Recommended: "+c.Change+".")
+		para(b, "   ", "(the layout that fits every budget with the fewest warnings left, at today's segment size if any fits, else the smallest, keeping the most partitions)")
 	default:
 		para(b, "", "No layout in the sweep fits every budget. Closest: "+c.Change+".")
 	}
@@ -390,7 +393,7 @@ func grid(b *strings.Builder, indent string, cols []column, rows [][]string) {
 			w[i] = max(w[i], runes(r[i]))
 		}
 	}
-	total := runes(indent) + len(cols) - 1
+	total := runes(indent) + 2*(len(cols)-1)
 	for _, x := range w {
 		total += x
 	}
@@ -406,7 +409,7 @@ func grid(b *strings.Builder, indent string, cols []column, rows [][]string) {
 		l.WriteString(indent)
 		for i, cell := range cells {
 			if i > 0 {
-				l.WriteByte(' ')
+				l.WriteString("  ")
 			}
 			cell = clip(cell, w[i])
 			pad := strings.Repeat(" ", w[i]-runes(cell))

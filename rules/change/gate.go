@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/scangate/scangate/rules"
@@ -42,7 +43,7 @@ func (g Gate) Check(d *Diff) []Breach {
 			if added := Round(t.AddedMs()); added > *g.MaxAddedMs {
 				out = append(out, Breach{
 					Kind: "added-ms", Model: t.Model, Table: t.Name, Value: added, Limit: *g.MaxAddedMs,
-					Message: fmt.Sprintf("%s adds %s ms per scan, more than the %s ms allowed (--max-added-ms)", name, rules.Millis(added), Limit(*g.MaxAddedMs)),
+					Message: fmt.Sprintf("%s adds %s ms per scan, more than the %s ms allowed (--max-added-ms)", name, msOver(added, *g.MaxAddedMs), Limit(*g.MaxAddedMs)),
 				})
 			}
 		}
@@ -61,23 +62,32 @@ func (g Gate) Check(d *Diff) []Breach {
 	flag := fmt.Sprintf("(--fail-on-new %s)", g.FailOnNew)
 	for i := range d.Introduced {
 		f := &d.Introduced[i]
-		if f.Finding.Severity >= g.FailOnNew {
+		// A finding the manifest waives or the baseline records is accepted debt.
+		if f.Finding.Severity >= g.FailOnNew && !f.Finding.Accepted() {
 			out = append(out, Breach{
 				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
-				Message: fmt.Sprintf("new %s [%s] at %s %s", f.Finding.Severity, f.Finding.Rule, Location(f.Finding), flag),
+				Message: fmt.Sprintf("new %s %s%s at %s %s", f.Finding.Severity, f.Finding.Rule, on(f.Finding), Location(f.Finding), flag),
 			})
 		}
 	}
 	for i := range d.Unchanged {
 		f := &d.Unchanged[i]
-		if f.Escalated() && f.Was < g.FailOnNew && f.Finding.Severity >= g.FailOnNew {
+		if f.Escalated() && f.Was < g.FailOnNew && f.Finding.Severity >= g.FailOnNew && !f.Finding.Accepted() {
 			out = append(out, Breach{
 				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
-				Message: fmt.Sprintf("[%s] at %s rose from %s to %s %s", f.Finding.Rule, Location(f.Finding), f.Was, f.Finding.Severity, flag),
+				Message: fmt.Sprintf("%s%s at %s rose from %s to %s %s", f.Finding.Rule, on(f.Finding), Location(f.Finding), f.Was, f.Finding.Severity, flag),
 			})
 		}
 	}
 	return out
+}
+
+// on names the table a finding is about: " on meter_reads", or "" for a whole file.
+func on(f rules.Finding) string {
+	if f.Table == "" {
+		return ""
+	}
+	return " on " + f.Table
 }
 
 // modelOf is the model of the table a head finding is about.
@@ -107,6 +117,16 @@ func Round(x float64) float64 {
 		return math.Round(x)
 	}
 	return math.Round(x*1e6) / 1e6
+}
+
+// msOver writes added ms as findings do (1,240; 15.0), or with every decimal it has
+// when that rounding would hide why it is over the limit (10.001 against 10).
+func msOver(added, limit float64) string {
+	s := rules.Millis(added)
+	if v, err := strconv.ParseFloat(strings.ReplaceAll(s, ",", ""), 64); err == nil && v <= limit {
+		return strconv.FormatFloat(added, 'f', -1, 64)
+	}
+	return s
 }
 
 // Limit writes a limit as the user gave it: 500, 12.5.

@@ -19,7 +19,6 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"runtime/debug"
 	"slices"
 	"strconv"
 	"strings"
@@ -36,20 +35,38 @@ import (
 
 var update = flag.Bool("update", false, "rewrite docs/estimator-accuracy.md from the default sweep")
 
-// indexTolerance is the issue's target for the dictionary index stream: the estimate
-// within ±15% of what the encoder writes.
-const indexTolerance = 0.15
+// indexTolerance is the target for the dictionary index stream: the estimate within
+// ±15% of what the encoder writes. A stream of a few run headers (under tinyStream
+// bytes a segment) is held to tinySlack bytes a segment instead: there one header byte
+// is more than 15% of the stream.
+const (
+	indexTolerance = 0.15
+	tinyStream     = 8
+	tinySlack      = 2 // one varint header byte and one value byte
+)
 
 const docPath = "../../docs/estimator-accuracy.md"
 
 // Typed rows for the encoder; "dict" asks for dictionary encoding.
 type (
-	int64Row    struct{ V int64 `parquet:"v,dict"` }
-	float64Row  struct{ V float64 `parquet:"v,dict"` }
-	stringRow   struct{ V string `parquet:"v,dict"` }
-	dateRow     struct{ V int32 `parquet:"v,dict,date"` }
-	datetimeRow struct{ V int64 `parquet:"v,dict,timestamp(microsecond)"` }
-	boolRow     struct{ V bool `parquet:"v,dict"` }
+	int64Row struct {
+		V int64 `parquet:"v,dict"`
+	}
+	float64Row struct {
+		V float64 `parquet:"v,dict"`
+	}
+	stringRow struct {
+		V string `parquet:"v,dict"`
+	}
+	dateRow struct {
+		V int32 `parquet:"v,dict,date"`
+	}
+	datetimeRow struct {
+		V int64 `parquet:"v,dict,timestamp(microsecond)"`
+	}
+	boolRow struct {
+		V bool `parquet:"v,dict"`
+	}
 )
 
 // stringLength is the length of every synthetic string value (avg_length).
@@ -96,7 +113,17 @@ type encResult struct {
 	overhead         int64 // page headers and the 1-byte bit width of each data page
 }
 
-func (r encResult) idxErr() float64  { return r.idxEst/r.idxEnc - 1 }
+func (r encResult) idxErr() float64 { return r.idxEst/r.idxEnc - 1 }
+
+// idxOK applies the check: ±15%, or for a stream of a few run headers, tinySlack bytes
+// a segment.
+func (r encResult) idxOK() bool {
+	if math.Abs(r.idxErr()) <= indexTolerance {
+		return true
+	}
+	segs := float64(r.rowGroups)
+	return r.idxEnc < tinyStream*segs && math.Abs(r.idxEst-r.idxEnc) <= tinySlack*segs
+}
 func (r encResult) dictErr() float64 { return r.dictEst/r.dictEnc - 1 }
 
 // sweep is a named list of cases.
@@ -135,12 +162,28 @@ func defaultSweep(mode string) sweep {
 	}
 	var cs []encCase
 	for _, tb := range tables {
-		for _, d := range cards {
+		rows := tableRows(tb)
+		for _, d := range upTo(cards, rows) {
 			cs = append(cs, encCase{typ: "int64", order: schema.Random, d: d, table: tb, seg: s})
 			cs = append(cs, encCase{typ: "int64", order: schema.Sorted, d: d, table: tb, seg: s})
-			for _, l := range runs {
+		}
+		for _, l := range runs {
+			// A table of R/l runs holds at most R/l values.
+			limit := rows
+			if l > 0 {
+				limit = max(1, rows/l)
+			}
+			for _, d := range upTo(cards, limit) {
 				cs = append(cs, encCase{typ: "int64", order: schema.Clustered, run: l, d: d, table: tb, seg: s})
 			}
+		}
+	}
+	if mode != "short" {
+		// The top of the cardinality sweep needs a table that can hold 10^7 values.
+		big := table("10,000,019 rows, 1 partition", 10_000_019, schema.Partitions{Scheme: schema.SchemeNone})
+		for _, d := range []int64{1_000_000, 10_000_000} {
+			cs = append(cs, encCase{typ: "int64", order: schema.Random, d: d, table: big, seg: s})
+			cs = append(cs, encCase{typ: "int64", order: schema.Sorted, d: d, table: big, seg: s})
 		}
 	}
 	tb := tables[0]
@@ -160,6 +203,30 @@ func defaultSweep(mode string) sweep {
 		}
 	}
 	return sweep{mode, cs}
+}
+
+// upTo keeps the cardinalities below limit and the first at or above it (which the
+// table caps at limit): larger ones would repeat that column.
+func upTo(cards []int64, limit int64) []int64 {
+	var out []int64
+	for _, d := range cards {
+		out = append(out, d)
+		if d >= limit {
+			break
+		}
+	}
+	return out
+}
+
+func tableRows(tb sweepTable) int64 {
+	if tb.spec.Partitions.Scheme != schema.SchemeList {
+		return tb.spec.Rows
+	}
+	var n int64
+	for _, it := range tb.spec.Partitions.Items {
+		n += it.Rows
+	}
+	return n
 }
 
 func listItems(n int, rows int64) []schema.Item {
@@ -186,7 +253,7 @@ func TestEncoderSweep(t *testing.T) {
 		if int64(r.rowGroups) != r.segments {
 			t.Errorf("%s: encoder wrote %d row groups, layout.Compute says %d segments", name, r.rowGroups, r.segments)
 		}
-		if !r.pages && math.Abs(r.idxErr()) > indexTolerance {
+		if !r.pages && !r.idxOK() {
 			t.Errorf("%s: index stream estimated %.0f bytes, encoder %.0f (%+.1f%%, want within ±%.0f%%)",
 				name, r.idxEst, r.idxEnc, 100*r.idxErr(), 100*indexTolerance)
 		}
@@ -511,16 +578,18 @@ func readChunks(data []byte) ([]chunk, error) {
 	return out, nil
 }
 
-// encoderVersion is the parquet-go version this test binary was built with.
+// encoderVersion is the parquet-go version go.mod requires (a test binary carries no
+// module versions of its own).
 func encoderVersion() string {
-	if info, ok := debug.ReadBuildInfo(); ok {
-		for _, m := range info.Deps {
-			if m.Path == "github.com/parquet-go/parquet-go" {
-				return m.Version
+	data, err := os.ReadFile("../../go.mod")
+	if err == nil {
+		for _, line := range strings.Split(string(data), "\n") {
+			if f := strings.Fields(line); len(f) >= 2 && f[0] == "github.com/parquet-go/parquet-go" {
+				return f[1]
 			}
 		}
 	}
-	return "(unknown version)"
+	return "version unknown"
 }
 
 // accuracyDoc writes the Markdown accuracy table of a sweep.
@@ -529,47 +598,76 @@ func accuracyDoc(rs []encResult) string {
 	p := func(format string, a ...any) { fmt.Fprintf(&b, format, a...) }
 	p("# Size estimator accuracy\n\n")
 	p("Generated by `go test ./rules/layout -run TestEncoderSweep -update` (rules/layout/encoder_test.go);\n")
-	p("`go test ./...` fails when this file no longer matches what the test measures.\n\n")
+	p("`go test ./...` fails when this file no longer matches what the test measures.\n")
+	p("`SCANGATE_ENCODER_SWEEP=full go test ./rules/layout -run TestEncoderSweep -v` logs a larger sweep\n")
+	p("(half-decade cardinalities, more run lengths and tables) in the same form.\n\n")
 	p("The estimate is `layout.SegmentSize` for each segment (the rules sum the same numbers through\n")
-	p("`layout.ColumnBytes`). The reference encoder is the parquet-go library (%s) writing an Apache\n", encoderVersion())
-	p("Parquet file of one column: dictionary encoding, no compression, a row group per segment of\n")
-	p("S = 65,536 rows, a new row group at every partition boundary, and a page buffer large enough\n")
-	p("that each row group is one data page (the last section shows the encoder's default pages).\n")
-	p("\"Index\" is the dictionary index stream: the data pages' payload less their 1-byte bit-width\n")
-	p("prefix. \"Dictionary\" is the dictionary page's payload. Error is estimate / encoder − 1. The\n")
-	p("check is ±%.0f%% on the index stream and an exact row-group count for every case.\n\n", 100*indexTolerance)
+	p("`layout.ColumnBytes`). The reference encoder is the parquet-go library (%s) writing an\n", encoderVersion())
+	p("Apache Parquet file of one column: dictionary encoding, no compression, a row group per\n")
+	p("segment of S = 65,536 rows, a new row group at every partition boundary, and a page buffer\n")
+	p("large enough that each row group is one data page (the last table shows the encoder's default\n")
+	p("pages). *Index* is the dictionary index stream: the data pages' payload less their 1-byte\n")
+	p("bit-width prefix. *Dictionary* is the dictionary page's payload. *Page headers* are the page\n")
+	p("headers and bit-width bytes the encoder adds, which the estimate leaves out. Error is\n")
+	p("estimate / encoder − 1.\n\n")
+	p("Checked for every case: the number of row groups equals `layout.Compute`'s segments, and the\n")
+	p("row groups hold exactly the layout's segment sizes; the index estimate is within ±%.0f%% of the\n", 100*indexTolerance)
+	p("encoder (a stream of a few run headers, under %d bytes a segment, within %d bytes a segment:\n", tinyStream, tinySlack)
+	p("there one header byte is more than 15%%); every data page is dictionary encoded.\n\n")
 	p("Synthetic columns: *random* holds min(d, rows) values equally often, shuffled; *sorted* holds\n")
 	p("them in order; *clustered* has runs of the stated average length (uniform in ±half of it),\n")
-	p("their values equally often, shuffled. \"distinct\" is what the table really holds (a profile's\n")
-	p("`distinct`): a table cannot hold more values than rows, or than runs.\n\n")
+	p("their values equally often, shuffled. *Distinct* is what the table really holds (a profile's\n")
+	p("`distinct`): a table cannot hold more values than rows, or than runs. Columns with small index\n")
+	p("streams are drawn several times with new seeds (*tables*) and the sizes averaged per table,\n")
+	p("since the estimate is an expectation.\n\n")
 
-	main := func(r encResult) bool { return r.typ == "int64" && !r.pages }
-	p("## Worst error by order\n\n")
-	p("| order | cases | worst index error | at distinct | worst dictionary error | at distinct |\n|---|---|---|---|---|---|\n")
+	checked := func(r encResult) bool { return !r.pages }
+	// Worst index error by order and cardinality decade, every type and table.
+	p("## Worst index-stream error by order and cardinality\n\n")
 	var orders []string
 	for _, r := range rs {
-		if main(r) && !slices.Contains(orders, r.orderLabel()) {
+		if checked(r) && !slices.Contains(orders, r.orderLabel()) {
 			orders = append(orders, r.orderLabel())
 		}
 	}
+	decade := func(d int64) int { return int(math.Floor(math.Log10(float64(d)) + 1e-9)) }
+	top := 0
+	for _, r := range rs {
+		top = max(top, decade(r.distinct))
+	}
+	p("| order |")
+	for e := 0; e <= top; e++ {
+		p(" %s |", decadeLabel(e))
+	}
+	p(" worst |\n|---|")
+	for e := 0; e <= top+1; e++ {
+		p("---:|")
+	}
+	p("\n")
 	for _, o := range orders {
-		var n int
-		var wi, wd encResult
-		for _, r := range rs {
-			if !main(r) || r.orderLabel() != o {
+		p("| %s |", o)
+		var worst *encResult
+		for e := 0; e <= top; e++ {
+			var w *encResult
+			for i := range rs {
+				r := &rs[i]
+				if checked(*r) && r.orderLabel() == o && decade(r.distinct) == e && (w == nil || math.Abs(r.idxErr()) > math.Abs(w.idxErr())) {
+					w = r
+				}
+			}
+			if w == nil {
+				p(" |")
 				continue
 			}
-			if n == 0 || math.Abs(r.idxErr()) > math.Abs(wi.idxErr()) {
-				wi = r
+			if worst == nil || math.Abs(w.idxErr()) > math.Abs(worst.idxErr()) {
+				worst = w
 			}
-			if n == 0 || math.Abs(r.dictErr()) > math.Abs(wd.dictErr()) {
-				wd = r
-			}
-			n++
+			p(" %s |", pctErr(w.idxErr()))
 		}
-		p("| %s | %d | %s | %s | %s | %s |\n", o, n, pctErr(wi.idxErr()), group(wi.distinct), pctErr(wd.dictErr()), group(wd.distinct))
+		p(" %s (%s, distinct %s) |\n", pctErr(worst.idxErr()), worst.typ, group(worst.distinct))
 	}
 
+	main := func(r encResult) bool { return r.typ == "int64" && !r.pages }
 	var tables []string
 	for _, r := range rs {
 		if main(r) && !slices.Contains(tables, r.table.label) {
@@ -578,26 +676,26 @@ func accuracyDoc(rs []encResult) string {
 	}
 	for _, tl := range tables {
 		p("\n## int64, %s\n\n", tl)
-		p("| order | distinct | row groups | index estimate | index encoder | error | dictionary estimate | dictionary encoder | error | page headers |\n")
-		p("|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
+		p("| order | distinct | tables | row groups | index estimate | index encoder | error | dictionary estimate | dictionary encoder | error | page headers |\n")
+		p("|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|\n")
 		for _, r := range rs {
 			if main(r) && r.table.label == tl {
-				p("| %s | %s | %d | %s | %s | %s | %s | %s | %s | %s |\n", r.orderLabel(), group(r.distinct), r.rowGroups,
-					group(int64(math.Round(r.idxEst))), group(int64(r.idxEnc)), pctErr(r.idxErr()),
-					group(int64(math.Round(r.dictEst))), group(int64(r.dictEnc)), pctErr(r.dictErr()), group(r.overhead))
+				p("| %s | %s | %d | %d | %s | %s | %s | %s | %s | %s | %s |\n", r.orderLabel(), group(r.distinct), r.tables, r.rowGroups,
+					group(int64(math.Round(r.idxEst))), group(int64(math.Round(r.idxEnc))), pctErr(r.idxErr()),
+					group(int64(math.Round(r.dictEst))), group(int64(math.Round(r.dictEnc))), pctErr(r.dictErr()), group(r.overhead))
 			}
 		}
 	}
 
 	p("\n## Other types, %s\n\n", rs[0].table.label)
 	p("Strings are %d characters long (`avg_length: %d`); a dictionary entry is 4 + %d bytes.\n\n", stringLength, stringLength, stringLength)
-	p("| type | order | distinct | index estimate | index encoder | error | dictionary estimate | dictionary encoder | error |\n")
-	p("|---|---|---:|---:|---:|---:|---:|---:|---:|\n")
+	p("| type | order | distinct | tables | index estimate | index encoder | error | dictionary estimate | dictionary encoder | error |\n")
+	p("|---|---|---:|---:|---:|---:|---:|---:|---:|---:|\n")
 	for _, r := range rs {
 		if r.typ != "int64" && !r.pages {
-			p("| %s | %s | %s | %s | %s | %s | %s | %s | %s |\n", r.typ, r.orderLabel(), group(r.distinct),
-				group(int64(math.Round(r.idxEst))), group(int64(r.idxEnc)), pctErr(r.idxErr()),
-				group(int64(math.Round(r.dictEst))), group(int64(r.dictEnc)), pctErr(r.dictErr()))
+			p("| %s | %s | %s | %d | %s | %s | %s | %s | %s | %s |\n", r.typ, r.orderLabel(), group(r.distinct), r.tables,
+				group(int64(math.Round(r.idxEst))), group(int64(math.Round(r.idxEnc))), pctErr(r.idxErr()),
+				group(int64(math.Round(r.dictEst))), group(int64(math.Round(r.dictEnc))), pctErr(r.dictErr()))
 		}
 	}
 
@@ -607,11 +705,53 @@ func accuracyDoc(rs []encResult) string {
 	for _, r := range rs {
 		if r.pages {
 			p("| %s | %s | %d | %s | %s | %s | %s |\n", r.orderLabel(), group(r.distinct), r.pagesWritten,
-				group(int64(math.Round(r.idxEst))), group(int64(r.idxEnc)), pctErr(r.idxErr()), group(r.overhead))
+				group(int64(math.Round(r.idxEst))), group(int64(math.Round(r.idxEnc))), pctErr(r.idxErr()), group(r.overhead))
 		}
 	}
+	p("%s", encoderDetails)
 	return b.String()
 }
+
+func decadeLabel(e int) string {
+	if e == 0 {
+		return "2–9"
+	}
+	return "10^" + strconv.Itoa(e)
+}
+
+// encoderDetails are what the reference encoder does that the estimate leaves out,
+// found by reading the files the sweep writes (page by page, run by run).
+const encoderDetails = `
+## Where the encoder differs from the estimate
+
+- **Page headers.** Every data page carries a header of about 50–100 bytes (it holds the
+  page's statistics, so it grows with the value width), every dictionary page one of about
+  20, and every dictionary-encoded data page starts with a 1-byte index bit width. The
+  estimate counts none of this: an engine's segment metadata is its own. The *page headers*
+  columns above show what it adds per table.
+- **Pages restart runs.** At the encoder's default 256 KiB page buffer a data page holds about
+  64,000 indexes (4 bytes each while buffered), so a segment of S rows is several pages; each
+  page restarts its runs and takes its bit width from the largest index it holds, so a sorted
+  column pays one more run per page. The last table shows the effect; the checked sweep writes
+  one page per row group.
+- **Run headers.** The hybrid encoding works in groups of 8 indexes: a group of one value
+  joins a run-length run, any other group is bit-packed. A run that does not start on a group
+  boundary costs a bit-packed group besides its run-length run, and a run shorter than 15
+  rows may hold no whole group. The estimate models both (runs start anywhere relative to the
+  groups). The encoder writes the last n mod 8 indexes of a page as short runs of their own
+  (a header and a value each) rather than a padded group; the estimate leaves that out.
+- **Single-valued segments** need no index bits: the encoder writes bit width 0 and one run
+  header, as the estimate does.
+- **Booleans.** The encoder's boolean dictionary always holds both values, false first, so a
+  segment of only true values still needs 1-bit indexes, and it bit-packs the dictionary page
+  (1 byte for both values) where the estimate counts 1 byte per entry. These bytes are the
+  whole difference in the bool rows above.
+- **No fallback to plain encoding.** With its default settings this encoder keeps dictionary
+  encoding however large the dictionary grows (the test checks that every data page is
+  dictionary encoded). Other writers fall back to plain encoding once a column chunk's
+  dictionary passes a size limit (about 1 MiB is common; from memory); the estimate, like a
+  column store's segment, keeps its dictionary.
+`
 
 func pctErr(e float64) string {
 	if math.IsNaN(e) || math.IsInf(e, 0) {

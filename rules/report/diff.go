@@ -1,6 +1,8 @@
 package report
 
 import (
+	"strings"
+
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/rules/change"
 )
@@ -74,26 +76,32 @@ func (r *DiffResult) diffSummary() string {
 
 func itoa(n int) string { return rules.Thousands(int64(n)) }
 
-// gateWords says what the gate checks, for the reports: "--max-added-ms 500,
-// --fail-on-new error", or "no limits set".
-func (r *DiffResult) gateWords() string {
+// gateFlags lists the limits the gate checks as flags: "--max-added-ms 500"; empty
+// when none is set.
+func (r *DiffResult) gateFlags() []string {
 	g := r.Gate
 	var parts []string
 	if g.MaxAddedMs != nil {
 		parts = append(parts, "--max-added-ms "+change.Limit(*g.MaxAddedMs))
 	}
 	if g.MaxAddedSegments != nil {
-		parts = append(parts, "--max-added-segments "+rules.Thousands(*g.MaxAddedSegments))
+		parts = append(parts, "--max-added-segments "+change.Limit(float64(*g.MaxAddedSegments)))
 	}
 	if g.FailOnNew != 0 {
 		parts = append(parts, "--fail-on-new "+g.FailOnNew.String())
 	}
+	return parts
+}
+
+// gateWords says what the gate checks: "--max-added-ms 500, --fail-on-new error", or
+// "no limits set".
+func (r *DiffResult) gateWords(wrap func(string) string) string {
+	parts := r.gateFlags()
 	if len(parts) == 0 {
 		return "no limits set"
 	}
-	s := parts[0]
-	for _, p := range parts[1:] {
-		s += ", " + p
+	for i := range parts {
+		parts[i] = wrap(parts[i])
 	}
-	return s
+	return strings.Join(parts, ", ")
 }

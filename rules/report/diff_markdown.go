@@ -33,13 +33,13 @@ func DiffMarkdown(w io.Writer, r *DiffResult) error {
 		return err
 	}
 	if len(r.Breaches) > 0 {
-		fmt.Fprintf(&b, "The gate failed (%s):\n\n", mdEscape(r.gateWords()))
+		fmt.Fprintf(&b, "The gate failed (%s):\n\n", r.gateWords(code))
 		for _, br := range r.Breaches {
 			fmt.Fprintf(&b, "- %s\n", mdEscape(br.Message))
 		}
 		b.WriteString("\n")
 	} else {
-		fmt.Fprintf(&b, "The gate passed (%s).\n\n", mdEscape(r.gateWords()))
+		fmt.Fprintf(&b, "The gate passed (%s).\n\n", r.gateWords(code))
 	}
 	if len(r.changedTables()) > 0 {
 		b.WriteString("| model | table | change | partitions | segments | fill | fixed ms per scan | scan wall ms |\n")

@@ -238,12 +238,12 @@ func DiffText(w io.Writer, r *DiffResult, useColor bool) error {
 
 	b.WriteByte('\n')
 	if r.Failed() {
-		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), r.gateWords())
+		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), r.gateWords(func(s string) string { return s }))
 		for _, br := range r.Breaches {
 			fmt.Fprintf(&b, "  %s\n", br.Message)
 		}
 	} else {
-		fmt.Fprintf(&b, "%s %s\n", green("gate passed:"), r.gateWords())
+		fmt.Fprintf(&b, "%s %s\n", green("gate passed:"), r.gateWords(func(s string) string { return s }))
 	}
 	fmt.Fprintf(&b, "%s\n%s\n", bold(d.Verdict()), r.diffSummary())
 	_, err := io.WriteString(w, b.String())
