@@ -4,6 +4,7 @@ package rules
 
 import (
 	"crypto/sha256"
+	"encoding/binary"
 	"encoding/hex"
 	"fmt"
 	"strings"
@@ -107,8 +108,9 @@ func SchemaFindings(e *schema.Error) []Finding {
 func Fingerprint(f Finding, uri string) string {
 	h := sha256.New()
 	for _, part := range []string{f.Rule, uri, f.Table, f.Subject} {
+		// Length-prefixed, so no text moved between parts can give the same bytes.
+		h.Write(binary.AppendUvarint(nil, uint64(len(part))))
 		h.Write([]byte(part))
-		h.Write([]byte{0})
 	}
 	return hex.EncodeToString(h.Sum(nil)[:16])
 }

@@ -136,12 +136,16 @@ func encodingProblem(data []byte) *Problem {
 		return &Problem{Pos: Pos{1, 1}, Message: "file is UTF-16; save it as UTF-8"}
 	}
 	body := bytes.TrimPrefix(data, []byte{0xEF, 0xBB, 0xBF})
-	if i := bytes.IndexByte(body, 0); i >= 0 || !utf8.Valid(body) {
-		line := 1 + bytes.Count(body[:max(i, 0)], []byte{'\n'})
-		if i < 0 {
-			line = 1
+	// The first NUL or invalid byte, reported at its own line and column.
+	for i := 0; i < len(body); {
+		r, size := utf8.DecodeRune(body[i:])
+		if r == 0 || (r == utf8.RuneError && size == 1) {
+			before := body[:i]
+			line := 1 + bytes.Count(before, []byte{'\n'})
+			col := 1 + utf8.RuneCount(before[bytes.LastIndexByte(before, '\n')+1:])
+			return &Problem{Pos: Pos{line, col}, Message: "file is not UTF-8 text (binary data or another encoding); a manifest is YAML or JSON in UTF-8"}
 		}
-		return &Problem{Pos: Pos{line, 1}, Message: "file is not UTF-8 text (binary data or another encoding); a manifest is YAML or JSON in UTF-8"}
+		i += size
 	}
 	return nil
 }

@@ -113,6 +113,9 @@ func (b Budgets) Override(own Budgets) Budgets {
 	if own.RefreshMemory != nil {
 		out.RefreshMemory = own.RefreshMemory
 	}
+	if own.Pos != (Pos{}) {
+		out.Pos = own.Pos // where the overriding budgets are written
+	}
 	return out
 }
 
@@ -126,8 +129,8 @@ type Table struct {
 	Columns       []Column
 	Budgets       Budgets // the table's own, not merged with the model's
 	Waivers       []Waiver
-	Pos           Pos     // the table's mapping (its first key)
-	RowsPos       Pos     // the rows value, or the table when rows is omitted
+	Pos           Pos // the table's mapping (its first key)
+	RowsPos       Pos // the rows value, or the table when rows is omitted
 }
 
 // Partitions is a table's partition policy.
