@@ -61,6 +61,11 @@ func checkBudgetForecast(t *Table) []Finding {
 	if t.Spec.GrowthPerYear == 0 && first != t.index {
 		return nil
 	}
+	// Most tables break no new budget by the end of the window: two projections settle
+	// that before the month-by-month forecast.
+	if !md.NewlyBroken(t.index, t.Spec, t.Engine.SegmentRows, advisor.ForecastMonths) {
+		return nil
+	}
 	today := t.Config.today()
 	fc, err := md.Forecast(t.index, t.Spec, t.Engine.SegmentRows, today, advisor.ForecastMonths)
 	if err != nil {

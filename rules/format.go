@@ -102,3 +102,6 @@ func Percent(f float64) string { return pct(f) }
 
 // Rows writes a count with the manifest's suffixes: 8Mi, 7.2G.
 func Rows(n int64) string { return count(n) }
+
+// Bytes writes a byte size in binary units as findings do: 1.5 GiB.
+func Bytes(b float64) string { return size(b) }

@@ -19,8 +19,11 @@ type Rule struct {
 	// Params are the thresholds a project may tune in .scangate.yaml.
 	Params []Param
 	// Check returns the rule's findings for one analysed table; nil for rules raised
-	// elsewhere (schema).
+	// elsewhere (schema) and for model-wide rules.
 	Check func(t *Table) []Finding
+	// CheckModel returns the findings of a model-wide rule, about every table of one
+	// manifest together (refresh memory); nil for per-table rules.
+	CheckModel func(ts []*Table) []Finding
 }
 
 // Param is one tunable threshold of a rule.
@@ -43,6 +46,7 @@ func All() []Rule {
 		RowCountMismatch,
 		NeedlessPartitioning,
 		PartitionCount,
+		RefreshMemory,
 	}
 	sort.Slice(all, func(i, j int) bool { return all[i].ID < all[j].ID })
 	return all
@@ -68,6 +72,19 @@ func Run(m *schema.Manifest, cfg Config) []Finding {
 // findings of every rule, sorted; reports show both.
 func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 	tables := Analyze(m, cfg)
+	// Model-wide findings are about no one table; a live waiver for the rule on any
+	// table of the model accepts them (the first such waiver counts as used).
+	var model []Finding
+	for _, r := range All() {
+		if r.CheckModel == nil || cfg.off(r.ID) {
+			continue
+		}
+		for _, f := range r.CheckModel(tables) {
+			f.Rule = r.ID
+			f.Severity = cfg.severity(r.ID, f.Severity)
+			model = append(model, f)
+		}
+	}
 	var out []Finding
 	for _, t := range tables {
 		var own []Finding
@@ -81,8 +98,17 @@ func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 				own = append(own, f)
 			}
 		}
-		out = append(out, applyWaivers(t, own, cfg)...)
+		n := len(own)
+		fs := applyWaivers(t, append(own, model...), cfg)
+		for k := range model {
+			if model[k].Waiver == nil {
+				model[k].Waiver = fs[n+k].Waiver
+			}
+		}
+		out = append(out, fs[:n]...)
+		out = append(out, fs[n+len(model):]...)
 	}
+	out = append(out, model...)
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
 	return tables, out
 }

@@ -37,7 +37,7 @@ func TestWaiverRuleEnum(t *testing.T) {
 	enum := doc["$defs"].(map[string]any)["waiver"].(map[string]any)["properties"].(map[string]any)["rule"].(map[string]any)["enum"].([]any)
 	var want []any
 	for _, r := range rules.All() {
-		if r.Check != nil {
+		if r.Check != nil || r.CheckModel != nil {
 			want = append(want, r.ID)
 		}
 	}

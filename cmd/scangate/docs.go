@@ -122,12 +122,13 @@ func newSchemaCmd() *cobra.Command {
 		"manifest": schema.ManifestSchema,
 		"config":   schema.ConfigSchema,
 		"output":   schema.OutputSchema,
+		"diff":     schema.DiffSchema,
 	}
 	return &cobra.Command{
-		Use:       "schema [manifest|config|output]",
+		Use:       "schema [manifest|config|output|diff]",
 		Short:     "Print an embedded JSON Schema (default: manifest)",
 		Args:      cobra.MaximumNArgs(1),
-		ValidArgs: []string{"manifest", "config", "output"},
+		ValidArgs: []string{"manifest", "config", "output", "diff"},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			name := "manifest"
 			if len(args) == 1 {
@@ -135,7 +136,7 @@ func newSchemaCmd() *cobra.Command {
 			}
 			get, ok := schemas[name]
 			if !ok {
-				return usageError(fmt.Errorf("unknown schema %q; use manifest, config or output", name))
+				return usageError(fmt.Errorf("unknown schema %q; use manifest, config, output or diff", name))
 			}
 			_, err := cmd.OutOrStdout().Write(get())
 			return err

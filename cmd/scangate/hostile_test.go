@@ -37,7 +37,7 @@ func TestHostileFiles(t *testing.T) {
 		file, want string
 		code       int
 	}{
-		{"binary.yaml", "binary.yaml:1:1: error: file is not UTF-8 text", 2},
+		{"binary.yaml", "binary.yaml:1:5: error: file is not UTF-8 text", 2}, // the first NUL
 		{"utf16.yaml", "utf16.yaml:1:1: error: file is UTF-16; save it as UTF-8", 2},
 		{"latin1.yaml", "latin1.yaml:2:11: error: file is not UTF-8 text", 2}, // the é of "café" in Latin-1
 		{"huge.yaml", "huge.yaml:1:1: error: file is 8388609 bytes, above the limit of 8388608", 2},

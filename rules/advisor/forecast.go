@@ -2,6 +2,7 @@ package advisor
 
 import (
 	"fmt"
+	"slices"
 	"time"
 
 	"github.com/scangate/scangate/schema"
@@ -97,6 +98,36 @@ func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, ho
 		fc.Crossings = append(fc.Crossings, c)
 	}
 	return fc, nil
+}
+
+// Breaks lists the budgets table i, laid out as spec with segments of s rows, breaks
+// after month months of growth.
+func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, error) {
+	f, err := md.Evaluate(spec, s, month)
+	if err != nil {
+		return nil, err
+	}
+	return md.missed(i, f, s, month, md.Peak(i, f, s, month)), nil
+}
+
+// NewlyBroken reports whether growth over months months breaks a budget that table i,
+// laid out as spec with segments of s rows, keeps today. The figures only grow with the
+// rows, so a budget kept at both ends is kept throughout.
+func (md *Model) NewlyBroken(i int, spec schema.Table, s int64, months int) bool {
+	now, err := md.Breaks(i, spec, s, 0)
+	if err != nil {
+		return false
+	}
+	later, err := md.Breaks(i, spec, s, months)
+	if err != nil {
+		return false
+	}
+	for _, l := range later {
+		if !slices.ContainsFunc(now, func(n Miss) bool { return n.Key == l.Key }) {
+			return true
+		}
+	}
+	return false
 }
 
 // Format writes a crossing's figure with its unit.

@@ -93,7 +93,8 @@ type Model struct {
 	profiled    bool
 	growth      bool // some table grows or shrinks
 	parallelism int
-	cache       map[figKey]*Figures // other tables' figures; a cache only, never ranged over
+	cache       map[figKey]*Figures           // other tables' figures; a cache only, never ranged over
+	parts       map[figKey][]layout.Partition // other tables' partitions by (table, month); s unused
 }
 
 type figKey struct {
@@ -104,7 +105,7 @@ type figKey struct {
 
 // NewModel prepares m for sweeps and forecasts.
 func NewModel(m *schema.Manifest) *Model {
-	md := &Model{M: m, cache: map[figKey]*Figures{}}
+	md := &Model{M: m, cache: map[figKey]*Figures{}, parts: map[figKey][]layout.Partition{}}
 	for _, t := range m.Tables {
 		md.rowBytes = max(md.rowBytes, layout.RowBytes(t.Columns))
 		md.profiled = md.profiled || len(t.Columns) > 0
@@ -135,17 +136,24 @@ func (md *Model) Evaluate(spec schema.Table, s int64, month int) (Figures, error
 	if err != nil {
 		return Figures{}, err
 	}
+	return md.figures(spec, parts, s), nil
+}
+
+// figures lays out partitions already expanded from spec.
+func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) Figures {
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	e := md.engineAt(s)
 	best := -1.0
 	for _, c := range spec.Columns {
+		// The scan reads every byte of the column, so its bytes are the column's encoded
+		// size (layout.TableBytes sums the same figure).
 		sc := layout.ScanColumn(c, spec.Rows, parts, e)
 		if sc.Bytes > best {
 			best, f.Widest, f.WallMs = sc.Bytes, c.Name, sc.WallMs
 		}
-		f.Bytes += layout.ColumnBytes(c, parts, s)
+		f.Bytes += sc.Bytes
 	}
-	return f, nil
+	return f
 }
 
 // other is the cached figures of table j as the manifest has it; nil when it cannot be
@@ -156,7 +164,15 @@ func (md *Model) other(j int, s int64, month int) *Figures {
 		return f
 	}
 	var fp *Figures
-	if f, err := md.Evaluate(md.M.Tables[j], s, month); err == nil {
+	pk := figKey{j, 0, month}
+	parts, ok := md.parts[pk]
+	spec := Grow(md.M.Tables[j], month)
+	if !ok {
+		parts, _ = layout.Expand(spec) // nil when it cannot be expanded
+		md.parts[pk] = parts
+	}
+	if parts != nil {
+		f := md.figures(spec, parts, s)
 		fp = &f
 	}
 	md.cache[k] = fp
@@ -183,23 +199,37 @@ func (md *Model) Budgets(i int) schema.Budgets {
 	return md.M.Budgets.Override(md.M.Tables[i].Budgets)
 }
 
-// misses lists the budgets table i breaks when laid out as f with segments of s rows in
-// month months and the model's refresh peaks at peak. With another segment capacity
-// than today's, a table of the model that fits its scan budgets today must still fit.
+// Miss is one budget a layout breaks: the budget's key (scan_overhead_ms, scan_ms,
+// engine.memory, refresh_memory, or "table NAME" for another table of the model a new
+// segment size pushes over its scan budgets) and the words a plan prints.
+type Miss struct{ Key, Text string }
+
+// misses lists, as words, the budgets table i breaks when laid out as f with segments
+// of s rows in month months and the model's refresh peaks at peak.
 func (md *Model) misses(i int, f Figures, s int64, month int, peak float64) []string {
 	var out []string
+	for _, m := range md.missed(i, f, s, month, peak) {
+		out = append(out, m.Text)
+	}
+	return out
+}
+
+// missed lists the budgets table i breaks. With another segment capacity than today's,
+// a table of the model that fits its scan budgets today must still fit.
+func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Miss {
+	var out []Miss
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
-		out = append(out, fmt.Sprintf("scan overhead %s ms > %s ms", Ms(f.Layout.FixedMs), Ms(*b.ScanOverheadMs)))
+		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", Ms(f.Layout.FixedMs), Ms(*b.ScanOverheadMs))})
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
-		out = append(out, fmt.Sprintf("scan time %s ms > %s ms", Ms(f.WallMs), Ms(*b.ScanMs)))
+		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", Ms(f.WallMs), Ms(*b.ScanMs))})
 	}
 	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
-		out = append(out, fmt.Sprintf("refresh peak %s > engine memory %s", Size(peak), Size(float64(mem))))
+		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", Size(peak), Size(float64(mem)))})
 	}
 	if b.RefreshMemory != nil && md.profiled && peak > float64(*b.RefreshMemory) {
-		out = append(out, fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(float64(*b.RefreshMemory))))
+		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(float64(*b.RefreshMemory)))})
 	}
 	if s != md.M.Engine.SegmentRows {
 		for j, t := range md.M.Tables {
@@ -211,7 +241,7 @@ func (md *Model) misses(i int, f Figures, s int64, month int, peak float64) []st
 				continue
 			}
 			if fitsScan(md.Budgets(j), *now) && !fitsScan(md.Budgets(j), *then) {
-				out = append(out, fmt.Sprintf("table %s over its scan budgets", t.Name))
+				out = append(out, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)})
 			}
 		}
 	}
@@ -263,9 +293,20 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	today := md.M.Engine.SegmentRows
 	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
 	order := 0
+	// A policy expands to the same partitions at every capacity: expand it once.
+	expanded := map[string][]layout.Partition{} // by the variant's change; a cache only
+	expandedLater := map[string][]layout.Partition{}
 	for _, s := range md.capacities(set) {
 		vs := append([]Variant{{Spec: spec}}, Variants(spec, s)...)
 		for _, v := range vs {
+			parts, ok := expanded[v.Change]
+			if !ok {
+				parts, _ = layout.Expand(v.Spec)
+				expanded[v.Change] = parts
+			}
+			if parts == nil {
+				continue // more partitions than the format allows
+			}
 			c := Candidate{Change: v.Change, Label: Label(v.Spec.Partitions), Spec: v.Spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
 			order++
@@ -282,10 +323,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			f, err := md.Evaluate(v.Spec, s, 0)
-			if err != nil {
-				continue
-			}
+			f := md.figures(v.Spec, parts, s)
 			c.Figures = f
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
@@ -295,7 +333,14 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					if g, err := md.Evaluate(v.Spec, s, ForecastMonths); err == nil {
+					grown := Grow(v.Spec, ForecastMonths)
+					later, ok := expandedLater[v.Change]
+					if !ok {
+						later, _ = layout.Expand(grown)
+						expandedLater[v.Change] = later
+					}
+					if later != nil {
+						g := md.figures(grown, later, s)
 						if miss := md.misses(i, g, s, ForecastMonths, md.Peak(i, g, s, ForecastMonths)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", ForecastMonths, miss[0]))
 						}

@@ -11,6 +11,7 @@ import (
 	"sort"
 
 	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/rules/layout"
 )
 
 // File is one checked manifest on one side of a change.
@@ -88,10 +89,11 @@ func (f *Figures) equal(g *Figures) bool {
 	if f == nil || g == nil {
 		return f == g
 	}
-	same := func(a, b *float64) bool { return (a == nil && b == nil) || (a != nil && b != nil && *a == *b) }
 	return f.Rows == g.Rows && f.Partitions == g.Partitions && f.Segments == g.Segments &&
-		f.Fill == g.Fill && f.FixedMs == g.FixedMs && same(f.ScanWallMs, g.ScanWallMs)
+		f.Fill == g.Fill && f.FixedMs == g.FixedMs && sameFloat(f.ScanWallMs, g.ScanWallMs)
 }
+
+func sameFloat(a, b *float64) bool { return (a == nil && b == nil) || (a != nil && b != nil && *a == *b) }
 
 // TableChange is one table before and after; Before is nil for an added table, After
 // for a removed one.
@@ -132,6 +134,9 @@ type Totals struct {
 	Partitions int
 	Segments   int64
 	FixedMs    float64
+	// RefreshBytes is the model's memory at the peak of a full refresh, nil when no
+	// table has column profiles. The peak belongs to the model, not to a table.
+	RefreshBytes *float64
 }
 
 // ModelChange is one model: its tables, and its totals before and after (nil on the
@@ -371,9 +376,11 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		m := models[name]
 		if inBase[name] {
 			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
+			m.Before.RefreshBytes = refreshPeak(tablesOf(base, name))
 		}
 		if inHead[name] {
 			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
+			m.After.RefreshBytes = refreshPeak(tablesOf(head, name))
 		}
 		switch {
 		case m.Before == nil:
@@ -382,6 +389,9 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			m.Status = Removed
 		default:
 			m.Status = Unchanged
+			if !sameFloat(m.Before.RefreshBytes, m.After.RefreshBytes) {
+				m.Status = Changed // refresh_parallelism alone moves the peak
+			}
 			for _, t := range m.Tables {
 				if t.Status != Unchanged {
 					m.Status = Changed
@@ -391,6 +401,43 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		out = append(out, *m)
 	}
 	return out
+}
+
+// tablesOf lists the tables of a model on one side.
+func tablesOf(files []File, model string) []*rules.Table {
+	var out []*rules.Table
+	for _, f := range files {
+		if f.Model == model {
+			out = append(out, f.Tables...)
+		}
+	}
+	return out
+}
+
+// refreshPeak is the model's refresh peak as the refresh-memory rule states it
+// (layout.RefreshPeak): 2 x the encoded size of every profiled column + the partitions
+// refreshed at once x segment_rows x the widest uncompressed row. nil without profiles.
+func refreshPeak(ts []*rules.Table) *float64 {
+	var bytes, row float64
+	profiled := false
+	for _, t := range ts {
+		if len(t.Spec.Columns) == 0 {
+			continue
+		}
+		profiled = true
+		bytes += layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows)
+		row = max(row, layout.RowBytes(t.Spec.Columns))
+	}
+	if !profiled {
+		return nil
+	}
+	e := ts[0].Engine
+	parallelism := e.RefreshParallelism
+	if parallelism < 1 {
+		parallelism = max(e.Cores, 1)
+	}
+	peak := layout.RefreshPeak(bytes, parallelism, e.SegmentRows, row)
+	return &peak
 }
 
 func totals(tables []TableChange, side func(TableChange) *Figures) *Totals {

@@ -17,11 +17,18 @@ func RowBytes(cols []schema.Column) float64 {
 }
 
 // TableBytes is the encoded size of a table's profiled columns laid out in parts with
-// segments of segmentRows rows: the sum of their ColumnBytes. 0 without profiles.
-func TableBytes(cols []schema.Column, parts []Partition, segmentRows int64) float64 {
+// segments of segmentRows rows: the sum of the bytes a full scan of each reads
+// (tableRows as ScanColumn takes it, 0 for the sum of the parts). 0 without profiles.
+func TableBytes(cols []schema.Column, tableRows int64, parts []Partition, segmentRows int64) float64 {
+	if tableRows <= 0 {
+		for _, p := range parts {
+			tableRows = satAdd(tableRows, max(p.Rows, 0))
+		}
+	}
 	var b float64
 	for _, c := range cols {
-		b += ColumnBytes(c, parts, segmentRows)
+		x, _ := columnBytes(c, tableRows, parts, segmentRows, nil)
+		b += x
 	}
 	return b
 }

@@ -24,8 +24,18 @@ func TestTableBytes(t *testing.T) {
 	// of 32,000 and 4,000 bytes: 36,000 bytes whatever the segments.
 	parts := []Partition{{Rows: 2500}, {Rows: 1500}}
 	cols := []schema.Column{{Type: "int64", EncodedBytes: 32000}, {Type: "bool", EncodedBytes: 4000}}
-	if got := TableBytes(cols, parts, 1000); math.Abs(got-36000) > 1e-9 {
+	if got := TableBytes(cols, 0, parts, 1000); math.Abs(got-36000) > 1e-9 {
 		t.Errorf("TableBytes = %v, want 36000", got)
+	}
+	// The same bytes a full scan of each column reads.
+	e := schema.Engine{SegmentRows: 1000, Cores: 8, ScanMBPerS: 200}
+	cols = append(cols, schema.Column{Type: "string", AvgLength: 9, Distinct: 700}, schema.Column{Type: "date", Distinct: 30, Order: schema.Clustered})
+	var scanned float64
+	for _, c := range cols {
+		scanned += ScanColumn(c, 4000, parts, e).Bytes
+	}
+	if got := TableBytes(cols, 4000, parts, 1000); got != scanned {
+		t.Errorf("TableBytes = %v, the scans read %v", got, scanned)
 	}
 }
 

@@ -86,17 +86,19 @@ type jsonModelChange struct {
 }
 
 type jsonTotals struct {
-	Tables          int     `json:"tables"`
-	Partitions      int     `json:"partitions"`
-	Segments        int64   `json:"segments"`
-	FixedOverheadMs float64 `json:"fixed_overhead_ms"`
+	Tables           int      `json:"tables"`
+	Partitions       int      `json:"partitions"`
+	Segments         int64    `json:"segments"`
+	FixedOverheadMs  float64  `json:"fixed_overhead_ms"`
+	RefreshPeakBytes *float64 `json:"refresh_peak_bytes,omitempty"`
 }
 
 type jsonTotalsDelta struct {
-	Tables          int     `json:"tables"`
-	Partitions      int     `json:"partitions"`
-	Segments        int64   `json:"segments"`
-	FixedOverheadMs float64 `json:"fixed_overhead_ms"`
+	Tables           int      `json:"tables"`
+	Partitions       int      `json:"partitions"`
+	Segments         int64    `json:"segments"`
+	FixedOverheadMs  float64  `json:"fixed_overhead_ms"`
+	RefreshPeakBytes *float64 `json:"refresh_peak_bytes,omitempty"`
 }
 
 type jsonTableChange struct {
@@ -203,6 +205,18 @@ func DiffJSON(w io.Writer, r *DiffResult) error {
 			Tables: a.Tables - b.Tables, Partitions: a.Partitions - b.Partitions,
 			Segments: a.Segments - b.Segments, FixedOverheadMs: round(a.FixedMs - b.FixedMs),
 		}
+		// A refresh delta needs the peak on every side that has the model.
+		if (m.Before == nil || m.Before.RefreshBytes != nil) && (m.After == nil || m.After.RefreshBytes != nil) && (m.Before != nil || m.After != nil) {
+			var pb, pa float64
+			if m.Before != nil {
+				pb = *m.Before.RefreshBytes
+			}
+			if m.After != nil {
+				pa = *m.After.RefreshBytes
+			}
+			d := round(pa - pb)
+			jm.Delta.RefreshPeakBytes = &d
+		}
 		for _, t := range m.Tables {
 			jm.Tables = append(jm.Tables, tableChangeJSON(t))
 			doc.Summary.AddedSegments += t.AddedSegments()
@@ -228,7 +242,12 @@ func totalsJSON(t *change.Totals) *jsonTotals {
 	if t == nil {
 		return nil
 	}
-	return &jsonTotals{Tables: t.Tables, Partitions: t.Partitions, Segments: t.Segments, FixedOverheadMs: round(t.FixedMs)}
+	jt := &jsonTotals{Tables: t.Tables, Partitions: t.Partitions, Segments: t.Segments, FixedOverheadMs: round(t.FixedMs)}
+	if t.RefreshBytes != nil {
+		v := round(*t.RefreshBytes)
+		jt.RefreshPeakBytes = &v
+	}
+	return jt
 }
 
 func figuresJSON(f *change.Figures) *jsonFigures {

@@ -32,6 +32,12 @@ func DiffMarkdown(w io.Writer, r *DiffResult) error {
 		_, err := io.WriteString(w, b.String())
 		return err
 	}
+	if files := fileLines(d); len(files) > 0 {
+		for _, l := range files {
+			fmt.Fprintf(&b, "- %s\n", mdEscape(l))
+		}
+		b.WriteString("\n")
+	}
 	if len(r.Breaches) > 0 {
 		fmt.Fprintf(&b, "The gate failed (%s):\n\n", r.gateWords(code))
 		for _, br := range r.Breaches {
@@ -63,6 +69,12 @@ func DiffMarkdown(w io.Writer, r *DiffResult) error {
 				code(m.Name), m.Status, cell(tm[1]), cell(tm[2]), none, cell(tm[3]), none)
 		}
 		b.WriteString("\n")
+		// The refresh peak is the model's, so it gets a line of its own under the table.
+		for _, m := range d.Models {
+			if x, ok := refreshMetric(m); ok && m.Status != change.Unchanged {
+				fmt.Fprintf(&b, "Refresh peak of %s: %s.\n\n", code(m.Name), cell(x))
+			}
+		}
 	}
 	section := func(title string, fs []change.FindingChange, hints bool, suffix func(change.FindingChange) string) {
 		if len(fs) == 0 {

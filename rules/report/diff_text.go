@@ -69,12 +69,54 @@ func totalMetrics(m change.ModelChange) []metric {
 		}
 		return s
 	}
-	return []metric{
+	out := []metric{
 		{"tables", side(m.Before, count(int64(b.Tables))), side(m.After, count(int64(a.Tables))), signedCount(int64(a.Tables - b.Tables)), 0},
 		{"partitions", side(m.Before, count(int64(b.Partitions))), side(m.After, count(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
 		{"segments", side(m.Before, count(b.Segments)), side(m.After, count(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
 		{"fixed ms per scan", side(m.Before, rules.Millis(b.FixedMs)), side(m.After, rules.Millis(a.FixedMs)), signedMs(a.FixedMs - b.FixedMs), sign(change.Round(a.FixedMs - b.FixedMs))},
 	}
+	if r, ok := refreshMetric(m); ok {
+		out = append(out, r)
+	}
+	return out
+}
+
+// refreshMetric is the model's refresh peak before and after; ok is false when neither
+// side has column profiles. The delta needs the peak on every side that has the model.
+func refreshMetric(m change.ModelChange) (metric, bool) {
+	peak := func(t *change.Totals) *float64 {
+		if t == nil {
+			return nil
+		}
+		return t.RefreshBytes
+	}
+	pb, pa := peak(m.Before), peak(m.After)
+	if pb == nil && pa == nil {
+		return metric{}, false
+	}
+	x := metric{name: "refresh peak", before: none, after: none, delta: none}
+	var b, a float64
+	if pb != nil {
+		b, x.before = *pb, rules.Bytes(*pb)
+	}
+	if pa != nil {
+		a, x.after = *pa, rules.Bytes(*pa)
+	}
+	if (m.Before == nil || pb != nil) && (m.After == nil || pa != nil) {
+		x.delta, x.worse = signedBytes(a-b), sign(change.Round(a-b))
+	}
+	return x, true
+}
+
+// signedBytes writes a change of bytes with its sign: +1.2 GiB, -300 MiB, 0.
+func signedBytes(d float64) string {
+	switch {
+	case change.Round(d) > 0:
+		return "+" + rules.Bytes(d)
+	case change.Round(d) < 0:
+		return "-" + rules.Bytes(-d)
+	}
+	return "0"
 }
 
 func count(n int64) string { return rules.Thousands(n) }
@@ -174,6 +216,13 @@ func DiffText(w io.Writer, r *DiffResult, useColor bool) error {
 		return err
 	}
 
+	if files := fileLines(d); len(files) > 0 {
+		b.WriteByte('\n')
+		for _, l := range files {
+			fmt.Fprintf(&b, "%s\n", l)
+		}
+	}
+
 	// Every block shares one set of column widths, so the figures line up down the page.
 	type block struct {
 		title   string
@@ -262,6 +311,23 @@ func filesWords(t change.TableChange) string {
 		return ", " + t.BaseFile + " -> " + t.HeadFile
 	}
 	return ", in " + t.HeadFile
+}
+
+// fileLines says which files were added, removed or renamed, by repository path:
+// "file renamed: a.yaml -> b.yaml (model sales)". Files kept at their path are left out.
+func fileLines(d *change.Diff) []string {
+	var out []string
+	for _, f := range d.Files {
+		switch f.Status {
+		case change.FileAdded:
+			out = append(out, fmt.Sprintf("file added: %s (model %s)", f.Head.Key, f.Model))
+		case change.FileRemoved:
+			out = append(out, fmt.Sprintf("file removed: %s (model %s)", f.Base.Key, f.Model))
+		case change.FileRenamed:
+			out = append(out, fmt.Sprintf("file renamed: %s -> %s (model %s)", f.Base.Key, f.Head.Key, f.Model))
+		}
+	}
+	return out
 }
 
 // worsened are the unchanged findings whose severity rose.
