@@ -436,17 +436,16 @@ func TestLoadEncodings(t *testing.T) {
 	oneProblem(t, le, 1, 1, "UTF-16; save it as UTF-8")
 	oneProblem(t, be, 1, 1, "UTF-16; save it as UTF-8")
 	// Without a byte order mark UTF-16 is full of NUL bytes: not text.
-	oneProblem(t, le[2:], 1, 1, "not UTF-8 text")
+	oneProblem(t, le[2:], 1, 2, "not UTF-8 text") // the NUL after the first letter
 
 	garbage := []byte{0x7F, 'E', 'L', 'F', 2, 1, 1, 0, 0, 0, 0xFF, 0xFE, 0x80, '\n', 0}
-	oneProblem(t, garbage, 1, 1, "not UTF-8 text")
-	// A NUL byte further down is reported on its own line.
-	oneProblem(t, []byte("format: 1\nmodel: m\nengine:\x00\n"), 3, 1, "not UTF-8 text")
+	oneProblem(t, garbage, 1, 8, "not UTF-8 text") // the first NUL, the 8th byte
+	// A NUL byte further down is reported at its own line and column.
+	oneProblem(t, []byte("format: 1\nmodel: m\nengine:\x00\n"), 3, 8, "not UTF-8 text")
 
-	// Invalid UTF-8 (a Latin-1 byte) anywhere refuses the file with one problem; it is on
-	// line 1 or on the line of the byte.
+	// Invalid UTF-8 (a Latin-1 byte) refuses the file with one problem at that byte.
 	ps := problems(t, []byte("format: 1\nmodel: caf\xe9\nengine: {segment_rows: 1M}\n"), schema.DefaultLimits)
-	if len(ps) != 1 || !strings.Contains(ps[0].Message, "not UTF-8 text") || (ps[0].Pos.Line != 1 && ps[0].Pos.Line != 2) || ps[0].Pos.Col != 1 {
+	if len(ps) != 1 || !strings.Contains(ps[0].Message, "not UTF-8 text") || ps[0].Pos != (schema.Pos{Line: 2, Col: 11}) {
 		t.Errorf("invalid UTF-8: %v", ps)
 	}
 }

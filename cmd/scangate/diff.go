@@ -157,16 +157,18 @@ type keyedInput struct {
 type sideInputs struct {
 	label  string
 	inputs []keyedInput
+	seen   map[string]bool
 }
 
 // add appends in unless a file with its key is already there (overlapping PATHs).
 func (s *sideInputs) add(in input, key string) {
-	for _, x := range s.inputs {
-		if x.key == key {
-			return
-		}
+	if s.seen == nil {
+		s.seen = map[string]bool{}
 	}
-	s.inputs = append(s.inputs, keyedInput{in, key})
+	if !s.seen[key] {
+		s.seen[key] = true
+		s.inputs = append(s.inputs, keyedInput{in, key})
+	}
 }
 
 // checkSide loads and checks one side as check does and keys its files.

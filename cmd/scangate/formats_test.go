@@ -146,7 +146,9 @@ func TestSARIFResults(t *testing.T) {
 	r := scangate(t, root(t), "", nil, "check", "--format", "sarif", "testdata/demo")
 	var log struct {
 		Runs []struct {
-			Tool    struct{ Driver struct{ Rules []struct{ ID string } } }
+			Tool struct {
+				Driver struct{ Rules []struct{ ID string } }
+			}
 			Results []struct {
 				RuleID              string
 				RuleIndex           int
@@ -158,7 +160,7 @@ func TestSARIFResults(t *testing.T) {
 							URI       string `json:"uri"`
 							URIBaseID string `json:"uriBaseId"`
 						}
-						Region           struct{ StartLine, StartColumn int }
+						Region struct{ StartLine, StartColumn int }
 					}
 				}
 			}
@@ -200,7 +202,9 @@ func TestFingerprintsIgnoreLineMoves(t *testing.T) {
 			t.Fatal(err)
 		}
 		r := scangate(t, dir, "", nil, "check", "--format", "json", "m.yaml")
-		var doc struct{ Findings []struct{ Fingerprint string } }
+		var doc struct {
+			Findings []struct{ Fingerprint string }
+		}
 		if err := json.Unmarshal([]byte(r.stdout), &doc); err != nil {
 			t.Fatal(err)
 		}

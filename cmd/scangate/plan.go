@@ -172,13 +172,15 @@ type tablePlan struct {
 	rec      *advisor.Forecast // the recommended (or closest) layout, when it differs
 	holds    *advisor.Candidate
 	problems string // why the table could not be laid out, if it could not
+
+	refreshBudget *float64 // the model's refresh-memory budget in bytes
 }
 
 func makePlans(m *schema.Manifest, idx []int, opt planOptions) []tablePlan {
 	md := advisor.NewModel(m)
 	var out []tablePlan
 	for _, i := range idx {
-		p := tablePlan{index: i, spec: m.Tables[i], sweep: md.Sweep(i, opt.set)}
+		p := tablePlan{index: i, spec: m.Tables[i], sweep: md.Sweep(i, opt.set), refreshBudget: md.RefreshBudget()}
 		if p.sweep.Today < 0 {
 			p.problems = "its partitions cannot be laid out"
 			out = append(out, p)

@@ -79,8 +79,8 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOpt
 			name = "refresh peak (others)" // this table's own size is unknown without profiles
 		}
 		row(name, size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
-		if budgets.RefreshMemory != nil {
-			row("", "", "budget", bytesLimit(*budgets.RefreshMemory), now.Peak)
+		if p.refreshBudget != nil {
+			row("", "", "budget", p.refreshBudget, now.Peak)
 		}
 	}
 	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)

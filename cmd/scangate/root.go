@@ -25,6 +25,7 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.AddCommand(newCheck(), newVersion(), newBaseline(), newRules(), newExplain(), newSchemaCmd(), newInit())
 	root.AddCommand(newPlan())
 	root.AddCommand(newDiff())
+	root.AddCommand(newCalibrate())
 	return root
 }
 

@@ -325,3 +325,83 @@ func TestSweepDeterministic(t *testing.T) {
 		}
 	}
 }
+
+// The refresh peak is the model's, so its budget is the strictest any table answers
+// to: the same 80,000 and 96,000 bytes as above against a table's own 85,000 bytes.
+func TestRefreshBudgetIsTheModels(t *testing.T) {
+	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000, refresh_parallelism: 2}\nbudgets: {refresh_memory: 1MB}\n"+
+		"tables:\n"+
+		"  - {name: t, rows: 4000, partitions: {scheme: none}, columns: [{name: c, type: int64, encoded_bytes: 32000}]}\n"+
+		"  - {name: u, rows: 10, partitions: {scheme: none}, budgets: {refresh_memory: 85000}}\n")
+	md := NewModel(m)
+	if b := md.RefreshBudget(); b == nil || *b != 85000 {
+		t.Fatalf("refresh budget %v, want 85,000", b)
+	}
+	sw := md.Sweep(0, Settings{Capacities: []int64{2000}})
+	small, large := find(t, sw, 1000, "none"), find(t, sw, 2000, "none")
+	if !small.Fits || large.Fits || len(large.Misses) != 1 || !strings.Contains(large.Misses[0], "refresh peak 93.8 KiB > budget 83 KiB") {
+		t.Errorf("1,000 rows fits %v; 2,000 rows fits %v, misses %v", small.Fits, large.Fits, large.Misses)
+	}
+}
+
+// Random tables of every scheme, up to the format's limits, sweep and forecast without
+// a panic, with finite figures, and the recommendation, when there is one, fits.
+func TestSweepRandomTables(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 11))
+	start := time.Date(2026, 1, 31, 0, 0, 0, 0, time.UTC)
+	types := []string{"int64", "float64", "decimal", "string", "bool", "date", "datetime"}
+	for trial := range 60 {
+		rows := 1 + r.Int64N(schema.MaxCount)
+		if r.IntN(2) == 0 {
+			rows = 1 + r.Int64N(1e9)
+		}
+		spec := schema.Table{Name: "t", Rows: rows, RowsDeclared: true, GrowthPerYear: []float64{0, 0.15, 3, -0.5}[r.IntN(4)]}
+		switch r.IntN(4) {
+		case 0:
+			spec.Partitions = schema.Partitions{Scheme: schema.SchemeNone}
+		case 1:
+			spec.Partitions = schema.Partitions{Scheme: schema.SchemeEven, Count: 1 + r.IntN(600)}
+		case 2:
+			var tiers []schema.Tier
+			for g := r.IntN(3); g < 5; g += 1 + r.IntN(3) {
+				tiers = append(tiers, schema.Tier{Grain: schema.Grains[g], Keep: 1 + r.IntN(400)})
+			}
+			spec.Partitions = schema.Partitions{Scheme: schema.SchemeTime, Tiers: tiers}
+		default:
+			n := 1 + r.IntN(30)
+			spec.Rows, spec.RowsDeclared = 0, false
+			for k := range n {
+				it := schema.Item{Name: fmt.Sprint(k), Rows: r.Int64N(schema.MaxCount / 30)}
+				spec.Rows += it.Rows
+				spec.Partitions.Items = append(spec.Partitions.Items, it)
+			}
+			spec.Partitions.Scheme = schema.SchemeList
+		}
+		for range r.IntN(3) {
+			spec.Columns = append(spec.Columns, schema.Column{Name: "c", Type: types[r.IntN(len(types))], AvgLength: 10, Distinct: r.Int64N(1e9)})
+		}
+		overhead, scan := 1+r.Float64()*1000, 1+r.Float64()*1e5
+		m := &schema.Manifest{File: "f", Engine: schema.Engine{SegmentRows: 1 + r.Int64N(1<<26), Cores: 1 + r.IntN(64), SegmentOverheadMs: 1.5,
+			ScanMBPerS: 200, Memory: r.Int64N(1 << 40), RefreshParallelism: r.IntN(16)},
+			Budgets: schema.Budgets{ScanOverheadMs: &overhead, ScanMs: &scan}, Tables: []schema.Table{spec}}
+		md := NewModel(m)
+		sw := md.Sweep(0, Settings{FixedSegmentRows: r.IntN(3) == 0})
+		if sw.Today < 0 {
+			t.Fatalf("trial %d: today's layout missing", trial)
+		}
+		for _, c := range sw.Candidates {
+			for _, v := range []float64{c.Layout.FixedMs, c.WallMs, c.Peak, c.Bytes} {
+				if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+					t.Fatalf("trial %d: %q has a figure %v", trial, c.Change, v)
+				}
+			}
+		}
+		if c, fits, ok := sw.Pick(); ok && fits && (!c.Fits || c.Locked) {
+			t.Fatalf("trial %d: recommended %q does not fit or is locked", trial, c.Change)
+		}
+		fc, err := md.Forecast(0, spec, m.Engine.SegmentRows, start, 6)
+		if err != nil || len(fc.Months) != 7 {
+			t.Fatalf("trial %d: forecast %v, %v", trial, fc, err)
+		}
+	}
+}

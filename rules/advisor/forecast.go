@@ -76,8 +76,8 @@ func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, ho
 		figs = append(figs, figure{"scan_ms", "scan-time budget", "ms", *b.ScanMs, func(p Projection) float64 { return p.WallMs }, false})
 	}
 	if md.profiled {
-		if b.RefreshMemory != nil {
-			figs = append(figs, figure{"refresh_memory", "refresh-memory budget", "bytes", float64(*b.RefreshMemory), func(p Projection) float64 { return p.Peak }, true})
+		if md.refresh != nil {
+			figs = append(figs, figure{"refresh_memory", "refresh-memory budget", "bytes", *md.refresh, func(p Projection) float64 { return p.Peak }, true})
 		}
 		if mem := md.M.Engine.Memory; mem > 0 {
 			figs = append(figs, figure{"engine.memory", "engine memory", "bytes", float64(mem), func(p Projection) float64 { return p.Peak }, true})

@@ -93,6 +93,7 @@ type Model struct {
 	profiled    bool
 	growth      bool // some table grows or shrinks
 	parallelism int
+	refresh     *float64                      // the refresh-memory budget: the strictest any table answers to
 	cache       map[figKey]*Figures           // other tables' figures; a cache only, never ranged over
 	parts       map[figKey][]layout.Partition // other tables' partitions by (table, month); s unused
 }
@@ -106,7 +107,13 @@ type figKey struct {
 // NewModel prepares m for sweeps and forecasts.
 func NewModel(m *schema.Manifest) *Model {
 	md := &Model{M: m, cache: map[figKey]*Figures{}, parts: map[figKey][]layout.Partition{}}
-	for _, t := range m.Tables {
+	for i, t := range m.Tables {
+		// The refresh peak is the model's, so its budget is the strictest of the tables'
+		// (as the refresh-memory rule reads it).
+		if b := md.Budgets(i).RefreshMemory; b != nil && (md.refresh == nil || float64(*b) < *md.refresh) {
+			v := float64(*b)
+			md.refresh = &v
+		}
 		md.rowBytes = max(md.rowBytes, layout.RowBytes(t.Columns))
 		md.profiled = md.profiled || len(t.Columns) > 0
 		md.growth = md.growth || t.GrowthPerYear != 0
@@ -117,6 +124,9 @@ func NewModel(m *schema.Manifest) *Model {
 	}
 	return md
 }
+
+// RefreshBudget is the model's refresh-memory budget in bytes, nil when none is set.
+func (md *Model) RefreshBudget() *float64 { return md.refresh }
 
 // Profiled reports whether any table of the model has column profiles, without which
 // scan time and refresh memory are not estimated.
@@ -228,8 +238,8 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
 		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", Size(peak), Size(float64(mem)))})
 	}
-	if b.RefreshMemory != nil && md.profiled && peak > float64(*b.RefreshMemory) {
-		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(float64(*b.RefreshMemory)))})
+	if md.refresh != nil && md.profiled && peak > *md.refresh {
+		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(*md.refresh))})
 	}
 	if s != md.M.Engine.SegmentRows {
 		for j, t := range md.M.Tables {

@@ -93,7 +93,9 @@ func (f *Figures) equal(g *Figures) bool {
 		f.Fill == g.Fill && f.FixedMs == g.FixedMs && sameFloat(f.ScanWallMs, g.ScanWallMs)
 }
 
-func sameFloat(a, b *float64) bool { return (a == nil && b == nil) || (a != nil && b != nil && *a == *b) }
+func sameFloat(a, b *float64) bool {
+	return (a == nil && b == nil) || (a != nil && b != nil && *a == *b)
+}
 
 // TableChange is one table before and after; Before is nil for an added table, After
 // for a removed one.

@@ -38,7 +38,7 @@ type junitFailure struct {
 	Text    string `xml:",chardata"`
 }
 
-// JUnit writes JUnit XML: a test suite per manifest, a test case per table, and a
+// JUnit writes JUnit XML with a test suite per manifest, a test case per table, and a
 // failure per finding at or above the failing level. An invalid manifest is one case,
 // "schema", with a failure per problem.
 func JUnit(w io.Writer, r *Result) error {
