@@ -606,3 +606,39 @@ func TestREADMESection(t *testing.T) {
 		t.Errorf("the hook snippet names %q; .pre-commit-hooks.yaml defines %v", pc.Repos[0].Hooks[0].ID, hooks)
 	}
 }
+
+// TestExampleWorkflow: the workflow users copy runs on pull requests with the history
+// diff-base needs, the permissions the SARIF upload needs, and the action's inputs.
+func TestExampleWorkflow(t *testing.T) {
+	var wf struct {
+		On          map[string]any
+		Permissions map[string]string
+		Jobs        map[string]struct {
+			Steps []struct {
+				Uses string
+				With map[string]any
+			}
+		}
+	}
+	readYAML(t, filepath.Join(root, ".github", "workflows", "example.yml"), &wf)
+	if _, ok := wf.On["pull_request"]; !ok {
+		t.Error("example.yml does not run on pull_request")
+	}
+	if wf.Permissions["contents"] != "read" || wf.Permissions["security-events"] != "write" {
+		t.Errorf("example.yml permissions %v, want contents read and security-events write", wf.Permissions)
+	}
+	var checkout, action bool
+	for _, job := range wf.Jobs {
+		for _, s := range job.Steps {
+			switch {
+			case strings.HasPrefix(s.Uses, "actions/checkout@"):
+				checkout = s.With["fetch-depth"] == 0
+			case s.Uses == "./action":
+				action = s.With["paths"] != nil && s.With["diff-base"] == "origin/${{ github.base_ref }}" && s.With["upload-sarif"] == true
+			}
+		}
+	}
+	if !checkout || !action {
+		t.Errorf("example.yml: checkout with fetch-depth 0 %v, ./action with paths, diff-base and upload-sarif %v; want both", checkout, action)
+	}
+}

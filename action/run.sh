@@ -46,6 +46,9 @@ case "$sarif" in
 *$'\n'* | *$'\r'*) fail "input sarif-file must not hold a line break" ;; # it becomes an output line
 esac
 command -v "$bin" >/dev/null 2>&1 || fail "cannot run '$bin'; install scangate or set SCANGATE_BIN"
+case "$bin" in
+*/*) bin="$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")" ;; # still found after the cd below
+esac
 
 # Paths resolve against the repository checkout, as the annotations and SARIF expect.
 if [ -n "${GITHUB_WORKSPACE:-}" ]; then
@@ -109,7 +112,7 @@ fi
 # count KEY reads summary.KEY from the JSON report. It relies on the report's stable
 # layout: pretty-printed with two spaces per level and one key per line, so the
 # top-level "summary" object spans from `  "summary": {` to the next `  }` and its
-# counts sit at four spaces. action/action_test.go checks the numbers against a JSON
+# counts sit at four spaces. action/run_test.go checks the numbers against a JSON
 # parser, so a change of layout fails the tests, not the pipelines.
 count() {
   sed -n '/^  "summary": {$/,/^  }/s/^    "'"$1"'": \([0-9][0-9]*\),\{0,1\}$/\1/p' "$report"

@@ -24,6 +24,7 @@ type runner struct {
 	output    string // GITHUB_OUTPUT; "" runs without it
 	summary   string // GITHUB_STEP_SUMMARY; "" runs without it
 	env       []string
+	dir       string // where the script starts; a new directory when ""
 }
 
 type result struct {
@@ -77,7 +78,10 @@ func cleanEnv() []string {
 func (r *runner) run(inputs map[string]string) result {
 	r.t.Helper()
 	cmd := exec.Command("bash", filepath.Join(root, "action", "run.sh"))
-	cmd.Dir = r.t.TempDir()
+	cmd.Dir = r.dir
+	if cmd.Dir == "" {
+		cmd.Dir = r.t.TempDir()
+	}
 	cmd.Env = append(cleanEnv(), r.env...)
 	for name, v := range inputs {
 		cmd.Env = append(cmd.Env, envName(name)+"="+v)
@@ -363,6 +367,18 @@ func TestRunBadInputs(t *testing.T) {
 				t.Errorf("exit %d, exit-code %q, stderr %q; want 2, 2 and %q", res.code, res.outputs["exit-code"], res.stderr, c.want)
 			}
 		})
+	}
+}
+
+// TestRunRelativeBinary: a SCANGATE_BIN relative to where the step starts still runs
+// after the script moves to the workspace.
+func TestRunRelativeBinary(t *testing.T) {
+	ws := workspace(t, map[string]string{"testdata/demo": "models"})
+	r := newRunner(t, ws)
+	r.dir = filepath.Dir(scangate(t))
+	r.env = append(r.env, "SCANGATE_BIN=./"+filepath.Base(scangate(t)))
+	if res := r.run(map[string]string{"paths": "models", "fail-on": "never"}); res.code != 0 || res.outputs["exit-code"] != "0" {
+		t.Errorf("exit %d, exit-code %q; want 0\n%s%s", res.code, res.outputs["exit-code"], res.stdout, res.stderr)
 	}
 }
 

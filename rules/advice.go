@@ -59,5 +59,10 @@ func levels(c Config) advisor.Levels {
 		TruncWarnMin:      c.Value(truncatedSegmentsID, truncWarnMin),
 		TruncWarnShare:    c.Value(truncatedSegmentsID, truncWarnShare),
 		PartitionLimit:    c.Value(partitionCountID, partitionLimit),
+		HorizonMonths:     int(c.Value(budgetForecastID, forecastHorizon)),
 	}
 }
+
+// Sweep is the advisor's sweep of the table (the layouts `scangate plan` compares);
+// nil for a table built outside Analyze.
+func (t *Table) Sweep() *advisor.Sweep { return t.sweep() }

@@ -6,12 +6,13 @@ import (
 	"github.com/scangate/scangate/rules/advisor"
 )
 
-// BudgetForecast fires when growth takes a table across a budget within the next
-// advisor.ForecastMonths months (a constant for now).
+// BudgetForecast fires when growth takes a table across a budget within the forecast
+// horizon (horizon_months, 12 by default).
 var BudgetForecast = Rule{
-	ID:      "budget-forecast",
+	ID:      budgetForecastID,
 	Default: Warning,
-	Title:   "Growth crosses a budget within 12 months",
+	Title:   "Growth crosses a budget within the forecast horizon (12 months by default)",
+	Params:  []Param{forecastHorizon},
 	Why: "With growth_per_year a table holds more rows every month: more segments, longer " +
 		"scans, a larger refresh. A layout that fits today can break a budget soon after. The " +
 		"forecast grows every table of the model by its own rate, rows x (1+g)^(months/12), " +
@@ -44,7 +45,13 @@ tables:
     partitions: {scheme: none}`,
 }
 
+const budgetForecastID = "budget-forecast"
+
+// forecastHorizon is how far ahead a crossing is warned of.
+var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12)."}
+
 func checkBudgetForecast(t *Table) []Finding {
+	horizon := int(t.Config.Value(budgetForecastID, forecastHorizon))
 	if t.advice == nil {
 		return nil
 	}
@@ -63,15 +70,15 @@ func checkBudgetForecast(t *Table) []Finding {
 	}
 	// Most tables break no new budget by the end of the window: two projections settle
 	// that before the month-by-month forecast.
-	if !md.NewlyBroken(t.index, t.Spec, t.Engine.SegmentRows, advisor.ForecastMonths) {
+	if !md.NewlyBroken(t.index, t.Spec, t.Engine.SegmentRows, horizon) {
 		return nil
 	}
 	today := t.Config.today()
-	fc, err := md.Forecast(t.index, t.Spec, t.Engine.SegmentRows, today, advisor.ForecastMonths)
+	fc, err := md.Forecast(t.index, t.Spec, t.Engine.SegmentRows, today, horizon)
 	if err != nil {
 		return nil
 	}
-	end := advisor.Month(advisor.AddMonths(today, advisor.ForecastMonths))
+	end := advisor.Month(advisor.AddMonths(today, horizon))
 	var out []Finding
 	for _, c := range fc.Crossings {
 		if c.Month < 1 || (c.Model && first != t.index) || (!c.Model && t.Spec.GrowthPerYear == 0) {
@@ -91,7 +98,7 @@ func checkBudgetForecast(t *Table) []Finding {
 				budgetWords(c), advisor.Month(c.Date), c.Format(c.Value), c.Format(c.Now))
 		}
 		hint := fmt.Sprintf("no layout tried holds every budget through %s; `scangate plan --segment-rows` tries other segment sizes, or raise the budget", end)
-		if h := md.Holds(t.sweep(), advisor.ForecastMonths); h != nil && !h.Today() {
+		if h := md.Holds(t.sweep(), horizon); h != nil && !h.Today() {
 			hint = fmt.Sprintf("%s holds every budget through %s: %s", h.Change, end, advisor.Effect(&t.sweep().Candidates[t.sweep().Today], h))
 		}
 		out = append(out, t.finding(Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{hint}, map[string]float64{

@@ -259,7 +259,7 @@ func TestMarkdownRenders(t *testing.T) {
 	r := scangate(t, root(t), "", nil, "check", "--format", "markdown", "testdata/demo")
 	src := []byte(r.stdout)
 	doc := goldmark.New(goldmark.WithExtensions(extension.Table)).Parser().Parse(text.NewReader(src))
-	var tables, rows, items, headings int
+	var tables, rows, items, headings, charts int
 	ast.Walk(doc, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
 		if !entering {
 			return ast.WalkContinue, nil
@@ -275,11 +275,17 @@ func TestMarkdownRenders(t *testing.T) {
 			}
 		case ast.KindHeading:
 			headings++
+		case ast.KindFencedCodeBlock:
+			if string(n.(*ast.FencedCodeBlock).Language(src)) == "mermaid" {
+				charts++
+			}
 		}
 		return ast.WalkContinue, nil
 	})
-	if tables != 1 || rows != 8 || items != 6 || headings != 4 {
-		t.Errorf("tables %d (want 1), rows %d (want 8 tables), top-level items %d (want 6 findings), headings %d (want 4)\n%s", tables, rows, items, headings, src)
+	// Charts for the three tables with a segment finding: billing_lines, meter_reads and
+	// hydrant_inspections; headings: the verdict, the charts, three severities.
+	if tables != 1 || rows != 8 || items != 6 || headings != 5 || charts != 3 {
+		t.Errorf("tables %d (want 1), rows %d (want 8 tables), top-level items %d (want 6 findings), headings %d (want 5), charts %d (want 3)\n%s", tables, rows, items, headings, charts, src)
 	}
 }
 

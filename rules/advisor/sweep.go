@@ -22,13 +22,22 @@ type Levels struct {
 	TruncWarnMin      float64 // truncated-segments warns from max(TruncWarnMin, TruncWarnShare x N) excess
 	TruncWarnShare    float64
 	PartitionLimit    float64 // partition-count warns above this many partitions
+	HorizonMonths     int     // budget-forecast warns of a crossing within this many months
 }
 
 // DefaultLevels are the rules' defaults; a test in package rules keeps them equal.
-var DefaultLevels = Levels{OverheadWarnShare: 0.8, ScanWarnShare: 0.8, TruncWarnMin: 8, TruncWarnShare: 0.1, PartitionLimit: 5000}
+var DefaultLevels = Levels{OverheadWarnShare: 0.8, ScanWarnShare: 0.8, TruncWarnMin: 8, TruncWarnShare: 0.1, PartitionLimit: 5000, HorizonMonths: ForecastMonths}
 
-// ForecastMonths is how far ahead the budget-forecast rule warns of a crossing.
+// ForecastMonths is how far ahead the budget-forecast rule warns of a crossing by default.
 const ForecastMonths = 12
+
+// horizon is the forecast window of the levels, the default when unset.
+func (l Levels) horizon() int {
+	if l.HorizonMonths > 0 {
+		return l.HorizonMonths
+	}
+	return ForecastMonths
+}
 
 // Settings choose what a sweep tries.
 type Settings struct {
@@ -343,7 +352,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					grown := Grow(v.Spec, ForecastMonths)
+					horizon := set.levels().horizon()
+					grown := Grow(v.Spec, horizon)
 					later, ok := expandedLater[v.Change]
 					if !ok {
 						later, _ = layout.Expand(grown)
@@ -351,8 +361,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					}
 					if later != nil {
 						g := md.figures(grown, later, s)
-						if miss := md.misses(i, g, s, ForecastMonths, md.Peak(i, g, s, ForecastMonths)); len(miss) > 0 {
-							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", ForecastMonths, miss[0]))
+						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
+							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
 						}
 					}
 				}

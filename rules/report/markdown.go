@@ -37,6 +37,7 @@ func Markdown(w io.Writer, r *Result) error {
 		}
 		b.WriteString("\n")
 	}
+	charts(&b, r)
 	for _, sev := range []rules.Severity{rules.Error, rules.Warning, rules.Note} {
 		if n[sev] == 0 {
 			continue
