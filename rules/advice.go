@@ -62,7 +62,3 @@ func levels(c Config) advisor.Levels {
 		HorizonMonths:     int(c.Value(budgetForecastID, forecastHorizon)),
 	}
 }
-
-// Sweep is the advisor's sweep of the table (the layouts `scangate plan` compares);
-// nil for a table built outside Analyze.
-func (t *Table) Sweep() *advisor.Sweep { return t.sweep() }

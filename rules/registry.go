@@ -110,5 +110,8 @@ func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 	}
 	out = append(out, model...)
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
+	for _, t := range tables {
+		t.settle(out)
+	}
 	return tables, out
 }

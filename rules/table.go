@@ -19,6 +19,14 @@ type Table struct {
 	Widest *schema.Column
 	Scan   layout.Scan
 
+	// Bars compare fixed ms per scan of today's layout with the recommended one and the
+	// faster layouts of the Pareto front, for tables with a segment finding; reports
+	// chart them. Set by Check.
+	Bars []Bar
+
+	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
+	settled bool
+
 	options []Option // candidate changes, computed when a rule first asks
 	optDone bool
 	index   int     // the table's place in the manifest, for the advisor
@@ -54,16 +62,19 @@ func Analyze(m *schema.Manifest, cfg Config) []*Table {
 
 // widest finds the column whose full scan costs most, and that scan.
 func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*schema.Column, layout.Scan) {
+	// Sizes are cheap; only the widest column's scan is scheduled.
 	var best *schema.Column
-	var bestScan layout.Scan
+	bestBytes := -1.0
 	for i := range spec.Columns {
 		c := &spec.Columns[i]
-		s := layout.ScanColumn(*c, spec.Rows, parts, e)
-		if best == nil || s.Bytes > bestScan.Bytes {
-			best, bestScan = c, s
+		if b := layout.ColumnBytes(*c, parts, e.SegmentRows); b > bestBytes {
+			best, bestBytes = c, b
 		}
 	}
-	return best, bestScan
+	if best == nil {
+		return nil, layout.Scan{}
+	}
+	return best, layout.ScanColumn(*best, spec.Rows, parts, e)
 }
 
 // finding fills in what every finding of a table shares.
@@ -79,4 +90,37 @@ func (t *Table) finding(sev Severity, pos schema.Pos, subject, msg string, hints
 		Hints:    hints,
 		Numbers:  nums,
 	}
+}
+
+// Bar is one layout in a report's chart.
+type Bar struct {
+	Label   string
+	FixedMs float64
+}
+
+// EncodedBytes is the encoded size of the table's profiled columns.
+func (t *Table) EncodedBytes() float64 {
+	if !t.settled {
+		return layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows)
+	}
+	return t.encoded
+}
+
+// settle keeps what reports need once the rules have run and drops the rest: the
+// expanded partitions and the advisor's sweeps can hold far more memory than the
+// manifest, and a run over a whole repository holds every table until it reports.
+func (t *Table) settle(findings []Finding) {
+	if t.settled {
+		return
+	}
+	t.encoded = t.EncodedBytes()
+	for _, f := range findings {
+		if f.File == t.File && f.Table == t.Spec.Name && !f.Accepted() &&
+			(f.Rule == scanOverheadID || f.Rule == truncatedSegmentsID) {
+			t.Bars = chartBars(t.sweep())
+			break
+		}
+	}
+	t.settled = true
+	t.Parts, t.options, t.advice = nil, nil, nil
 }

@@ -46,7 +46,7 @@ func (t *tree) decode(project *ProjectConfig) (*Manifest, []Problem) {
 }
 
 func (d *decoder) pos(ptr string) Pos {
-	if l, ok := d.t.at[ptr]; ok && l.value != nil {
+	if l := d.t.locate(ptr); l.value != nil {
 		return Pos{l.value.Line, l.value.Column}
 	}
 	return Pos{1, 1}
@@ -54,7 +54,7 @@ func (d *decoder) pos(ptr string) Pos {
 
 // keyPos is where a key is written; findings about a whole section point there.
 func (d *decoder) keyPos(ptr string) Pos {
-	if l, ok := d.t.at[ptr]; ok && l.key != nil {
+	if l := d.t.locate(ptr); l.key != nil {
 		return Pos{l.key.Line, l.key.Column}
 	}
 	return d.pos(ptr)

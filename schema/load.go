@@ -72,8 +72,8 @@ func parse(data []byte, lim Limits, start string) (*tree, []Problem) {
 	if len(doc.Content) == 0 {
 		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
 	}
-	t := &tree{at: map[string]located{}, lim: lim}
-	root, p := t.convert(doc.Content[0], "", nil, 0)
+	t := &tree{doc: doc.Content[0], lim: lim}
+	root, p := t.convert(doc.Content[0], 0)
 	if p != nil {
 		return fail(*p)
 	}

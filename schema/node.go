@@ -32,22 +32,124 @@ var DefaultLimits = Limits{
 	MaxAliasNodes: 100_000,
 }
 
-// located is what the loader remembers of each JSON pointer: where its key and its
-// value sit in the file, so validation and decoding errors point at the right place.
+// located is where a JSON pointer's key and value sit in the file, so validation and
+// decoding errors point at the right place.
 type located struct {
 	key   *yaml.Node // nil for sequence elements and the root
 	value *yaml.Node
 }
 
 // tree is a YAML document turned into JSON-like values (map[string]any, []any,
-// string, bool, nil, json.Number) plus the position of every pointer.
+// string, bool, nil, json.Number), with the node tree kept to find positions. Positions
+// are looked up when asked for rather than recorded for every node: a manifest with
+// 100,000 listed partitions would otherwise build as many pointer strings.
 type tree struct {
 	root       any
-	at         map[string]located
+	doc        *yaml.Node
+	path       []step // where the conversion is, for error messages
 	nodes      int
 	inAlias    int // how many aliases deep the conversion is
 	aliasNodes int
 	lim        Limits
+}
+
+// step is one token of the conversion's path: a key, or an index when key is "".
+type step struct {
+	key   string
+	index int
+	isKey bool
+}
+
+// here is the JSON pointer of the node being converted.
+func (t *tree) here() string {
+	tokens := make([]string, len(t.path))
+	for i, s := range t.path {
+		if s.isKey {
+			tokens[i] = s.key
+		} else {
+			tokens[i] = strconv.Itoa(s.index)
+		}
+	}
+	return pointer(tokens)
+}
+
+// locate finds a pointer's key and value nodes by walking the node tree the way the
+// conversion did: through aliases, and into merged mappings for keys a mapping does not
+// set itself. The value of an alias is the alias node, so errors point where the user
+// wrote it.
+func (t *tree) locate(ptr string) located {
+	at := located{value: t.doc}
+	if t.doc == nil {
+		return at
+	}
+	for _, tok := range splitPointer(ptr) {
+		n := deref(at.value)
+		switch n.Kind {
+		case yaml.MappingNode:
+			k, v := lookupKey(n, tok, 0)
+			if v == nil {
+				return at
+			}
+			at = located{key: k, value: v}
+		case yaml.SequenceNode:
+			i, err := strconv.Atoi(tok)
+			if err != nil || i < 0 || i >= len(n.Content) {
+				return at
+			}
+			at = located{value: n.Content[i]}
+		default:
+			return at
+		}
+	}
+	return at
+}
+
+func deref(n *yaml.Node) *yaml.Node {
+	for i := 0; n.Kind == yaml.AliasNode && n.Alias != nil && i < 64; i++ {
+		n = n.Alias
+	}
+	return n
+}
+
+// lookupKey finds key in a mapping: its own keys first, then its merge keys in order.
+func lookupKey(m *yaml.Node, key string, depth int) (*yaml.Node, *yaml.Node) {
+	if depth > 64 {
+		return nil, nil
+	}
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		if k := m.Content[i]; k.Kind == yaml.ScalarNode && k.Tag != "!!merge" && k.Value == key {
+			return k, m.Content[i+1]
+		}
+	}
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		if k := m.Content[i]; k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
+			src := deref(m.Content[i+1])
+			sources := []*yaml.Node{src}
+			if src.Kind == yaml.SequenceNode {
+				sources = src.Content
+			}
+			for _, s := range sources {
+				if s = deref(s); s.Kind == yaml.MappingNode {
+					if k, v := lookupKey(s, key, depth+1); v != nil {
+						return k, v
+					}
+				}
+			}
+		}
+	}
+	return nil, nil
+}
+
+// splitPointer splits a JSON pointer into unescaped tokens (RFC 6901).
+func splitPointer(ptr string) []string {
+	if ptr == "" {
+		return nil
+	}
+	tokens := strings.Split(strings.TrimPrefix(ptr, "/"), "/")
+	for i, t := range tokens {
+		tokens[i] = strings.ReplaceAll(strings.ReplaceAll(t, "~1", "/"), "~0", "~")
+	}
+	return tokens
 }
 
 // pointer joins escaped JSON pointer tokens (RFC 6901).
@@ -84,7 +186,7 @@ func child(ptr, token string) string {
 	return ptr + pointer([]string{token})
 }
 
-func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any, *Problem) {
+func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	if p := t.count(n); p != nil {
 		return nil, p
 	}
@@ -94,14 +196,10 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 	if n.Kind == yaml.AliasNode {
 		// The alias's target is recorded at this pointer, but errors point at the alias.
 		t.inAlias++
-		v, p := t.convert(n.Alias, ptr, key, depth+1)
+		v, p := t.convert(n.Alias, depth+1)
 		t.inAlias--
-		if p == nil {
-			t.at[ptr] = located{key: key, value: n}
-		}
 		return v, p
 	}
-	t.at[ptr] = located{key: key, value: n}
 	switch n.Kind {
 	case yaml.MappingNode:
 		out := map[string]any{}
@@ -114,13 +212,15 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 				continue
 			}
 			if k.Kind != yaml.ScalarNode {
-				return nil, problemAt(k, ptr, "a key must be a plain name, not a mapping or a sequence")
+				return nil, problemAt(k, t.here(), "a key must be a plain name, not a mapping or a sequence")
 			}
 			if prev, dup := seen[k.Value]; dup {
-				return nil, problemAt(k, ptr, fmt.Sprintf("key %q is already defined at line %d; remove one of them", k.Value, prev.Line))
+				return nil, problemAt(k, t.here(), fmt.Sprintf("key %q is already defined at line %d; remove one of them", k.Value, prev.Line))
 			}
 			seen[k.Value] = k
-			cv, p := t.convert(v, child(ptr, k.Value), k, depth+1)
+			t.path = append(t.path, step{key: k.Value, isKey: true})
+			cv, p := t.convert(v, depth+1)
+			t.path = t.path[:len(t.path)-1]
 			if p != nil {
 				return nil, p
 			}
@@ -128,7 +228,7 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 		}
 		// Merge keys (<<) fill in only the keys the mapping does not set itself.
 		for _, m := range merges {
-			if p := t.merge(out, seen, m, ptr, depth); p != nil {
+			if p := t.merge(out, seen, m, depth); p != nil {
 				return nil, p
 			}
 		}
@@ -136,7 +236,9 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 	case yaml.SequenceNode:
 		out := make([]any, 0, len(n.Content))
 		for i, e := range n.Content {
-			cv, p := t.convert(e, child(ptr, strconv.Itoa(i)), nil, depth+1)
+			t.path = append(t.path, step{index: i})
+			cv, p := t.convert(e, depth+1)
+			t.path = t.path[:len(t.path)-1]
 			if p != nil {
 				return nil, p
 			}
@@ -144,12 +246,12 @@ func (t *tree) convert(n *yaml.Node, ptr string, key *yaml.Node, depth int) (any
 		}
 		return out, nil
 	case yaml.ScalarNode:
-		return scalar(n, ptr)
+		return scalar(n, t.here)
 	}
-	return nil, problemAt(n, ptr, "unsupported YAML node")
+	return nil, problemAt(n, t.here(), "unsupported YAML node")
 }
 
-func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Node, ptr string, depth int) *Problem {
+func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Node, depth int) *Problem {
 	// Each merge counts as a node and a level: a merge key that refers to its own mapping
 	// would otherwise recurse until the stack overflows, and merges of merges of merges
 	// would take exponential time without ever converting a node.
@@ -157,7 +259,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 		return p
 	}
 	if depth > t.lim.MaxDepth {
-		return problemAt(m, ptr, fmt.Sprintf("merge keys (<<) nest deeper than %d levels; a merge key must not refer to the mapping that holds it", t.lim.MaxDepth))
+		return problemAt(m, t.here(), fmt.Sprintf("merge keys (<<) nest deeper than %d levels; a merge key must not refer to the mapping that holds it", t.lim.MaxDepth))
 	}
 	target := m
 	if target.Kind == yaml.AliasNode {
@@ -170,19 +272,19 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	switch target.Kind {
 	case yaml.SequenceNode:
 		for _, e := range target.Content {
-			if p := t.merge(out, seen, e, ptr, depth+1); p != nil {
+			if p := t.merge(out, seen, e, depth+1); p != nil {
 				return p
 			}
 		}
 		return nil
 	case yaml.MappingNode:
 	default:
-		return problemAt(m, ptr, "a merge key (<<) must refer to a mapping or a list of mappings")
+		return problemAt(m, t.here(), "a merge key (<<) must refer to a mapping or a list of mappings")
 	}
 	for i := 0; i+1 < len(target.Content); i += 2 {
 		k, v := target.Content[i], target.Content[i+1]
 		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
-			if p := t.merge(out, seen, v, ptr, depth+1); p != nil {
+			if p := t.merge(out, seen, v, depth+1); p != nil {
 				return p
 			}
 			continue
@@ -191,7 +293,9 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 			continue
 		}
 		seen[k.Value] = k
-		cv, p := t.convert(v, child(ptr, k.Value), k, depth+1)
+		t.path = append(t.path, step{key: k.Value, isKey: true})
+		cv, p := t.convert(v, depth+1)
+		t.path = t.path[:len(t.path)-1]
 		if p != nil {
 			return p
 		}
@@ -203,14 +307,14 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
 
 // scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number.
-func scalar(n *yaml.Node, ptr string) (any, *Problem) {
+func scalar(n *yaml.Node, here func() string) (any, *Problem) {
 	switch n.ShortTag() {
 	case "!!null":
 		return nil, nil
 	case "!!bool":
 		var b bool
 		if err := n.Decode(&b); err != nil {
-			return nil, problemAt(n, ptr, "not a valid true/false value")
+			return nil, problemAt(n, here(), "not a valid true/false value")
 		}
 		return b, nil
 	case "!!int":
@@ -222,7 +326,7 @@ func scalar(n *yaml.Node, ptr string) (any, *Problem) {
 		}
 		var i big.Int
 		if _, ok := i.SetString(s, 0); !ok {
-			return nil, problemAt(n, ptr, fmt.Sprintf("%q is not a valid integer", n.Value))
+			return nil, problemAt(n, here(), fmt.Sprintf("%q is not a valid integer", n.Value))
 		}
 		if neg {
 			i.Neg(&i)
@@ -232,10 +336,10 @@ func scalar(n *yaml.Node, ptr string) (any, *Problem) {
 		f, err := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64)
 		lower := strings.ToLower(n.Value)
 		if strings.Contains(lower, "nan") || strings.Contains(lower, "inf") || math.IsInf(f, 0) || math.IsNaN(f) {
-			return nil, problemAt(n, ptr, fmt.Sprintf("%s is not a finite number; write a plain number", n.Value))
+			return nil, problemAt(n, here(), fmt.Sprintf("%s is not a finite number; write a plain number", n.Value))
 		}
 		if err != nil {
-			return nil, problemAt(n, ptr, fmt.Sprintf("%q is not a valid number", n.Value))
+			return nil, problemAt(n, here(), fmt.Sprintf("%q is not a valid number", n.Value))
 		}
 		// Keep the number as written when it is valid JSON, so messages quote the user.
 		if text := strings.ReplaceAll(n.Value, "_", ""); jsonNumber.MatchString(text) {

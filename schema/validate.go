@@ -94,7 +94,7 @@ func collectLeaves(e *jsonschema.ValidationError, out *[]*jsonschema.ValidationE
 // describe words a schema failure the way a manifest author thinks of it.
 func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	ptr := pointer(e.InstanceLocation)
-	loc := t.at[ptr]
+	loc := t.locate(ptr)
 	at := func(p string, l located, msg string) Problem {
 		n := l.value
 		if n == nil {
@@ -109,7 +109,7 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 		var out []Problem
 		for _, name := range k.Properties {
 			p := child(ptr, name)
-			l := t.at[p]
+			l := t.locate(p)
 			if l.key != nil {
 				l.value = l.key
 			}

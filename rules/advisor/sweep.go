@@ -162,15 +162,19 @@ func (md *Model) Evaluate(spec schema.Table, s int64, month int) (Figures, error
 func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) Figures {
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	e := md.engineAt(s)
-	best := -1.0
-	for _, c := range spec.Columns {
+	best, widest := -1.0, -1
+	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
-		// size (layout.TableBytes sums the same figure).
-		sc := layout.ScanColumn(c, spec.Rows, parts, e)
-		if sc.Bytes > best {
-			best, f.Widest, f.WallMs = sc.Bytes, c.Name, sc.WallMs
+		// size (layout.TableBytes sums the same figure); only the widest is scheduled.
+		b := layout.ColumnBytes(c, parts, s)
+		if b > best {
+			best, widest = b, i
 		}
-		f.Bytes += sc.Bytes
+		f.Bytes += b
+	}
+	if widest >= 0 {
+		c := spec.Columns[widest]
+		f.Widest, f.WallMs = c.Name, layout.ScanColumn(c, spec.Rows, parts, e).WallMs
 	}
 	return f
 }

@@ -427,7 +427,7 @@ func refreshPeak(ts []*rules.Table) *float64 {
 			continue
 		}
 		profiled = true
-		bytes += layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows)
+		bytes += t.EncodedBytes()
 		row = max(row, layout.RowBytes(t.Spec.Columns))
 	}
 	if !profiled {

@@ -155,7 +155,7 @@ func defaultSweep(mode string) sweep {
 	case "full":
 		tables = append(tables,
 			table("3,000,017 rows, 1 partition", 3_000_017, schema.Partitions{Scheme: schema.SchemeNone}),
-			table("12,000,000 rows, 12 listed partitions", 0, schema.Partitions{Scheme: schema.SchemeList, Items: listItems(12, 1_000_000)}))
+			table("12,000,036 rows, 12 listed partitions", 0, schema.Partitions{Scheme: schema.SchemeList, Items: listItems(12, 1_000_003)}))
 		cards = nil
 		for e := 0.5; e <= 7.01; e += 0.5 {
 			cards = append(cards, int64(math.Round(math.Pow(10, e))))
@@ -740,8 +740,11 @@ const encoderDetails = `
 - **Run headers.** The hybrid encoding works in groups of 8 indexes: a group of one value
   joins a run-length run, any other group is bit-packed. A run that does not start on a group
   boundary costs a bit-packed group besides its run-length run, and a run shorter than 15
-  rows may hold no whole group. The estimate models both (runs start anywhere relative to the
-  groups). The encoder writes the last n mod 8 indexes of a page as short runs of their own
+  rows may hold no whole group. The estimate models both, with runs starting anywhere relative
+  to the groups. Runs that all start on a group boundary (a sorted column whose run length is
+  an exact multiple of 8 in a table whose size is too) need no bit-packed groups and encode
+  smaller than the estimate; the sweep's table sizes are chosen so that this does not happen
+  by accident. The encoder writes the last n mod 8 indexes of a page as short runs of their own
   (a header and a value each) rather than a padded group; the estimate leaves that out.
 - **Single-valued segments** need no index bits: the encoder writes bit width 0 and one run
   header, as the estimate does.
