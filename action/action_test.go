@@ -154,7 +154,7 @@ func TestPreCommitHook(t *testing.T) {
 		t.Fatalf(".pre-commit-hooks.yaml defines %d hooks, want 1", len(hooks))
 	}
 	h := hooks[0]
-	for key, want := range map[string]any{"id": "scangate", "entry": "scangate check", "language": "golang", "pass_filenames": true} {
+	for key, want := range map[string]any{"id": "scangate", "entry": "scangate check --manifests-only", "language": "golang", "pass_filenames": true} {
 		if h[key] != want {
 			t.Errorf("hook %s = %v, want %v", key, h[key], want)
 		}

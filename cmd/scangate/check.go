@@ -17,7 +17,7 @@ import (
 func newCheck() *cobra.Command {
 	var failOn, output, today, configFile, baselineFile string
 	var formats []string
-	var noColor bool
+	var noColor, manifestsOnly bool
 	cmd := &cobra.Command{
 		Use:   "check [PATH...]",
 		Short: "Validate manifests and report segment-layout findings",
@@ -53,6 +53,9 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
+			if manifestsOnly {
+				inputs = onlyManifests(inputs)
+			}
 			files, findings := checkAll(inputs, cfg, proj.config)
 			res := &report.Result{
 				Version:  moduleVersion(),
@@ -75,12 +78,24 @@ func newCheck() *cobra.Command {
 	}
 	cmd.Flags().StringVar(&failOn, "fail-on", "error", "exit 1 when a finding is at or above this severity: error, warning, note or never")
 	cmd.Flags().BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
+	cmd.Flags().BoolVar(&manifestsOnly, "manifests-only", false, "skip named files that do not hold \"format:\" (for hooks that pass every staged YAML file)")
 	cmd.Flags().StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE (text, json, sarif, github, markdown, junit); repeatable")
 	cmd.Flags().StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
 	cmd.Flags().StringVar(&today, "today", "", "the date waivers and forecasts are judged on, YYYY-MM-DD (default: today, UTC)")
 	cmd.Flags().StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
 	cmd.Flags().StringVar(&baselineFile, "baseline", "", "baseline file: findings recorded there are listed but do not fail the run")
 	return cmd
+}
+
+// onlyManifests drops readable inputs that are not manifests, as a directory walk does.
+func onlyManifests(inputs []input) []input {
+	out := inputs[:0]
+	for _, in := range inputs {
+		if in.err != nil || manifestMarker.Match(in.data) {
+			out = append(out, in)
+		}
+	}
+	return out
 }
 
 func usageError(err error) error { return &exitError{code: exitInvalid, msg: err.Error()} }

@@ -227,3 +227,23 @@ func TestVersionAndCompletion(t *testing.T) {
 	r = scangate(t, root(t), "", nil, "frobnicate")
 	wantCode(t, r, 2)
 }
+
+// --manifests-only lets a hook pass every staged YAML file: the ones without "format:"
+// are skipped instead of failing as broken manifests.
+func TestManifestsOnly(t *testing.T) {
+	dir := repo(t, map[string]string{
+		"m.yaml":          "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: 10, partitions: {scheme: none}}]\n",
+		"workflow.yml":    "on: push\njobs: {}\n",
+		"settings.json":   `{"indent": 2}`,
+		"broken-man.yaml": "format: 1\nmodel: [\n",
+	})
+	r := scangate(t, dir, "", nil, "check", "m.yaml", "workflow.yml", "settings.json")
+	wantCode(t, r, 2) // without the flag a named file is read as a manifest
+	r = scangate(t, dir, "", nil, "check", "--manifests-only", "m.yaml", "workflow.yml", "settings.json")
+	wantCode(t, r, 0)
+	if !strings.Contains(r.stdout, "1 file, 1 table") {
+		t.Errorf("want only m.yaml checked:\n%s", r.stdout)
+	}
+	r = scangate(t, dir, "", nil, "check", "--manifests-only", "broken-man.yaml")
+	wantCode(t, r, 2) // a manifest that is broken is still reported
+}

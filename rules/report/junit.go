@@ -40,7 +40,8 @@ type junitFailure struct {
 
 // JUnit writes JUnit XML with a test suite per manifest, a test case per table, and a
 // failure per finding at or above the failing level. An invalid manifest is one case,
-// "schema", with a failure per problem.
+// "schema", with a failure per problem; findings about a whole model are one case,
+// "model NAME".
 func JUnit(w io.Writer, r *Result) error {
 	doc := junitSuites{Name: "scangate"}
 	for _, f := range r.Files {
@@ -57,8 +58,12 @@ func JUnit(w io.Writer, r *Result) error {
 				byTable[x.Table] = append(byTable[x.Table], x)
 			}
 		}
-		if f.Invalid || len(fileLevel) > 0 {
+		switch {
+		case f.Invalid:
 			suite.Cases = append(suite.Cases, junitCase{Name: "schema", Classname: f.URI, File: f.URI, Failures: failures(fileLevel)})
+		case len(fileLevel) > 0:
+			// Findings about the model as a whole (refresh memory) belong to no table.
+			suite.Cases = append(suite.Cases, junitCase{Name: "model " + f.Model, Classname: f.Model, File: f.URI, Failures: failures(fileLevel)})
 		}
 		for _, t := range f.Tables {
 			suite.Cases = append(suite.Cases, junitCase{
