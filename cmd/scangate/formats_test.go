@@ -30,7 +30,7 @@ var formatFiles = map[string]string{
 func TestFormatsGolden(t *testing.T) {
 	for format, name := range formatFiles {
 		t.Run(format, func(t *testing.T) {
-			r := scangate(t, root(t), "", nil, "check", "--format", format, "testdata/demo")
+			r := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "--format", format, "testdata/demo")
 			wantCode(t, r, 1)
 			golden := filepath.Join(root(t), "testdata", "golden", name)
 			if *update {
@@ -243,7 +243,7 @@ func TestGitHubEscaping(t *testing.T) {
 	os.WriteFile(summary, []byte("earlier step\n"), 0o644)
 	r := scangate(t, root(t), "", []string{"GITHUB_ACTIONS=true", "GITHUB_STEP_SUMMARY=" + summary}, "check", "testdata/demo")
 	wantCode(t, r, 1)
-	if !strings.Contains(r.stdout, "\n::error file=testdata/demo/meter-telemetry.yaml,line=18,col=5,title=scangate scan-overhead::") ||
+	if !strings.Contains(r.stdout, "\n::error file=testdata/demo/meter-telemetry.yaml,line=19,col=5,title=scangate scan-overhead::") ||
 		!strings.Contains(r.stdout, "3 files, 8 tables") {
 		t.Errorf("in a GitHub Actions job the default is text plus annotations:\n%s", r.stdout)
 	}

@@ -73,7 +73,7 @@ func wantCode(t *testing.T, r result, code int) {
 
 // TestDemoGolden pins the demo's whole report; run with -update after a deliberate change.
 func TestDemoGolden(t *testing.T) {
-	r := scangate(t, root(t), "", nil, "check", "testdata/demo")
+	r := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "testdata/demo")
 	wantCode(t, r, 1)
 	golden := filepath.Join(root(t), "testdata", "golden", "demo.txt")
 	if *update {
@@ -94,7 +94,7 @@ func TestDemoGolden(t *testing.T) {
 		}
 	}
 	// Same input, same bytes.
-	if again := scangate(t, root(t), "", nil, "check", "testdata/demo"); again.stdout != r.stdout {
+	if again := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "testdata/demo"); again.stdout != r.stdout {
 		t.Error("two runs on the demo printed different reports")
 	}
 }
