@@ -47,7 +47,7 @@ func newBaseline() *cobra.Command {
 			if err != nil {
 				return configError(cmd, err)
 			}
-			inputs, err := collectFiltered(args, cmd.InOrStdin(), schema.DefaultLimits.MaxFileBytes, proj.keep)
+			inputs, err := collectFiltered(args, cmd.InOrStdin(), limits.MaxFileBytes, proj.keep)
 			if err != nil {
 				return usageError(err)
 			}

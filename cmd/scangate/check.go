@@ -49,7 +49,7 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			inputs, err := collectFiltered(args, cmd.InOrStdin(), schema.DefaultLimits.MaxFileBytes, proj.keep)
+			inputs, err := collectFiltered(args, cmd.InOrStdin(), limits.MaxFileBytes, proj.keep)
 			if err != nil {
 				return usageError(err)
 			}
@@ -152,7 +152,7 @@ func checkOne(in input, root string, cfg rules.Config, proj *schema.ProjectConfi
 			Message: fmt.Sprintf("cannot read the file: %v", in.err),
 		}}
 	}
-	m, err := schema.LoadWith(in.name, in.data, schema.Options{Limits: schema.DefaultLimits, Project: proj})
+	m, err := schema.LoadWith(in.name, in.data, schema.Options{Limits: limits, Project: proj})
 	if err != nil {
 		f.Invalid = true
 		if se, ok := err.(*schema.Error); ok {

@@ -95,7 +95,7 @@ func newDiff() *cobra.Command {
 			if err != nil {
 				return configError(cmd, err)
 			}
-			maxBytes := schema.DefaultLimits.MaxFileBytes
+			maxBytes := limits.MaxFileBytes
 			var sides [2]sideInputs
 			if base != "" {
 				sides, err = revisionInputs(cmd.Context(), base, args, maxBytes, proj.keep)

@@ -90,3 +90,14 @@ func TestSpecialFiles(t *testing.T) {
 		t.Errorf("unreadable file:\n%s", r.stdout)
 	}
 }
+
+// --max-file-size raises (or lowers) the file size bound for a repository that needs it.
+func TestMaxFileSize(t *testing.T) {
+	dir := repo(t, map[string]string{"m.yaml": "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: 10, partitions: {scheme: none}}]\n# " + strings.Repeat("x", 200) + "\n"})
+	r := scangate(t, dir, "", nil, "check", "--max-file-size", "100B", "m.yaml")
+	if r.code != 2 || !strings.Contains(r.stdout, "above the limit of 100") {
+		t.Errorf("a 100-byte bound should refuse the file: %d\n%s", r.code, r.stdout)
+	}
+	wantCode(t, scangate(t, dir, "", nil, "check", "--max-file-size", "1KiB", "m.yaml"), 0)
+	wantCode(t, scangate(t, dir, "", nil, "check", "--max-file-size", "lots", "m.yaml"), 2)
+}

@@ -110,7 +110,7 @@ func parseCapacities(s string) ([]int64, error) {
 func loadOne(path string, stdin io.Reader, stderr io.Writer) (*schema.Manifest, error) {
 	var in input
 	if path == "-" {
-		data, err := readLimited(stdin, schema.DefaultLimits.MaxFileBytes)
+		data, err := readLimited(stdin, limits.MaxFileBytes)
 		in = input{name: stdinName, data: data, err: err}
 	} else {
 		info, err := os.Stat(path)
@@ -120,12 +120,12 @@ func loadOne(path string, stdin io.Reader, stderr io.Writer) (*schema.Manifest, 
 		if info.IsDir() {
 			return nil, usageError(fmt.Errorf("%s is a directory; plan reads one manifest file", path))
 		}
-		in = readFile(path, schema.DefaultLimits.MaxFileBytes)
+		in = readFile(path, limits.MaxFileBytes)
 	}
 	if in.err != nil {
 		return nil, usageError(fmt.Errorf("cannot read %s: %v", in.name, in.err))
 	}
-	m, err := schema.Load(in.name, in.data, schema.DefaultLimits)
+	m, err := schema.Load(in.name, in.data, limits)
 	if err == nil {
 		return m, nil
 	}

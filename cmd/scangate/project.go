@@ -64,11 +64,11 @@ func loadProject(flag string, paths []string) (project, error) {
 			}
 		}
 	}
-	in := readFile(file, schema.DefaultLimits.MaxFileBytes)
+	in := readFile(file, limits.MaxFileBytes)
 	if in.err != nil {
 		return project{}, fmt.Errorf("cannot read the config %s: %v", file, in.err)
 	}
-	cfg, err := schema.LoadConfig(in.name, in.data, schema.DefaultLimits)
+	cfg, err := schema.LoadConfig(in.name, in.data, limits)
 	if err != nil {
 		return project{}, err
 	}

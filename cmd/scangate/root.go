@@ -5,8 +5,12 @@ import (
 	"io"
 	"runtime/debug"
 
+	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
 )
+
+// limits bound what one input may cost; --max-file-size raises the file size bound.
+var limits schema.Limits
 
 func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root := &cobra.Command{
@@ -18,6 +22,17 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 			"2 invalid input or usage.",
 		SilenceUsage:  true,
 		SilenceErrors: true,
+	}
+	limits = schema.DefaultLimits
+	var maxFile string
+	root.PersistentFlags().StringVar(&maxFile, "max-file-size", "8MiB", "refuse manifests and configs larger than this (a byte size such as 16MiB)")
+	root.PersistentPreRunE = func(*cobra.Command, []string) error {
+		n, err := schema.ParseBytes(maxFile)
+		if err != nil || n < 1 || n > 1<<30 {
+			return usageError(fmt.Errorf("--max-file-size %q: give a size from 1B to 1GiB, e.g. 16MiB", maxFile))
+		}
+		limits.MaxFileBytes = int(n)
+		return nil
 	}
 	root.SetIn(stdin)
 	root.SetOut(stdout)

@@ -29,8 +29,8 @@ func SARIF(w io.Writer, r *Result) error {
 			WithShortDescription(sarif.NewMultiformatMessageString().WithText(rule.Title)).
 			WithFullDescription(sarif.NewMultiformatMessageString().WithText(rule.Why)).
 			WithHelp(sarif.NewMultiformatMessageString().
-				WithText(rule.Why+"\n\nFix: "+rule.Fix).
-				WithMarkdown("**"+rule.Title+"**\n\n"+rule.Why+"\n\n**Fix:** "+rule.Fix)).
+				WithText(rule.Why+"\n\nHow it is computed: "+rule.How+"\n\nFix: "+rule.Fix).
+				WithMarkdown(helpMarkdown(rule))).
 			WithHelpURI(InformationURI+"#rules").
 			WithDefaultConfiguration(sarif.NewReportingConfiguration().WithLevel(level(rule.Default))))
 	}
@@ -80,6 +80,12 @@ func SARIF(w io.Writer, r *Result) error {
 	}
 	_, err := io.WriteString(w, "\n")
 	return err
+}
+
+// helpMarkdown is the rule's page as `scangate explain` and docs/rules.md give it.
+func helpMarkdown(r rules.Rule) string {
+	return "**" + r.Title + "**\n\n" + r.Why + "\n\n**How it is computed.** " + r.How +
+		"\n\nRaises it:\n\n```yaml\n" + r.Bad + "\n```\n\nFixed:\n\n```yaml\n" + r.Good + "\n```\n\n**Fix.** " + r.Fix
 }
 
 func level(s rules.Severity) string {

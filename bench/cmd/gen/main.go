@@ -9,7 +9,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"github.com/scangate/scangate/bench/internal/gen"
+	"github.com/scangate/scangate/bench/gen"
 )
 
 func main() {

@@ -1,0 +1,99 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"testing"
+
+	"github.com/scangate/scangate/bench/gen"
+	"go.yaml.in/yaml/v3"
+)
+
+// The benchmarks run scangate's whole check (load, validate, analyse, rules with their
+// hints) in process, next to a baseline that only decodes the same bytes with the same
+// YAML library: compare the two in one run (go test -bench . -benchmem ./cmd/scangate),
+// not across machines. bench/run.sh measures the built binaries the same way.
+
+func benchInputs(files map[string][]byte) []input {
+	names := make([]string, 0, len(files))
+	for n := range files {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	out := make([]input, len(names))
+	for i, n := range names {
+		out[i] = input{name: n, data: files[n]}
+	}
+	return out
+}
+
+func benchCheck(b *testing.B, inputs []input) {
+	cfg, _ := runConfig("2026-01-01")
+	var size int64
+	for _, in := range inputs {
+		size += int64(len(in.data))
+	}
+	b.SetBytes(size)
+	b.ReportAllocs()
+	for b.Loop() {
+		files, _ := checkAll(inputs, cfg, nil)
+		if len(files) != len(inputs) {
+			b.Fatal("files lost")
+		}
+	}
+}
+
+func benchDecode(b *testing.B, inputs []input) {
+	var size int64
+	for _, in := range inputs {
+		size += int64(len(in.data))
+	}
+	b.SetBytes(size)
+	b.ReportAllocs()
+	for b.Loop() {
+		for _, in := range inputs {
+			var v any
+			if err := yaml.Unmarshal(in.data, &v); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+}
+
+var (
+	listed   = benchInputs(map[string][]byte{"listed.yaml": gen.Listed(100_000, 1)})
+	monorepo = benchInputs(gen.Monorepo(2000, 40, 0.05, 1))
+)
+
+// (a) one manifest with 100,000 listed partitions.
+func BenchmarkCheckListed100k(b *testing.B)  { benchCheck(b, listed) }
+func BenchmarkDecodeListed100k(b *testing.B) { benchDecode(b, listed) }
+
+// (b) a monorepo of 2,000 manifests of about 40 tables, 5% of them messy.
+func BenchmarkCheckMonorepo(b *testing.B)  { benchCheck(b, monorepo) }
+func BenchmarkDecodeMonorepo(b *testing.B) { benchDecode(b, monorepo) }
+
+// (c) the demo.
+func BenchmarkCheckDemo(b *testing.B) {
+	paths, _ := filepath.Glob("../../testdata/demo/*.yaml")
+	files := map[string][]byte{}
+	for _, p := range paths {
+		data, err := os.ReadFile(p)
+		if err != nil {
+			b.Fatal(err)
+		}
+		files[p] = data
+	}
+	benchCheck(b, benchInputs(files))
+}
+
+// Cost against partitions: one time table of 10k, 100k and 1M day partitions.
+func BenchmarkCheckPartitions(b *testing.B) {
+	for _, n := range []int{10_000, 100_000, 1_000_000} {
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			benchCheck(b, benchInputs(map[string][]byte{"days.yaml": gen.Days(n)}))
+		})
+	}
+}
