@@ -20,20 +20,6 @@ func TestAdvisorLevelsMatchRules(t *testing.T) {
 	}
 }
 
-// The advisor writes figures for the plan as the rules write them for findings.
-func TestAdvisorFormatsMatchRules(t *testing.T) {
-	for _, n := range []int64{0, 7, 999, 1000, 1460, 400_000, 1_460_000, 8 << 20, 7_200_000_000, 1 << 40, -909, 1e15} {
-		if advisor.Count(n) != count(n) || advisor.Num(n) != num(n) {
-			t.Errorf("%d: %s/%s against %s/%s", n, advisor.Count(n), advisor.Num(n), count(n), num(n))
-		}
-	}
-	for _, x := range []float64{0, 1.5, -4.5, 99.95, 100, 1319.4, -642.4, 0.0007, 0.876, 2.19, 1 << 30, 1536} {
-		if advisor.Ms(x) != ms(x) || advisor.Pct(x) != pct(x) || advisor.Size(x) != size(x) || advisor.Signed(x) != signed(x) {
-			t.Errorf("%v: %s %s %s %s against %s %s %s %s", x, advisor.Ms(x), advisor.Pct(x), advisor.Size(x), advisor.Signed(x), ms(x), pct(x), size(x), signed(x))
-		}
-	}
-}
-
 // The scan-overhead and truncated-segments hints lead with the sweep's recommendation:
 // 10,000 rows in 40 even partitions at 1,000 rows per segment (see the advisor's
 // TestSweepEvenByHand): count 10 at today's segment size, 40 -> 10 segments, 60 -> 15 ms.

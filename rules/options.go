@@ -73,9 +73,4 @@ func (t *Table) effect(o Option) string {
 	return fmt.Sprintf("%s -> %s segments, %s ms per scan", num(t.Layout.Segments), num(o.Layout.Segments), signed(o.Layout.FixedMs-t.Layout.FixedMs))
 }
 
-func signed(x float64) string {
-	if x >= 0 {
-		return "+" + ms(x)
-	}
-	return ms(x)
-}
+

@@ -25,14 +25,14 @@ func Count(n int64) string {
 		f float64
 	}{{"T", 1e12}, {"G", 1e9}, {"M", 1e6}, {"k", 1e3}} {
 		if float64(n) >= u.f {
-			return short(float64(n)/u.f) + u.s
+			return Short(float64(n)/u.f) + u.s
 		}
 	}
 	return strconv.FormatInt(n, 10)
 }
 
-// short keeps three significant digits and drops trailing zeros: 7.2, 40, 1.46.
-func short(v float64) string {
+// Short keeps three significant digits and drops trailing zeros: 7.2, 40, 1.46.
+func Short(v float64) string {
 	prec := 2
 	switch {
 	case v >= 100:
@@ -91,7 +91,7 @@ func Size(b float64) string {
 		b /= 1024
 		i++
 	}
-	return short(b) + " " + units[i]
+	return Short(b) + " " + units[i]
 }
 
 func plural(n int64, one, many string) string {
