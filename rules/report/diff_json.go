@@ -312,14 +312,7 @@ func findingsJSON(r *DiffResult, fs []change.FindingChange) []jsonDiffFinding {
 	for i := range fs {
 		fc := &fs[i]
 		f := fc.Finding
-		nums := map[string]float64{}
-		for k, v := range f.Numbers {
-			nums[k] = round(v)
-		}
-		hints := f.Hints
-		if hints == nil {
-			hints = []string{}
-		}
+		nums, hints := numbersJSON(f), hintsJSON(f)
 		jf := jsonDiffFinding{
 			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.breaks(fc),
 			File: f.File, Line: f.Pos.Line, Column: f.Pos.Col, Table: f.Table,

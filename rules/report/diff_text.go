@@ -178,23 +178,12 @@ func points(t change.TableChange) string {
 // worsened and resolved findings in the GNU style, the gate, the verdict and one
 // summary line.
 func DiffText(w io.Writer, r *DiffResult, useColor bool) error {
-	paint := func(c *color.Color) func(a ...any) string {
-		if useColor {
-			c.EnableColor()
-		} else {
-			c.DisableColor()
-		}
-		return c.SprintFunc()
-	}
+	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))
-	red := paint(color.New(color.FgRed, color.Bold))
 	green := paint(color.New(color.FgGreen))
-	sev := map[rules.Severity]func(a ...any) string{
-		rules.Error:   red,
-		rules.Warning: paint(color.New(color.FgYellow, color.Bold)),
-		rules.Note:    paint(color.New(color.FgCyan)),
-	}
+	sev := severityPaint(paint)
+	red := sev[rules.Error]
 	d := r.Diff
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s %s -> %s\n", bold("scangate diff:"), d.Base, d.Head)

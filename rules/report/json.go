@@ -120,14 +120,7 @@ func JSON(w io.Writer, r *Result) error {
 		doc.Files = append(doc.Files, jf)
 	}
 	for _, f := range r.Findings {
-		nums := map[string]float64{}
-		for k, v := range f.Numbers {
-			nums[k] = round(v)
-		}
-		hints := f.Hints
-		if hints == nil {
-			hints = []string{}
-		}
+		nums, hints := numbersJSON(f), hintsJSON(f)
 		jf := jsonFinding{
 			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.Fails(f),
 			File: f.File, URI: r.URI(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
@@ -159,6 +152,23 @@ func tableJSON(t *rules.Table) jsonTable {
 		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
 	}
 	return jt
+}
+
+// numbersJSON rounds a finding's figures for the JSON reports.
+func numbersJSON(f rules.Finding) map[string]float64 {
+	nums := make(map[string]float64, len(f.Numbers))
+	for k, v := range f.Numbers {
+		nums[k] = round(v)
+	}
+	return nums
+}
+
+// hintsJSON is a finding's hints, an empty list rather than null when it has none.
+func hintsJSON(f rules.Finding) []string {
+	if f.Hints == nil {
+		return []string{}
+	}
+	return f.Hints
 }
 
 // round keeps six decimals: enough for any figure a person reads, and it hides the

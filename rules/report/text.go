@@ -14,21 +14,10 @@ import (
 // each followed by indented hint lines, then one summary line. Colour is used only
 // when asked for; the caller decides from the terminal, NO_COLOR and --no-color.
 func Text(w io.Writer, r *Result, useColor bool) error {
-	paint := func(c *color.Color) func(a ...any) string {
-		if useColor {
-			c.EnableColor()
-		} else {
-			c.DisableColor()
-		}
-		return c.SprintFunc()
-	}
+	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))
-	sev := map[rules.Severity]func(a ...any) string{
-		rules.Error:   paint(color.New(color.FgRed, color.Bold)),
-		rules.Warning: paint(color.New(color.FgYellow, color.Bold)),
-		rules.Note:    paint(color.New(color.FgCyan)),
-	}
+	sev := severityPaint(paint)
 	var b strings.Builder
 	line := func(f rules.Finding, note string) {
 		loc := f.File
@@ -66,6 +55,28 @@ func Text(w io.Writer, r *Result, useColor bool) error {
 	b.WriteByte('\n')
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// painter returns a function that turns a colour into a formatter, or into plain text
+// when colour is off.
+func painter(useColor bool) func(*color.Color) func(a ...any) string {
+	return func(c *color.Color) func(a ...any) string {
+		if useColor {
+			c.EnableColor()
+		} else {
+			c.DisableColor()
+		}
+		return c.SprintFunc()
+	}
+}
+
+// severityPaint colours severities the same way in every text report.
+func severityPaint(paint func(*color.Color) func(a ...any) string) map[rules.Severity]func(a ...any) string {
+	return map[rules.Severity]func(a ...any) string{
+		rules.Error:   paint(color.New(color.FgRed, color.Bold)),
+		rules.Warning: paint(color.New(color.FgYellow, color.Bold)),
+		rules.Note:    paint(color.New(color.FgCyan)),
+	}
 }
 
 // SummaryLine is one line: what was checked and the findings by severity, accepted
