@@ -72,5 +72,3 @@ func (t *Table) Options() []Option {
 func (t *Table) effect(o Option) string {
 	return fmt.Sprintf("%s -> %s segments, %s ms per scan", num(t.Layout.Segments), num(o.Layout.Segments), signed(o.Layout.FixedMs-t.Layout.FixedMs))
 }
-
-
