@@ -345,7 +345,7 @@ func TestActionMetadata(t *testing.T) {
 		t.Fatal(err)
 	}
 	wantInputs := map[string]string{"version": "latest", "paths": ".", "config": "", "fail-on": "error", "baseline": "",
-		"diff-base": "", "sarif-file": "scangate.sarif", "upload-sarif": "true", "summary": "true"}
+		"diff-base": "", "max-added-ms": "", "max-added-segments": "", "sarif-file": "scangate.sarif", "upload-sarif": "true", "summary": "true"}
 	if got := sortedKeys(md.Inputs); !slices.Equal(got, sortedKeys(wantInputs)) {
 		t.Errorf("inputs %v, want %v", got, sortedKeys(wantInputs))
 	}

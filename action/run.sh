@@ -12,6 +12,8 @@
 #   INPUT_FAIL_ON         error | warning | note | never (default error)
 #   INPUT_BASELINE        baseline file
 #   INPUT_DIFF_BASE       git revision to compare with (runs scangate diff --base)
+#   INPUT_MAX_ADDED_MS    with diff-base: fixed ms per scan a change may add to one table
+#   INPUT_MAX_ADDED_SEGMENTS  with diff-base: segments a change may add to one table
 #   INPUT_SARIF_FILE      where the SARIF report goes (default scangate.sarif)
 #   INPUT_SUMMARY         true | false: add the Markdown reports to the job summary (default true)
 #
@@ -24,6 +26,8 @@ config=${INPUT_CONFIG:-}
 fail_on=${INPUT_FAIL_ON:-error}
 baseline=${INPUT_BASELINE:-}
 diff_base=${INPUT_DIFF_BASE:-}
+max_added_ms=${INPUT_MAX_ADDED_MS:-}
+max_added_segments=${INPUT_MAX_ADDED_SEGMENTS:-}
 sarif=${INPUT_SARIF_FILE:-scangate.sarif}
 summary=${INPUT_SUMMARY:-true}
 output_file=${GITHUB_OUTPUT:-/dev/null}
@@ -98,7 +102,10 @@ if [ -n "$diff_base" ]; then
   diff_md="$tmp/diff.md"
   echo
   set +e
-  "$bin" diff "--base=$diff_base" --format=text "--format=markdown=$diff_md" ${shared[@]+"${shared[@]}"} -- "${paths[@]}"
+  gate=()
+  if [ -n "$max_added_ms" ]; then gate+=("--max-added-ms=$max_added_ms"); fi
+  if [ -n "$max_added_segments" ]; then gate+=("--max-added-segments=$max_added_segments"); fi
+  "$bin" diff "--base=$diff_base" --format=text "--format=markdown=$diff_md" ${gate[@]+"${gate[@]}"} ${shared[@]+"${shared[@]}"} -- "${paths[@]}"
   diff_code=$?
   set -e
   if [ -n "$step_summary" ] && [ -s "$diff_md" ]; then

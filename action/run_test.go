@@ -472,6 +472,17 @@ func TestRunDiffBase(t *testing.T) {
 		t.Errorf("the diff shows no change; the fixture changed?\n%s", diffText)
 	}
 
+	// The diff's gate: the fixture adds hundreds of ms per scan to pump_readings, so a
+	// 1 ms allowance fails the job even when check's findings do not.
+	res = newRunner(t, ws).run(map[string]string{"diff-base": "HEAD", "fail-on": "never", "max-added-ms": "1"})
+	if res.code != 1 || !strings.Contains(res.stdout, "--max-added-ms") {
+		t.Errorf("max-added-ms 1: exit %d; want 1 with the gate in the log\n%s%s", res.code, res.stdout, res.stderr)
+	}
+	res = newRunner(t, ws).run(map[string]string{"diff-base": "HEAD", "fail-on": "never", "max-added-ms": "100000", "max-added-segments": "100000"})
+	if res.code != 0 {
+		t.Errorf("generous limits: exit %d; want 0\n%s%s", res.code, res.stdout, res.stderr)
+	}
+
 	// A base that was never fetched fails the job even when check passes.
 	res = newRunner(t, ws).run(map[string]string{"diff-base": "origin/no-such-branch", "fail-on": "never"})
 	if res.code != 2 || res.outputs["exit-code"] != "2" {
