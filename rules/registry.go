@@ -2,6 +2,7 @@ package rules
 
 import (
 	"sort"
+	"sync"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -33,8 +34,11 @@ type Param struct {
 	Doc     string
 }
 
-// All lists every rule, sorted by ID.
-func All() []Rule {
+// All lists every rule, sorted by ID. The slice is shared: callers must not change it.
+func All() []Rule { return registry() }
+
+// registry builds the sorted list once; Check walks it for every table.
+var registry = sync.OnceValue(func() []Rule {
 	all := []Rule{
 		Schema,
 		ExpiredWaiver,
@@ -50,7 +54,7 @@ func All() []Rule {
 	}
 	sort.Slice(all, func(i, j int) bool { return all[i].ID < all[j].ID })
 	return all
-}
+})
 
 // Lookup finds a rule by ID.
 func Lookup(id string) (Rule, bool) {
