@@ -5,22 +5,13 @@ import (
 	"io"
 	"os"
 	"strings"
-	"time"
 
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/rules/report"
 	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
 )
-
-// planOptions are the plan command's flags, parsed.
-type planOptions struct {
-	table   string
-	set     advisor.Settings
-	today   time.Time
-	horizon int
-	svg     string
-}
 
 // maxHorizon bounds --horizon: fifty years of months is already far past any plan.
 const maxHorizon = 600
@@ -43,10 +34,9 @@ func newPlan() *cobra.Command {
 			"  scangate plan model.yaml --fixed-segment-rows --svg plan.svg",
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			opt := planOptions{table: table, horizon: horizon, svg: svg}
-			opt.set.FixedSegmentRows = fixed
+			set := advisor.Settings{FixedSegmentRows: fixed}
 			var err error
-			if opt.set.Capacities, err = parseCapacities(segRows); err != nil {
+			if set.Capacities, err = parseCapacities(segRows); err != nil {
 				return usageError(err)
 			}
 			if horizon < 1 || horizon > maxHorizon {
@@ -56,7 +46,7 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			opt.today = cfg.Today
+			opt := report.PlanOptions{Today: cfg.Today, Horizon: horizon}
 			m, err := loadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr())
 			if err != nil {
 				return err
@@ -65,13 +55,13 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			plans := makePlans(m, idx, opt)
+			plans := advisor.Plans(m, idx, set, opt.Today, opt.Horizon)
 			if svg != "" {
-				if err := writeFileAtomic(svg, planSVG(m, plans)); err != nil {
+				if err := writeFileAtomic(svg, report.PlanSVG(m, plans)); err != nil {
 					return usageError(err)
 				}
 			}
-			_, err = io.WriteString(cmd.OutOrStdout(), renderPlans(m, plans, opt))
+			_, err = io.WriteString(cmd.OutOrStdout(), report.PlanText(m, plans, opt))
 			return err
 		},
 	}
@@ -161,39 +151,4 @@ func pickTables(m *schema.Manifest, name string) ([]int, error) {
 		return nil, fmt.Errorf("--table %q: %s has no such table; it has %s", name, m.File, strings.Join(names, ", "))
 	}
 	return idx, nil
-}
-
-// tablePlan is everything plan prints about one table.
-type tablePlan struct {
-	index    int
-	spec     schema.Table
-	sweep    *advisor.Sweep
-	now      *advisor.Forecast // today's layout
-	rec      *advisor.Forecast // the recommended (or closest) layout, when it differs
-	holds    *advisor.Candidate
-	problems string // why the table could not be laid out, if it could not
-
-	refreshBudget *float64 // the model's refresh-memory budget in bytes
-}
-
-func makePlans(m *schema.Manifest, idx []int, opt planOptions) []tablePlan {
-	md := advisor.NewModel(m)
-	var out []tablePlan
-	for _, i := range idx {
-		p := tablePlan{index: i, spec: m.Tables[i], sweep: md.Sweep(i, opt.set), refreshBudget: md.RefreshBudget()}
-		if p.sweep.Today < 0 {
-			p.problems = "its partitions cannot be laid out"
-			out = append(out, p)
-			continue
-		}
-		p.now, _ = md.Forecast(i, p.spec, m.Engine.SegmentRows, opt.today, opt.horizon)
-		if c, _, ok := p.sweep.Pick(); ok && !c.Today() {
-			p.rec, _ = md.Forecast(i, c.Spec, c.SegmentRows, opt.today, opt.horizon)
-		}
-		if p.spec.GrowthPerYear != 0 {
-			p.holds = md.Holds(p.sweep, opt.horizon)
-		}
-		out = append(out, p)
-	}
-	return out
 }

@@ -1,4 +1,4 @@
-package main
+package report
 
 import (
 	"bytes"
@@ -28,7 +28,7 @@ const (
 // planSVG draws, per table, the fill of each partition's segments and the sweep's
 // fixed-ms-against-refresh-memory chart with the front and the recommendation, every
 // number as text so it can be read without a viewer.
-func planSVG(m *schema.Manifest, plans []tablePlan) []byte {
+func PlanSVG(m *schema.Manifest, plans []advisor.TablePlan) []byte {
 	var b bytes.Buffer
 	h := bandH * max(len(plans), 1)
 	fmt.Fprintf(&b, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")
@@ -37,12 +37,12 @@ func planSVG(m *schema.Manifest, plans []tablePlan) []byte {
 	fmt.Fprintf(&b, `<rect width="%d" height="%d" fill="#ffffff"/>`+"\n", svgWidth, h)
 	for n, p := range plans {
 		fmt.Fprintf(&b, `<g transform="translate(0,%d)">`+"\n", n*bandH)
-		fmt.Fprintf(&b, `<text x="10" y="18" font-size="14" font-weight="bold">%s</text>`+"\n", esc(p.spec.Name))
-		if p.problems == "" {
+		fmt.Fprintf(&b, `<text x="10" y="18" font-size="14" font-weight="bold">%s</text>`+"\n", esc(p.Spec.Name))
+		if p.Problems == "" {
 			fillChart(&b, m, p)
-			frontChart(&b, p.sweep)
+			frontChart(&b, p.Sweep)
 		} else {
-			fmt.Fprintf(&b, `<text x="10" y="40">%s</text>`+"\n", esc(p.problems))
+			fmt.Fprintf(&b, `<text x="10" y="40">%s</text>`+"\n", esc(p.Problems))
 		}
 		b.WriteString("</g>\n")
 	}
@@ -57,9 +57,9 @@ func f1(x float64) string { return fmt.Sprintf("%.1f", x) }
 
 // fillChart draws one bar per partition (oldest left, newest right): how full its
 // segments are, rows / (segments x segment_rows).
-func fillChart(b *bytes.Buffer, m *schema.Manifest, p tablePlan) {
+func fillChart(b *bytes.Buffer, m *schema.Manifest, p advisor.TablePlan) {
 	s := m.Engine.SegmentRows
-	parts, err := layout.Expand(p.spec)
+	parts, err := layout.Expand(p.Spec)
 	if err != nil || len(parts) == 0 {
 		return
 	}
@@ -92,7 +92,7 @@ func fillChart(b *bytes.Buffer, m *schema.Manifest, p tablePlan) {
 		fmt.Fprintf(b, `<rect x="%s" y="%s" width="%s" height="%s" fill="%s"/>`+"\n",
 			f1(fillLeft+float64(i)*w), f1(chartTop+chartH-bh), f1(barWidth(w)), f1(bh), fillColour(f))
 	}
-	l := p.sweep.Candidates[p.sweep.Today].Layout
+	l := p.Sweep.Candidates[p.Sweep.Today].Layout
 	fmt.Fprintf(b, `<text x="%d" y="%d">%s, %s (ideal %s), fill %s</text>`+"\n",
 		fillLeft, chartTop+chartH+18, counted(int64(l.Partitions), "partition"), counted(l.Segments, "segment"), advisor.Num(l.Ideal), advisor.Pct(l.Fill))
 }

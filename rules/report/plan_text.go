@@ -1,9 +1,10 @@
-package main
+package report
 
 import (
 	"fmt"
 	"slices"
 	"strings"
+	"time"
 
 	"github.com/scangate/scangate/rules/advisor"
 	"github.com/scangate/scangate/rules/layout"
@@ -14,6 +15,13 @@ import (
 // which must stay exact, may run longer.
 const planWidth = 80
 
+// PlanOptions are what the plan text needs beyond the plans: the date the forecast counts
+// from and its length in months.
+type PlanOptions struct {
+	Today   time.Time
+	Horizon int
+}
+
 var (
 	cnt  = advisor.Count
 	num  = advisor.Num
@@ -22,8 +30,9 @@ var (
 	size = advisor.Size
 )
 
-// renderPlans writes the plan of every table, separated by blank lines.
-func renderPlans(m *schema.Manifest, plans []tablePlan, opt planOptions) string {
+// PlanText writes the plan of every table for an 80-column terminal, separated by blank
+// lines.
+func PlanText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) string {
 	var b strings.Builder
 	for n, p := range plans {
 		if n > 0 {
@@ -34,15 +43,15 @@ func renderPlans(m *schema.Manifest, plans []tablePlan, opt planOptions) string 
 	return b.String()
 }
 
-func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOptions) {
+func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt PlanOptions) {
 	e := m.Engine
-	t := p.spec
+	t := p.Spec
 	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", t.Name, m.File, t.Pos.Line, t.Pos.Col)
-	if p.problems != "" {
-		fmt.Fprintf(b, "   %s\n", p.problems)
+	if p.Problems != "" {
+		fmt.Fprintf(b, "   %s\n", p.Problems)
 		return
 	}
-	sw := p.sweep
+	sw := p.Sweep
 	now := &sw.Candidates[sw.Today]
 	growth := "no growth"
 	if t.GrowthPerYear != 0 {
@@ -79,8 +88,8 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p tablePlan, opt planOpt
 			name = "refresh peak (others)" // this table's own size is unknown without profiles
 		}
 		row(name, size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
-		if p.refreshBudget != nil {
-			row("", "", "budget", p.refreshBudget, now.Peak)
+		if p.RefreshBudget != nil {
+			row("", "", "budget", p.RefreshBudget, now.Peak)
 		}
 	}
 	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)
@@ -221,8 +230,8 @@ func renderSweep(b *strings.Builder, sw *advisor.Sweep, today int64) {
 		{head: "segs", right: true}, {head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
 }
 
-func renderRecommendation(b *strings.Builder, p tablePlan, now *advisor.Candidate) {
-	sw := p.sweep
+func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.Candidate) {
+	sw := p.Sweep
 	c, fits, ok := sw.Pick()
 	b.WriteString("\n")
 	switch {
@@ -266,18 +275,18 @@ func renderRecommendation(b *strings.Builder, p tablePlan, now *advisor.Candidat
 	}
 }
 
-func renderForecast(b *strings.Builder, p tablePlan, opt planOptions) {
-	fc := p.now
+func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
+	fc := p.Now
 	if fc == nil {
 		return
 	}
-	end := advisor.Month(advisor.AddMonths(opt.today, opt.horizon))
+	end := advisor.Month(advisor.AddMonths(opt.Today, opt.Horizon))
 	b.WriteString("\n")
-	if p.spec.GrowthPerYear == 0 {
+	if p.Spec.GrowthPerYear == 0 {
 		para(b, "", fmt.Sprintf("Forecast: no growth_per_year, so the table's own figures stay as today through %s.", end))
 	} else {
 		para(b, "", fmt.Sprintf("Forecast from %s for %d months at %s growth a year, today's layout:",
-			opt.today.Format("2006-01-02"), opt.horizon, pctf(p.spec.GrowthPerYear)))
+			opt.Today.Format("2006-01-02"), opt.Horizon, pctf(p.Spec.GrowthPerYear)))
 	}
 	if len(fc.Crossings) > 0 {
 		var rows [][]string
@@ -293,12 +302,12 @@ func renderForecast(b *strings.Builder, p tablePlan, opt planOptions) {
 		}
 		grid(b, "   ", []column{{head: "budget", clip: true}, {head: "limit", right: true}, {head: "today", right: true}, {head: "first crossed"}}, rows)
 	}
-	if p.spec.GrowthPerYear == 0 {
+	if p.Spec.GrowthPerYear == 0 {
 		return
 	}
 	// Every quarter, the last month and each month a budget is first crossed.
-	months := []int{opt.horizon}
-	for t := 0; t < opt.horizon; t += 3 {
+	months := []int{opt.Horizon}
+	for t := 0; t < opt.Horizon; t += 3 {
 		months = append(months, t)
 	}
 	for _, c := range fc.Crossings {
@@ -315,21 +324,21 @@ func renderForecast(b *strings.Builder, p tablePlan, opt planOptions) {
 		if pr.Widest != "" {
 			wall = msf(pr.WallMs)
 		}
-		if p.sweep.Profiled {
+		if p.Sweep.Profiled {
 			peak = size(pr.Peak)
 		}
 		rows = append(rows, []string{advisor.Month(pr.Date), cnt(pr.Rows), num(pr.Layout.Segments), msf(pr.Layout.FixedMs), wall, peak})
 	}
 	grid(b, "   ", []column{{head: "month"}, {head: "rows", right: true}, {head: "segs", right: true},
 		{head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
-	if p.rec != nil {
+	if p.Rec != nil {
 		what := "The recommended layout"
-		if p.sweep.Recommended < 0 {
+		if p.Sweep.Recommended < 0 {
 			what = "The closest layout"
 		}
-		para(b, "", what+" "+holdsText(p.rec, end)+".")
+		para(b, "", what+" "+holdsText(p.Rec, end)+".")
 	}
-	if h := p.holds; h != nil {
+	if h := p.Holds; h != nil {
 		if h.Today() {
 			para(b, "", fmt.Sprintf("Today's layout holds every budget through %s.", end))
 		} else {
