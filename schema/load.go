@@ -69,7 +69,7 @@ func parse(data []byte, lim Limits, start string) (*tree, []Problem) {
 	} else if !errors.Is(err, io.EOF) {
 		return fail(syntaxProblem(err, data))
 	}
-	if len(doc.Content) == 0 {
+	if len(doc.Content) == 0 || isEmptyDocument(doc.Content[0]) {
 		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
 	}
 	t := &tree{doc: doc.Content[0], lim: lim}
@@ -148,4 +148,9 @@ func encodingProblem(data []byte) *Problem {
 		i += size
 	}
 	return nil
+}
+
+// isEmptyDocument is a document with no content: "---" alone, or only comments.
+func isEmptyDocument(n *yaml.Node) bool {
+	return n.Kind == yaml.ScalarNode && n.ShortTag() == "!!null" && n.Value == "" && n.Style == 0
 }

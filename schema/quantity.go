@@ -62,12 +62,18 @@ func parseNumber(num string, limit int64, unit string) (int64, error) {
 }
 
 func exact(whole, mant string, factor, limit int64, unit string, allowExp bool) (int64, error) {
+	notQuantity := func() error {
+		if unit == "bytes" {
+			return fmt.Errorf("%q is not a byte size; write digits with a unit, e.g. \"500MB\" or \"64GiB\"", whole)
+		}
+		return fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
+	}
 	if mant == "" || strings.ContainsAny(mant, "_/ ") || (!allowExp && !plainDecimal(mant)) {
-		return 0, fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
+		return 0, notQuantity()
 	}
 	var r big.Rat
 	if _, ok := r.SetString(mant); !ok {
-		return 0, fmt.Errorf("%q is not a quantity; write digits with an optional suffix, e.g. \"8Mi\" or \"7.2G\"", whole)
+		return 0, notQuantity()
 	}
 	r.Mul(&r, new(big.Rat).SetInt64(factor))
 	if !r.IsInt() {

@@ -118,13 +118,13 @@ func TestParseBytesErrors(t *testing.T) {
 	}{
 		{"0.1B", "not a whole number of bytes"},
 		{"1.5", "not a whole number of bytes"},
-		{"8Mi", "not a quantity"}, // a count suffix is not a byte unit
-		{"64GIB", "not a quantity"},
-		{"-1B", "not a quantity"},
-		{"", "not a quantity"},
-		{"B", "not a quantity"},
-		{"1e3B", "not a quantity"},
-		{"0x10B", "not a quantity"},
+		{"8Mi", "not a byte size"}, // a count suffix is not a byte unit
+		{"64GIB", "not a byte size"},
+		{"-1B", "not a byte size"},
+		{"", "not a byte size"},
+		{"B", "not a byte size"},
+		{"1e3B", "not a byte size"},
+		{"0x10B", "not a byte size"},
 		{"1025PiB", "above the limit"},
 	}
 	for _, c := range cases {
