@@ -185,3 +185,24 @@ type Waiver struct {
 	Expires time.Time // a date, midnight UTC
 	Pos     Pos
 }
+
+// Partitions is how many partitions the manifest's tables expand to: what analysing it
+// costs, counted before any is expanded.
+func (m *Manifest) Partitions() int64 {
+	var n int64
+	for _, t := range m.Tables {
+		switch t.Partitions.Scheme {
+		case SchemeEven:
+			n += int64(t.Partitions.Count)
+		case SchemeList:
+			n += int64(len(t.Partitions.Items))
+		case SchemeTime:
+			for _, tier := range t.Partitions.Tiers {
+				n += int64(tier.Keep)
+			}
+		default:
+			n++
+		}
+	}
+	return n
+}

@@ -21,6 +21,9 @@ type Limits struct {
 	// MaxAliasNodes bounds the nodes reached through aliases and merge keys, so an alias
 	// bomb stops after a little work however small the file; 0 means no separate bound.
 	MaxAliasNodes int
+	// MaxRunPartitions bounds the partitions one run analyses over all its files; a file
+	// that would pass it is reported, not analysed.
+	MaxRunPartitions int64
 }
 
 // DefaultLimits are generous for hand-written manifests and small for an attacker.
@@ -30,6 +33,8 @@ var DefaultLimits = Limits{
 	MaxNodes:     4_000_000,
 	// Sharing a profile or a partition policy by alias costs a few hundred nodes.
 	MaxAliasNodes: 100_000,
+	// Twenty tables at the per-table limit; about 40 s of analysis on one core.
+	MaxRunPartitions: 20_000_000,
 }
 
 // located is where a JSON pointer's key and value sit in the file, so validation and

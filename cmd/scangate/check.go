@@ -114,27 +114,39 @@ func configError(cmd *cobra.Command, err error) error {
 
 // checkAll loads and checks every input on a bounded pool of workers and returns the
 // files in input order and the findings sorted; unreadable and invalid files become
-// schema findings and never stop the others.
+// schema findings and never stop the others. Loading comes first, so the run's
+// partition budget (limits.MaxRunPartitions) is spent in input order, the same on
+// every machine, before any file is analysed.
 func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]report.File, []rules.Finding) {
 	files := make([]report.File, len(inputs))
 	found := make([][]rules.Finding, len(inputs))
+	manifests := make([]*schema.Manifest, len(inputs))
 	root := repositoryRoot()
-	jobs := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < min(runtime.GOMAXPROCS(0), max(len(inputs), 1)); w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				files[i], found[i] = checkOne(inputs[i], root, cfg, proj)
-			}
-		}()
+	parallel(len(inputs), func(i int) {
+		files[i], manifests[i], found[i] = loadInput(inputs[i], root, proj)
+	})
+	spent := int64(0)
+	for i, m := range manifests {
+		if m == nil {
+			continue
+		}
+		n := m.Partitions()
+		if spent+n > limits.MaxRunPartitions {
+			files[i].Invalid, manifests[i] = true, nil
+			found[i] = []rules.Finding{{
+				Rule: rules.Schema.ID, Severity: rules.Error, File: m.File, Subject: "run budget",
+				Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
+					rules.Thousands(n), rules.Thousands(limits.MaxRunPartitions)),
+			}}
+			continue
+		}
+		spent += n
 	}
-	for i := range inputs {
-		jobs <- i
-	}
-	close(jobs)
-	wg.Wait()
+	parallel(len(inputs), func(i int) {
+		if m := manifests[i]; m != nil {
+			files[i].Tables, found[i] = rules.Check(m, cfg)
+		}
+	})
 	var findings []rules.Finding
 	for _, fs := range found {
 		findings = append(findings, fs...)
@@ -143,11 +155,33 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]r
 	return files, findings
 }
 
-func checkOne(in input, root string, cfg rules.Config, proj *schema.ProjectConfig) (report.File, []rules.Finding) {
+// parallel runs work(i) for i in 0..n-1 on at most GOMAXPROCS goroutines.
+func parallel(n int, work func(i int)) {
+	jobs := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), max(n, 1)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range jobs {
+				work(i)
+			}
+		}()
+	}
+	for i := 0; i < n; i++ {
+		jobs <- i
+	}
+	close(jobs)
+	wg.Wait()
+}
+
+// loadInput reads and validates one input; an invalid one returns its schema findings and
+// no manifest.
+func loadInput(in input, root string, proj *schema.ProjectConfig) (report.File, *schema.Manifest, []rules.Finding) {
 	f := report.File{Name: in.name, URI: repositoryPath(root, in.name)}
 	if in.err != nil {
 		f.Invalid = true
-		return f, []rules.Finding{{
+		return f, nil, []rules.Finding{{
 			Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Subject: "read",
 			Message: fmt.Sprintf("cannot read the file: %v", in.err),
 		}}
@@ -156,14 +190,12 @@ func checkOne(in input, root string, cfg rules.Config, proj *schema.ProjectConfi
 	if err != nil {
 		f.Invalid = true
 		if se, ok := err.(*schema.Error); ok {
-			return f, rules.SchemaFindings(se)
+			return f, nil, rules.SchemaFindings(se)
 		}
-		return f, []rules.Finding{{Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Message: err.Error()}}
+		return f, nil, []rules.Finding{{Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Message: err.Error()}}
 	}
 	f.Model = m.Model
-	tables, findings := rules.Check(m, cfg)
-	f.Tables = tables
-	return f, findings
+	return f, m, nil
 }
 
 // parseFailOn reads --fail-on: the lowest severity that fails the run, 0 for never.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -100,4 +101,21 @@ func TestMaxFileSize(t *testing.T) {
 	}
 	wantCode(t, scangate(t, dir, "", nil, "check", "--max-file-size", "1KiB", "m.yaml"), 0)
 	wantCode(t, scangate(t, dir, "", nil, "check", "--max-file-size", "lots", "m.yaml"), 2)
+}
+
+// The run's partition budget is spent in input order: the files that would pass it are
+// reported, not analysed, and the run exits 2; the same files on every machine.
+func TestRunPartitionBudget(t *testing.T) {
+	m := func(days int) string {
+		return fmt.Sprintf("format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: %d, partitions: {scheme: time, tiers: [{grain: day, keep: %d}]}}]\n", days*1000, days)
+	}
+	dir := repo(t, map[string]string{"a.yaml": m(600), "b.yaml": m(600), "c.yaml": m(300)})
+	// 600 + 600 would pass 1,000; 600 + 300 fits: a and c are analysed, b is not.
+	r := scangate(t, dir, "", nil, "check", "--max-run-partitions", "1000", ".")
+	wantCode(t, r, 2)
+	if !strings.Contains(r.stdout, "b.yaml: error: not checked: its 600 partitions would take the run past 1,000 partitions") ||
+		!strings.Contains(r.stdout, "3 files, 2 tables") {
+		t.Errorf("want b.yaml refused and a, c checked:\n%s", r.stdout)
+	}
+	wantCode(t, scangate(t, dir, "", nil, "check", "--max-run-partitions", "2000", "."), 0)
 }

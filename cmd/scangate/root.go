@@ -26,12 +26,16 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	limits = schema.DefaultLimits
 	var maxFile string
 	root.PersistentFlags().StringVar(&maxFile, "max-file-size", "8MiB", "refuse manifests and configs larger than this (a byte size such as 16MiB)")
+	root.PersistentFlags().Int64Var(&limits.MaxRunPartitions, "max-run-partitions", schema.DefaultLimits.MaxRunPartitions, "analyse at most this many partitions in one run, over all files")
 	root.PersistentPreRunE = func(*cobra.Command, []string) error {
 		n, err := schema.ParseBytes(maxFile)
 		if err != nil || n < 1 || n > 1<<30 {
 			return usageError(fmt.Errorf("--max-file-size %q: give a size from 1B to 1GiB, e.g. 16MiB", maxFile))
 		}
 		limits.MaxFileBytes = int(n)
+		if limits.MaxRunPartitions < 1 {
+			return usageError(fmt.Errorf("--max-run-partitions %d: give a positive number", limits.MaxRunPartitions))
+		}
 		return nil
 	}
 	root.SetIn(stdin)
