@@ -455,19 +455,7 @@ func TestDiffMarkdownGolden(t *testing.T) {
 	args := []string{"diff", "--format", "markdown", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after"}
 	r := scangate(t, root(t), "", nil, args...)
 	wantCode(t, r, 1)
-	golden := filepath.Join(root(t), "testdata", "golden", "diff.md")
-	if *update {
-		if err := os.WriteFile(golden, []byte(r.stdout), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	want, err := os.ReadFile(golden)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if r.stdout != string(want) {
-		t.Errorf("markdown diff differs from %s (rerun with -update if intended):\n%s", golden, r.stdout)
-	}
+	checkGolden(t, "diff.md", r.stdout)
 	if again := scangate(t, root(t), "", nil, args...); again.stdout != r.stdout {
 		t.Error("two runs printed different markdown")
 	}

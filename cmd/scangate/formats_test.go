@@ -32,19 +32,7 @@ func TestFormatsGolden(t *testing.T) {
 		t.Run(format, func(t *testing.T) {
 			r := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "--format", format, "testdata/demo")
 			wantCode(t, r, 1)
-			golden := filepath.Join(root(t), "testdata", "golden", name)
-			if *update {
-				if err := os.WriteFile(golden, []byte(r.stdout), 0o644); err != nil {
-					t.Fatal(err)
-				}
-			}
-			want, err := os.ReadFile(golden)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if r.stdout != string(want) {
-				t.Errorf("%s report differs from %s (rerun with -update if intended)", format, golden)
-			}
+			checkGolden(t, name, r.stdout)
 		})
 	}
 }

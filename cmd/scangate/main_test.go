@@ -71,13 +71,12 @@ func wantCode(t *testing.T, r result, code int) {
 	}
 }
 
-// TestDemoGolden pins the demo's whole report; run with -update after a deliberate change.
-func TestDemoGolden(t *testing.T) {
-	r := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "testdata/demo")
-	wantCode(t, r, 1)
-	golden := filepath.Join(root(t), "testdata", "golden", "demo.txt")
+// checkGolden compares got with testdata/golden/name, or rewrites the file with -update.
+func checkGolden(t *testing.T, name, got string) {
+	t.Helper()
+	golden := filepath.Join(root(t), "testdata", "golden", name)
 	if *update {
-		if err := os.WriteFile(golden, []byte(r.stdout), 0o644); err != nil {
+		if err := os.WriteFile(golden, []byte(got), 0o644); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -85,9 +84,16 @@ func TestDemoGolden(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if r.stdout != string(want) {
-		t.Errorf("demo report differs from %s (rerun with -update if intended):\n%s", golden, r.stdout)
+	if got != string(want) {
+		t.Errorf("output differs from %s (rerun with -update if intended):\n%s", golden, got)
 	}
+}
+
+// TestDemoGolden pins the demo's whole report; run with -update after a deliberate change.
+func TestDemoGolden(t *testing.T) {
+	r := scangate(t, root(t), "", nil, "check", "--today", "2026-01-01", "testdata/demo")
+	wantCode(t, r, 1)
+	checkGolden(t, "demo.txt", r.stdout)
 	for _, s := range []string{"error:", "warning:", "note:", "    hint: ", "[scan-overhead]", "[truncated-segments]"} {
 		if !strings.Contains(r.stdout, s) {
 			t.Errorf("demo report lacks %q", s)
