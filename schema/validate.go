@@ -26,6 +26,7 @@ type document struct {
 	url      string
 	raw      []byte
 	compiled func() (*jsonschema.Schema, error)
+	quick    func() (*quick, error)
 	doc      func() any
 }
 
@@ -35,6 +36,7 @@ func newDocument(url string, raw []byte) *document {
 		v, _ := jsonschema.UnmarshalJSON(bytes.NewReader(raw))
 		return v
 	})
+	d.quick = sync.OnceValues(func() (*quick, error) { return compileQuick(d.doc()) })
 	d.compiled = sync.OnceValues(func() (*jsonschema.Schema, error) {
 		c := jsonschema.NewCompiler()
 		if err := c.AddResource(url, d.doc()); err != nil {
@@ -52,6 +54,13 @@ var printer = message.NewPrinter(message.MatchLanguage("en"))
 // validate checks the document against the schema and returns one problem per
 // failing leaf, positioned at the value (or key) it is about.
 func (t *tree) validate(d *document) []Problem {
+	q, err := d.quick()
+	if err != nil {
+		panic(fmt.Sprintf("embedded schema %s: %v", d.url, err)) // a build defect, as below
+	}
+	if q.check(t.root) == passes {
+		return nil
+	}
 	sch, err := d.compiled()
 	if err != nil {
 		// The schema is embedded and compiled in tests; reaching this is a build defect.
