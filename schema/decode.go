@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strconv"
 	"time"
+
+	"go.yaml.in/yaml/v3"
 )
 
 // MaxPartitions bounds the partitions one table may generate, so a policy such as
@@ -312,15 +314,29 @@ func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
 			d.fail(ptr+"/tiers", fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
 		}
 	case SchemeList:
-		names := map[string]int{}
-		for i, raw := range raw["items"].([]any) {
-			ip := ptr + "/items/" + strconv.Itoa(i)
+		items := raw["items"].([]any)
+		names := make(map[string]int, len(items))
+		p.Items = make([]Item, 0, len(items))
+		// A list may hold 100,000 items: find the sequence once and take each item's
+		// position from it, and build an item's pointer only to report a problem there.
+		seq := deref(d.t.locate(ptr + "/items").value)
+		for i, raw := range items {
+			ip := func() string { return ptr + "/items/" + strconv.Itoa(i) }
 			im := raw.(map[string]any)
-			it := Item{Pos: d.pos(ip)}
+			it := Item{}
+			if seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items) {
+				it.Pos = Pos{seq.Content[i].Line, seq.Content[i].Column}
+			} else {
+				it.Pos = d.pos(ip())
+			}
 			it.Name, _ = im["name"].(string)
-			it.Rows = d.count(ip+"/rows", im["rows"], false)
+			rows, err := quantity(im["rows"], MaxCount, "rows or values", ParseCount)
+			if err != nil {
+				d.fail(ip()+"/rows", err.Error())
+			}
+			it.Rows = rows
 			if line, dup := names[it.Name]; dup {
-				d.fail(ip+"/name", fmt.Sprintf("partition %q is already listed at line %d; partition names must be unique", it.Name, line))
+				d.fail(ip()+"/name", fmt.Sprintf("partition %q is already listed at line %d; partition names must be unique", it.Name, line))
 			}
 			names[it.Name] = it.Pos.Line
 			p.Items = append(p.Items, it)

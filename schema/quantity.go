@@ -3,6 +3,7 @@ package schema
 import (
 	"fmt"
 	"math/big"
+	"strconv"
 	"strings"
 )
 
@@ -58,6 +59,12 @@ func ParseBytes(s string) (int64, error) {
 
 // parseNumber reads a plain YAML or JSON number (exponents allowed) as a whole count.
 func parseNumber(num string, limit int64, unit string) (int64, error) {
+	// Plain digits, the common case, need no rational arithmetic: 18 digits fit int64.
+	if len(num) > 0 && len(num) <= 18 && strings.Trim(num, "0123456789") == "" {
+		if n, err := strconv.ParseInt(num, 10, 64); err == nil && n <= limit {
+			return n, nil
+		}
+	}
 	return exact(num, num, 1, limit, unit, true)
 }
 

@@ -114,38 +114,36 @@ func configError(cmd *cobra.Command, err error) error {
 
 // checkAll loads and checks every input on a bounded pool of workers and returns the
 // files in input order and the findings sorted; unreadable and invalid files become
-// schema findings and never stop the others. Loading comes first, so the run's
-// partition budget (limits.MaxRunPartitions) is spent in input order, the same on
-// every machine, before any file is analysed.
+// schema findings and never stop the others. The run's partition budget
+// (limits.MaxRunPartitions) is spent in input order, the same on every machine. It
+// consumes the inputs: their bytes are released as they are loaded.
 func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]report.File, []rules.Finding) {
 	files := make([]report.File, len(inputs))
 	found := make([][]rules.Finding, len(inputs))
-	manifests := make([]*schema.Manifest, len(inputs))
 	root := repositoryRoot()
+	budget := newRunBudget(limits.MaxRunPartitions)
+	// Each file is loaded and checked by one worker, so only the files in flight hold
+	// their parse trees; the bytes are dropped once loaded. A run of thousands of files
+	// keeps no more than their findings and tables.
 	parallel(len(inputs), func(i int) {
-		files[i], manifests[i], found[i] = loadInput(inputs[i], root, proj)
-	})
-	spent := int64(0)
-	for i, m := range manifests {
-		if m == nil {
-			continue
+		f, m, fs := loadInput(inputs[i], root, proj)
+		inputs[i].data = nil
+		var n int64
+		if m != nil {
+			n = m.Partitions()
 		}
-		n := m.Partitions()
-		if spent+n > limits.MaxRunPartitions {
-			files[i].Invalid, manifests[i] = true, nil
-			found[i] = []rules.Finding{{
-				Rule: rules.Schema.ID, Severity: rules.Error, File: m.File, Subject: "run budget",
+		if !budget.spend(i, n) {
+			f.Invalid, m = true, nil
+			fs = []rules.Finding{{
+				Rule: rules.Schema.ID, Severity: rules.Error, File: f.Name, Subject: "run budget",
 				Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
 					rules.Thousands(n), rules.Thousands(limits.MaxRunPartitions)),
 			}}
-			continue
 		}
-		spent += n
-	}
-	parallel(len(inputs), func(i int) {
-		if m := manifests[i]; m != nil {
-			files[i].Tables, found[i] = rules.Check(m, cfg)
+		if m != nil {
+			f.Tables, fs = rules.Check(m, cfg)
 		}
+		files[i], found[i] = f, fs
 	})
 	var findings []rules.Finding
 	for _, fs := range found {
@@ -153,6 +151,41 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]r
 	}
 	sort.SliceStable(findings, func(i, j int) bool { return rules.Less(findings[i], findings[j]) })
 	return files, findings
+}
+
+// runBudget is the run's partition budget, spent in input order whatever order the
+// workers finish loading in, so the same files are refused on every machine.
+type runBudget struct {
+	mu    sync.Mutex
+	turn  *sync.Cond
+	next  int // the input whose turn it is
+	spent int64
+	limit int64
+}
+
+func newRunBudget(limit int64) *runBudget {
+	b := &runBudget{limit: limit}
+	b.turn = sync.NewCond(&b.mu)
+	return b
+}
+
+// spend takes n partitions for input i once every input before it has spent its own,
+// and reports whether they fitted. Every input spends exactly once (0 for one that did
+// not load). parallel hands inputs out in order, so an earlier input is always held by
+// a worker that will reach here: the wait ends.
+func (b *runBudget) spend(i int, n int64) bool {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	for b.next != i {
+		b.turn.Wait()
+	}
+	ok := b.spent+n <= b.limit
+	if ok {
+		b.spent += n
+	}
+	b.next++
+	b.turn.Broadcast()
+	return ok
 }
 
 // parallel runs work(i) for i in 0..n-1 on at most GOMAXPROCS goroutines.

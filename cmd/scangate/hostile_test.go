@@ -5,9 +5,11 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 )
 
 // Inputs that are not manifests at all: each is refused with a positioned message and
@@ -118,4 +120,30 @@ func TestRunPartitionBudget(t *testing.T) {
 		t.Errorf("want b.yaml refused and a, c checked:\n%s", r.stdout)
 	}
 	wantCode(t, scangate(t, dir, "", nil, "check", "--max-run-partitions", "2000", "."), 0)
+}
+
+// Workers finish loading in any order; the budget still decides as if the inputs were
+// spent one after another in input order.
+func TestRunBudgetSpendsInInputOrder(t *testing.T) {
+	sizes := []int64{5, 1, 7, 2, 9, 3, 3, 8, 1, 4, 6, 2, 5, 7, 1, 9}
+	var want []bool
+	spent := int64(0)
+	for _, n := range sizes {
+		ok := spent+n <= 20
+		if ok {
+			spent += n
+		}
+		want = append(want, ok)
+	}
+	for round := range 20 {
+		b := newRunBudget(20)
+		got := make([]bool, len(sizes))
+		parallel(len(sizes), func(i int) {
+			time.Sleep(time.Duration((i*7+round)%5) * time.Millisecond) // finish out of order
+			got[i] = b.spend(i, sizes[i])
+		})
+		if !slices.Equal(got, want) {
+			t.Fatalf("round %d: refused %v, want %v", round, got, want)
+		}
+	}
 }

@@ -1,0 +1,23 @@
+package schema
+
+import (
+	"fmt"
+	"testing"
+)
+
+// The plain-digits shortcut of parseNumber must give what the exact rational path gives
+// (math/big is the reference), at the limits and around int64's width.
+func TestParseNumberShortcutMatchesExact(t *testing.T) {
+	cases := []string{"0", "7", "007", "1000000", fmt.Sprint(MaxCount), fmt.Sprint(MaxCount + 1),
+		fmt.Sprint(MaxBytes), fmt.Sprint(MaxBytes + 1), "999999999999999999", "9223372036854775807",
+		"9223372036854775808", "123456789012345678901234567890"}
+	for _, c := range cases {
+		for _, limit := range []int64{MaxCount, MaxBytes} {
+			n, err := parseNumber(c, limit, "bytes")
+			m, err2 := exact(c, c, 1, limit, "bytes", true)
+			if n != m || fmt.Sprint(err) != fmt.Sprint(err2) {
+				t.Errorf("parseNumber(%q, %d) = %d, %v; exact gives %d, %v", c, limit, n, err, m, err2)
+			}
+		}
+	}
+}
