@@ -87,7 +87,15 @@ func (t *tree) locate(ptr string) located {
 	if t.doc == nil {
 		return at
 	}
-	for _, tok := range splitPointer(ptr) {
+	// Decoding asks for a position per table and column: walk the pointer's tokens in
+	// place rather than splitting it.
+	rest, more := strings.TrimPrefix(ptr, "/"), ptr != ""
+	for more {
+		var tok string
+		tok, rest, more = strings.Cut(rest, "/")
+		if strings.Contains(tok, "~") {
+			tok = strings.ReplaceAll(strings.ReplaceAll(tok, "~1", "/"), "~0", "~")
+		}
 		n := deref(at.value)
 		switch n.Kind {
 		case yaml.MappingNode:
