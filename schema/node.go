@@ -215,8 +215,8 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	}
 	switch n.Kind {
 	case yaml.MappingNode:
-		out := map[string]any{}
-		seen := map[string]*yaml.Node{}
+		out := make(map[string]any, len(n.Content)/2)
+		seen := make(map[string]*yaml.Node, len(n.Content)/2)
 		var merges []*yaml.Node
 		for i := 0; i+1 < len(n.Content); i += 2 {
 			k, v := n.Content[i], n.Content[i+1]
@@ -317,6 +317,20 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	return nil
 }
 
+// canonicalInt is a non-negative decimal integer written without sign, leading zeros or
+// separators, the way most counts are written.
+func canonicalInt(s string) bool {
+	if s == "" || len(s) > 18 || (s[0] == '0' && len(s) > 1) {
+		return false
+	}
+	for i := 0; i < len(s); i++ {
+		if s[i] < '0' || s[i] > '9' {
+			return false
+		}
+	}
+	return true
+}
+
 var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
 
 // scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number.
@@ -331,6 +345,9 @@ func scalar(n *yaml.Node, here func() string) (any, *Problem) {
 		}
 		return b, nil
 	case "!!int":
+		if canonicalInt(n.Value) {
+			return json.Number(n.Value), nil // already as big.Int would print it
+		}
 		s := strings.ReplaceAll(n.Value, "_", "")
 		neg := strings.HasPrefix(s, "-")
 		s = strings.TrimLeft(s, "+-")

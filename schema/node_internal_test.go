@@ -1,6 +1,11 @@
 package schema
 
-import "testing"
+import (
+	"fmt"
+	"math/big"
+	"strings"
+	"testing"
+)
 
 // locate walks a pointer's tokens in place; escaped keys (RFC 6901 "~0" and "~1"),
 // empty keys and indexes must land where the tokens name.
@@ -12,6 +17,26 @@ func TestLocateEscapedTokens(t *testing.T) {
 	for ptr, want := range map[string]int{"/a~1b/c~0d/1": 4, "/a~1b/c~0d": 3, "/": 5, "": 1, "/a~1b/nope": 2} {
 		if l := tr.locate(ptr); l.value == nil || l.value.Line != want {
 			t.Errorf("locate(%q) at line %v, want %d", ptr, l.value, want)
+		}
+	}
+}
+
+// The canonical-integer shortcut of scalar gives what the general path (math/big, the
+// reference) gives.
+func TestScalarIntShortcut(t *testing.T) {
+	for _, v := range []string{"0", "7", "10", "123456789012345678", "1234567890123456789", "007", "1_000", "+5", "-5", "0x1F", "0o17"} {
+		tr, ps := parse([]byte("v: "+v+"\n"), DefaultLimits, "")
+		if len(ps) > 0 {
+			t.Fatalf("%s: %v", v, ps)
+		}
+		got := tr.root.(map[string]any)["v"]
+		var want big.Int
+		text := strings.ReplaceAll(strings.TrimPrefix(v, "+"), "0o", "0")
+		if _, ok := want.SetString(text, 0); !ok {
+			t.Fatalf("reference cannot read %s", v)
+		}
+		if fmt.Sprint(got) != want.String() {
+			t.Errorf("%s converts to %v, want %s", v, got, want.String())
 		}
 	}
 }
