@@ -102,21 +102,44 @@ type Model struct {
 	profiled    bool
 	growth      bool // some table grows or shrinks
 	parallelism int
-	refresh     *float64                      // the refresh-memory budget: the strictest any table answers to
-	cache       map[figKey]*Figures           // other tables' figures; a cache only, never ranged over
-	parts       map[figKey][]layout.Partition // other tables' partitions by (table, month); s unused
+	refresh     *float64             // the refresh-memory budget: the strictest any table answers to
+	budgets     []schema.Budgets     // by table: Budgets(i)
+	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
+	grown       map[int]*grownTables // by month; a cache only, never ranged over
 }
 
-type figKey struct {
-	table int
+type viewKey struct {
 	s     int64
 	month int
 }
 
+// view is every table of the model as the manifest has it, laid out with one segment
+// capacity after some months of growth: what a what-if of one table holds against.
+// Every candidate of a sweep reads it, so it is computed once.
+type view struct {
+	figs  []*Figures  // by table; nil when it cannot be expanded (the loader refuses such manifests)
+	bytes []float64   // by table: figs' Bytes, 0 when nil
+	over  []tableMiss // tables that fit their scan budgets at today's capacity but not at this one
+}
+
+type tableMiss struct {
+	j int
+	Miss
+}
+
+// grownTables is every table grown for some months, with its partitions (the same at
+// every segment capacity).
+type grownTables struct {
+	specs []schema.Table
+	parts [][]layout.Partition // nil when it cannot be expanded
+}
+
 // NewModel prepares m for sweeps and forecasts.
 func NewModel(m *schema.Manifest) *Model {
-	md := &Model{M: m, cache: map[figKey]*Figures{}, parts: map[figKey][]layout.Partition{}}
+	md := &Model{M: m, views: map[viewKey]*view{}, grown: map[int]*grownTables{}}
+	md.budgets = make([]schema.Budgets, len(m.Tables))
 	for i, t := range m.Tables {
+		md.budgets[i] = m.Budgets.Override(t.Budgets)
 		// The refresh peak is the model's, so its budget is the strictest of the tables'
 		// (as the refresh-memory rule reads it).
 		if b := md.Budgets(i).RefreshMemory; b != nil && (md.refresh == nil || float64(*b) < *md.refresh) {
@@ -179,47 +202,72 @@ func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) F
 	return f
 }
 
-// other is the cached figures of table j as the manifest has it; nil when it cannot be
-// expanded (the loader refuses such manifests).
-func (md *Model) other(j int, s int64, month int) *Figures {
-	k := figKey{j, s, month}
-	if f, ok := md.cache[k]; ok {
-		return f
+// grownAt is every table grown for month months, expanded once.
+func (md *Model) grownAt(month int) *grownTables {
+	if g, ok := md.grown[month]; ok {
+		return g
 	}
-	var fp *Figures
-	pk := figKey{j, 0, month}
-	parts, ok := md.parts[pk]
-	spec := Grow(md.M.Tables[j], month)
-	if !ok {
-		parts, _ = layout.Expand(spec) // nil when it cannot be expanded
-		md.parts[pk] = parts
+	n := len(md.M.Tables)
+	g := &grownTables{specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
+	for j, t := range md.M.Tables {
+		g.specs[j] = Grow(t, month)
+		g.parts[j], _ = layout.Expand(g.specs[j]) // nil when it cannot be expanded
 	}
-	if parts != nil {
-		f := md.figures(spec, parts, s)
-		fp = &f
+	md.grown[month] = g
+	return g
+}
+
+// view is the model laid out with segments of s rows after month months of growth.
+func (md *Model) view(s int64, month int) *view {
+	k := viewKey{s, month}
+	if v, ok := md.views[k]; ok {
+		return v
 	}
-	md.cache[k] = fp
-	return fp
+	g := md.grownAt(month)
+	n := len(md.M.Tables)
+	v := &view{figs: make([]*Figures, n), bytes: make([]float64, n)}
+	all := make([]Figures, n)
+	for j := range n {
+		if g.parts[j] == nil {
+			continue
+		}
+		all[j] = md.figures(g.specs[j], g.parts[j], s)
+		v.figs[j], v.bytes[j] = &all[j], all[j].Bytes
+	}
+	if today := md.M.Engine.SegmentRows; s != today {
+		now := md.view(today, month)
+		for j, t := range md.M.Tables {
+			if now.figs[j] == nil || v.figs[j] == nil {
+				continue
+			}
+			if fitsScan(md.budgets[j], *now.figs[j]) && !fitsScan(md.budgets[j], *v.figs[j]) {
+				v.over = append(v.over, tableMiss{j, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)}})
+			}
+		}
+	}
+	md.views[k] = v
+	return v
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
 // and the other tables as the manifest has them, all grown for month months.
 func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
+	// Summed in table order from f's bytes, as ever, so the float result is unchanged
+	// (a total less table i's own would round differently).
+	all := md.view(s, month).bytes
 	bytes := f.Bytes
-	for j := range md.M.Tables {
-		if j == i {
-			continue
-		}
-		if o := md.other(j, s, month); o != nil {
-			bytes += o.Bytes
-		}
+	for _, b := range all[:i] {
+		bytes += b
+	}
+	for _, b := range all[i+1:] {
+		bytes += b
 	}
 	return layout.RefreshPeak(bytes, md.parallelism, s, md.rowBytes)
 }
 
 // Budgets are the budgets table i answers to: the model's with the table's own on top.
 func (md *Model) Budgets(i int) schema.Budgets {
-	return md.M.Budgets.Override(md.M.Tables[i].Budgets)
+	return md.budgets[i]
 }
 
 // Miss is one budget a layout breaks: the budget's key (scan_overhead_ms, scan_ms,
@@ -255,16 +303,9 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(*md.refresh))})
 	}
 	if s != md.M.Engine.SegmentRows {
-		for j, t := range md.M.Tables {
-			if j == i {
-				continue
-			}
-			now, then := md.other(j, md.M.Engine.SegmentRows, month), md.other(j, s, month)
-			if now == nil || then == nil {
-				continue
-			}
-			if fitsScan(md.Budgets(j), *now) && !fitsScan(md.Budgets(j), *then) {
-				out = append(out, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)})
+		for _, o := range md.view(s, month).over {
+			if o.j != i {
+				out = append(out, o.Miss)
 			}
 		}
 	}
@@ -314,57 +355,80 @@ func (md *Model) capacities(s Settings) []int64 {
 func (md *Model) Sweep(i int, set Settings) *Sweep {
 	spec := md.M.Tables[i]
 	today := md.M.Engine.SegmentRows
+	lv := set.levels()
+	horizon := lv.horizon()
 	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
 	order := 0
-	// A policy expands to the same partitions at every capacity: expand it once.
-	expanded := map[string][]layout.Partition{} // by the variant's change; a cache only
-	expandedLater := map[string][]layout.Partition{}
+	// A policy expands to the same partitions at every capacity: expand it once, and
+	// once grown to the horizon.
+	type policy struct {
+		label    string
+		parts    []layout.Partition
+		grown    schema.Table
+		later    []layout.Partition
+		hasLater bool
+	}
+	policies := map[string]*policy{} // by the variant's change; a cache only
 	for _, s := range md.capacities(set) {
+		raise := ""
+		if s != today {
+			verb := "raise"
+			if s < today {
+				verb = "lower"
+			}
+			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
+		}
 		vs := append([]Variant{{Spec: spec}}, Variants(spec, s)...)
 		for _, v := range vs {
-			parts, ok := expanded[v.Change]
+			p, ok := policies[v.Change]
 			if !ok {
-				parts, _ = layout.Expand(v.Spec)
-				expanded[v.Change] = parts
+				p = &policy{}
+				if p.parts, _ = layout.Expand(v.Spec); p.parts != nil {
+					p.label = Label(v.Spec.Partitions)
+				}
+				policies[v.Change] = p
 			}
-			if parts == nil {
+			if p.parts == nil {
 				continue // more partitions than the format allows
 			}
-			c := Candidate{Change: v.Change, Label: Label(v.Spec.Partitions), Spec: v.Spec, SegmentRows: s,
+			c := Candidate{Change: v.Change, Label: p.label, Spec: v.Spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
 			order++
 			if c.Engine {
 				c.Locked = set.FixedSegmentRows
-				verb := "raise"
-				if s < today {
-					verb = "lower"
-				}
-				raise := fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
 				if c.Change == "" {
 					c.Change = raise
 				} else {
 					c.Change += " and " + raise
 				}
 			}
-			f := md.figures(v.Spec, parts, s)
+			var f Figures
+			if v.Change == "" {
+				f = *md.view(s, 0).figs[i] // today's policy: the model's own figures of the table
+			} else {
+				f = md.figures(v.Spec, p.parts, s)
+			}
 			c.Figures = f
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
 			c.Fits = len(c.Misses) == 0
 			if c.Fits {
-				c.Warnings = md.warnings(i, f, set.levels())
+				c.Warnings = md.warnings(i, f, lv)
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					horizon := set.levels().horizon()
-					grown := Grow(v.Spec, horizon)
-					later, ok := expandedLater[v.Change]
-					if !ok {
-						later, _ = layout.Expand(grown)
-						expandedLater[v.Change] = later
+					if !p.hasLater {
+						p.grown = Grow(v.Spec, horizon)
+						p.later, _ = layout.Expand(p.grown)
+						p.hasLater = true
 					}
-					if later != nil {
-						g := md.figures(grown, later, s)
+					if p.later != nil {
+						var g Figures
+						if v.Change == "" {
+							g = *md.view(s, horizon).figs[i]
+						} else {
+							g = md.figures(p.grown, p.later, s)
+						}
 						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
 						}
