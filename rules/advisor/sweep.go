@@ -208,8 +208,16 @@ func (md *Model) grownAt(month int) *grownTables {
 		return g
 	}
 	n := len(md.M.Tables)
+	var base *grownTables
+	if month != 0 {
+		base = md.grownAt(0)
+	}
 	g := &grownTables{specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
 	for j, t := range md.M.Tables {
+		if base != nil && !grows(t) {
+			g.specs[j], g.parts[j] = base.specs[j], base.parts[j]
+			continue
+		}
 		g.specs[j] = Grow(t, month)
 		g.parts[j], _ = layout.Expand(g.specs[j]) // nil when it cannot be expanded
 	}
@@ -225,9 +233,17 @@ func (md *Model) view(s int64, month int) *view {
 	}
 	g := md.grownAt(month)
 	n := len(md.M.Tables)
+	var base *view
+	if month != 0 {
+		base = md.view(s, 0)
+	}
 	v := &view{figs: make([]*Figures, n), bytes: make([]float64, n)}
 	all := make([]Figures, n)
-	for j := range n {
+	for j, t := range md.M.Tables {
+		if base != nil && !grows(t) {
+			v.figs[j], v.bytes[j] = base.figs[j], base.bytes[j] // growth leaves it as it is
+			continue
+		}
 		if g.parts[j] == nil {
 			continue
 		}
@@ -359,15 +375,6 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	horizon := lv.horizon()
 	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
 	order := 0
-	// A policy expands to the same partitions at every capacity: expand it once, and
-	// once grown to the horizon.
-	type policy struct {
-		label    string
-		parts    []layout.Partition
-		grown    schema.Table
-		later    []layout.Partition
-		hasLater bool
-	}
 	policies := map[string]*policy{} // by the variant's change; a cache only
 	for _, s := range md.capacities(set) {
 		raise := ""
@@ -417,18 +424,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					if !p.hasLater {
-						p.grown = Grow(v.Spec, horizon)
-						p.later, _ = layout.Expand(p.grown)
-						p.hasLater = true
-					}
-					if p.later != nil {
-						var g Figures
-						if v.Change == "" {
-							g = *md.view(s, horizon).figs[i]
-						} else {
-							g = md.figures(p.grown, p.later, s)
-						}
+					if g, ok := md.atHorizon(i, v, p, f, s, horizon); ok {
 						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
 						}
@@ -443,6 +439,39 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	}
 	md.mark(sw)
 	return sw
+}
+
+// policy is one partition policy of a sweep: it expands to the same partitions at every
+// capacity, so it is expanded once, and once grown to the horizon.
+type policy struct {
+	label    string
+	parts    []layout.Partition
+	grown    schema.Table       // grown to the horizon, once hasLater
+	later    []layout.Partition // its partitions; nil when it cannot be expanded
+	hasLater bool
+}
+
+// atHorizon is table i laid out as v (policy p, figures f today) with segments of s
+// rows after horizon months of growth; false when it cannot be expanded.
+func (md *Model) atHorizon(i int, v Variant, p *policy, f Figures, s int64, horizon int) (Figures, bool) {
+	switch {
+	case !grows(v.Spec):
+		return f, true // growth leaves it as it is
+	case v.Change == "":
+		if g := md.view(s, horizon).figs[i]; g != nil {
+			return *g, true // today's policy: the model's own figures of the table
+		}
+		return Figures{}, false
+	}
+	if !p.hasLater {
+		p.grown = Grow(v.Spec, horizon)
+		p.later, _ = layout.Expand(p.grown)
+		p.hasLater = true
+	}
+	if p.later == nil {
+		return Figures{}, false
+	}
+	return md.figures(p.grown, p.later, s), true
 }
 
 // memAxis is the front's memory figure: the refresh peak, or, without column profiles,
@@ -539,12 +568,18 @@ func (sw *Sweep) Pick() (c *Candidate, fits, ok bool) {
 	return nil, false, false
 }
 
+// grows reports whether Grow changes spec: its growth rate is set and above -100%.
+func grows(spec schema.Table) bool {
+	g := spec.GrowthPerYear
+	return g != 0 && g > -1
+}
+
 // Grow returns spec with its rows grown by growth_per_year for months months:
 // rows x (1+g)^(months/12), rounded, listed items and measured encoded sizes scaled
 // alike, capped at the format's limits.
 func Grow(spec schema.Table, months int) schema.Table {
 	g := spec.GrowthPerYear
-	if months == 0 || g == 0 || !(g > -1) {
+	if months == 0 || !grows(spec) {
 		return spec
 	}
 	k := math.Pow(1+g, float64(months)/12)
