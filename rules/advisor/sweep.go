@@ -376,6 +376,12 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
 	order := 0
 	policies := map[string]*policy{} // by the variant's change; a cache only
+	// A time policy's variants are the same at every capacity but one: worded once.
+	isTime := spec.Partitions.Scheme == schema.SchemeTime
+	var timed []Variant
+	if isTime {
+		timed = timeVariants(spec)
+	}
 	for _, s := range md.capacities(set) {
 		raise := ""
 		if s != today {
@@ -385,7 +391,12 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			}
 			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
 		}
-		vs := append([]Variant{{Spec: spec}}, Variants(spec, s)...)
+		vs := []Variant{{Spec: spec}}
+		if isTime {
+			vs = withOne(append(vs, timed...), spec, s)
+		} else {
+			vs = append(vs, Variants(spec, s)...)
+		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
