@@ -382,7 +382,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	if isTime {
 		timed = timeVariants(spec)
 	}
-	for _, s := range md.capacities(set) {
+	caps := md.capacities(set)
+	for _, s := range caps {
 		raise := ""
 		if s != today {
 			verb := "raise"
@@ -396,6 +397,10 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			vs = withOne(append(vs, timed...), spec, s)
 		} else {
 			vs = append(vs, Variants(spec, s)...)
+		}
+		if sw.Candidates == nil {
+			// About as many candidates at every capacity: grow the large structs once.
+			sw.Candidates = make([]Candidate, 0, len(caps)*(len(vs)+1))
 		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
