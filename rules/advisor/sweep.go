@@ -113,13 +113,18 @@ type viewKey struct {
 	month int
 }
 
-// view is every table of the model as the manifest has it, laid out with one segment
+// view is the tables of the model as the manifest has them, laid out with one segment
 // capacity after some months of growth: what a what-if of one table holds against.
-// Every candidate of a sweep reads it, so it is computed once.
+// Every candidate of a sweep reads it, so it is computed once. The first what-if's own
+// table is left out until another table's what-if needs it: a model of one large table
+// never lays it out, or holds its partitions, twice.
 type view struct {
-	figs  []*Figures  // by table; nil when it cannot be expanded (the loader refuses such manifests)
-	bytes []float64   // by table: figs' Bytes, 0 when nil
-	over  []tableMiss // tables that fit their scan budgets at today's capacity but not at this one
+	figs    []*Figures  // by table; nil when left out or when it cannot be expanded
+	own     []Figures   // by table: the figures figs points to, unless shared with month 0
+	bytes   []float64   // by table: figs' Bytes, 0 when nil
+	skip    int         // the table left out, -1 none
+	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one
+	overFor int         // -1: over lists every table; i: every table but i; -2: not listed
 }
 
 type tableMiss struct {
@@ -127,9 +132,10 @@ type tableMiss struct {
 	Miss
 }
 
-// grownTables is every table grown for some months, with its partitions (the same at
-// every segment capacity).
+// grownTables is the tables grown for some months, with their partitions (the same at
+// every segment capacity), each expanded when first needed.
 type grownTables struct {
+	have  []bool
 	specs []schema.Table
 	parts [][]layout.Partition // nil when it cannot be expanded
 }
@@ -202,67 +208,87 @@ func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) F
 	return f
 }
 
-// grownAt is every table grown for month months, expanded once.
-func (md *Model) grownAt(month int) *grownTables {
-	if g, ok := md.grown[month]; ok {
-		return g
+// grownTable is table j grown for month months, and its partitions, expanded once.
+func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
+	t := md.M.Tables[j]
+	if month != 0 && !grows(t) {
+		return md.grownTable(j, 0) // growth leaves it as it is
 	}
-	n := len(md.M.Tables)
-	var base *grownTables
-	if month != 0 {
-		base = md.grownAt(0)
+	g, ok := md.grown[month]
+	if !ok {
+		n := len(md.M.Tables)
+		g = &grownTables{have: make([]bool, n), specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
+		md.grown[month] = g
 	}
-	g := &grownTables{specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
-	for j, t := range md.M.Tables {
-		if base != nil && !grows(t) {
-			g.specs[j], g.parts[j] = base.specs[j], base.parts[j]
-			continue
-		}
+	if !g.have[j] {
 		g.specs[j] = Grow(t, month)
 		g.parts[j], _ = layout.Expand(g.specs[j]) // nil when it cannot be expanded
+		g.have[j] = true
 	}
-	md.grown[month] = g
-	return g
+	return g.specs[j], g.parts[j]
 }
 
-// view is the model laid out with segments of s rows after month months of growth.
-func (md *Model) view(s int64, month int) *view {
+// view is the model laid out with segments of s rows after month months of growth,
+// every table but (perhaps) table i laid out; i = -1 for every table.
+func (md *Model) view(s int64, month, i int) *view {
 	k := viewKey{s, month}
-	if v, ok := md.views[k]; ok {
-		return v
-	}
-	g := md.grownAt(month)
-	n := len(md.M.Tables)
-	var base *view
-	if month != 0 {
-		base = md.view(s, 0)
-	}
-	v := &view{figs: make([]*Figures, n), bytes: make([]float64, n)}
-	all := make([]Figures, n)
-	for j, t := range md.M.Tables {
-		if base != nil && !grows(t) {
-			v.figs[j], v.bytes[j] = base.figs[j], base.bytes[j] // growth leaves it as it is
-			continue
+	v, ok := md.views[k]
+	if !ok {
+		n := len(md.M.Tables)
+		v = &view{figs: make([]*Figures, n), own: make([]Figures, n), bytes: make([]float64, n), skip: -1, overFor: -2}
+		md.views[k] = v
+		if i >= 0 && i < n {
+			v.skip = i
 		}
-		if g.parts[j] == nil {
-			continue
-		}
-		all[j] = md.figures(g.specs[j], g.parts[j], s)
-		v.figs[j], v.bytes[j] = &all[j], all[j].Bytes
-	}
-	if today := md.M.Engine.SegmentRows; s != today {
-		now := md.view(today, month)
-		for j, t := range md.M.Tables {
-			if now.figs[j] == nil || v.figs[j] == nil {
-				continue
-			}
-			if fitsScan(md.budgets[j], *now.figs[j]) && !fitsScan(md.budgets[j], *v.figs[j]) {
-				v.over = append(v.over, tableMiss{j, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)}})
+		for j := range n {
+			if j != v.skip {
+				md.layOut(v, s, month, j, i)
 			}
 		}
+	} else if v.skip >= 0 && v.skip != i {
+		md.layOut(v, s, month, v.skip, i)
+		v.skip = -1
 	}
-	md.views[k] = v
 	return v
+}
+
+// layOut puts table j (not i) into v.
+func (md *Model) layOut(v *view, s int64, month, j, i int) {
+	if month != 0 && !grows(md.M.Tables[j]) {
+		// Growth leaves it as it is: share today's figures (j != i, so they are there).
+		base := md.view(s, 0, i)
+		v.figs[j], v.bytes[j] = base.figs[j], base.bytes[j]
+		return
+	}
+	spec, parts := md.grownTable(j, month)
+	if parts == nil {
+		return
+	}
+	v.own[j] = md.figures(spec, parts, s)
+	v.figs[j], v.bytes[j] = &v.own[j], v.own[j].Bytes
+}
+
+// outgrown lists the tables of the model, table i aside, that fit their scan budgets
+// with today's segment capacity but not with s, after month months of growth.
+func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
+	v, now := md.view(s, month, i), md.view(md.M.Engine.SegmentRows, month, i)
+	if v.overFor == -1 || v.overFor == i {
+		return v.over
+	}
+	// Both views now leave out at most table i.
+	v.over, v.overFor = nil, -1
+	if v.skip == i || now.skip == i {
+		v.overFor = i
+	}
+	for j, t := range md.M.Tables {
+		if now.figs[j] == nil || v.figs[j] == nil {
+			continue
+		}
+		if fitsScan(md.budgets[j], *now.figs[j]) && !fitsScan(md.budgets[j], *v.figs[j]) {
+			v.over = append(v.over, tableMiss{j, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)}})
+		}
+	}
+	return v.over
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
@@ -270,7 +296,7 @@ func (md *Model) view(s int64, month int) *view {
 func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
 	// Summed in table order from f's bytes, as ever, so the float result is unchanged
 	// (a total less table i's own would round differently).
-	all := md.view(s, month).bytes
+	all := md.view(s, month, i).bytes
 	bytes := f.Bytes
 	for _, b := range all[:i] {
 		bytes += b
@@ -319,7 +345,7 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(*md.refresh))})
 	}
 	if s != md.M.Engine.SegmentRows {
-		for _, o := range md.view(s, month).over {
+		for _, o := range md.outgrown(i, s, month) {
 			if o.j != i {
 				out = append(out, o.Miss)
 			}
@@ -425,12 +451,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			var f Figures
-			if v.Change == "" {
-				f = *md.view(s, 0).figs[i] // today's policy: the model's own figures of the table
-			} else {
-				f = md.figures(v.Spec, p.parts, s)
-			}
+			f := md.figures(v.Spec, p.parts, s)
 			c.Figures = f
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
@@ -440,7 +461,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					if g, ok := md.atHorizon(i, v, p, f, s, horizon); ok {
+					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
 						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
 						}
@@ -467,17 +488,11 @@ type policy struct {
 	hasLater bool
 }
 
-// atHorizon is table i laid out as v (policy p, figures f today) with segments of s
+// atHorizon is the table laid out as v (policy p, figures f today) with segments of s
 // rows after horizon months of growth; false when it cannot be expanded.
-func (md *Model) atHorizon(i int, v Variant, p *policy, f Figures, s int64, horizon int) (Figures, bool) {
-	switch {
-	case !grows(v.Spec):
+func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int) (Figures, bool) {
+	if !grows(v.Spec) {
 		return f, true // growth leaves it as it is
-	case v.Change == "":
-		if g := md.view(s, horizon).figs[i]; g != nil {
-			return *g, true // today's policy: the model's own figures of the table
-		}
-		return Figures{}, false
 	}
 	if !p.hasLater {
 		p.grown = Grow(v.Spec, horizon)
