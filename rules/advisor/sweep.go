@@ -102,21 +102,50 @@ type Model struct {
 	profiled    bool
 	growth      bool // some table grows or shrinks
 	parallelism int
-	refresh     *float64                      // the refresh-memory budget: the strictest any table answers to
-	cache       map[figKey]*Figures           // other tables' figures; a cache only, never ranged over
-	parts       map[figKey][]layout.Partition // other tables' partitions by (table, month); s unused
+	refresh     *float64             // the refresh-memory budget: the strictest any table answers to
+	budgets     []schema.Budgets     // by table: Budgets(i)
+	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
+	grown       map[int]*grownTables // by month; a cache only, never ranged over
 }
 
-type figKey struct {
-	table int
+type viewKey struct {
 	s     int64
 	month int
 }
 
+// view is the tables of the model as the manifest has them, laid out with one segment
+// capacity after some months of growth: what a what-if of one table holds against.
+// Every candidate of a sweep reads it, so it is computed once. The first what-if's own
+// table is left out until another table's what-if needs it: a model of one large table
+// never lays it out, or holds its partitions, twice.
+type view struct {
+	figs    []*Figures  // by table; nil when left out or when it cannot be expanded
+	own     []Figures   // by table: the figures figs points to, unless shared with month 0
+	bytes   []float64   // by table: figs' Bytes, 0 when nil
+	skip    int         // the table left out, -1 none
+	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one
+	overFor int         // -1: over lists every table; i: every table but i; -2: not listed
+}
+
+type tableMiss struct {
+	j int
+	Miss
+}
+
+// grownTables is the tables grown for some months, with their partitions (the same at
+// every segment capacity), each expanded when first needed.
+type grownTables struct {
+	have  []bool
+	specs []schema.Table
+	parts [][]layout.Partition // nil when it cannot be expanded
+}
+
 // NewModel prepares m for sweeps and forecasts.
 func NewModel(m *schema.Manifest) *Model {
-	md := &Model{M: m, cache: map[figKey]*Figures{}, parts: map[figKey][]layout.Partition{}}
+	md := &Model{M: m, views: map[viewKey]*view{}, grown: map[int]*grownTables{}}
+	md.budgets = make([]schema.Budgets, len(m.Tables))
 	for i, t := range m.Tables {
+		md.budgets[i] = m.Budgets.Override(t.Budgets)
 		// The refresh peak is the model's, so its budget is the strictest of the tables'
 		// (as the refresh-memory rule reads it).
 		if b := md.Budgets(i).RefreshMemory; b != nil && (md.refresh == nil || float64(*b) < *md.refresh) {
@@ -179,47 +208,108 @@ func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) F
 	return f
 }
 
-// other is the cached figures of table j as the manifest has it; nil when it cannot be
-// expanded (the loader refuses such manifests).
-func (md *Model) other(j int, s int64, month int) *Figures {
-	k := figKey{j, s, month}
-	if f, ok := md.cache[k]; ok {
-		return f
+// grownTable is table j grown for month months, and its partitions, expanded once.
+func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
+	t := md.M.Tables[j]
+	if month != 0 && !grows(t) {
+		return md.grownTable(j, 0) // growth leaves it as it is
 	}
-	var fp *Figures
-	pk := figKey{j, 0, month}
-	parts, ok := md.parts[pk]
-	spec := Grow(md.M.Tables[j], month)
+	g, ok := md.grown[month]
 	if !ok {
-		parts, _ = layout.Expand(spec) // nil when it cannot be expanded
-		md.parts[pk] = parts
+		n := len(md.M.Tables)
+		g = &grownTables{have: make([]bool, n), specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
+		md.grown[month] = g
 	}
-	if parts != nil {
-		f := md.figures(spec, parts, s)
-		fp = &f
+	if !g.have[j] {
+		g.specs[j] = Grow(t, month)
+		g.parts[j], _ = layout.Expand(g.specs[j]) // nil when it cannot be expanded
+		g.have[j] = true
 	}
-	md.cache[k] = fp
-	return fp
+	return g.specs[j], g.parts[j]
+}
+
+// view is the model laid out with segments of s rows after month months of growth,
+// every table but (perhaps) table i laid out; i = -1 for every table.
+func (md *Model) view(s int64, month, i int) *view {
+	k := viewKey{s, month}
+	v, ok := md.views[k]
+	if !ok {
+		n := len(md.M.Tables)
+		v = &view{figs: make([]*Figures, n), own: make([]Figures, n), bytes: make([]float64, n), skip: -1, overFor: -2}
+		md.views[k] = v
+		if i >= 0 && i < n {
+			v.skip = i
+		}
+		for j := range n {
+			if j != v.skip {
+				md.layOut(v, s, month, j, i)
+			}
+		}
+	} else if v.skip >= 0 && v.skip != i {
+		md.layOut(v, s, month, v.skip, i)
+		v.skip = -1
+	}
+	return v
+}
+
+// layOut puts table j (not i) into v.
+func (md *Model) layOut(v *view, s int64, month, j, i int) {
+	if month != 0 && !grows(md.M.Tables[j]) {
+		// Growth leaves it as it is: share today's figures (j != i, so they are there).
+		base := md.view(s, 0, i)
+		v.figs[j], v.bytes[j] = base.figs[j], base.bytes[j]
+		return
+	}
+	spec, parts := md.grownTable(j, month)
+	if parts == nil {
+		return
+	}
+	v.own[j] = md.figures(spec, parts, s)
+	v.figs[j], v.bytes[j] = &v.own[j], v.own[j].Bytes
+}
+
+// outgrown lists the tables of the model, table i aside, that fit their scan budgets
+// with today's segment capacity but not with s, after month months of growth.
+func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
+	v, now := md.view(s, month, i), md.view(md.M.Engine.SegmentRows, month, i)
+	if v.overFor == -1 || v.overFor == i {
+		return v.over
+	}
+	// Both views now leave out at most table i.
+	v.over, v.overFor = nil, -1
+	if v.skip == i || now.skip == i {
+		v.overFor = i
+	}
+	for j, t := range md.M.Tables {
+		if now.figs[j] == nil || v.figs[j] == nil {
+			continue
+		}
+		if fitsScan(md.budgets[j], *now.figs[j]) && !fitsScan(md.budgets[j], *v.figs[j]) {
+			v.over = append(v.over, tableMiss{j, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)}})
+		}
+	}
+	return v.over
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
 // and the other tables as the manifest has them, all grown for month months.
 func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
+	// Summed in table order from f's bytes, as ever, so the float result is unchanged
+	// (a total less table i's own would round differently).
+	all := md.view(s, month, i).bytes
 	bytes := f.Bytes
-	for j := range md.M.Tables {
-		if j == i {
-			continue
-		}
-		if o := md.other(j, s, month); o != nil {
-			bytes += o.Bytes
-		}
+	for _, b := range all[:i] {
+		bytes += b
+	}
+	for _, b := range all[i+1:] {
+		bytes += b
 	}
 	return layout.RefreshPeak(bytes, md.parallelism, s, md.rowBytes)
 }
 
 // Budgets are the budgets table i answers to: the model's with the table's own on top.
 func (md *Model) Budgets(i int) schema.Budgets {
-	return md.M.Budgets.Override(md.M.Tables[i].Budgets)
+	return md.budgets[i]
 }
 
 // Miss is one budget a layout breaks: the budget's key (scan_overhead_ms, scan_ms,
@@ -255,16 +345,9 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(*md.refresh))})
 	}
 	if s != md.M.Engine.SegmentRows {
-		for j, t := range md.M.Tables {
-			if j == i {
-				continue
-			}
-			now, then := md.other(j, md.M.Engine.SegmentRows, month), md.other(j, s, month)
-			if now == nil || then == nil {
-				continue
-			}
-			if fitsScan(md.Budgets(j), *now) && !fitsScan(md.Budgets(j), *then) {
-				out = append(out, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)})
+		for _, o := range md.outgrown(i, s, month) {
+			if o.j != i {
+				out = append(out, o.Miss)
 			}
 		}
 	}
@@ -314,57 +397,71 @@ func (md *Model) capacities(s Settings) []int64 {
 func (md *Model) Sweep(i int, set Settings) *Sweep {
 	spec := md.M.Tables[i]
 	today := md.M.Engine.SegmentRows
+	lv := set.levels()
+	horizon := lv.horizon()
 	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
 	order := 0
-	// A policy expands to the same partitions at every capacity: expand it once.
-	expanded := map[string][]layout.Partition{} // by the variant's change; a cache only
-	expandedLater := map[string][]layout.Partition{}
-	for _, s := range md.capacities(set) {
-		vs := append([]Variant{{Spec: spec}}, Variants(spec, s)...)
-		for _, v := range vs {
-			parts, ok := expanded[v.Change]
-			if !ok {
-				parts, _ = layout.Expand(v.Spec)
-				expanded[v.Change] = parts
+	policies := map[string]*policy{} // by the variant's change; a cache only
+	// A time policy's variants are the same at every capacity but one: worded once.
+	isTime := spec.Partitions.Scheme == schema.SchemeTime
+	var timed []Variant
+	if isTime {
+		timed = timeVariants(spec)
+	}
+	caps := md.capacities(set)
+	for _, s := range caps {
+		raise := ""
+		if s != today {
+			verb := "raise"
+			if s < today {
+				verb = "lower"
 			}
-			if parts == nil {
+			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
+		}
+		vs := []Variant{{Spec: spec}}
+		if isTime {
+			vs = withOne(append(vs, timed...), spec, s)
+		} else {
+			vs = append(vs, Variants(spec, s)...)
+		}
+		if sw.Candidates == nil {
+			// About as many candidates at every capacity: grow the large structs once.
+			sw.Candidates = make([]Candidate, 0, len(caps)*(len(vs)+1))
+		}
+		for _, v := range vs {
+			p, ok := policies[v.Change]
+			if !ok {
+				p = &policy{}
+				if p.parts, _ = layout.Expand(v.Spec); p.parts != nil {
+					p.label = Label(v.Spec.Partitions)
+				}
+				policies[v.Change] = p
+			}
+			if p.parts == nil {
 				continue // more partitions than the format allows
 			}
-			c := Candidate{Change: v.Change, Label: Label(v.Spec.Partitions), Spec: v.Spec, SegmentRows: s,
+			c := Candidate{Change: v.Change, Label: p.label, Spec: v.Spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
 			order++
 			if c.Engine {
 				c.Locked = set.FixedSegmentRows
-				verb := "raise"
-				if s < today {
-					verb = "lower"
-				}
-				raise := fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
 				if c.Change == "" {
 					c.Change = raise
 				} else {
 					c.Change += " and " + raise
 				}
 			}
-			f := md.figures(v.Spec, parts, s)
+			f := md.figures(v.Spec, p.parts, s)
 			c.Figures = f
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
 			c.Fits = len(c.Misses) == 0
 			if c.Fits {
-				c.Warnings = md.warnings(i, f, set.levels())
+				c.Warnings = md.warnings(i, f, lv)
 				if md.growth {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					horizon := set.levels().horizon()
-					grown := Grow(v.Spec, horizon)
-					later, ok := expandedLater[v.Change]
-					if !ok {
-						later, _ = layout.Expand(grown)
-						expandedLater[v.Change] = later
-					}
-					if later != nil {
-						g := md.figures(grown, later, s)
+					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
 						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
 						}
@@ -379,6 +476,33 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	}
 	md.mark(sw)
 	return sw
+}
+
+// policy is one partition policy of a sweep: it expands to the same partitions at every
+// capacity, so it is expanded once, and once grown to the horizon.
+type policy struct {
+	label    string
+	parts    []layout.Partition
+	grown    schema.Table       // grown to the horizon, once hasLater
+	later    []layout.Partition // its partitions; nil when it cannot be expanded
+	hasLater bool
+}
+
+// atHorizon is the table laid out as v (policy p, figures f today) with segments of s
+// rows after horizon months of growth; false when it cannot be expanded.
+func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int) (Figures, bool) {
+	if !grows(v.Spec) {
+		return f, true // growth leaves it as it is
+	}
+	if !p.hasLater {
+		p.grown = Grow(v.Spec, horizon)
+		p.later, _ = layout.Expand(p.grown)
+		p.hasLater = true
+	}
+	if p.later == nil {
+		return Figures{}, false
+	}
+	return md.figures(p.grown, p.later, s), true
 }
 
 // memAxis is the front's memory figure: the refresh peak, or, without column profiles,
@@ -475,12 +599,18 @@ func (sw *Sweep) Pick() (c *Candidate, fits, ok bool) {
 	return nil, false, false
 }
 
+// grows reports whether Grow changes spec: its growth rate is set and above -100%.
+func grows(spec schema.Table) bool {
+	g := spec.GrowthPerYear
+	return g != 0 && g > -1
+}
+
 // Grow returns spec with its rows grown by growth_per_year for months months:
 // rows x (1+g)^(months/12), rounded, listed items and measured encoded sizes scaled
 // alike, capped at the format's limits.
 func Grow(spec schema.Table, months int) schema.Table {
 	g := spec.GrowthPerYear
-	if months == 0 || g == 0 || !(g > -1) {
+	if months == 0 || !grows(spec) {
 		return spec
 	}
 	k := math.Pow(1+g, float64(months)/12)

@@ -38,6 +38,12 @@ func Variants(spec schema.Table, segmentRows int64) []Variant {
 	case schema.SchemeList:
 		out = listVariants(spec, segmentRows)
 	}
+	return withOne(out, spec, segmentRows)
+}
+
+// withOne adds to out a single partition when spec's rows fit in one segment.
+func withOne(out []Variant, spec schema.Table, segmentRows int64) []Variant {
+	p := spec.Partitions
 	if p.Scheme != schema.SchemeNone && spec.Rows <= segmentRows {
 		one := spec
 		one.Partitions = schema.Partitions{Scheme: schema.SchemeNone, Pos: p.Pos}

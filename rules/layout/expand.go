@@ -6,6 +6,7 @@ import (
 	"math/bits"
 	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -101,21 +102,26 @@ func expandEven(t schema.Table) ([]Partition, error) {
 }
 
 // numbered returns prefix+"1" .. prefix+n as substrings of one string: two
-// allocations instead of n for a million partitions.
+// allocations instead of n for a million partitions. Every table a sweep tries is
+// expanded, so the string is built in place and cut by counting digits.
 func numbered(prefix string, n int) []string {
-	buf := make([]byte, 0, n*(len(prefix)+7))
-	ends := make([]int, n)
+	var b strings.Builder
+	b.Grow(n * (len(prefix) + 7))
+	var num [20]byte
 	for i := range n {
-		buf = append(buf, prefix...)
-		buf = strconv.AppendInt(buf, int64(i+1), 10)
-		ends[i] = len(buf)
+		b.WriteString(prefix)
+		b.Write(strconv.AppendInt(num[:0], int64(i+1), 10))
 	}
-	all := string(buf)
+	all := b.String()
 	out := make([]string, n)
-	start := 0
-	for i, e := range ends {
-		out[i] = all[start:e]
-		start = e
+	start, digits, next := 0, 1, 10 // next: the first number with one more digit
+	for i := range out {
+		if i+1 == next {
+			digits, next = digits+1, next*10
+		}
+		end := start + len(prefix) + digits
+		out[i] = all[start:end]
+		start = end
 	}
 	return out
 }

@@ -230,3 +230,19 @@ func TestFixup(t *testing.T) {
 		}
 	}
 }
+
+// numbered cuts its one string by counting digits: the names must be right on both
+// sides of every power of ten.
+func TestNumbered(t *testing.T) {
+	for _, n := range []int{0, 1, 9, 10, 11, 99, 100, 101, 1000, 100_001} {
+		got := numbered("day ", n)
+		if len(got) != n {
+			t.Fatalf("numbered(%d) has %d names", n, len(got))
+		}
+		for i, g := range got {
+			if want := "day " + strconv.Itoa(i+1); g != want {
+				t.Fatalf("numbered(%d)[%d] = %q, want %q", n, i, g, want)
+			}
+		}
+	}
+}

@@ -38,7 +38,12 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 			tableRows = satAdd(tableRows, max(p.Rows, 0))
 		}
 	}
-	var groups []TaskGroup
+	// At most two groups per partition; few partitions keep them on the stack.
+	var buf [32]TaskGroup
+	groups := buf[:0]
+	if n := 2 * len(parts); n > len(buf) {
+		groups = make([]TaskGroup, 0, n)
+	}
 	add := func(n int64, ms float64) {
 		if k := len(groups) - 1; k >= 0 && groups[k].Ms == ms {
 			groups[k].Count = satAdd(groups[k].Count, n)

@@ -16,7 +16,17 @@ type TaskGroup struct {
 // below 1 count as 1.
 func Schedule(groups []TaskGroup, cores int) (makespan, bound float64) {
 	m := max(cores, 1)
-	h := newCoreHeap(m)
+	// Up to stackCores cores the heap lives on the stack: a scan is scheduled for every
+	// layout a sweep tries, so a heap allocation here is one per candidate and column.
+	var load [stackCores]float64
+	var heap [stackCores]int
+	var h coreHeap
+	if m <= stackCores {
+		h.load, h.heap = load[:m], heap[:m]
+	} else {
+		h.load, h.heap = make([]float64, m), make([]int, m)
+	}
+	h.reset()
 	var sum, longest float64
 	for _, g := range groups {
 		c, t := g.Count, g.Ms
@@ -44,12 +54,13 @@ type coreHeap struct {
 	heap []int
 }
 
-func newCoreHeap(m int) *coreHeap {
-	h := &coreHeap{load: make([]float64, m), heap: make([]int, m)}
+const stackCores = 64
+
+// reset sets every core's load to 0.
+func (h *coreHeap) reset() {
 	for i := range h.heap {
-		h.heap[i] = i // all loads 0: index order is a valid heap
+		h.load[i], h.heap[i] = 0, i // all loads 0: index order is a valid heap
 	}
-	return h
 }
 
 func (h *coreHeap) less(a, b int) bool {
