@@ -30,9 +30,11 @@ func (t *Table) Options() []Option {
 	}
 	t.optDone = true
 	var specs []Option
+	var base []int // specs[i] lays out the partitions of specs[base[i]], or today's for -1
 	// The partition changes come from the advisor, so hints and the plan's sweep name
 	// layouts alike.
 	for _, v := range advisor.Variants(t.Spec, t.Engine.SegmentRows) {
+		base = append(base, len(specs))
 		specs = append(specs, Option{Change: v.Change, Window: v.Window, Spec: v.Spec})
 	}
 	// Larger segments alone, and with each partition change: when the budget allows
@@ -44,18 +46,36 @@ func (t *Table) Options() []Option {
 			break
 		}
 		raise := fmt.Sprintf("raise engine.segment_rows from %s to %s", count(s), count(s*k))
+		base = append(base, -1)
 		specs = append(specs, Option{Change: raise, Engine: true, Spec: t.Spec, SegmentRows: s * k})
-		for _, p := range specs[:partitionOnly] {
+		for i, p := range specs[:partitionOnly] {
+			base = append(base, i)
 			specs = append(specs, Option{Change: p.Change + " and " + raise, Engine: true, Window: p.Window, Spec: p.Spec, SegmentRows: s * k})
 		}
 	}
-	for _, o := range specs {
+	// A partition change expands to the same partitions at every segment size: expand
+	// each once.
+	today := t.Parts
+	if t.settled {
+		today, _ = layout.Expand(t.Spec) // settle dropped them
+	}
+	expanded := make([][]layout.Partition, partitionOnly)
+	failed := make([]bool, partitionOnly)
+	for i, o := range specs {
 		if o.SegmentRows == 0 {
 			o.SegmentRows = t.Engine.SegmentRows
 		}
-		parts, err := layout.Expand(o.Spec)
-		if err != nil {
-			continue
+		parts := today
+		if b := base[i]; b >= 0 {
+			if expanded[b] == nil && !failed[b] {
+				var err error
+				expanded[b], err = layout.Expand(o.Spec)
+				failed[b] = err != nil
+			}
+			if failed[b] {
+				continue
+			}
+			parts = expanded[b]
 		}
 		o.Layout = layout.Compute(parts, o.SegmentRows, t.Engine.SegmentOverheadMs)
 		if t.Widest != nil {
