@@ -59,6 +59,7 @@ func (t *Table) Options() []Option {
 	if t.settled {
 		today, _ = layout.Expand(t.Spec) // settle dropped them
 	}
+	t.options = make([]Option, 0, len(specs))
 	expanded := make([][]layout.Partition, partitionOnly)
 	failed := make([]bool, partitionOnly)
 	for i, o := range specs {

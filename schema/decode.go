@@ -33,8 +33,10 @@ func (t *tree) decode(project *ProjectConfig) (*Manifest, []Problem) {
 	if b, ok := root["budgets"].(map[string]any); ok {
 		m.Budgets = m.Budgets.Override(d.budgets("/budgets", b))
 	}
-	names := map[string]Pos{}
-	for i, raw := range root["tables"].([]any) {
+	tables := root["tables"].([]any)
+	names := make(map[string]Pos, len(tables))
+	m.Tables = make([]Table, 0, len(tables))
+	for i, raw := range tables {
 		ptr := "/tables/" + strconv.Itoa(i)
 		tb := d.table(ptr, raw.(map[string]any))
 		if first, dup := names[tb.Name]; dup {

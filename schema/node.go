@@ -216,7 +216,6 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	switch n.Kind {
 	case yaml.MappingNode:
 		out := make(map[string]any, len(n.Content)/2)
-		seen := make(map[string]*yaml.Node, len(n.Content)/2)
 		var merges []*yaml.Node
 		for i := 0; i+1 < len(n.Content); i += 2 {
 			k, v := n.Content[i], n.Content[i+1]
@@ -227,10 +226,9 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 			if k.Kind != yaml.ScalarNode {
 				return nil, problemAt(k, t.here(), "a key must be a plain name, not a mapping or a sequence")
 			}
-			if prev, dup := seen[k.Value]; dup {
-				return nil, problemAt(k, t.here(), fmt.Sprintf("key %q is already defined at line %d; remove one of them", k.Value, prev.Line))
+			if _, dup := out[k.Value]; dup {
+				return nil, problemAt(k, t.here(), fmt.Sprintf("key %q is already defined at line %d; remove one of them", k.Value, firstKey(n, k.Value).Line))
 			}
-			seen[k.Value] = k
 			t.path = append(t.path, step{key: k.Value, isKey: true})
 			cv, p := t.convert(v, depth+1)
 			t.path = t.path[:len(t.path)-1]
@@ -241,7 +239,7 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 		}
 		// Merge keys (<<) fill in only the keys the mapping does not set itself.
 		for _, m := range merges {
-			if p := t.merge(out, seen, m, depth); p != nil {
+			if p := t.merge(out, m, depth); p != nil {
 				return nil, p
 			}
 		}
@@ -264,7 +262,19 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	return nil, problemAt(n, t.here(), "unsupported YAML node")
 }
 
-func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Node, depth int) *Problem {
+// firstKey is the first key node of mapping n named key, for a duplicate's message.
+func firstKey(n *yaml.Node, key string) *yaml.Node {
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		if k := n.Content[i]; k.Kind == yaml.ScalarNode && k.Tag != "!!merge" && k.Value == key {
+			return k
+		}
+	}
+	return n
+}
+
+// merge fills out with the keys of a merged mapping that out does not hold yet: keys
+// the mapping sets itself come first, then earlier merges win over later ones.
+func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 	// Each merge counts as a node and a level: a merge key that refers to its own mapping
 	// would otherwise recurse until the stack overflows, and merges of merges of merges
 	// would take exponential time without ever converting a node.
@@ -285,7 +295,7 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	switch target.Kind {
 	case yaml.SequenceNode:
 		for _, e := range target.Content {
-			if p := t.merge(out, seen, e, depth+1); p != nil {
+			if p := t.merge(out, e, depth+1); p != nil {
 				return p
 			}
 		}
@@ -297,15 +307,14 @@ func (t *tree) merge(out map[string]any, seen map[string]*yaml.Node, m *yaml.Nod
 	for i := 0; i+1 < len(target.Content); i += 2 {
 		k, v := target.Content[i], target.Content[i+1]
 		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
-			if p := t.merge(out, seen, v, depth+1); p != nil {
+			if p := t.merge(out, v, depth+1); p != nil {
 				return p
 			}
 			continue
 		}
-		if _, set := seen[k.Value]; set || k.Kind != yaml.ScalarNode {
+		if _, set := out[k.Value]; set || k.Kind != yaml.ScalarNode {
 			continue
 		}
-		seen[k.Value] = k
 		t.path = append(t.path, step{key: k.Value, isKey: true})
 		cv, p := t.convert(v, depth+1)
 		t.path = t.path[:len(t.path)-1]
