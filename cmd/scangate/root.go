@@ -10,7 +10,7 @@ import (
 )
 
 // limits bound what one input may cost; --max-file-size raises the file size bound.
-var limits schema.Limits
+var limits = schema.DefaultLimits
 
 func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root := &cobra.Command{
