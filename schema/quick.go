@@ -37,7 +37,7 @@ func (v verdict) not() verdict { return passes - v }
 // quick is one schema compiled for the quick check. A nil *quick is the true schema.
 type quick struct {
 	never      bool // the false schema
-	types      []string
+	types      typeSet // 0: any type
 	constant   any
 	hasConst   bool
 	enum       []any
@@ -117,14 +117,17 @@ func (c *quickCompiler) object(s map[string]any, at string) (*quick, error) {
 		switch {
 		case annotations[k]:
 		case k == "type":
-			switch t := v.(type) {
-			case string:
-				q.types = []string{t}
-			case []any:
-				for _, e := range t {
-					name, _ := e.(string)
-					q.types = append(q.types, name)
+			names := []any{v}
+			if list, ok := v.([]any); ok {
+				names = list
+			}
+			for _, e := range names {
+				name, _ := e.(string)
+				bit, ok := typeBits[name]
+				if !ok {
+					return nil, fmt.Errorf("%s/type: unknown type %v", at, e)
 				}
+				q.types |= bit
 			}
 		case k == "const":
 			q.constant, q.hasConst = v, true
@@ -387,41 +390,48 @@ func (q *quick) check(v any) verdict {
 	return r
 }
 
+// typeSet is a set of JSON Schema types, one bit each.
+type typeSet uint8
+
+const (
+	tObject typeSet = 1 << iota
+	tArray
+	tString
+	tBoolean
+	tNull
+	tNumber
+	tInteger
+)
+
+var typeBits = map[string]typeSet{"object": tObject, "array": tArray, "string": tString,
+	"boolean": tBoolean, "null": tNull, "number": tNumber, "integer": tInteger}
+
 func (q *quick) typeOK(v any) verdict {
-	if q.types == nil {
+	if q.types == 0 {
 		return passes
 	}
-	best := fails
-	for _, t := range q.types {
-		var got verdict
-		switch t {
-		case "object":
-			_, ok := v.(map[string]any)
-			got = truth(ok)
-		case "array":
-			_, ok := v.([]any)
-			got = truth(ok)
-		case "string":
-			_, ok := v.(string)
-			got = truth(ok)
-		case "boolean":
-			_, ok := v.(bool)
-			got = truth(ok)
-		case "null":
-			got = truth(v == nil)
-		case "number":
-			_, ok := v.(json.Number)
-			got = truth(ok)
-		case "integer":
-			if n, ok := v.(json.Number); ok {
-				got = isInteger(n)
-			}
-		default:
-			got = unsure
+	var bit typeSet
+	switch v := v.(type) {
+	case map[string]any:
+		bit = tObject
+	case []any:
+		bit = tArray
+	case string:
+		bit = tString
+	case bool:
+		bit = tBoolean
+	case nil:
+		bit = tNull
+	case json.Number:
+		if q.types&tNumber != 0 {
+			return passes
 		}
-		best = max(best, got)
+		if q.types&tInteger != 0 {
+			return isInteger(v) // passes or unsure, never a definite no
+		}
+		return fails
 	}
-	return best
+	return truth(q.types&bit != 0)
 }
 
 func (q *quick) number(n json.Number) verdict {
