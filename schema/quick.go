@@ -36,7 +36,7 @@ func (v verdict) not() verdict { return passes - v }
 
 // quick is one schema compiled for the quick check. A nil *quick is the true schema.
 type quick struct {
-	never      bool // the false schema
+	never      bool    // the false schema
 	types      typeSet // 0: any type
 	constant   any
 	hasConst   bool
