@@ -4,6 +4,7 @@ import (
 	"math"
 	"testing"
 
+	"github.com/scangate/scangate/rules/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -89,5 +90,22 @@ func TestFormat(t *testing.T) {
 		if c.got != c.want {
 			t.Errorf("got %q, want %q", c.got, c.want)
 		}
+	}
+}
+
+// An option whose figure equals today's up to floating-point rounding is no
+// improvement: bestFit must not offer it as the closest change.
+func TestBestFitIgnoresRoundingNoise(t *testing.T) {
+	today := 62161.0
+	tb := &Table{optDone: true, options: []Option{
+		{Change: "noise", Scan: layout.Scan{WallMs: today * (1 - 1e-13)}},
+	}}
+	wall := func(o Option) float64 { return o.Scan.WallMs }
+	if _, _, ok := bestFit(tb, wall, 1000, today); ok {
+		t.Error("a change that moves the scan time by rounding noise was offered")
+	}
+	tb.options = append(tb.options, Option{Change: "real", Scan: layout.Scan{WallMs: today - 1}})
+	if o, fits, ok := bestFit(tb, wall, 1000, today); !ok || fits || o.Change != "real" {
+		t.Errorf("got %q fits=%v ok=%v, want the real improvement as the closest", o.Change, fits, ok)
 	}
 }

@@ -1,6 +1,9 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // ScanOverhead fires when the fixed per-segment CPU of one full scan nears or passes
 // the budget.
@@ -93,7 +96,9 @@ func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Op
 	if best != nil {
 		return *best, true, true
 	}
-	if closest != nil && figure(*closest) < today {
+	// A figure within a billionth of today's is today's computed another way (floating
+	// point), not an improvement worth a hint.
+	if closest != nil && figure(*closest) < today-1e-9*math.Abs(today) {
 		return *closest, false, true
 	}
 	return Option{}, false, false

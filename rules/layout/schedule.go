@@ -104,7 +104,8 @@ func (h *coreHeap) run(c int64, t float64) {
 // bulk assigns c identical tasks at once. Core i's j-th new task would end at
 // L_i + (j+1)t, and one-at-a-time list scheduling takes the c smallest start keys
 // L_i + j*t (ties to the lower core). Bisection finds a level T below the c-th smallest
-// key; every key under T is assigned in one step, the few left at T one at a time.
+// key and within one task of it; every key under T is assigned in one step, the few
+// left one at a time.
 func (h *coreHeap) bulk(c int64, t float64) {
 	m := int64(len(h.load))
 	// below counts the keys under level T, capped at c so it cannot overflow.
@@ -130,7 +131,14 @@ func (h *coreHeap) bulk(c int64, t float64) {
 	}
 	// At hi every core has at least c/m + 1 keys below it: m*(c/m+1) > c.
 	hi += float64(float64(c/m+2) * t)
-	for range 2000 { // halving the gap; ends far sooner, when lo and hi are adjacent floats
+	// Halve the gap until it is one task long: then at most about one key per core lies
+	// between lo and hi, and those few are handed out one at a time below, which is what
+	// the cores would do. Bisecting further, to adjacent floats, cost some fifty rounds
+	// per group for the same schedule.
+	for range 2000 {
+		if hi-lo <= t {
+			break
+		}
 		mid := lo + (hi-lo)/2
 		if mid <= lo || mid >= hi {
 			break
