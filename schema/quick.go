@@ -3,6 +3,7 @@ package schema
 import (
 	"encoding/json"
 	"fmt"
+	"maps"
 	"regexp"
 	"slices"
 	"strconv"
@@ -156,8 +157,8 @@ func (c *quickCompiler) object(s map[string]any, at string) (*quick, error) {
 		case k == "properties":
 			props, _ := v.(map[string]any)
 			q.properties = make(map[string]*quick, len(props))
-			for name, ps := range props {
-				if q.properties[name], err = c.compile(ps, at+"/properties/"+name); err != nil {
+			for _, name := range slices.Sorted(maps.Keys(props)) {
+				if q.properties[name], err = c.compile(props[name], at+"/properties/"+name); err != nil {
 					return nil, err
 				}
 			}
@@ -222,9 +223,17 @@ func (c *quickCompiler) resolve(ref string) (*quick, error) {
 			return nil, fmt.Errorf("$ref %q: no such schema", ref)
 		}
 	}
-	q, err := c.compile(target, ref)
+	// Registered before it is compiled, so a schema that refers to itself ends.
+	q := &quick{maxLength: -1}
 	c.refs[ref] = q
-	return q, err
+	compiled, err := c.compile(target, ref)
+	if err != nil {
+		return nil, err
+	}
+	if compiled != nil { // nil is the true schema, which q already is
+		*q = *compiled
+	}
+	return q, nil
 }
 
 func whole(v any) (int, error) {

@@ -189,3 +189,31 @@ func FuzzQuickAgreesWithLibrary(f *testing.F) {
 		agree(t, "fuzz.yaml (as a config)", configDoc, tr.root)
 	})
 }
+
+// A schema that refers to itself compiles and checks nested values; a keyword the quick
+// check does not implement is refused at compile time rather than passed over.
+func TestQuickCompileRecursionAndUnknownKeywords(t *testing.T) {
+	doc := map[string]any{
+		"$defs": map[string]any{"n": map[string]any{
+			"type":       "object",
+			"properties": map[string]any{"next": map[string]any{"$ref": "#/$defs/n"}},
+		}},
+		"$ref": "#/$defs/n",
+	}
+	q, err := compileQuick(doc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	deep := map[string]any{"next": map[string]any{"next": map[string]any{}}}
+	if got := q.check(deep); got != passes {
+		t.Errorf("nested objects: %d, want passes", got)
+	}
+	if got := q.check(map[string]any{"next": map[string]any{"next": json.Number("1")}}); got != fails {
+		t.Errorf("a number where an object belongs: %d, want fails", got)
+	}
+	for _, kw := range []string{"format", "maxItems", "uniqueItems", "multipleOf", "exclusiveMaximum", "oneOf"} {
+		if _, err := compileQuick(map[string]any{kw: json.Number("1")}); err == nil || !strings.Contains(err.Error(), kw) {
+			t.Errorf("keyword %s: err %v, want it refused by name", kw, err)
+		}
+	}
+}
