@@ -6,7 +6,6 @@ import (
 	"math/bits"
 	"slices"
 	"strconv"
-	"strings"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -18,10 +17,24 @@ const MaxPartitions = schema.MaxPartitions
 // Partition is one partition of a table after its scheme is expanded; segments never
 // span partitions, so the layout is computed from these.
 type Partition struct {
-	Name string // "all" (none), "part 3" (even, 1-based), the item name (list), "day 1", "month 23" (time: grain + 1-based index within its tier, 1 = newest)
-	Tier int    // index into Partitions.Tiers for time, -1 otherwise
-	Rows int64
-	Open bool // the newest time partition (still filling)
+	// label is the whole name (a list item's, or "all") or, for a numbered partition,
+	// the prefix its number follows: "part " (even) or the grain and a space (time).
+	// Names are built when asked for: a sweep expands every layout it tries, and none
+	// of it reads them.
+	label  string
+	number int32 // 1-based place of a numbered partition (within its tier for time), 0 otherwise
+	Tier   int32 // index into Partitions.Tiers for time, -1 otherwise
+	Rows   int64
+	Open   bool // the newest time partition (still filling)
+}
+
+// Name is "all" (none), "part 3" (even, 1-based), the item name (list), "day 1",
+// "month 23" (time: grain + 1-based index within its tier, 1 = newest).
+func (p Partition) Name() string {
+	if p.number == 0 {
+		return p.label
+	}
+	return p.label + strconv.Itoa(int(p.number))
 }
 
 // grain48 is a period's length in 1/48 day, so that period lengths are exact integers
@@ -51,7 +64,7 @@ func Expand(t schema.Table) ([]Partition, error) {
 	p := t.Partitions
 	switch p.Scheme {
 	case schema.SchemeNone:
-		return []Partition{{Name: "all", Tier: -1, Rows: t.Rows}}, nil
+		return []Partition{{label: "all", Tier: -1, Rows: t.Rows}}, nil
 	case schema.SchemeEven:
 		return expandEven(t)
 	case schema.SchemeList:
@@ -66,7 +79,7 @@ func Expand(t schema.Table) ([]Partition, error) {
 			if it.Rows < 0 {
 				return nil, fmt.Errorf("table %q: item %q has negative rows %d", t.Name, it.Name, it.Rows)
 			}
-			out[i] = Partition{Name: it.Name, Tier: -1, Rows: it.Rows}
+			out[i] = Partition{label: it.Name, Tier: -1, Rows: it.Rows}
 		}
 		return out, nil
 	case schema.SchemeTime:
@@ -89,41 +102,15 @@ func expandEven(t schema.Table) ([]Partition, error) {
 		return nil, tooMany(t, int64(n))
 	}
 	q, r := t.Rows/int64(n), t.Rows%int64(n)
-	names := numbered("part ", n)
 	out := make([]Partition, n)
 	for i := range out {
 		rows := q
 		if int64(i) < r {
 			rows++
 		}
-		out[i] = Partition{Name: names[i], Tier: -1, Rows: rows}
+		out[i] = Partition{label: "part ", number: int32(i + 1), Tier: -1, Rows: rows}
 	}
 	return out, nil
-}
-
-// numbered returns prefix+"1" .. prefix+n as substrings of one string: two
-// allocations instead of n for a million partitions. Every table a sweep tries is
-// expanded, so the string is built in place and cut by counting digits.
-func numbered(prefix string, n int) []string {
-	var b strings.Builder
-	b.Grow(n * (len(prefix) + 7))
-	var num [20]byte
-	for i := range n {
-		b.WriteString(prefix)
-		b.Write(strconv.AppendInt(num[:0], int64(i+1), 10))
-	}
-	all := b.String()
-	out := make([]string, n)
-	start, digits, next := 0, 1, 10 // next: the first number with one more digit
-	for i := range out {
-		if i+1 == next {
-			digits, next = digits+1, next*10
-		}
-		end := start + len(prefix) + digits
-		out[i] = all[start:end]
-		start = end
-	}
-	return out
 }
 
 // expandTime spreads Rows over the periods by length and, with growth, by age.
@@ -164,9 +151,9 @@ func expandTime(t schema.Table) ([]Partition, error) {
 	out := make([]Partition, n)
 	i := 0
 	for ti, tr := range tiers {
-		names := numbered(string(tr.Grain)+" ", tr.Keep)
+		prefix := string(tr.Grain) + " "
 		for j := range tr.Keep {
-			out[i] = Partition{Name: names[j], Tier: ti}
+			out[i] = Partition{label: prefix, number: int32(j + 1), Tier: int32(ti)}
 			i++
 		}
 	}

@@ -33,13 +33,13 @@ func rowsOf(parts []Partition) []int64 {
 func TestExpandNoneAndList(t *testing.T) {
 	// Spec: none is one partition "all".
 	p, err := Expand(schema.Table{Rows: 400_000, Partitions: schema.Partitions{Scheme: schema.SchemeNone}})
-	if err != nil || len(p) != 1 || p[0] != (Partition{Name: "all", Tier: -1, Rows: 400_000}) {
+	if err != nil || len(p) != 1 || p[0] != (Partition{label: "all", Tier: -1, Rows: 400_000}) {
 		t.Fatalf("none: %+v %v", p, err)
 	}
 	// Spec: list keeps the items in order with their own rows; t.Rows is ignored.
 	p, err = Expand(schema.Table{Rows: 1, Partitions: schema.Partitions{Scheme: schema.SchemeList,
 		Items: []schema.Item{{Name: "2025", Rows: 70e6}, {Name: "2026", Rows: 80e6}}}})
-	if err != nil || len(p) != 2 || p[0] != (Partition{Name: "2025", Tier: -1, Rows: 70e6}) || p[1].Name != "2026" || p[1].Rows != 80e6 {
+	if err != nil || len(p) != 2 || p[0] != (Partition{label: "2025", Tier: -1, Rows: 70e6}) || p[1].Name() != "2026" || p[1].Rows != 80e6 {
 		t.Fatalf("list: %+v %v", p, err)
 	}
 }
@@ -47,7 +47,7 @@ func TestExpandNoneAndList(t *testing.T) {
 func TestExpandEven(t *testing.T) {
 	// Spec: largest remainder, ties to the lower index: 10 = 4 + 3 + 3.
 	p, err := Expand(schema.Table{Rows: 10, Partitions: schema.Partitions{Scheme: schema.SchemeEven, Count: 3}})
-	if err != nil || len(p) != 3 || p[0].Rows != 4 || p[1].Rows != 3 || p[2].Rows != 3 || p[2].Name != "part 3" || p[0].Tier != -1 {
+	if err != nil || len(p) != 3 || p[0].Rows != 4 || p[1].Rows != 3 || p[2].Rows != 3 || p[2].Name() != "part 3" || p[0].Tier != -1 {
 		t.Fatalf("even 10/3: %+v %v", p, err)
 	}
 	// Spec: sums exactly, up to 10^15 rows.
@@ -76,8 +76,8 @@ func TestExpandTimeExact(t *testing.T) {
 			t.Fatalf("partition %d: %+v", i, x)
 		}
 	}
-	if p[0].Name != "day 1" || p[364].Name != "day 365" {
-		t.Errorf("names %q %q", p[0].Name, p[364].Name)
+	if p[0].Name() != "day 1" || p[364].Name() != "day 365" {
+		t.Errorf("names %q %q", p[0].Name(), p[364].Name())
 	}
 
 	// Lengths in 1/48 day: 2 days (48 each) and a week (336), 432 in all.
@@ -87,7 +87,7 @@ func TestExpandTimeExact(t *testing.T) {
 	if got := rowsOf(p); got[0] != 1 || got[1] != 1 || got[2] != 8 {
 		t.Errorf("10 rows over 2 days + 1 week: %v, want [1 1 8]", got)
 	}
-	if p[2].Name != "week 1" || p[2].Tier != 1 || p[2].Open {
+	if p[2].Name() != "week 1" || p[2].Tier != 1 || p[2].Open {
 		t.Errorf("week partition: %+v", p[2])
 	}
 	// Rows 5: day 240/432 = 0.56 each, week 1680/432 = 3.89; floors 0+0+3; 2 rows left:
@@ -99,7 +99,7 @@ func TestExpandTimeExact(t *testing.T) {
 	// A month is 365.25/12 days, exactly 1461/48: 12 months of 1461 rows... per 48ths:
 	// 12 months + 1 year = 12*1461 + 17532 = 35064; rows 35064 → 1461 each month, 17532 the year.
 	p, _ = Expand(timeTable(35064, 0, schema.Tier{Grain: schema.Month, Keep: 12}, schema.Tier{Grain: schema.Year, Keep: 1}))
-	if got := rowsOf(p); got[0] != 1461 || got[11] != 1461 || got[12] != 17532 || p[11].Name != "month 12" || p[12].Name != "year 1" {
+	if got := rowsOf(p); got[0] != 1461 || got[11] != 1461 || got[12] != 17532 || p[11].Name() != "month 12" || p[12].Name() != "year 1" {
 		t.Errorf("months and a year: %v", got)
 	}
 	// Spec: sums exactly up to 10^15 rows (128-bit quotas).
@@ -231,17 +231,18 @@ func TestFixup(t *testing.T) {
 	}
 }
 
-// numbered cuts its one string by counting digits: the names must be right on both
-// sides of every power of ten.
-func TestNumbered(t *testing.T) {
-	for _, n := range []int{0, 1, 9, 10, 11, 99, 100, 101, 1000, 100_001} {
-		got := numbered("day ", n)
-		if len(got) != n {
-			t.Fatalf("numbered(%d) has %d names", n, len(got))
+// Names are built on demand from a prefix and a place: they must be right on both sides
+// of every power of ten.
+func TestPartitionNames(t *testing.T) {
+	// Every numbered partition is named prefix + its 1-based place, across digit counts.
+	for _, n := range []int{1, 9, 10, 11, 99, 100, 101, 1000, 100_001} {
+		p, err := Expand(schema.Table{Name: "t", Rows: int64(n), Partitions: schema.Partitions{Scheme: schema.SchemeEven, Count: n}})
+		if err != nil || len(p) != n {
+			t.Fatalf("even %d: %d partitions, %v", n, len(p), err)
 		}
-		for i, g := range got {
-			if want := "day " + strconv.Itoa(i+1); g != want {
-				t.Fatalf("numbered(%d)[%d] = %q, want %q", n, i, g, want)
+		for i := range p {
+			if want := "part " + strconv.Itoa(i+1); p[i].Name() != want {
+				t.Fatalf("even %d: partition %d is %q, want %q", n, i, p[i].Name(), want)
 			}
 		}
 	}

@@ -25,7 +25,7 @@ func TestComputeWorked(t *testing.T) {
 	//   ideal ceil(450/100) = 5, excess 6 - 5 = 1, fill 450/(6*100) = 0.75;
 	//   closed: 2 + 1 = 3 segments, 200 rows → ideal 2, excess 1;
 	//   fixed overhead 6 * 1.5 = 9 ms.
-	parts := []Partition{{Name: "day 1", Rows: 250, Open: true}, {Name: "day 2", Rows: 130}, {Name: "day 3", Rows: 70}}
+	parts := []Partition{{Rows: 250, Open: true}, {Rows: 130}, {Rows: 70}}
 	got := Compute(parts, 100, 1.5)
 	want := Layout{Partitions: 3, Rows: 450, Segments: 6, Ideal: 5, Excess: 1, Fill: 0.75,
 		ClosedSegments: 3, ClosedIdeal: 2, ClosedExcess: 1, FixedMs: 9}

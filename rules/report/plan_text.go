@@ -132,7 +132,7 @@ func renderGroups(b *strings.Builder, t schema.Table, s int64) {
 	}
 	var gs []group
 	for n, p := range parts {
-		label := p.Name
+		label := p.Name()
 		switch {
 		case p.Tier >= 0:
 			label = string(t.Partitions.Tiers[p.Tier].Grain)
