@@ -51,7 +51,7 @@ func newBaseline() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			files, findings := checkAll(inputs, cfg, proj.config)
+			files, findings := checkAll(inputs, cfg, proj.config, false)
 			res := &report.Result{Files: files, Findings: findings, Summary: report.Summarize(files)}
 			if res.Summary.Invalid > 0 {
 				report.Text(cmd.ErrOrStderr(), res, false)

@@ -56,7 +56,7 @@ func newCheck() *cobra.Command {
 			if manifestsOnly {
 				inputs = onlyManifests(inputs)
 			}
-			files, findings := checkAll(inputs, cfg, proj.config)
+			files, findings := checkAll(inputs, cfg, proj.config, printsTables(outs))
 			res := &report.Result{
 				Version:  moduleVersion(),
 				FailOn:   threshold,
@@ -91,7 +91,7 @@ func newCheck() *cobra.Command {
 func onlyManifests(inputs []input) []input {
 	out := inputs[:0]
 	for _, in := range inputs {
-		if in.err != nil || manifestMarker.Match(in.data) {
+		if data, err := in.bytes(); err != nil || manifestMarker.Match(data) {
 			out = append(out, in)
 		}
 	}
@@ -116,8 +116,9 @@ func configError(cmd *cobra.Command, err error) error {
 // files in input order and the findings sorted; unreadable and invalid files become
 // schema findings and never stop the others. The run's partition budget
 // (limits.MaxRunPartitions) is spent in input order, the same on every machine. It
-// consumes the inputs: their bytes are released as they are loaded.
-func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]report.File, []rules.Finding) {
+// consumes the inputs: their bytes are released as they are loaded. Files keep their
+// analysed tables only with keepTables (see printsTables).
+func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig, keepTables bool) ([]report.File, []rules.Finding) {
 	files := make([]report.File, len(inputs))
 	found := make([][]rules.Finding, len(inputs))
 	root := repositoryRoot()
@@ -141,7 +142,12 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig) ([]r
 			}}
 		}
 		if m != nil {
-			f.Tables, fs = rules.Check(m, cfg)
+			var tables []*rules.Table
+			tables, fs = rules.Check(m, cfg)
+			f.Analysed = len(tables)
+			if keepTables {
+				f.Tables = tables
+			}
 		}
 		files[i], found[i] = f, fs
 	})
@@ -212,14 +218,15 @@ func parallel(n int, work func(i int)) {
 // no manifest.
 func loadInput(in input, root string, proj *schema.ProjectConfig) (report.File, *schema.Manifest, []rules.Finding) {
 	f := report.File{Name: in.name, URI: repositoryPath(root, in.name)}
-	if in.err != nil {
+	data, err := in.bytes()
+	if err != nil {
 		f.Invalid = true
 		return f, nil, []rules.Finding{{
 			Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Subject: "read",
-			Message: fmt.Sprintf("cannot read the file: %v", in.err),
+			Message: fmt.Sprintf("cannot read the file: %v", err),
 		}}
 	}
-	m, err := schema.LoadWith(in.name, in.data, schema.Options{Limits: limits, Project: proj})
+	m, err := schema.LoadWith(in.name, data, schema.Options{Limits: limits, Project: proj})
 	if err != nil {
 		f.Invalid = true
 		if se, ok := err.(*schema.Error); ok {

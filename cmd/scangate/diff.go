@@ -177,7 +177,7 @@ func checkSide(s sideInputs, cfg rules.Config, proj project) change.Side {
 	for i, in := range s.inputs {
 		inputs[i] = in.input
 	}
-	files, findings := checkAll(inputs, cfg, proj.config)
+	files, findings := checkAll(inputs, cfg, proj.config, true)
 	side := change.Side{Label: s.label, Findings: findings}
 	for i, f := range files {
 		side.Files = append(side.Files, change.File{

@@ -147,3 +147,25 @@ func TestRunBudgetSpendsInInputOrder(t *testing.T) {
 		}
 	}
 }
+
+// Files found on disk are read when checked, not all at collection: collect keeps only
+// their paths, and a file's bytes are read again when asked for.
+func TestInputsAreReadWhenChecked(t *testing.T) {
+	good := "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: 10, partitions: {scheme: none}}]\n"
+	dir := repo(t, map[string]string{"a.yaml": good, "notes.yaml": "title: not a manifest\n"})
+	ins, err := collect([]string{dir, filepath.Join(dir, "a.yaml")}, nil, 1<<20)
+	if err != nil || len(ins) != 2 {
+		t.Fatalf("collect: %d inputs, %v", len(ins), err)
+	}
+	for _, in := range ins {
+		if in.data != nil || in.path == "" {
+			t.Errorf("%s: bytes kept at collection (%d bytes, path %q)", in.name, len(in.data), in.path)
+		}
+		if data, err := in.bytes(); err != nil || string(data) != good {
+			t.Errorf("%s: read %q, %v", in.name, data, err)
+		}
+	}
+	if len(onlyManifests(ins)) != 2 {
+		t.Error("onlyManifests dropped a manifest it had to read first")
+	}
+}

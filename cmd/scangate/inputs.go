@@ -14,11 +14,31 @@ import (
 )
 
 // input is one manifest to check: the name to report and its bytes, or why it could
-// not be read.
+// not be read. A file found on disk may keep only its path and limit, and be read when
+// it is checked: a run over thousands of files then holds the bytes of the few in flight.
 type input struct {
-	name string
-	data []byte
-	err  error
+	name  string
+	data  []byte
+	err   error
+	path  string // where to read the bytes when data is nil and err is nil
+	limit int    // the size bound to read path with
+}
+
+// bytes returns the input's bytes, reading its file now if they were not kept.
+func (in input) bytes() ([]byte, error) {
+	if in.data == nil && in.err == nil && in.path != "" {
+		r := readFile(in.path, in.limit)
+		return r.data, r.err
+	}
+	return in.data, in.err
+}
+
+// lazy drops the bytes of a file that was read, to be read again when it is checked.
+func (in input) lazy(path string, limit int) input {
+	if in.err == nil {
+		in.data, in.path, in.limit = nil, path, limit
+	}
+	return in
 }
 
 const stdinName = "<stdin>"
@@ -61,7 +81,7 @@ func collectFiltered(paths []string, stdin io.Reader, maxBytes int, keep func(st
 			}
 			out = append(out, found...)
 		case info.Mode().IsRegular():
-			out = append(out, readFile(p, maxBytes))
+			out = append(out, input{name: filepath.ToSlash(p), path: p, limit: maxBytes})
 		default:
 			return nil, fmt.Errorf("%s is not a regular file or a directory", p)
 		}
@@ -113,7 +133,7 @@ func walk(dir string, maxBytes int, keep func(string) bool) ([]input, error) {
 		if in.err == nil && !manifestMarker.Match(in.data) {
 			continue
 		}
-		out = append(out, in)
+		out = append(out, in.lazy(n, maxBytes))
 	}
 	return out, nil
 }

@@ -80,6 +80,23 @@ func parseFormats(formats []string, output string, defaults, known []string) ([]
 	return outs, nil
 }
 
+// printsTables reports whether any of the reports prints per-table figures, so check
+// keeps every analysed table to the end only when one does: json, markdown and junit,
+// and github when the job summary (Markdown) is written too.
+func printsTables(outs []destination) bool {
+	for _, o := range outs {
+		switch o.format {
+		case "json", "markdown", "junit":
+			return true
+		case "github":
+			if os.Getenv("GITHUB_STEP_SUMMARY") != "" {
+				return true
+			}
+		}
+	}
+	return false
+}
+
 // emit writes check's reports; see writeOutputs.
 func emit(outs []destination, r *report.Result, stdout io.Writer, color bool) error {
 	render := func(format string, w io.Writer, color bool) error {
