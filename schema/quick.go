@@ -50,9 +50,10 @@ type quick struct {
 	pattern    *regexp.Regexp
 	required   []string
 	properties map[string]*quick
-	extra      *quick // additionalProperties
-	noExtra    bool   // additionalProperties: false
-	names      *quick // propertyNames
+	props      []namedQuick // properties in name order, to walk without ranging over a map
+	extra      *quick       // additionalProperties
+	noExtra    bool         // additionalProperties: false
+	names      *quick       // propertyNames
 	items      *quick
 	minItems   int
 	ref        *quick
@@ -62,6 +63,11 @@ type quick struct {
 	thenS      *quick
 	elseS      *quick
 	hasIf      bool
+}
+
+type namedQuick struct {
+	name string
+	q    *quick
 }
 
 // annotations are keywords that never change whether a value is valid.
@@ -161,6 +167,7 @@ func (c *quickCompiler) object(s map[string]any, at string) (*quick, error) {
 				if q.properties[name], err = c.compile(props[name], at+"/properties/"+name); err != nil {
 					return nil, err
 				}
+				q.props = append(q.props, namedQuick{name, q.properties[name]})
 			}
 		case k == "additionalProperties":
 			if b, ok := v.(bool); ok && !b {
@@ -472,26 +479,35 @@ func (q *quick) object(m map[string]any) verdict {
 			return fails
 		}
 	}
-	if q.properties == nil && q.extra == nil && !q.noExtra && q.names == nil {
-		return passes
+	// The schema's properties are few: look each up rather than range over the value.
+	r, known := passes, 0
+	for _, p := range q.props {
+		if v, ok := m[p.name]; ok {
+			known++
+			if r = r.and(p.q.check(v)); r == fails {
+				return fails
+			}
+		}
 	}
-	r := passes
+	if q.names == nil && (known == len(m) || (q.extra == nil && !q.noExtra)) {
+		return r // no other keys, or nothing said about them
+	}
+	if q.noExtra && q.names == nil {
+		return fails // a key the schema does not name
+	}
 	for k, v := range m {
 		if q.names != nil {
 			if r = r.and(q.names.check(k)); r == fails {
 				return fails
 			}
 		}
-		s, known := q.properties[k]
-		switch {
-		case known:
-			r = r.and(s.check(v))
-		case q.noExtra:
-			return fails
-		default:
-			r = r.and(q.extra.check(v))
+		if _, named := q.properties[k]; named {
+			continue
 		}
-		if r == fails {
+		if q.noExtra {
+			return fails
+		}
+		if r = r.and(q.extra.check(v)); r == fails {
 			return fails
 		}
 	}
