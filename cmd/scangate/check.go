@@ -123,9 +123,9 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig, keep
 	found := make([][]rules.Finding, len(inputs))
 	root := repositoryRoot()
 	budget := newRunBudget(limits.MaxRunPartitions)
-	// Each file is loaded and checked by one worker, so only the files in flight hold
-	// their parse trees; the bytes are dropped once loaded. A run of thousands of files
-	// keeps no more than their findings and tables.
+	// Each file is read, loaded and checked by one worker, so only the files in flight
+	// hold their bytes and parse trees. A run of thousands of files keeps no more than
+	// their findings, and their tables when a report prints them.
 	parallel(len(inputs), func(i int) {
 		f, m, fs := loadInput(inputs[i], root, proj)
 		inputs[i].data = nil
