@@ -69,14 +69,30 @@ func (d *decoder) fail(ptr, msg string) {
 }
 
 func (d *decoder) count(ptr string, v any, positive bool) int64 {
-	n, err := quantity(v, MaxCount, "rows or values", ParseCount)
-	if err == nil && positive && n == 0 {
-		err = fmt.Errorf("must be > 0")
-	}
+	n, err := count(v, positive)
 	if err != nil {
 		d.fail(ptr, err.Error())
 	}
 	return n
+}
+
+// count reads a row or value count; positive refuses 0.
+func count(v any, positive bool) (int64, error) {
+	n, err := quantity(v, MaxCount, "rows or values", ParseCount)
+	if err == nil && positive && n == 0 {
+		err = fmt.Errorf("must be > 0")
+	}
+	return n, err
+}
+
+// optNumber is m[key] as a number, nil when the key is absent.
+func optNumber(m map[string]any, key string) *float64 {
+	v, ok := m[key]
+	if !ok {
+		return nil
+	}
+	f := number(v)
+	return &f
 }
 
 func (d *decoder) bytes(ptr string, v any) int64 {
@@ -150,14 +166,8 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		n := int(number(v))
 		s.Cores = &n
 	}
-	if v, ok := e["segment_overhead_ms"]; ok {
-		f := number(v)
-		s.SegmentOverheadMs = &f
-	}
-	if v, ok := e["scan_mb_per_s"]; ok {
-		f := number(v)
-		s.ScanMBPerS = &f
-	}
+	s.SegmentOverheadMs = optNumber(e, "segment_overhead_ms")
+	s.ScanMBPerS = optNumber(e, "scan_mb_per_s")
 	if v, ok := e["memory"]; ok {
 		n := d.bytes(ptr+"/memory", v)
 		s.Memory = &n
@@ -229,14 +239,8 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 
 func (d *decoder) budgets(ptr string, b map[string]any) Budgets {
 	out := Budgets{Pos: d.keyPos(ptr)}
-	if v, ok := b["scan_overhead_ms"]; ok {
-		f := number(v)
-		out.ScanOverheadMs = &f
-	}
-	if v, ok := b["scan_ms"]; ok {
-		f := number(v)
-		out.ScanMs = &f
-	}
+	out.ScanOverheadMs = optNumber(b, "scan_overhead_ms")
+	out.ScanMs = optNumber(b, "scan_ms")
 	if v, ok := b["refresh_memory"]; ok {
 		n := d.bytes(ptr+"/refresh_memory", v)
 		out.RefreshMemory = &n
@@ -322,17 +326,18 @@ func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
 		// A list may hold 100,000 items: find the sequence once and take each item's
 		// position from it, and build an item's pointer only to report a problem there.
 		seq := deref(d.t.locate(ptr + "/items").value)
+		bySeq := seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items)
 		for i, raw := range items {
 			ip := func() string { return ptr + "/items/" + strconv.Itoa(i) }
 			im := raw.(map[string]any)
 			it := Item{}
-			if seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items) {
+			if bySeq {
 				it.Pos = Pos{seq.Content[i].Line, seq.Content[i].Column}
 			} else {
 				it.Pos = d.pos(ip())
 			}
 			it.Name, _ = im["name"].(string)
-			rows, err := quantity(im["rows"], MaxCount, "rows or values", ParseCount)
+			rows, err := count(im["rows"], false)
 			if err != nil {
 				d.fail(ip()+"/rows", err.Error())
 			}
