@@ -103,12 +103,13 @@ func syntaxProblem(err error, data []byte) Problem {
 		line++
 	}
 	// At the end of the input the parser points past the last line; name the last one.
-	last := strings.Count(string(data), "\n")
-	if len(data) > 0 && data[len(data)-1] != '\n' {
+	text := string(lineFeeds(data))
+	last := strings.Count(text, "\n")
+	if len(text) > 0 && text[len(text)-1] != '\n' {
 		last++
 	}
 	line = max(1, min(line, last))
-	lines := strings.Split(string(data), "\n")
+	lines := strings.Split(text, "\n")
 	col := 1
 	tabs := strings.Contains(msg, "tab")
 	if line >= 1 && line <= len(lines) {
@@ -140,7 +141,7 @@ func encodingProblem(data []byte) *Problem {
 	for i := 0; i < len(body); {
 		r, size := utf8.DecodeRune(body[i:])
 		if r == 0 || (r == utf8.RuneError && size == 1) {
-			before := body[:i]
+			before := lineFeeds(body[:i])
 			line := 1 + bytes.Count(before, []byte{'\n'})
 			col := 1 + utf8.RuneCount(before[bytes.LastIndexByte(before, '\n')+1:])
 			return &Problem{Pos: Pos{line, col}, Message: "file is not UTF-8 text (binary data or another encoding); a manifest is YAML or JSON in UTF-8"}
@@ -153,4 +154,14 @@ func encodingProblem(data []byte) *Problem {
 // isEmptyDocument is a document with no content: "---" alone, or only comments.
 func isEmptyDocument(n *yaml.Node) bool {
 	return n.Kind == yaml.ScalarNode && n.ShortTag() == "!!null" && n.Value == "" && n.Style == 0
+}
+
+// lineFeeds turns every YAML line break (CR LF, a lone CR, LF) into LF, so lines are
+// counted as the parser counts them: a file saved with CR alone is not one long line.
+func lineFeeds(data []byte) []byte {
+	if !bytes.ContainsRune(data, '\r') {
+		return data
+	}
+	out := bytes.ReplaceAll(data, []byte("\r\n"), []byte("\n"))
+	return bytes.ReplaceAll(out, []byte("\r"), []byte("\n"))
 }

@@ -559,7 +559,8 @@ func checkOutcome(t testing.TB, name string, data []byte) {
 	if len(se.Problems) == 0 {
 		t.Fatalf("%s: *Error without problems", name)
 	}
-	lines := bytes.Count(data, []byte("\n")) + 1
+	// YAML 1.2 (section 5.4) breaks lines at CR LF, a lone CR and LF.
+	lines := bytes.Count(bytes.ReplaceAll(bytes.ReplaceAll(data, []byte("\r\n"), []byte("\n")), []byte("\r"), []byte("\n")), []byte("\n")) + 1
 	for _, p := range se.Problems {
 		if p.Pos.Line < 1 || p.Pos.Col < 1 || p.Pos.Line > lines || p.Message == "" {
 			t.Errorf("%s: problem at %d:%d (file has %d lines): %q", name, p.Pos.Line, p.Pos.Col, lines, p.Message)
@@ -609,4 +610,23 @@ func FuzzLoad(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		checkOutcome(t, "fuzz.yaml", data)
 	})
+}
+
+// Positions count lines as YAML 1.2 (section 5.4) does, at CR LF, a lone CR and LF: the
+// same manifest saved with any of them gets its problems at the same line and column.
+func TestPositionsAcrossLineBreaks(t *testing.T) {
+	for _, src := range []string{"format: 1\nmodel: m\n\tengine: {}\n", "format: 1\nmodel: \"m\x00\"\n"} {
+		var want string
+		for _, br := range []string{"\n", "\r\n", "\r"} {
+			_, err := schema.Load("m.yaml", []byte(strings.ReplaceAll(src, "\n", br)), schema.DefaultLimits)
+			if err == nil {
+				t.Fatalf("%q: no error", src)
+			}
+			if br == "\n" {
+				want = err.Error()
+			} else if err.Error() != want {
+				t.Errorf("%q with %q line breaks: %v, want %v", src, br, err, want)
+			}
+		}
+	}
 }
