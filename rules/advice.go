@@ -1,7 +1,7 @@
 package rules
 
 import (
-	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/schema"
 )
 

@@ -5,7 +5,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/internal/advisor"
 )
 
 // The advisor ranks layouts by the warnings the rules would raise; its default levels

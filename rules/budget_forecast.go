@@ -3,7 +3,9 @@ package rules
 import (
 	"fmt"
 
-	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/advisor"
 )
 
 // BudgetForecast fires when growth takes a table across a budget within the forecast
@@ -89,10 +91,10 @@ func checkBudgetForecast(t *Table) []Finding {
 		switch c.Budget {
 		case "scan_overhead_ms":
 			msg = fmt.Sprintf("growing %s a year, it crosses the %s in %s: %s rows in %s segments pay %s of fixed CPU per scan (today %s)",
-				pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), count(p.Rows), num(p.Layout.Segments), c.Format(c.Value), c.Format(c.Now))
+				units.Pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), units.Count(p.Rows), units.Num(p.Layout.Segments), c.Format(c.Value), c.Format(c.Now))
 		case "scan_ms":
 			msg = fmt.Sprintf("growing %s a year, it crosses the %s in %s: a full scan of column %s takes about %s with %s rows (today %s)",
-				pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), p.Widest, c.Format(c.Value), count(p.Rows), c.Format(c.Now))
+				units.Pct(t.Spec.GrowthPerYear), budgetWords(c), advisor.Month(c.Date), p.Widest, c.Format(c.Value), units.Count(p.Rows), c.Format(c.Now))
 		default:
 			msg = fmt.Sprintf("with the model's growth, the refresh peak crosses the %s in %s: %s (today %s)",
 				budgetWords(c), advisor.Month(c.Date), c.Format(c.Value), c.Format(c.Now))

@@ -4,7 +4,9 @@ import (
 	"sort"
 	"strings"
 
-	"github.com/scangate/scangate/rules/advisor"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/advisor"
 )
 
 // maxBars keeps a chart readable on a job page.
@@ -42,7 +44,7 @@ func chartBars(sw *advisor.Sweep) []Bar {
 	bars := make([]Bar, len(picked))
 	for k, i := range picked {
 		c := &sw.Candidates[i]
-		label := c.Label + " @" + count(c.SegmentRows)
+		label := c.Label + " @" + units.Count(c.SegmentRows)
 		switch {
 		case i == sw.Today:
 			label = "today: " + label

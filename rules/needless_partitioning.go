@@ -1,6 +1,10 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+
+	"github.com/scangate/scangate/internal/units"
+)
 
 // NeedlessPartitioning fires when a table with several partitions would fit in one segment.
 var NeedlessPartitioning = Rule{
@@ -27,10 +31,10 @@ func checkNeedlessPartitioning(t *Table) []Finding {
 		return nil
 	}
 	msg := fmt.Sprintf("%d partitions and %s segments hold %s rows, which fit in one segment of %s rows",
-		l.Partitions, num(l.Segments), count(l.Rows), count(t.Engine.SegmentRows))
+		l.Partitions, units.Num(l.Segments), units.Count(l.Rows), units.Count(t.Engine.SegmentRows))
 	extra := float64(l.Segments-l.Ideal) * t.Engine.SegmentOverheadMs
 	hints := []string{fmt.Sprintf("use partitions: {scheme: none}: %s -> %s segments, %s ms per scan",
-		num(l.Segments), num(l.Ideal), signed(-extra))}
+		units.Num(l.Segments), units.Num(l.Ideal), units.Signed(-extra))}
 	return []Finding{t.finding(Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"partitions": float64(l.Partitions),
 		"segments":   float64(l.Segments),

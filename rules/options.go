@@ -3,8 +3,10 @@ package rules
 import (
 	"fmt"
 
-	"github.com/scangate/scangate/rules/advisor"
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -45,7 +47,7 @@ func (t *Table) Options() []Option {
 		if s > schema.MaxCount/k {
 			break
 		}
-		raise := fmt.Sprintf("raise engine.segment_rows from %s to %s", count(s), count(s*k))
+		raise := fmt.Sprintf("raise engine.segment_rows from %s to %s", units.Count(s), units.Count(s*k))
 		base = append(base, -1)
 		specs = append(specs, Option{Change: raise, Engine: true, Spec: t.Spec, SegmentRows: s * k})
 		for i, p := range specs[:partitionOnly] {
@@ -91,5 +93,5 @@ func (t *Table) Options() []Option {
 
 // effect words an option's result against today's layout.
 func (t *Table) effect(o Option) string {
-	return fmt.Sprintf("%s -> %s segments, %s ms per scan", num(t.Layout.Segments), num(o.Layout.Segments), signed(o.Layout.FixedMs-t.Layout.FixedMs))
+	return fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(t.Layout.Segments), units.Num(o.Layout.Segments), units.Signed(o.Layout.FixedMs-t.Layout.FixedMs))
 }

@@ -4,7 +4,9 @@ import (
 	"math"
 	"testing"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -82,10 +84,10 @@ tables:
 // Hand-checked formatting of the figures messages carry.
 func TestFormat(t *testing.T) {
 	for _, c := range []struct{ got, want string }{
-		{count(8 << 20), "8Mi"}, {count(7_200_000_000), "7.2G"}, {count(400_000), "400k"},
-		{count(1_460_000), "1.46M"}, {count(999), "999"}, {num(1460), "1,460"}, {num(-909), "-909"},
-		{ms(1.5), "1.5"}, {ms(1319.4), "1,319"}, {pct(0.876), "88%"}, {pct(0.0007), "0.1%"},
-		{size(1 << 30), "1 GiB"}, {size(1536), "1.5 KiB"},
+		{units.Count(8 << 20), "8Mi"}, {units.Count(7_200_000_000), "7.2G"}, {units.Count(400_000), "400k"},
+		{units.Count(1_460_000), "1.46M"}, {units.Count(999), "999"}, {units.Num(1460), "1,460"}, {units.Num(-909), "-909"},
+		{units.Ms(1.5), "1.5"}, {units.Ms(1319.4), "1,319"}, {units.Pct(0.876), "88%"}, {units.Pct(0.0007), "0.1%"},
+		{units.Size(1 << 30), "1 GiB"}, {units.Size(1536), "1.5 KiB"},
 	} {
 		if c.got != c.want {
 			t.Errorf("got %q, want %q", c.got, c.want)

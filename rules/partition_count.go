@@ -1,6 +1,10 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+
+	"github.com/scangate/scangate/internal/units"
+)
 
 // PartitionCount fires when one table has more partitions than an engine handles well.
 var PartitionCount = Rule{
@@ -34,7 +38,7 @@ func checkPartitionCount(t *Table) []Finding {
 	if n <= limit {
 		return nil
 	}
-	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", num(n), num(limit))
+	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", units.Num(n), units.Num(limit))
 	var hints []string
 	var best *Option
 	opts := t.Options()
@@ -49,7 +53,7 @@ func checkPartitionCount(t *Table) []Finding {
 		}
 	}
 	if best != nil {
-		hints = append(hints, fmt.Sprintf("%s: %s -> %s partitions, %s", best.Change, num(n), num(int64(best.Layout.Partitions)), t.effect(*best)))
+		hints = append(hints, fmt.Sprintf("%s: %s -> %s partitions, %s", best.Change, units.Num(n), units.Num(int64(best.Layout.Partitions)), t.effect(*best)))
 	}
 	return []Finding{t.finding(Warning, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"partitions": float64(n),

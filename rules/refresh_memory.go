@@ -5,7 +5,9 @@ import (
 	"math"
 	"math/bits"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -126,10 +128,10 @@ func checkRefreshMemory(ts []*Table) []Finding {
 	switch {
 	case e.Memory > 0 && peak > float64(e.Memory):
 		sev, limit, pos = Error, float64(e.Memory), e.MemoryPos
-		limitWords = size(limit) + " engine memory"
+		limitWords = units.Size(limit) + " engine memory"
 	case budget > 0 && peak > budget:
 		sev, limit, pos = Warning, budget, budgetPos
-		limitWords = size(limit) + " refresh-memory budget"
+		limitWords = units.Size(limit) + " refresh-memory budget"
 	default:
 		return nil
 	}
@@ -138,14 +140,14 @@ func checkRefreshMemory(ts []*Table) []Finding {
 	}
 	inFlight := peak - 2*model
 	msg := fmt.Sprintf("a full refresh peaks at about %s: 2 x %s encoded (old and new copy) + %d partitions x %s rows x %s bytes in flight (%s), %s of the %s",
-		size(peak), size(model), m.parallelism, capacity(s), short(m.rowBytes), size(inFlight), pct(peak/limit), limitWords)
+		units.Size(peak), units.Size(model), m.parallelism, units.Capacity(s), units.Short(m.rowBytes), units.Size(inFlight), units.Pct(peak/limit), limitWords)
 	name := "the model"
 	if a := ts[0].advice; a != nil && a.model.M.Model != "" {
 		name = "model " + a.model.M.Model
 	}
 	msg = name + ": " + msg
 	if sev == Error && budget > 0 && peak > budget {
-		msg += fmt.Sprintf(", and above the %s refresh-memory budget", size(budget))
+		msg += fmt.Sprintf(", and above the %s refresh-memory budget", units.Size(budget))
 	}
 	if n := len(ts) - m.profiled; n > 0 {
 		msg += fmt.Sprintf("; %d of %d tables have no column profiles and count as 0", n, len(ts))
@@ -154,24 +156,24 @@ func checkRefreshMemory(ts []*Table) []Finding {
 	var hints []string
 	if p := fitParallelism(limit, model, s, m.rowBytes, m.parallelism); p > 0 {
 		hints = append(hints, fmt.Sprintf("lower engine.refresh_parallelism from %d to %d: refresh peak %s -> %s",
-			m.parallelism, p, size(peak), size(layout.RefreshPeak(model, p, s, m.rowBytes))))
+			m.parallelism, p, units.Size(peak), units.Size(layout.RefreshPeak(model, p, s, m.rowBytes))))
 	}
 	if s2, ok := m.fitSegments(limit, s); ok {
 		now, then := m.segmentsAt(s), m.segmentsAt(s2)
 		h := fmt.Sprintf("lower engine.segment_rows from %s to %s: refresh peak %s -> %s; the model's tables then hold %s segments instead of %s, %s ms of fixed CPU summed over a full scan of each table",
-			capacity(s), capacity(s2), size(peak), size(m.peak(s2, m.parallelism)), num(then), num(now), signed(float64(then-now)*e.SegmentOverheadMs))
+			units.Capacity(s), units.Capacity(s2), units.Size(peak), units.Size(m.peak(s2, m.parallelism)), units.Num(then), units.Num(now), units.Signed(float64(then-now)*e.SegmentOverheadMs))
 		if len(hints) > 0 {
 			h = "or " + h
 		}
 		hints = append(hints, h)
 	}
 	if len(hints) == 0 {
-		raise := "give the engine at least " + size(peak)
+		raise := "give the engine at least " + units.Size(peak)
 		if sev == Warning {
-			raise = "raise budgets.refresh_memory to at least " + size(peak)
+			raise = "raise budgets.refresh_memory to at least " + units.Size(peak)
 		}
 		hints = append(hints, fmt.Sprintf("no refresh_parallelism or segment_rows tried fits the %s (the two copies of the model alone take %s): %s, or shrink the model (fewer or better encoded columns)",
-			limitWords, size(2*model), raise))
+			limitWords, units.Size(2*model), raise))
 	}
 	return []Finding{{
 		Severity: sev,
@@ -189,14 +191,6 @@ func checkRefreshMemory(ts []*Table) []Finding {
 			"segment_rows": float64(s),
 		},
 	}}
-}
-
-// capacity writes a segment capacity exactly, as a manifest would: 8Mi, 128Ki, 1000.
-func capacity(n int64) string {
-	if n > 0 && n < 1<<20 && n%1024 == 0 {
-		return fmt.Sprintf("%dKi", n/1024)
-	}
-	return count(n)
 }
 
 // refreshBudget is the tightest refresh_memory budget any table answers to (the

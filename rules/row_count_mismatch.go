@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+
+	"github.com/scangate/scangate/internal/units"
 )
 
 // RowCountMismatch fires when a list table's declared rows and its listed partitions
@@ -62,8 +64,8 @@ func checkRowCountMismatch(t *Table) []Finding {
 		share = fmt.Sprintf("%+.1f%%", rel*100)
 	}
 	msg := fmt.Sprintf("rows declares %s (%s) but the %d listed partitions sum to %s (%s), more than %s apart",
-		count(declared), num(declared), len(t.Spec.Partitions.Items), count(sum), share, strconv.FormatFloat(tol*100, 'f', -1, 64)+"%")
-	hints := []string{fmt.Sprintf("set rows: %d, or correct the listed partitions; the layout is computed from the listed %s rows", sum, count(sum))}
+		units.Count(declared), units.Num(declared), len(t.Spec.Partitions.Items), units.Count(sum), share, strconv.FormatFloat(tol*100, 'f', -1, 64)+"%")
+	hints := []string{fmt.Sprintf("set rows: %d, or correct the listed partitions; the layout is computed from the listed %s rows", sum, units.Count(sum))}
 	return []Finding{t.finding(Error, t.Spec.RowsPos, "rows", msg, hints, map[string]float64{
 		"declared_rows": float64(declared),
 		"listed_rows":   float64(sum),

@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 	"math"
+
+	"github.com/scangate/scangate/internal/units"
 )
 
 // ScanOverhead fires when the fixed per-segment CPU of one full scan nears or passes
@@ -57,7 +59,7 @@ func checkScanOverhead(t *Table) []Finding {
 		return nil
 	}
 	msg := fmt.Sprintf("a full scan pays %s ms of fixed CPU for %s segments (%s ms each), %s of the %s ms budget",
-		ms(f), num(t.Layout.Segments), ms(t.Engine.SegmentOverheadMs), pct(f / *b), ms(*b))
+		units.Ms(f), units.Num(t.Layout.Segments), units.Ms(t.Engine.SegmentOverheadMs), units.Pct(f / *b), units.Ms(*b))
 	allowed := int64(*b / t.Engine.SegmentOverheadMs)
 	var hints []string
 	// The plan's recommendation first, so check and plan name the same layout.
@@ -68,7 +70,7 @@ func checkScanOverhead(t *Table) []Finding {
 	}
 	if allowed < t.Layout.Ideal {
 		hints = append(hints, fmt.Sprintf("the budget allows at most %s segments, but %s rows need at least %s segments of %s rows: no partition change alone can fit",
-			num(allowed), count(t.Layout.Rows), num(t.Layout.Ideal), count(t.Engine.SegmentRows)))
+			units.Num(allowed), units.Count(t.Layout.Rows), units.Num(t.Layout.Ideal), units.Count(t.Engine.SegmentRows)))
 	}
 	return []Finding{t.finding(sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
 		"fixed_ms":  f,

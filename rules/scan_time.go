@@ -1,6 +1,10 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+
+	"github.com/scangate/scangate/internal/units"
+)
 
 // ScanTime fires when the estimated wall time of a full scan of the table's widest
 // column nears or passes the budget.
@@ -58,13 +62,13 @@ func checkScanTime(t *Table) []Finding {
 		return nil
 	}
 	msg := fmt.Sprintf("a full scan of column %s (%s encoded, %s segments) takes about %s ms on %d cores, %s of the %s ms budget",
-		t.Widest.Name, size(t.Scan.Bytes), num(t.Layout.Segments), ms(w), t.Engine.Cores, pct(w / *b), ms(*b))
+		t.Widest.Name, units.Size(t.Scan.Bytes), units.Num(t.Layout.Segments), units.Ms(w), t.Engine.Cores, units.Pct(w / *b), units.Ms(*b))
 	var hints []string
 	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Scan.WallMs }, *b, w); ok {
-		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.effect(o), ms(w), ms(o.Scan.WallMs))))
+		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.effect(o), units.Ms(w), units.Ms(o.Scan.WallMs))))
 	}
 	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > int64(t.Engine.Cores) {
-		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", ms(t.Scan.CPUMs), num(cores)))
+		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", units.Ms(t.Scan.CPUMs), units.Num(cores)))
 	}
 	return []Finding{t.finding(sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
 		"wall_ms":   w,

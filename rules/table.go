@@ -1,7 +1,7 @@
 package rules
 
 import (
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 

@@ -1,6 +1,10 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+
+	"github.com/scangate/scangate/internal/units"
+)
 
 // TruncatedSegments fires when partition boundaries leave segments part-empty.
 var TruncatedSegments = Rule{
@@ -57,8 +61,8 @@ func checkTruncatedSegments(t *Table) []Finding {
 		sev = Warning
 	}
 	msg := fmt.Sprintf("%s excess %s: partitions hold %s segments where %s would do (fill %s), %s ms of fixed CPU per scan",
-		num(e), plural(e, "segment", "segments"), num(l.ClosedSegments), num(l.ClosedIdeal), pct(closedFill(t)),
-		ms(float64(e)*t.Engine.SegmentOverheadMs))
+		units.Num(e), units.Plural(e, "segment", "segments"), units.Num(l.ClosedSegments), units.Num(l.ClosedIdeal), units.Pct(closedFill(t)),
+		units.Ms(float64(e)*t.Engine.SegmentOverheadMs))
 	var hints []string
 	// The plan's recommendation first, so check and plan name the same layout; when it
 	// changes the engine's segment size, the partition change alone follows.
@@ -75,7 +79,7 @@ func checkTruncatedSegments(t *Table) []Finding {
 					hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.effect(f)))
 				}
 			} else {
-				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", count(t.Engine.SegmentRows), o.Change, t.effect(o)))
+				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", units.Count(t.Engine.SegmentRows), o.Change, t.effect(o)))
 			}
 		}
 	}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/scangate/scangate/schema"
 )
 
@@ -18,7 +20,7 @@ func applyWaivers(t *Table, fs []Finding, cfg Config) []Finding {
 			if !cfg.off(ExpiredWaiver.ID) {
 				days := int64(math.Round(today.Sub(w.Expires).Hours() / 24))
 				fs = append(fs, t.waiverFinding(ExpiredWaiver, cfg, w,
-					fmt.Sprintf("waiver for %s expired on %s, %s %s ago; its findings count again", w.Rule, w.Expires.Format(dateLayout), num(days), plural(days, "day", "days")),
+					fmt.Sprintf("waiver for %s expired on %s, %s %s ago; its findings count again", w.Rule, w.Expires.Format(dateLayout), units.Num(days), units.Plural(days, "day", "days")),
 					fmt.Sprintf("fix what %s reports, or renew the waiver with a later expires: and a reason that still holds", w.Rule)))
 			}
 			continue

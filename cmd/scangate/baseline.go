@@ -4,10 +4,11 @@ import (
 	"fmt"
 	"os"
 
-	"github.com/scangate/scangate/rules/baseline"
-	"github.com/scangate/scangate/rules/report"
-	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/internal/baseline"
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/schema"
 )
 
 // applyBaseline marks the findings recorded in the baseline file.

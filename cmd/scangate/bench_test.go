@@ -8,9 +8,10 @@ import (
 	"sort"
 	"testing"
 
+	"go.yaml.in/yaml/v3"
+
 	"github.com/scangate/scangate/bench/gen"
 	"github.com/scangate/scangate/rules"
-	"go.yaml.in/yaml/v3"
 )
 
 // The benchmarks run scangate's whole check (load, validate, analyse, rules with their

@@ -9,8 +9,9 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/scangate/scangate/rules/calibrate"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/internal/calibrate"
 )
 
 func newCalibrate() *cobra.Command {

@@ -7,11 +7,14 @@ import (
 	"sort"
 	"sync"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/mattn/go-isatty"
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/report"
-	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 func newCheck() *cobra.Command {
@@ -138,7 +141,7 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig, keep
 			fs = []rules.Finding{{
 				Rule: rules.Schema.ID, Severity: rules.Error, File: f.Name, Subject: "run budget",
 				Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
-					rules.Thousands(n), rules.Thousands(limits.MaxRunPartitions)),
+					units.Num(n), units.Num(limits.MaxRunPartitions)),
 			}}
 		}
 		if m != nil {

@@ -15,11 +15,12 @@ import (
 	"strings"
 	"time"
 
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/change"
-	"github.com/scangate/scangate/rules/report"
-	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/internal/change"
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 // diffFormats are the formats diff writes.

@@ -10,12 +10,13 @@ import (
 	"testing"
 
 	"github.com/santhosh-tekuri/jsonschema/v6"
-	"github.com/scangate/scangate/schema"
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
 	east "github.com/yuin/goldmark/extension/ast"
 	"github.com/yuin/goldmark/text"
+
+	"github.com/scangate/scangate/schema"
 )
 
 // Manifests with segments of 1,000 rows and 1.5 ms per segment, so every figure below

@@ -8,9 +8,10 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"github.com/spf13/cobra"
+
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
-	"github.com/spf13/cobra"
 )
 
 func newRules() *cobra.Command {

@@ -13,14 +13,15 @@ import (
 
 	"github.com/owenrumney/go-sarif/v3/pkg/report/v210/sarif"
 	"github.com/santhosh-tekuri/jsonschema/v6"
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/report"
-	"github.com/scangate/scangate/schema"
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
 	east "github.com/yuin/goldmark/extension/ast"
 	"github.com/yuin/goldmark/text"
+
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 var formatFiles = map[string]string{

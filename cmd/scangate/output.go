@@ -9,7 +9,7 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/scangate/scangate/rules/report"
+	"github.com/scangate/scangate/internal/report"
 )
 
 // destination is one requested report: a format and where it goes ("" is stdout).

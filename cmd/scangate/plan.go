@@ -6,11 +6,12 @@ import (
 	"os"
 	"strings"
 
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/advisor"
-	"github.com/scangate/scangate/rules/report"
-	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 // maxHorizon bounds --horizon: fifty years of months is already far past any plan.

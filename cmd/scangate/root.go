@@ -5,8 +5,9 @@ import (
 	"io"
 	"runtime/debug"
 
-	"github.com/scangate/scangate/schema"
 	"github.com/spf13/cobra"
+
+	"github.com/scangate/scangate/schema"
 )
 
 // limits bound what one input may cost; --max-file-size raises the file size bound.

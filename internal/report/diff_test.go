@@ -3,7 +3,7 @@ package report
 import (
 	"testing"
 
-	"github.com/scangate/scangate/rules/change"
+	"github.com/scangate/scangate/internal/change"
 )
 
 // The deltas are written with their sign and the precision the findings use.

@@ -6,8 +6,10 @@ import (
 	"html"
 	"math"
 
-	"github.com/scangate/scangate/rules/advisor"
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -83,7 +85,7 @@ func fillChart(b *bytes.Buffer, m *schema.Manifest, p advisor.TablePlan) {
 	if per > 1 {
 		note += fmt.Sprintf(", %d partitions per bar", per)
 	}
-	fmt.Fprintf(b, `<text x="%d" y="%d">segment fill by partition (%s rows per segment)</text>`+"\n", fillLeft, chartTop-22, advisor.Count(s))
+	fmt.Fprintf(b, `<text x="%d" y="%d">segment fill by partition (%s rows per segment)</text>`+"\n", fillLeft, chartTop-22, units.Count(s))
 	fmt.Fprintf(b, `<text x="%d" y="%d" font-size="9">%s</text>`+"\n", fillLeft, chartTop-8, esc(note))
 	axes(b, fillLeft, fillW, "100%", "0%")
 	w := float64(fillW) / float64(len(bars))
@@ -94,7 +96,7 @@ func fillChart(b *bytes.Buffer, m *schema.Manifest, p advisor.TablePlan) {
 	}
 	l := p.Sweep.Candidates[p.Sweep.Today].Layout
 	fmt.Fprintf(b, `<text x="%d" y="%d">%s, %s (ideal %s), fill %s</text>`+"\n",
-		fillLeft, chartTop+chartH+18, counted(int64(l.Partitions), "partition"), counted(l.Segments, "segment"), advisor.Num(l.Ideal), advisor.Pct(l.Fill))
+		fillLeft, chartTop+chartH+18, counted(int64(l.Partitions), "partition"), counted(l.Segments, "segment"), units.Num(l.Ideal), units.Pct(l.Fill))
 }
 
 // barWidth leaves a gap between bars only where there is room for one.
@@ -142,9 +144,9 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 	}
 	memText := func(v float64) string {
 		if sw.Profiled {
-			return advisor.Size(v)
+			return units.Size(v)
 		}
-		return advisor.Count(int64(v)) + " rows"
+		return units.Count(int64(v)) + " rows"
 	}
 	x0, x1 := math.Inf(1), math.Inf(-1)
 	y0, y1 := math.Inf(1), math.Inf(-1)
@@ -181,9 +183,9 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 	fmt.Fprintf(b, `<text x="%d" y="%d">sweep: fixed ms per scan (across%s) against %s (up)</text>`+"\n", frontLeft, chartTop-22, scale, axis)
 	fmt.Fprintf(b, `<text x="%d" y="%d" font-size="9">blue: the Pareto front, joined; grey: the other layouts</text>`+"\n", frontLeft, chartTop-8)
 	axes(b, frontLeft, frontW, memText(y1), memText(y0)) // equal when flat: both label the one value
-	fmt.Fprintf(b, `<text x="%d" y="%d">%s ms</text>`+"\n", frontLeft, chartTop+chartH+14, advisor.Ms(x0))
+	fmt.Fprintf(b, `<text x="%d" y="%d">%s ms</text>`+"\n", frontLeft, chartTop+chartH+14, units.Ms(x0))
 	if x1 != x0 {
-		fmt.Fprintf(b, `<text x="%d" y="%d" text-anchor="end">%s ms</text>`+"\n", frontLeft+frontW, chartTop+chartH+14, advisor.Ms(x1))
+		fmt.Fprintf(b, `<text x="%d" y="%d" text-anchor="end">%s ms</text>`+"\n", frontLeft+frontW, chartTop+chartH+14, units.Ms(x1))
 	}
 	var front []*advisor.Candidate
 	for _, c := range cs {
@@ -221,7 +223,7 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 			x, anchor = x-10, "end"
 		}
 		fmt.Fprintf(b, `<text x="%s" y="%s" font-size="9" text-anchor="%s">%s</text>`+"\n", f1(x), f1(py(mem(c))+dy), anchor,
-			esc(fmt.Sprintf("%s %s: %s ms, %s", advisor.Count(c.SegmentRows), c.Label, advisor.Ms(c.Layout.FixedMs), memText(mem(c)))))
+			esc(fmt.Sprintf("%s %s: %s ms, %s", units.Count(c.SegmentRows), c.Label, units.Ms(c.Layout.FixedMs), memText(mem(c)))))
 	}
 	mark := func(k int, colour, what string, dy int) {
 		if k < 0 || sw.Candidates[k].Locked {
@@ -230,7 +232,7 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 		c := &sw.Candidates[k]
 		fmt.Fprintf(b, `<circle cx="%s" cy="%s" r="6" fill="none" stroke="%s" stroke-width="2"/>`+"\n", f1(px(c.Layout.FixedMs)), f1(py(mem(c))), colour)
 		fmt.Fprintf(b, `<text x="%d" y="%d" fill="%s">%s</text>`+"\n", frontLeft, chartTop+chartH+28+dy, colour,
-			esc(fmt.Sprintf("%s: %s %s, %s, %s ms, %s", what, advisor.Count(c.SegmentRows), c.Label, counted(c.Layout.Segments, "segment"), advisor.Ms(c.Layout.FixedMs), memText(mem(c)))))
+			esc(fmt.Sprintf("%s: %s %s, %s, %s ms, %s", what, units.Count(c.SegmentRows), c.Label, counted(c.Layout.Segments, "segment"), units.Ms(c.Layout.FixedMs), memText(mem(c)))))
 	}
 	mark(sw.Today, "#6a1b9a", "today", 0)
 	mark(sw.Recommended, "#2e7d32", "recommended", 14)
@@ -241,5 +243,5 @@ func counted(n int64, what string) string {
 	if n == 1 {
 		return "1 " + what
 	}
-	return advisor.Num(n) + " " + what + "s"
+	return units.Num(n) + " " + what + "s"
 }

@@ -5,7 +5,7 @@ import (
 	"io"
 	"strings"
 
-	"github.com/scangate/scangate/rules/change"
+	"github.com/scangate/scangate/internal/change"
 )
 
 // DiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,

@@ -8,9 +8,12 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/fatih/color"
+
+	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/change"
 )
 
 // metric is one line of a table's before/after: the figure's name, both sides and the
@@ -38,20 +41,20 @@ func tableMetrics(t change.TableChange) []metric {
 		return s
 	}
 	out := []metric{
-		{"partitions", side(t.Before, count(int64(b.Partitions))), side(t.After, count(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
-		{"segments", side(t.Before, count(b.Segments)), side(t.After, count(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
-		{"fill", side(t.Before, rules.Percent(b.Fill)), side(t.After, rules.Percent(a.Fill)), points(t), 0},
-		{"fixed ms per scan", side(t.Before, rules.Millis(b.FixedMs)), side(t.After, rules.Millis(a.FixedMs)), signedMs(t.AddedMs()), sign(change.Round(t.AddedMs()))},
+		{"partitions", side(t.Before, units.Num(int64(b.Partitions))), side(t.After, units.Num(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
+		{"segments", side(t.Before, units.Num(b.Segments)), side(t.After, units.Num(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
+		{"fill", side(t.Before, units.Pct(b.Fill)), side(t.After, units.Pct(a.Fill)), points(t), 0},
+		{"fixed ms per scan", side(t.Before, units.Ms(b.FixedMs)), side(t.After, units.Ms(a.FixedMs)), signedMs(t.AddedMs()), sign(change.Round(t.AddedMs()))},
 	}
 	if t.Before != nil && t.After != nil && t.Before.Fill > 0 && t.After.Fill > 0 {
 		out[2].worse = -sign(change.Round(a.Fill - b.Fill)) // fuller segments are better
 	}
 	wall := metric{name: "scan wall ms", before: none, after: none, delta: none}
 	if t.Before != nil && t.Before.ScanWallMs != nil {
-		wall.before = rules.Millis(*t.Before.ScanWallMs)
+		wall.before = units.Ms(*t.Before.ScanWallMs)
 	}
 	if t.After != nil && t.After.ScanWallMs != nil {
-		wall.after = rules.Millis(*t.After.ScanWallMs)
+		wall.after = units.Ms(*t.After.ScanWallMs)
 	}
 	// A delta needs the scan on every side that has the table.
 	if wb, wa, ok := wallPair(t); ok && (wall.before != none || wall.after != none) {
@@ -70,10 +73,10 @@ func totalMetrics(m change.ModelChange) []metric {
 		return s
 	}
 	out := []metric{
-		{"tables", side(m.Before, count(int64(b.Tables))), side(m.After, count(int64(a.Tables))), signedCount(int64(a.Tables - b.Tables)), 0},
-		{"partitions", side(m.Before, count(int64(b.Partitions))), side(m.After, count(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
-		{"segments", side(m.Before, count(b.Segments)), side(m.After, count(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
-		{"fixed ms per scan", side(m.Before, rules.Millis(b.FixedMs)), side(m.After, rules.Millis(a.FixedMs)), signedMs(a.FixedMs - b.FixedMs), sign(change.Round(a.FixedMs - b.FixedMs))},
+		{"tables", side(m.Before, units.Num(int64(b.Tables))), side(m.After, units.Num(int64(a.Tables))), signedCount(int64(a.Tables - b.Tables)), 0},
+		{"partitions", side(m.Before, units.Num(int64(b.Partitions))), side(m.After, units.Num(int64(a.Partitions))), signedCount(int64(a.Partitions - b.Partitions)), 0},
+		{"segments", side(m.Before, units.Num(b.Segments)), side(m.After, units.Num(a.Segments)), signedCount(a.Segments - b.Segments), sign(float64(a.Segments - b.Segments))},
+		{"fixed ms per scan", side(m.Before, units.Ms(b.FixedMs)), side(m.After, units.Ms(a.FixedMs)), signedMs(a.FixedMs - b.FixedMs), sign(change.Round(a.FixedMs - b.FixedMs))},
 	}
 	if r, ok := refreshMetric(m); ok {
 		out = append(out, r)
@@ -97,10 +100,10 @@ func refreshMetric(m change.ModelChange) (metric, bool) {
 	x := metric{name: "refresh peak", before: none, after: none, delta: none}
 	var b, a float64
 	if pb != nil {
-		b, x.before = *pb, rules.Bytes(*pb)
+		b, x.before = *pb, units.Size(*pb)
 	}
 	if pa != nil {
-		a, x.after = *pa, rules.Bytes(*pa)
+		a, x.after = *pa, units.Size(*pa)
 	}
 	if (m.Before == nil || pb != nil) && (m.After == nil || pa != nil) {
 		x.delta, x.worse = signedBytes(a-b), sign(change.Round(a-b))
@@ -112,14 +115,12 @@ func refreshMetric(m change.ModelChange) (metric, bool) {
 func signedBytes(d float64) string {
 	switch {
 	case change.Round(d) > 0:
-		return "+" + rules.Bytes(d)
+		return "+" + units.Size(d)
 	case change.Round(d) < 0:
-		return "-" + rules.Bytes(-d)
+		return "-" + units.Size(-d)
 	}
 	return "0"
 }
-
-func count(n int64) string { return rules.Thousands(n) }
 
 func sign(x float64) int {
 	switch {
@@ -134,9 +135,9 @@ func sign(x float64) int {
 // signedCount writes a count delta with its sign: +730, -12, 0.
 func signedCount(n int64) string {
 	if n > 0 {
-		return "+" + rules.Thousands(n)
+		return "+" + units.Num(n)
 	}
-	return rules.Thousands(n)
+	return units.Num(n)
 }
 
 // signedMs writes a millisecond delta with its sign, rounded as reports round: +1,095,
@@ -145,9 +146,9 @@ func signedMs(x float64) string {
 	x = change.Round(x)
 	switch {
 	case x > 0:
-		return "+" + rules.Millis(x)
+		return "+" + units.Ms(x)
 	case x < 0:
-		return rules.Millis(x)
+		return units.Ms(x)
 	}
 	return "0"
 }

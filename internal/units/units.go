@@ -1,4 +1,7 @@
-package advisor
+// Package units writes figures one way everywhere: counts as manifests write them,
+// milliseconds, percentages and byte sizes. Findings, plans, diffs and every report
+// word their numbers through it, so two screens never print one figure two ways.
+package units
 
 import (
 	"fmt"
@@ -50,9 +53,14 @@ func Short(v float64) string {
 // Num writes an integer with thousands separators: 1,460.
 func Num(n int64) string {
 	if n < 0 {
-		return "-" + Num(-n)
+		// Through uint64: -n overflows for the most negative int64.
+		return "-" + group(strconv.FormatUint(uint64(0)-uint64(n), 10))
 	}
-	s := strconv.FormatInt(n, 10)
+	return group(strconv.FormatInt(n, 10))
+}
+
+// group puts a comma between every three digits from the right.
+func group(s string) string {
 	for i := len(s) - 3; i > 0; i -= 3 {
 		s = s[:i] + "," + s[i:]
 	}
@@ -94,9 +102,18 @@ func Size(b float64) string {
 	return Short(b) + " " + units[i]
 }
 
-func plural(n int64, one, many string) string {
+// Plural picks the singular or plural word for n.
+func Plural(n int64, one, many string) string {
 	if n == 1 {
 		return one
 	}
 	return many
+}
+
+// Capacity writes a segment capacity exactly, as a manifest would: 8Mi, 128Ki, 1000.
+func Capacity(n int64) string {
+	if n > 0 && n < 1<<20 && n%1024 == 0 {
+		return fmt.Sprintf("%dKi", n/1024)
+	}
+	return Count(n)
 }

@@ -4,7 +4,7 @@ import (
 	"math"
 	"testing"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 

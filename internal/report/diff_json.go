@@ -4,7 +4,7 @@ import (
 	"encoding/json"
 	"io"
 
-	"github.com/scangate/scangate/rules/change"
+	"github.com/scangate/scangate/internal/change"
 )
 
 // DiffJSONSchemaVersion is the version of the JSON diff's shape (schema/diff.schema.json).

@@ -10,8 +10,8 @@ package change
 import (
 	"sort"
 
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/layout"
 )
 
 // File is one checked manifest on one side of a change.

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/fatih/color"
+
 	"github.com/scangate/scangate/rules"
 )
 

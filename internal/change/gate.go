@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/scangate/scangate/rules"
 )
 
@@ -51,7 +53,7 @@ func (g Gate) Check(d *Diff) []Breach {
 			if added := t.AddedSegments(); added > *g.MaxAddedSegments {
 				out = append(out, Breach{
 					Kind: "added-segments", Model: t.Model, Table: t.Name, Value: float64(added), Limit: float64(*g.MaxAddedSegments),
-					Message: fmt.Sprintf("%s adds %s segments, more than the %s allowed (--max-added-segments)", name, rules.Thousands(added), rules.Thousands(*g.MaxAddedSegments)),
+					Message: fmt.Sprintf("%s adds %s segments, more than the %s allowed (--max-added-segments)", name, units.Num(added), units.Num(*g.MaxAddedSegments)),
 				})
 			}
 		}
@@ -122,7 +124,7 @@ func Round(x float64) float64 {
 // msOver writes added ms as findings do (1,240; 15.0), or with every decimal it has
 // when that rounding would hide why it is over the limit (10.001 against 10).
 func msOver(added, limit float64) string {
-	s := rules.Millis(added)
+	s := units.Ms(added)
 	if v, err := strconv.ParseFloat(strings.ReplaceAll(s, ",", ""), 64); err == nil && v <= limit {
 		return strconv.FormatFloat(added, 'f', -1, 64)
 	}
@@ -132,7 +134,7 @@ func msOver(added, limit float64) string {
 // Limit writes a limit as the user gave it: 500, 12.5.
 func Limit(x float64) string {
 	if x == math.Trunc(x) && math.Abs(x) < 1e15 {
-		return rules.Thousands(int64(x))
+		return units.Num(int64(x))
 	}
 	return fmt.Sprint(x)
 }
@@ -214,10 +216,10 @@ func (d *Diff) clause(verb, prep string, ts []TableChange) string {
 			break
 		}
 		unit := "ms"
-		amount := rules.Millis(math.Abs(Round(t.AddedMs())))
+		amount := units.Ms(math.Abs(Round(t.AddedMs())))
 		if Round(t.AddedMs()) == 0 {
 			n := abs(t.AddedSegments())
-			amount, unit = rules.Thousands(n), pick64(n, "segment", "segments")
+			amount, unit = units.Num(n), pick64(n, "segment", "segments")
 		} else if i == 0 {
 			unit = "ms per scan"
 		}

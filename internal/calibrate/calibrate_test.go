@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 

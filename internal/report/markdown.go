@@ -5,6 +5,8 @@ import (
 	"io"
 	"strings"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/scangate/scangate/rules"
 )
 
@@ -28,11 +30,11 @@ func Markdown(w io.Writer, r *Result) error {
 				l := t.Layout
 				budget := "–"
 				if t.Budgets.ScanOverheadMs != nil {
-					budget = rules.Millis(*t.Budgets.ScanOverheadMs)
+					budget = units.Ms(*t.Budgets.ScanOverheadMs)
 				}
 				fmt.Fprintf(&b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
-					code(f.Name), code(t.Spec.Name), rules.Thousands(int64(l.Partitions)), rules.Thousands(l.Segments),
-					rules.Thousands(l.Ideal), rules.Percent(l.Fill), rules.Millis(l.FixedMs), budget)
+					code(f.Name), code(t.Spec.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
+					units.Num(l.Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
 			}
 		}
 		b.WriteString("\n")

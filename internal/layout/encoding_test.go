@@ -115,7 +115,7 @@ func TestValueBytes(t *testing.T) {
 // The worked examples follow the run-length / bit-packing hybrid of the Apache Parquet
 // format specification (Encodings, RLE): groups of 8 indexes, a varint header per run
 // (count<<1 for a run-length run, groups<<1|1 for a bit-packed run), a run-length value in
-// ceil(w/8) bytes, a bit-packed group in w bytes. rules/layout/encoder_test.go checks the
+// ceil(w/8) bytes, a bit-packed group in w bytes. internal/layout/encoder_test.go checks the
 // same numbers against a real encoder.
 
 func TestSegmentBytesWorked(t *testing.T) {

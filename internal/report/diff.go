@@ -3,8 +3,9 @@ package report
 import (
 	"strings"
 
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/rules/change"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/change"
 )
 
 // DiffResult is everything one run of scangate diff produced. Every diff writer renders
@@ -70,11 +71,9 @@ func (r *DiffResult) diffSummary() string {
 		}
 	}
 	return plural(len(d.Models), "model") + ", " + plural(tables, "table") + ": " +
-		itoa(changed) + " changed; findings: " + itoa(len(d.Introduced)) + " new, " +
-		itoa(len(d.Resolved)) + " resolved, " + itoa(len(d.Unchanged)) + " unchanged"
+		units.Num(int64(changed)) + " changed; findings: " + units.Num(int64(len(d.Introduced))) + " new, " +
+		units.Num(int64(len(d.Resolved))) + " resolved, " + units.Num(int64(len(d.Unchanged))) + " unchanged"
 }
-
-func itoa(n int) string { return rules.Thousands(int64(n)) }
 
 // gateFlags lists the limits the gate checks as flags: "--max-added-ms 500"; empty
 // when none is set.

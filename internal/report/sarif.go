@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/owenrumney/go-sarif/v3/pkg/report/v210/sarif"
+
 	"github.com/scangate/scangate/rules"
 )
 

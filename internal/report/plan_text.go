@@ -6,8 +6,10 @@ import (
 	"strings"
 	"time"
 
-	"github.com/scangate/scangate/rules/advisor"
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -21,14 +23,6 @@ type PlanOptions struct {
 	Today   time.Time
 	Horizon int
 }
-
-var (
-	cnt  = advisor.Count
-	num  = advisor.Num
-	msf  = advisor.Ms
-	pctf = advisor.Pct
-	size = advisor.Size
-)
 
 // PlanText writes the plan of every table for an 80-column terminal, separated by blank
 // lines.
@@ -55,30 +49,30 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 	now := &sw.Candidates[sw.Today]
 	growth := "no growth"
 	if t.GrowthPerYear != 0 {
-		growth = fmt.Sprintf("growing %s a year", pctf(t.GrowthPerYear))
+		growth = fmt.Sprintf("growing %s a year", units.Pct(t.GrowthPerYear))
 	}
 	para(b, "   ", fmt.Sprintf("%s rows, %s; segments of %s rows, %d cores, %s ms per segment per scan.",
-		cnt(now.Rows), growth, cnt(e.SegmentRows), e.Cores, msf(e.SegmentOverheadMs)))
+		units.Count(now.Rows), growth, units.Count(e.SegmentRows), e.Cores, units.Ms(e.SegmentOverheadMs)))
 
 	b.WriteString("\nLayout today\n")
 	renderGroups(b, t, e.SegmentRows)
 	l := now.Layout
-	fmt.Fprintf(b, "   segments %s, ideal %s, excess %s, fill %s\n", num(l.Segments), num(l.Ideal), num(l.Excess), pctf(l.Fill))
+	fmt.Fprintf(b, "   segments %s, ideal %s, excess %s, fill %s\n", units.Num(l.Segments), units.Num(l.Ideal), units.Num(l.Excess), units.Pct(l.Fill))
 	if l.ClosedExcess != l.Excess {
-		fmt.Fprintf(b, "   excess outside the open partition: %s (what truncated-segments counts)\n", num(l.ClosedExcess))
+		fmt.Fprintf(b, "   excess outside the open partition: %s (what truncated-segments counts)\n", units.Num(l.ClosedExcess))
 	}
 	budgets := m.Budgets.Override(t.Budgets)
 	var rows [][]string
 	row := func(name, value, limitName string, limit *float64, fig float64) {
 		r := []string{name, value, "", ""}
 		if limit != nil && *limit > 0 {
-			r[2], r[3] = limitName+" "+limitText(limitName, *limit), pctf(fig / *limit)
+			r[2], r[3] = limitName+" "+limitText(limitName, *limit), units.Pct(fig / *limit)
 		}
 		rows = append(rows, r)
 	}
-	row("fixed CPU per full scan", msf(l.FixedMs)+" ms", "budget", budgets.ScanOverheadMs, l.FixedMs)
+	row("fixed CPU per full scan", units.Ms(l.FixedMs)+" ms", "budget", budgets.ScanOverheadMs, l.FixedMs)
 	if now.Widest != "" {
-		row("scan wall, "+now.Widest, msf(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
+		row("scan wall, "+now.Widest, units.Ms(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
 	} else {
 		rows = append(rows, []string{"scan wall", "-", "needs column profiles", ""})
 	}
@@ -87,7 +81,7 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 		if len(t.Columns) == 0 {
 			name = "refresh peak (others)" // this table's own size is unknown without profiles
 		}
-		row(name, size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
+		row(name, units.Size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
 		if p.RefreshBudget != nil {
 			row("", "", "budget", p.RefreshBudget, now.Peak)
 		}
@@ -102,9 +96,9 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 // limitText writes a budget in its unit: ms for the scan budgets, bytes for memory.
 func limitText(kind string, v float64) string {
 	if kind == "engine" || v >= 1<<20 {
-		return size(v)
+		return units.Size(v)
 	}
-	return msf(v) + " ms"
+	return units.Ms(v) + " ms"
 }
 
 func bytesLimit(n int64) *float64 {
@@ -163,8 +157,8 @@ func renderGroups(b *strings.Builder, t schema.Table, s int64) {
 			rows = append(rows, []string{fmt.Sprintf("... %d more", len(gs)-maxLines), "", "", "", ""})
 			break
 		}
-		rows = append(rows, []string{g.label, num(int64(g.count)), span(cnt(g.minRows), cnt(g.maxRows)),
-			span(num(g.minSeg), num(g.maxSeg)), span(pctf(g.minFill), pctf(g.maxFill))})
+		rows = append(rows, []string{g.label, units.Num(int64(g.count)), span(units.Count(g.minRows), units.Count(g.maxRows)),
+			span(units.Num(g.minSeg), units.Num(g.maxSeg)), span(units.Pct(g.minFill), units.Pct(g.maxFill))})
 	}
 	grid(b, "   ", []column{{head: "partitions", clip: true}, {head: "count", right: true},
 		{head: "rows each"}, {head: "segments"}, {head: "last segment full"}}, rows)
@@ -218,13 +212,13 @@ func renderSweep(b *strings.Builder, sw *advisor.Sweep, today int64) {
 		}
 		wall, peak := "-", "-"
 		if c.Widest != "" {
-			wall = msf(c.WallMs)
+			wall = units.Ms(c.WallMs)
 		}
 		if sw.Profiled {
-			peak = size(c.Peak)
+			peak = units.Size(c.Peak)
 		}
-		rows = append(rows, []string{string(mark), cnt(c.SegmentRows), c.Label, num(int64(c.Layout.Partitions)),
-			num(c.Layout.Segments), msf(c.Layout.FixedMs), wall, peak})
+		rows = append(rows, []string{string(mark), units.Count(c.SegmentRows), c.Label, units.Num(int64(c.Layout.Partitions)),
+			units.Num(c.Layout.Segments), units.Ms(c.Layout.FixedMs), wall, peak})
 	}
 	grid(b, "   ", []column{{}, {head: "seg"}, {head: "partitions", clip: true}, {head: "parts", right: true},
 		{head: "segs", right: true}, {head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
@@ -251,15 +245,15 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	default:
 		para(b, "", "No layout in the sweep fits every budget. Closest: "+c.Change+".")
 	}
-	fmt.Fprintf(b, "   %-15s %s -> %s\n", "segments", num(now.Layout.Segments), num(c.Layout.Segments))
-	fmt.Fprintf(b, "   %-15s %s -> %s ms per scan (%s ms)\n", "fixed CPU", msf(now.Layout.FixedMs), msf(c.Layout.FixedMs), advisor.Signed(c.Layout.FixedMs-now.Layout.FixedMs))
+	fmt.Fprintf(b, "   %-15s %s -> %s\n", "segments", units.Num(now.Layout.Segments), units.Num(c.Layout.Segments))
+	fmt.Fprintf(b, "   %-15s %s -> %s ms per scan (%s ms)\n", "fixed CPU", units.Ms(now.Layout.FixedMs), units.Ms(c.Layout.FixedMs), units.Signed(c.Layout.FixedMs-now.Layout.FixedMs))
 	if c.Widest != "" {
-		fmt.Fprintf(b, "   %-15s %s -> %s ms (%s)\n", "scan wall", msf(now.WallMs), msf(c.WallMs), clip(c.Widest, 30))
+		fmt.Fprintf(b, "   %-15s %s -> %s ms (%s)\n", "scan wall", units.Ms(now.WallMs), units.Ms(c.WallMs), clip(c.Widest, 30))
 	}
 	if sw.Profiled {
-		fmt.Fprintf(b, "   %-15s %s -> %s\n", "refresh peak", size(now.Peak), size(c.Peak))
+		fmt.Fprintf(b, "   %-15s %s -> %s\n", "refresh peak", units.Size(now.Peak), units.Size(c.Peak))
 	}
-	fmt.Fprintf(b, "   %-15s %s -> %s\n", "partitions", num(int64(now.Layout.Partitions)), num(int64(c.Layout.Partitions)))
+	fmt.Fprintf(b, "   %-15s %s -> %s\n", "partitions", units.Num(int64(now.Layout.Partitions)), units.Num(int64(c.Layout.Partitions)))
 	for _, miss := range c.Misses {
 		para(b, "   ", "still breaks: "+miss)
 	}
@@ -286,7 +280,7 @@ func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
 		para(b, "", fmt.Sprintf("Forecast: no growth_per_year, so the table's own figures stay as today through %s.", end))
 	} else {
 		para(b, "", fmt.Sprintf("Forecast from %s for %d months at %s growth a year, today's layout:",
-			opt.Today.Format("2006-01-02"), opt.Horizon, pctf(p.Spec.GrowthPerYear)))
+			opt.Today.Format("2006-01-02"), opt.Horizon, units.Pct(p.Spec.GrowthPerYear)))
 	}
 	if len(fc.Crossings) > 0 {
 		var rows [][]string
@@ -322,12 +316,12 @@ func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
 		pr := fc.Months[t]
 		wall, peak := "-", "-"
 		if pr.Widest != "" {
-			wall = msf(pr.WallMs)
+			wall = units.Ms(pr.WallMs)
 		}
 		if p.Sweep.Profiled {
-			peak = size(pr.Peak)
+			peak = units.Size(pr.Peak)
 		}
-		rows = append(rows, []string{advisor.Month(pr.Date), cnt(pr.Rows), num(pr.Layout.Segments), msf(pr.Layout.FixedMs), wall, peak})
+		rows = append(rows, []string{advisor.Month(pr.Date), units.Count(pr.Rows), units.Num(pr.Layout.Segments), units.Ms(pr.Layout.FixedMs), wall, peak})
 	}
 	grid(b, "   ", []column{{head: "month"}, {head: "rows", right: true}, {head: "segs", right: true},
 		{head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
@@ -342,7 +336,7 @@ func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
 		if h.Today() {
 			para(b, "", fmt.Sprintf("Today's layout holds every budget through %s.", end))
 		} else {
-			para(b, "", fmt.Sprintf("Holds every budget through %s: %s (%s segments, %s ms per scan today).", end, h.Change, num(h.Layout.Segments), msf(h.Layout.FixedMs)))
+			para(b, "", fmt.Sprintf("Holds every budget through %s: %s (%s segments, %s ms per scan today).", end, h.Change, units.Num(h.Layout.Segments), units.Ms(h.Layout.FixedMs)))
 		}
 	} else {
 		para(b, "", fmt.Sprintf("No layout in the sweep holds every budget through %s; try larger capacities with --segment-rows or a shorter --horizon.", end))

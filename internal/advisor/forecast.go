@@ -5,6 +5,8 @@ import (
 	"slices"
 	"time"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/scangate/scangate/schema"
 )
 
@@ -133,9 +135,9 @@ func (md *Model) NewlyBroken(i int, spec schema.Table, s int64, months int) bool
 // Format writes a crossing's figure with its unit.
 func (c Crossing) Format(v float64) string {
 	if c.Unit == "bytes" {
-		return Size(v)
+		return units.Size(v)
 	}
-	return Ms(v) + " ms"
+	return units.Ms(v) + " ms"
 }
 
 // Holds returns the best candidate of the sweep (ranked as the recommendation) that

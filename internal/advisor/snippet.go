@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/scangate/scangate/internal/units"
+
 	"github.com/scangate/scangate/schema"
 )
 
@@ -40,7 +42,7 @@ func Snippet(c *Candidate) string {
 
 // exactCount writes n with a suffix when that reads back exactly, else in digits.
 func exactCount(n int64) string {
-	s := Count(n)
+	s := units.Count(n)
 	if v, err := schema.ParseCount(s); err == nil && v == n {
 		return s
 	}

@@ -5,7 +5,9 @@ import (
 	"math"
 	"strings"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -107,7 +109,7 @@ func withTiers(spec schema.Table, tiers []schema.Tier, change string) Variant {
 func tierWords(tiers []schema.Tier) string {
 	w := make([]string, len(tiers))
 	for i, t := range tiers {
-		w[i] = fmt.Sprintf("%s %s %s", Num(int64(t.Keep)), t.Grain, plural(int64(t.Keep), "partition", "partitions"))
+		w[i] = fmt.Sprintf("%s %s %s", units.Num(int64(t.Keep)), t.Grain, units.Plural(int64(t.Keep), "partition", "partitions"))
 	}
 	return strings.Join(w, " + ")
 }
@@ -174,7 +176,7 @@ func listVariants(spec schema.Table, s int64) []Variant {
 	}
 	o := spec
 	o.Partitions.Items = items
-	return []Variant{{Change: fmt.Sprintf("merge neighbouring listed partitions so each holds at least %s rows (%s)", Count(s), strings.Join(names, ", ")), Spec: o}}
+	return []Variant{{Change: fmt.Sprintf("merge neighbouring listed partitions so each holds at least %s rows (%s)", units.Count(s), strings.Join(names, ", ")), Spec: o}}
 }
 
 // mergePair merges the two neighbouring listed partitions whose merge saves the most
@@ -208,13 +210,13 @@ func Label(p schema.Partitions) string {
 	case schema.SchemeTime:
 		w := make([]string, len(p.Tiers))
 		for i, t := range p.Tiers {
-			w[i] = fmt.Sprintf("%s %s", Num(int64(t.Keep)), t.Grain)
+			w[i] = fmt.Sprintf("%s %s", units.Num(int64(t.Keep)), t.Grain)
 		}
 		return strings.Join(w, " + ")
 	case schema.SchemeEven:
-		return fmt.Sprintf("even x%s", Num(int64(p.Count)))
+		return fmt.Sprintf("even x%s", units.Num(int64(p.Count)))
 	case schema.SchemeList:
-		return fmt.Sprintf("%s listed", Num(int64(len(p.Items))))
+		return fmt.Sprintf("%s listed", units.Num(int64(len(p.Items))))
 	}
 	return string(p.Scheme)
 }

@@ -5,7 +5,9 @@ import (
 	"math"
 	"slices"
 
-	"github.com/scangate/scangate/rules/layout"
+	"github.com/scangate/scangate/internal/units"
+
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -333,16 +335,16 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 	var out []Miss
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
-		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", Ms(f.Layout.FixedMs), Ms(*b.ScanOverheadMs))})
+		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", units.Ms(f.Layout.FixedMs), units.Ms(*b.ScanOverheadMs))})
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
-		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", Ms(f.WallMs), Ms(*b.ScanMs))})
+		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", units.Ms(f.WallMs), units.Ms(*b.ScanMs))})
 	}
 	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
-		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", Size(peak), Size(float64(mem)))})
+		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", units.Size(peak), units.Size(float64(mem)))})
 	}
 	if md.refresh != nil && md.profiled && peak > *md.refresh {
-		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", Size(peak), Size(*md.refresh))})
+		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", units.Size(peak), units.Size(*md.refresh))})
 	}
 	if s != md.M.Engine.SegmentRows {
 		for _, o := range md.outgrown(i, s, month) {
@@ -366,17 +368,17 @@ func (md *Model) warnings(i int, f Figures, lv Levels) []string {
 	var out []string
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > lv.OverheadWarnShare**b.ScanOverheadMs {
-		out = append(out, fmt.Sprintf("scan overhead at %s of the budget", Pct(f.Layout.FixedMs / *b.ScanOverheadMs)))
+		out = append(out, fmt.Sprintf("scan overhead at %s of the budget", units.Pct(f.Layout.FixedMs / *b.ScanOverheadMs)))
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > lv.ScanWarnShare**b.ScanMs {
-		out = append(out, fmt.Sprintf("scan time at %s of the budget", Pct(f.WallMs / *b.ScanMs)))
+		out = append(out, fmt.Sprintf("scan time at %s of the budget", units.Pct(f.WallMs / *b.ScanMs)))
 	}
 	l := f.Layout
 	if l.ClosedExcess >= 1 && float64(l.ClosedExcess) >= max(lv.TruncWarnMin, lv.TruncWarnShare*float64(l.ClosedSegments)) {
-		out = append(out, fmt.Sprintf("%s excess segments", Num(l.ClosedExcess)))
+		out = append(out, fmt.Sprintf("%s excess segments", units.Num(l.ClosedExcess)))
 	}
 	if float64(l.Partitions) > lv.PartitionLimit {
-		out = append(out, fmt.Sprintf("%s partitions", Num(int64(l.Partitions))))
+		out = append(out, fmt.Sprintf("%s partitions", units.Num(int64(l.Partitions))))
 	}
 	return out
 }
@@ -416,7 +418,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			if s < today {
 				verb = "lower"
 			}
-			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, Count(today), Count(s))
+			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, units.Count(today), units.Count(s))
 		}
 		vs := []Variant{{Spec: spec}}
 		if isTime {
@@ -584,7 +586,7 @@ func closer(a, b *Candidate) bool {
 // Effect words a candidate's result against today's layout, as the hints do:
 // "730 -> 302 segments, -642 ms per scan".
 func Effect(today, c *Candidate) string {
-	return fmt.Sprintf("%s -> %s segments, %s ms per scan", Num(today.Layout.Segments), Num(c.Layout.Segments), Signed(c.Layout.FixedMs-today.Layout.FixedMs))
+	return fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(today.Layout.Segments), units.Num(c.Layout.Segments), units.Signed(c.Layout.FixedMs-today.Layout.FixedMs))
 }
 
 // Pick returns the recommendation, or when nothing fits the closest candidate (fits
