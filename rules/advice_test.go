@@ -11,11 +11,11 @@ import (
 // The advisor ranks layouts by the warnings the rules would raise; its default levels
 // must be the rules' defaults, and a project's settings must reach it.
 func TestAdvisorLevelsMatchRules(t *testing.T) {
-	if levels(Config{}) != advisor.DefaultLevels {
-		t.Errorf("the advisor's default levels %+v differ from the rules' %+v", advisor.DefaultLevels, levels(Config{}))
+	if (Config{}).Levels() != advisor.DefaultLevels {
+		t.Errorf("the advisor's default levels %+v differ from the rules' %+v", advisor.DefaultLevels, (Config{}).Levels())
 	}
 	cfg := Config{Rules: map[string]RuleConfig{scanOverheadID: {Params: map[string]float64{"warn_share": 0.9}}}}
-	if levels(cfg).OverheadWarnShare != 0.9 {
+	if cfg.Levels().OverheadWarnShare != 0.9 {
 		t.Error("a project's warn_share does not reach the advisor")
 	}
 }

@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
@@ -47,43 +49,39 @@ tables:
     partitions: {scheme: none}`,
 }
 
+func init() { register(BudgetForecast) }
+
 const budgetForecastID = "budget-forecast"
 
 // forecastHorizon is how far ahead a crossing is warned of.
 var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12)."}
 
-func checkBudgetForecast(t *Table) []Finding {
-	horizon := int(t.Config.Value(budgetForecastID, forecastHorizon))
-	if t.advice == nil {
+func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
+	horizon := int(cfg.Value(budgetForecastID, forecastHorizon))
+	md := t.Advisor()
+	if md == nil {
 		return nil
 	}
-	md := t.advice.model
 	// Only growth moves a table's own figures; the model's refresh peak, which every
 	// growing table moves, is reported once, on the first of them.
-	first := -1
-	for i, s := range md.M.Tables {
-		if s.GrowthPerYear != 0 {
-			first = i
-			break
-		}
-	}
-	if t.Spec.GrowthPerYear == 0 && first != t.index {
+	first := t.Model().FirstGrowing
+	if t.Spec.GrowthPerYear == 0 && first != t.Index {
 		return nil
 	}
 	// Most tables break no new budget by the end of the window: two projections settle
 	// that before the month-by-month forecast.
-	if !md.NewlyBroken(t.index, t.Spec, t.Engine.SegmentRows, horizon) {
+	if !md.NewlyBroken(t.Index, t.Spec, t.Engine.SegmentRows, horizon) {
 		return nil
 	}
-	today := t.Config.today()
-	fc, err := md.Forecast(t.index, t.Spec, t.Engine.SegmentRows, today, horizon)
+	today := cfg.today()
+	fc, err := md.Forecast(t.Index, t.Spec, t.Engine.SegmentRows, today, horizon)
 	if err != nil {
 		return nil
 	}
 	end := advisor.Month(advisor.AddMonths(today, horizon))
 	var out []Finding
 	for _, c := range fc.Crossings {
-		if c.Month < 1 || (c.Model && first != t.index) || (!c.Model && t.Spec.GrowthPerYear == 0) {
+		if c.Month < 1 || (c.Model && first != t.Index) || (!c.Model && t.Spec.GrowthPerYear == 0) {
 			continue
 		}
 		p := fc.Months[c.Month]
@@ -100,10 +98,12 @@ func checkBudgetForecast(t *Table) []Finding {
 				budgetWords(c), advisor.Month(c.Date), c.Format(c.Value), c.Format(c.Now))
 		}
 		hint := fmt.Sprintf("no layout tried holds every budget through %s; `scangate plan --segment-rows` tries other segment sizes, or raise the budget", end)
-		if h := md.Holds(t.sweep(), horizon); h != nil && !h.Today() {
-			hint = fmt.Sprintf("%s holds every budget through %s: %s", h.Change, end, advisor.Effect(&t.sweep().Candidates[t.sweep().Today], h))
+		if sw := t.Sweep(); sw != nil {
+			if h := md.Holds(sw, horizon); h != nil && !h.Today() {
+				hint = fmt.Sprintf("%s holds every budget through %s: %s", h.Change, end, advisor.Effect(&sw.Candidates[sw.Today], h))
+			}
 		}
-		out = append(out, t.finding(Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{hint}, map[string]float64{
+		out = append(out, finding(t, Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{hint}, map[string]float64{
 			"month":  float64(c.Month),
 			"limit":  c.Limit,
 			"value":  c.Value,

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"time"
 
+	"github.com/scangate/scangate/internal/advisor"
+
 	"github.com/scangate/scangate/schema"
 )
 
@@ -103,4 +105,17 @@ func paramNames(r Rule) string {
 		s += ", " + p.Name
 	}
 	return s
+}
+
+// Levels are the rules' warning thresholds as the project sets them, handed to the
+// analysis so the advisor recommends a layout the rules stay quiet about.
+func (c Config) Levels() advisor.Levels {
+	return advisor.Levels{
+		OverheadWarnShare: c.Value(scanOverheadID, overheadWarnShare),
+		ScanWarnShare:     c.Value(scanTimeID, scanWarnShare),
+		TruncWarnMin:      c.Value(truncatedSegmentsID, truncWarnMin),
+		TruncWarnShare:    c.Value(truncatedSegmentsID, truncWarnShare),
+		PartitionLimit:    c.Value(partitionCountID, partitionLimit),
+		HorizonMonths:     int(c.Value(budgetForecastID, forecastHorizon)),
+	}
 }

@@ -18,3 +18,5 @@ var ExpiredWaiver = Rule{
 	Good: `    waivers:
       - {rule: scan-overhead, reason: "upgrade moved to the second quarter", expires: 2026-06-30}`,
 }
+
+func init() { register(ExpiredWaiver) }

@@ -47,6 +47,18 @@ func ParseSeverity(s string) (Severity, error) {
 	return 0, fmt.Errorf("unknown severity %q; use error, warning or note", s)
 }
 
+// grade is the ladder of a budgeted figure: an error above the budget, a warning above
+// warnShare of it, else 0 (no finding).
+func grade(value, budget, warnShare float64) Severity {
+	switch {
+	case value > budget:
+		return Error
+	case value > warnShare*budget:
+		return Warning
+	}
+	return 0
+}
+
 // Finding is one graded result, at the node of the manifest it is about.
 type Finding struct {
 	Rule     string

@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -25,7 +27,9 @@ var NeedlessPartitioning = Rule{
     partitions: {scheme: none}`,
 }
 
-func checkNeedlessPartitioning(t *Table) []Finding {
+func init() { register(NeedlessPartitioning) }
+
+func checkNeedlessPartitioning(t *analysis.Table, cfg Config) []Finding {
 	l := t.Layout
 	if l.Partitions < 2 || l.Rows > t.Engine.SegmentRows {
 		return nil
@@ -35,7 +39,7 @@ func checkNeedlessPartitioning(t *Table) []Finding {
 	extra := float64(l.Segments-l.Ideal) * t.Engine.SegmentOverheadMs
 	hints := []string{fmt.Sprintf("use partitions: {scheme: none}: %s -> %s segments, %s ms per scan",
 		units.Num(l.Segments), units.Num(l.Ideal), units.Signed(-extra))}
-	return []Finding{t.finding(Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{finding(t, Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"partitions": float64(l.Partitions),
 		"segments":   float64(l.Segments),
 		"rows":       float64(l.Rows),

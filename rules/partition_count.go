@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -27,20 +29,22 @@ var PartitionCount = Rule{
       tiers: [{grain: day, keep: 31}, {grain: month, keep: 196}]`,
 }
 
+func init() { register(PartitionCount) }
+
 const partitionCountID = "partition-count"
 
 // partitionLimit is the most partitions one table should have.
 var partitionLimit = Param{Name: "limit", Default: 5000, Doc: "Most partitions one table may have before a warning (default 5,000)."}
 
-func checkPartitionCount(t *Table) []Finding {
+func checkPartitionCount(t *analysis.Table, cfg Config) []Finding {
 	n := int64(t.Layout.Partitions)
-	limit := int64(t.Config.Value(partitionCountID, partitionLimit))
+	limit := int64(cfg.Value(partitionCountID, partitionLimit))
 	if n <= limit {
 		return nil
 	}
 	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", units.Num(n), units.Num(limit))
 	var hints []string
-	var best *Option
+	var best *analysis.Option
 	opts := t.Options()
 	for i := range opts {
 		o := &opts[i]
@@ -53,9 +57,9 @@ func checkPartitionCount(t *Table) []Finding {
 		}
 	}
 	if best != nil {
-		hints = append(hints, fmt.Sprintf("%s: %s -> %s partitions, %s", best.Change, units.Num(n), units.Num(int64(best.Layout.Partitions)), t.effect(*best)))
+		hints = append(hints, fmt.Sprintf("%s: %s -> %s partitions, %s", best.Change, units.Num(n), units.Num(int64(best.Layout.Partitions)), t.Effect(*best)))
 	}
-	return []Finding{t.finding(Warning, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{finding(t, Warning, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"partitions": float64(n),
 		"limit":      float64(limit),
 	})}

@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/bits"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/layout"
@@ -59,6 +61,8 @@ tables:
 	CheckModel: checkRefreshMemory,
 }
 
+func init() { register(RefreshMemory) }
+
 const refreshMemoryID = "refresh-memory"
 
 // smallestSegmentShare bounds the hint's search: segment capacities down to 1/1024 of
@@ -67,7 +71,7 @@ const smallestSegmentShare = 1024
 
 // refreshModel is what the peak is computed from.
 type refreshModel struct {
-	ts          []*Table
+	ts          []*analysis.Table
 	rowBytes    float64 // widest uncompressed row of any table
 	parallelism int
 	profiled    int // tables with column profiles
@@ -96,7 +100,8 @@ func (m refreshModel) peak(s int64, parallelism int) float64 {
 	return layout.RefreshPeak(m.bytesAt(s), parallelism, s, m.rowBytes)
 }
 
-func checkRefreshMemory(ts []*Table) []Finding {
+func checkRefreshMemory(md *analysis.Model, _ Config) []Finding {
+	ts := md.Tables
 	if len(ts) == 0 {
 		return nil
 	}
@@ -119,7 +124,7 @@ func checkRefreshMemory(ts []*Table) []Finding {
 	s := e.SegmentRows
 	model := m.bytesAt(s)
 	peak := layout.RefreshPeak(model, m.parallelism, s, m.rowBytes)
-	budget, budgetPos := refreshBudget(ts)
+	budget, budgetPos := refreshBudget(ts, md.Manifest.Budgets.Pos)
 
 	var sev Severity
 	var limit float64
@@ -142,8 +147,8 @@ func checkRefreshMemory(ts []*Table) []Finding {
 	msg := fmt.Sprintf("a full refresh peaks at about %s: 2 x %s encoded (old and new copy) + %d partitions x %s rows x %s bytes in flight (%s), %s of the %s",
 		units.Size(peak), units.Size(model), m.parallelism, units.Capacity(s), units.Short(m.rowBytes), units.Size(inFlight), units.Pct(peak/limit), limitWords)
 	name := "the model"
-	if a := ts[0].advice; a != nil && a.model.M.Model != "" {
-		name = "model " + a.model.M.Model
+	if md.Manifest.Model != "" {
+		name = "model " + md.Manifest.Model
 	}
 	msg = name + ": " + msg
 	if sev == Error && budget > 0 && peak > budget {
@@ -195,11 +200,7 @@ func checkRefreshMemory(ts []*Table) []Finding {
 
 // refreshBudget is the tightest refresh_memory budget any table answers to (the
 // model's, or a table's own) and where it is written; 0 without one.
-func refreshBudget(ts []*Table) (float64, schema.Pos) {
-	var modelPos schema.Pos
-	if a := ts[0].advice; a != nil {
-		modelPos = a.model.M.Budgets.Pos
-	}
+func refreshBudget(ts []*analysis.Table, modelPos schema.Pos) (float64, schema.Pos) {
 	var b float64
 	var pos schema.Pos
 	for _, t := range ts {

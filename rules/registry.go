@@ -4,10 +4,12 @@ import (
 	"sort"
 	"sync"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/schema"
 )
 
-// Rule is one check: its identity, its documentation and its logic.
+// Rule is one check: its identity, its documentation and its logic. Each rule is a file
+// of its own that registers its Rule from an init function.
 type Rule struct {
 	ID      string   // part of the interface: reports, waivers and configs name it
 	Default Severity // the most severe level the rule raises
@@ -20,11 +22,11 @@ type Rule struct {
 	// Params are the thresholds a project may tune in .scangate.yaml.
 	Params []Param
 	// Check returns the rule's findings for one analysed table; nil for rules raised
-	// elsewhere (schema) and for model-wide rules.
-	Check func(t *Table) []Finding
+	// elsewhere (schema) and for model-wide rules. It reads the table, never changes it.
+	Check func(t *analysis.Table, cfg Config) []Finding
 	// CheckModel returns the findings of a model-wide rule, about every table of one
 	// manifest together (refresh memory); nil for per-table rules.
-	CheckModel func(ts []*Table) []Finding
+	CheckModel func(m *analysis.Model, cfg Config) []Finding
 }
 
 // Param is one tunable threshold of a rule.
@@ -34,24 +36,25 @@ type Param struct {
 	Doc     string
 }
 
-// All lists every rule, sorted by ID. The slice is shared: callers must not change it.
-func All() []Rule { return registry() }
+// registered collects the rules as their files' init functions run.
+var registered []Rule
 
-// registry builds the sorted list once; Check walks it for every table.
-var registry = sync.OnceValue(func() []Rule {
-	all := []Rule{
-		Schema,
-		ExpiredWaiver,
-		UnusedWaiver,
-		TruncatedSegments,
-		ScanOverhead,
-		ScanTime,
-		BudgetForecast,
-		RowCountMismatch,
-		NeedlessPartitioning,
-		PartitionCount,
-		RefreshMemory,
+// register adds a rule to the registry; a second rule with the same ID is a bug.
+func register(r Rule) {
+	for _, o := range registered {
+		if o.ID == r.ID {
+			panic("rules: two rules registered as " + r.ID)
+		}
 	}
+	registered = append(registered, r)
+}
+
+// All lists every rule, sorted by ID. The slice is shared: callers must not change it.
+func All() []Rule { return sorted() }
+
+// sorted sorts the registry once, after every init has run; Check walks it for every table.
+var sorted = sync.OnceValue(func() []Rule {
+	all := append([]Rule(nil), registered...)
 	sort.Slice(all, func(i, j int) bool { return all[i].ID < all[j].ID })
 	return all
 })
@@ -72,10 +75,10 @@ func Run(m *schema.Manifest, cfg Config) []Finding {
 	return fs
 }
 
-// Check analyses every table of m and returns the tables with their numbers and the
-// findings of every rule, sorted; reports show both.
-func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
-	tables := Analyze(m, cfg)
+// Check analyses m, runs every rule over it and returns the settled analysis with the
+// findings, sorted; reports show both.
+func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
+	md := analysis.Analyze(m, cfg.Levels())
 	// Model-wide findings are about no one table; a live waiver for the rule on any
 	// table of the model accepts them (the first such waiver counts as used).
 	var model []Finding
@@ -83,20 +86,20 @@ func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 		if r.CheckModel == nil || cfg.off(r.ID) {
 			continue
 		}
-		for _, f := range r.CheckModel(tables) {
+		for _, f := range r.CheckModel(md, cfg) {
 			f.Rule = r.ID
 			f.Severity = cfg.severity(r.ID, f.Severity)
 			model = append(model, f)
 		}
 	}
 	var out []Finding
-	for _, t := range tables {
+	for _, t := range md.Tables {
 		var own []Finding
 		for _, r := range All() {
 			if r.Check == nil || cfg.off(r.ID) {
 				continue
 			}
-			for _, f := range r.Check(t) {
+			for _, f := range r.Check(t, cfg) {
 				f.Rule = r.ID
 				f.Severity = cfg.severity(r.ID, f.Severity)
 				own = append(own, f)
@@ -114,8 +117,20 @@ func Check(m *schema.Manifest, cfg Config) ([]*Table, []Finding) {
 	}
 	out = append(out, model...)
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
-	for _, t := range tables {
-		t.settle(out)
+	md.Settle()
+	return md, out
+}
+
+// finding fills in what every finding of a table shares; Check sets the rule ID.
+func finding(t *analysis.Table, sev Severity, pos schema.Pos, subject, msg string, hints []string, nums map[string]float64) Finding {
+	return Finding{
+		Severity: sev,
+		File:     t.File,
+		Pos:      pos,
+		Table:    t.Spec.Name,
+		Subject:  subject,
+		Message:  t.Spec.Name + ": " + msg,
+		Hints:    hints,
+		Numbers:  nums,
 	}
-	return tables, out
 }

@@ -5,6 +5,8 @@ import (
 	"math"
 	"strconv"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -34,12 +36,14 @@ var RowCountMismatch = Rule{
       items: [{name: "2025", rows: 70M}, {name: "2026", rows: 70M}]`,
 }
 
+func init() { register(RowCountMismatch) }
+
 const rowCountMismatchID = "row-count-mismatch"
 
 // mismatchTolerance is the relative difference accepted between the two counts.
 var mismatchTolerance = Param{Name: "tolerance", Default: 0.01, Doc: "Relative difference accepted between declared and listed rows (default 0.01, 1%)."}
 
-func checkRowCountMismatch(t *Table) []Finding {
+func checkRowCountMismatch(t *analysis.Table, cfg Config) []Finding {
 	if !t.Spec.RowsDeclared || len(t.Spec.Partitions.Items) == 0 {
 		return nil
 	}
@@ -55,7 +59,7 @@ func checkRowCountMismatch(t *Table) []Finding {
 	} else if sum == 0 {
 		rel = 0
 	}
-	tol := t.Config.Value(rowCountMismatchID, mismatchTolerance)
+	tol := cfg.Value(rowCountMismatchID, mismatchTolerance)
 	if math.Abs(rel) <= tol {
 		return nil
 	}
@@ -66,7 +70,7 @@ func checkRowCountMismatch(t *Table) []Finding {
 	msg := fmt.Sprintf("rows declares %s (%s) but the %d listed partitions sum to %s (%s), more than %s apart",
 		units.Count(declared), units.Num(declared), len(t.Spec.Partitions.Items), units.Count(sum), share, strconv.FormatFloat(tol*100, 'f', -1, 64)+"%")
 	hints := []string{fmt.Sprintf("set rows: %d, or correct the listed partitions; the layout is computed from the listed %s rows", sum, units.Count(sum))}
-	return []Finding{t.finding(Error, t.Spec.RowsPos, "rows", msg, hints, map[string]float64{
+	return []Finding{finding(t, Error, t.Spec.RowsPos, "rows", msg, hints, map[string]float64{
 		"declared_rows": float64(declared),
 		"listed_rows":   float64(sum),
 	})}

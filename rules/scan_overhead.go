@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -38,24 +40,21 @@ tables:
     partitions: {scheme: time, tiers: [{grain: month, keep: 24}]}  # 144 segments: 216 ms`,
 }
 
+func init() { register(ScanOverhead) }
+
 const scanOverheadID = "scan-overhead"
 
 // overheadWarnShare is the share of the budget above which a warning is raised.
 var overheadWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
 
-func checkScanOverhead(t *Table) []Finding {
+func checkScanOverhead(t *analysis.Table, cfg Config) []Finding {
 	b := t.Budgets.ScanOverheadMs
 	if b == nil {
 		return nil
 	}
 	f := t.Layout.FixedMs
-	sev := Severity(0)
-	switch {
-	case f > *b:
-		sev = Error
-	case f > t.Config.Value(scanOverheadID, overheadWarnShare)**b:
-		sev = Warning
-	default:
+	sev := grade(f, *b, cfg.Value(scanOverheadID, overheadWarnShare))
+	if sev == 0 {
 		return nil
 	}
 	msg := fmt.Sprintf("a full scan pays %s ms of fixed CPU for %s segments (%s ms each), %s of the %s ms budget",
@@ -63,16 +62,16 @@ func checkScanOverhead(t *Table) []Finding {
 	allowed := int64(*b / t.Engine.SegmentOverheadMs)
 	var hints []string
 	// The plan's recommendation first, so check and plan name the same layout.
-	if h, _, _, ok := t.recommended(); ok {
-		hints = append(hints, h)
-	} else if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
-		hints = append(hints, fitHint(o, fits, t.effect(o)))
+	if r, ok := t.Recommended(); ok {
+		hints = append(hints, r.Hint())
+	} else if o, fits, ok := bestFit(t.Options(), func(o analysis.Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
+		hints = append(hints, fitHint(o, fits, t.Effect(o)))
 	}
 	if allowed < t.Layout.Ideal {
 		hints = append(hints, fmt.Sprintf("the budget allows at most %s segments, but %s rows need at least %s segments of %s rows: no partition change alone can fit",
 			units.Num(allowed), units.Count(t.Layout.Rows), units.Num(t.Layout.Ideal), units.Count(t.Engine.SegmentRows)))
 	}
-	return []Finding{t.finding(sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
+	return []Finding{finding(t, sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
 		"fixed_ms":  f,
 		"budget_ms": *b,
 		"segments":  float64(t.Layout.Segments),
@@ -83,9 +82,8 @@ func checkScanOverhead(t *Table) []Finding {
 // change before an engine change, a smaller segment size before a larger one, and the
 // most partitions kept. Without one that fits, it returns the option that comes
 // closest (fits false); ok is false when no option improves on today.
-func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Option, fits, ok bool) {
-	var best, closest *Option
-	opts := t.Options()
+func bestFit(opts []analysis.Option, figure func(analysis.Option) float64, budget, today float64) (o analysis.Option, fits, ok bool) {
+	var best, closest *analysis.Option
 	for i := range opts {
 		o := &opts[i]
 		if closest == nil || figure(*o) < figure(*closest) {
@@ -103,10 +101,10 @@ func bestFit(t *Table, figure func(Option) float64, budget, today float64) (o Op
 	if closest != nil && figure(*closest) < today-1e-9*math.Abs(today) {
 		return *closest, false, true
 	}
-	return Option{}, false, false
+	return analysis.Option{}, false, false
 }
 
-func lessDisruptive(a, b Option) bool {
+func lessDisruptive(a, b analysis.Option) bool {
 	if a.Engine != b.Engine {
 		return !a.Engine
 	}
@@ -117,7 +115,7 @@ func lessDisruptive(a, b Option) bool {
 }
 
 // fitHint words the result of bestFit.
-func fitHint(o Option, fits bool, effect string) string {
+func fitHint(o analysis.Option, fits bool, effect string) string {
 	if fits {
 		return fmt.Sprintf("%s: %s", o.Change, effect)
 	}

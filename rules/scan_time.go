@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -41,36 +43,33 @@ tables:
       - {name: payload_id, type: int64, order: sorted}`,
 }
 
+func init() { register(ScanTime) }
+
 const scanTimeID = "scan-time"
 
 // scanWarnShare is the share of the budget above which a warning is raised.
 var scanWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
 
-func checkScanTime(t *Table) []Finding {
+func checkScanTime(t *analysis.Table, cfg Config) []Finding {
 	b := t.Budgets.ScanMs
 	if b == nil || t.Widest == nil {
 		return nil
 	}
 	w := t.Scan.WallMs
-	sev := Severity(0)
-	switch {
-	case w > *b:
-		sev = Error
-	case w > t.Config.Value(scanTimeID, scanWarnShare)**b:
-		sev = Warning
-	default:
+	sev := grade(w, *b, cfg.Value(scanTimeID, scanWarnShare))
+	if sev == 0 {
 		return nil
 	}
 	msg := fmt.Sprintf("a full scan of column %s (%s encoded, %s segments) takes about %s ms on %d cores, %s of the %s ms budget",
 		t.Widest.Name, units.Size(t.Scan.Bytes), units.Num(t.Layout.Segments), units.Ms(w), t.Engine.Cores, units.Pct(w / *b), units.Ms(*b))
 	var hints []string
-	if o, fits, ok := bestFit(t, func(o Option) float64 { return o.Scan.WallMs }, *b, w); ok {
-		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.effect(o), units.Ms(w), units.Ms(o.Scan.WallMs))))
+	if o, fits, ok := bestFit(t.Options(), func(o analysis.Option) float64 { return o.Scan.WallMs }, *b, w); ok {
+		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.Effect(o), units.Ms(w), units.Ms(o.Scan.WallMs))))
 	}
 	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > int64(t.Engine.Cores) {
 		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", units.Ms(t.Scan.CPUMs), units.Num(cores)))
 	}
-	return []Finding{t.finding(sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
+	return []Finding{finding(t, sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
 		"wall_ms":   w,
 		"bound_ms":  t.Scan.BoundMs,
 		"cpu_ms":    t.Scan.CPUMs,

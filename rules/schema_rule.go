@@ -17,3 +17,5 @@ var Schema = Rule{
 	Good: `engine:
   segment_rows: 8Mi`,
 }
+
+func init() { register(Schema) }

@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/internal/analysis"
+
 	"github.com/scangate/scangate/internal/units"
 )
 
@@ -41,6 +43,8 @@ tables:
         - {grain: month, keep: 24}  # older periods merged: 200M rows a month`,
 }
 
+func init() { register(TruncatedSegments) }
+
 const truncatedSegmentsID = "truncated-segments"
 
 // A warning from max(warn_min, warn_share x segments) excess segments, else a note.
@@ -49,14 +53,13 @@ var (
 	truncWarnShare = Param{Name: "warn_share", Default: 0.1, Doc: "Share of the table's segments from which excess segments raise a warning (default 0.1)."}
 )
 
-func checkTruncatedSegments(t *Table) []Finding {
+func checkTruncatedSegments(t *analysis.Table, cfg Config) []Finding {
 	l := t.Layout
 	e := l.ClosedExcess
 	if e < 1 {
 		return nil
 	}
 	sev := Note
-	cfg := t.Config
 	if float64(e) >= max(cfg.Value(truncatedSegmentsID, truncWarnMin), cfg.Value(truncatedSegmentsID, truncWarnShare)*float64(l.ClosedSegments)) {
 		sev = Warning
 	}
@@ -66,24 +69,24 @@ func checkTruncatedSegments(t *Table) []Finding {
 	var hints []string
 	// The plan's recommendation first, so check and plan name the same layout; when it
 	// changes the engine's segment size, the partition change alone follows.
-	rec, c, _, ok := t.recommended()
+	rec, ok := t.Recommended()
 	if ok {
-		hints = append(hints, rec)
+		hints = append(hints, rec.Hint())
 	}
-	if !ok || c.Engine {
-		if o, ok := t.bestTrim(); ok {
+	if !ok || rec.Candidate.Engine {
+		if o, ok := bestTrim(t); ok {
 			if len(hints) == 0 {
-				hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.effect(o)))
+				hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.Effect(o)))
 				// The change with the fewest segments, when it is another one, is worth a look too.
-				if f, ok := t.fewestSegments(); ok && f.Change != o.Change {
-					hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.effect(f)))
+				if f, ok := fewestSegments(t); ok && f.Change != o.Change {
+					hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.Effect(f)))
 				}
 			} else {
-				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", units.Count(t.Engine.SegmentRows), o.Change, t.effect(o)))
+				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", units.Count(t.Engine.SegmentRows), o.Change, t.Effect(o)))
 			}
 		}
 	}
-	return []Finding{t.finding(sev, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{finding(t, sev, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
 		"segments":        float64(l.Segments),
 		"ideal_segments":  float64(l.Ideal),
 		"excess_segments": float64(e),
@@ -93,7 +96,7 @@ func checkTruncatedSegments(t *Table) []Finding {
 }
 
 // closedFill is the fill of the closed partitions' segments.
-func closedFill(t *Table) float64 {
+func closedFill(t *analysis.Table) float64 {
 	var rows int64
 	for _, p := range t.Parts {
 		if !p.Open {
@@ -109,9 +112,9 @@ func closedFill(t *Table) float64 {
 // bestTrim is the partition change (not an engine change) to suggest: among the
 // changes that remove at least half of the excess, the one that keeps the most
 // partitions (fewer segments breaks a tie); failing that, the one with fewest segments.
-func (t *Table) bestTrim() (Option, bool) {
+func bestTrim(t *analysis.Table) (analysis.Option, bool) {
 	target := t.Layout.Segments - (t.Layout.ClosedExcess+1)/2
-	var best *Option
+	var best *analysis.Option
 	opts := t.Options()
 	for i := range opts {
 		o := &opts[i]
@@ -126,13 +129,13 @@ func (t *Table) bestTrim() (Option, bool) {
 	if best != nil {
 		return *best, true
 	}
-	return t.fewestSegments()
+	return fewestSegments(t)
 }
 
 // fewestSegments is the partition change with the fewest segments; among equals, the
 // one that keeps the most partitions.
-func (t *Table) fewestSegments() (Option, bool) {
-	var best *Option
+func fewestSegments(t *analysis.Table) (analysis.Option, bool) {
+	var best *analysis.Option
 	opts := t.Options()
 	for i := range opts {
 		o := &opts[i]
@@ -145,7 +148,7 @@ func (t *Table) fewestSegments() (Option, bool) {
 		}
 	}
 	if best == nil {
-		return Option{}, false
+		return analysis.Option{}, false
 	}
 	return *best, true
 }

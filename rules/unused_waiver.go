@@ -13,3 +13,5 @@ var UnusedWaiver = Rule{
       - {rule: truncated-segments, reason: "regions load separately", expires: 2026-06-30}   # nothing truncated any more`,
 	Good: `    # the waiver is gone`,
 }
+
+func init() { register(UnusedWaiver) }

@@ -7,6 +7,7 @@ import (
 	"sort"
 	"sync"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/mattn/go-isatty"
@@ -145,11 +146,11 @@ func checkAll(inputs []input, cfg rules.Config, proj *schema.ProjectConfig, keep
 			}}
 		}
 		if m != nil {
-			var tables []*rules.Table
-			tables, fs = rules.Check(m, cfg)
-			f.Analysed = len(tables)
+			var md *analysis.Model
+			md, fs = rules.Check(m, cfg)
+			f.Analysed = len(md.Tables)
 			if keepTables {
-				f.Tables = tables
+				f.Tables = md.Tables
 			}
 		}
 		files[i], found[i] = f, fs

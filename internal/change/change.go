@@ -10,6 +10,7 @@ package change
 import (
 	"sort"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
@@ -22,7 +23,7 @@ type File struct {
 	Key     string
 	Model   string
 	Invalid bool // could not be read or broke the schema; its findings say why
-	Tables  []*rules.Table
+	Tables  []*analysis.Table
 }
 
 // Side is everything checked on one side of the change.
@@ -73,7 +74,7 @@ type Figures struct {
 	ScanWallMs *float64 // wall ms of a full scan of the widest column; nil without column profiles
 }
 
-func figuresOf(t *rules.Table) *Figures {
+func figuresOf(t *analysis.Table) *Figures {
 	f := &Figures{
 		Rows: t.Layout.Rows, Partitions: t.Layout.Partitions, Segments: t.Layout.Segments,
 		Fill: t.Layout.Fill, FixedMs: t.Layout.FixedMs,
@@ -294,7 +295,7 @@ func fileKey(c FileChange) string {
 type placed struct {
 	file  *File
 	key   string // the file's key, a base key translated through renames
-	table *rules.Table
+	table *analysis.Table
 }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
@@ -406,8 +407,8 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 }
 
 // tablesOf lists the tables of a model on one side.
-func tablesOf(files []File, model string) []*rules.Table {
-	var out []*rules.Table
+func tablesOf(files []File, model string) []*analysis.Table {
+	var out []*analysis.Table
 	for _, f := range files {
 		if f.Model == model {
 			out = append(out, f.Tables...)
@@ -419,7 +420,7 @@ func tablesOf(files []File, model string) []*rules.Table {
 // refreshPeak is the model's refresh peak as the refresh-memory rule states it
 // (layout.RefreshPeak): 2 x the encoded size of every profiled column + the partitions
 // refreshed at once x segment_rows x the widest uncompressed row. nil without profiles.
-func refreshPeak(ts []*rules.Table) *float64 {
+func refreshPeak(ts []*analysis.Table) *float64 {
 	var bytes, row float64
 	profiled := false
 	for _, t := range ts {

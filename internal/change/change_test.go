@@ -43,8 +43,8 @@ func side(t *testing.T, label string, keys []string, bodies ...string) Side {
 			}
 			t.Fatal(err)
 		}
-		tables, findings := rules.Check(m, rules.Config{Today: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)})
-		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: tables})
+		md, findings := rules.Check(m, rules.Config{Today: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)})
+		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: md.Tables})
 		s.Findings = append(s.Findings, findings...)
 	}
 	return s

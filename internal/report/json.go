@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -138,7 +139,7 @@ func JSON(w io.Writer, r *Result) error {
 	return enc.Encode(doc)
 }
 
-func tableJSON(t *rules.Table) jsonTable {
+func tableJSON(t *analysis.Table) jsonTable {
 	l := t.Layout
 	jt := jsonTable{
 		Name: t.Spec.Name, Line: t.Spec.Pos.Line, Column: t.Spec.Pos.Col,

@@ -16,15 +16,15 @@ import (
 // SVG geometry: one band per table, a fill chart on the left and the sweep's
 // ms-against-memory chart on the right.
 const (
-	svgWidth  = 960
-	bandH     = 310
-	chartTop  = 60
-	chartH    = 190
-	fillLeft  = 50
-	fillW     = 400
-	frontLeft = 560
-	frontW    = 360
-	maxBars   = 400 // more partitions than this are drawn as averaged buckets
+	svgWidth    = 960
+	bandH       = 310
+	chartTop    = 60
+	chartH      = 190
+	fillLeft    = 50
+	fillW       = 400
+	frontLeft   = 560
+	frontW      = 360
+	maxFillBars = 400 // more partitions than this are drawn as averaged buckets
 )
 
 // planSVG draws, per table, the fill of each partition's segments and the sweep's
@@ -71,7 +71,7 @@ func fillChart(b *bytes.Buffer, m *schema.Manifest, p advisor.TablePlan) {
 			fills[len(parts)-1-i] = float64(pt.Rows) / (float64(seg) * float64(s))
 		}
 	}
-	per := (len(fills) + maxBars - 1) / maxBars // partitions per bar
+	per := (len(fills) + maxFillBars - 1) / maxFillBars // partitions per bar
 	var bars []float64
 	for i := 0; i < len(fills); i += per {
 		j := min(i+per, len(fills))

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -32,7 +33,7 @@ type File struct {
 	// per-table figures (json, markdown, junit, the job summary): a run over thousands
 	// of files that prints only findings does not keep them all to the end.
 	Analysed int
-	Tables   []*rules.Table
+	Tables   []*analysis.Table
 }
 
 // Summary counts what a run looked at.

@@ -1,12 +1,11 @@
-package rules
+package analysis
 
 import (
 	"fmt"
 
-	"github.com/scangate/scangate/internal/units"
-
 	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/layout"
+	"github.com/scangate/scangate/internal/units"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -25,7 +24,7 @@ type Option struct {
 // largerSegments are the segment sizes tried, as multiples of today's.
 var largerSegments = []int64{2, 4, 8}
 
-// Options lists candidate changes for the table, each evaluated.
+// Options lists candidate changes for the table, each evaluated once.
 func (t *Table) Options() []Option {
 	if t.optDone {
 		return t.options
@@ -59,7 +58,7 @@ func (t *Table) Options() []Option {
 	// each once.
 	today := t.Parts
 	if t.settled {
-		today, _ = layout.Expand(t.Spec) // settle dropped them
+		today, _ = layout.Expand(t.Spec) // Settle dropped them
 	}
 	t.options = make([]Option, 0, len(specs))
 	expanded := make([][]layout.Partition, partitionOnly)
@@ -91,7 +90,7 @@ func (t *Table) Options() []Option {
 	return t.options
 }
 
-// effect words an option's result against today's layout.
-func (t *Table) effect(o Option) string {
+// Effect words an option's result against today's layout.
+func (t *Table) Effect(o Option) string {
 	return fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(t.Layout.Segments), units.Num(o.Layout.Segments), units.Signed(o.Layout.FixedMs-t.Layout.FixedMs))
 }
