@@ -321,22 +321,3 @@ func TestIncludeExclude(t *testing.T) {
 	r = scangate(t, dir, "", nil, "check", "elsewhere/d.yaml")
 	wantCode(t, r, 2)
 }
-
-func TestGlobMatch(t *testing.T) {
-	for _, c := range []struct {
-		pattern, name string
-		want          bool
-	}{
-		{"models/**/*.yaml", "models/a.yaml", true},
-		{"models/**/*.yaml", "models/x/y/a.yaml", true},
-		{"models/**/*.yaml", "other/a.yaml", false},
-		{"**/drafts/**", "models/drafts/c.yaml", true},
-		{"**/drafts/**", "drafts/c.yaml", true},
-		{"*.yaml", "sub/a.yaml", false},
-		{"**", "any/thing", true},
-	} {
-		if got := globMatch(c.pattern, c.name); got != c.want {
-			t.Errorf("globMatch(%q, %q) = %v", c.pattern, c.name, got)
-		}
-	}
-}

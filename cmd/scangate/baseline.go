@@ -2,28 +2,14 @@ package main
 
 import (
 	"fmt"
-	"os"
 
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/baseline"
 	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/schema"
 )
-
-// applyBaseline marks the findings recorded in the baseline file.
-func applyBaseline(file string, r *report.Result) (*report.BaselineUse, error) {
-	data, err := os.ReadFile(file)
-	if err != nil {
-		return nil, fmt.Errorf("--baseline: cannot read %s: %v", file, unwrapPath(err))
-	}
-	b, err := baseline.Parse(data)
-	if err != nil {
-		return nil, fmt.Errorf("%s:%v", file, err)
-	}
-	fixed := b.Apply(r.Findings, r.URI)
-	return &report.BaselineUse{File: file, Fixed: fixed}, nil
-}
 
 func newBaseline() *cobra.Command {
 	group := &cobra.Command{
@@ -40,26 +26,23 @@ func newBaseline() *cobra.Command {
 			"Invalid manifests are not recorded: fix them first (exit 2).",
 		Example: "  scangate baseline write models/ -o " + baseline.DefaultFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			proj, err := loadProject(configFile, args)
+			proj, cfg, err := projectConfig(cmd, configFile, args, today)
 			if err != nil {
-				return configError(cmd, err)
+				return err
 			}
-			cfg, err := proj.rulesConfig(today)
-			if err != nil {
-				return configError(cmd, err)
-			}
-			inputs, err := collectFiltered(args, cmd.InOrStdin(), limits.MaxFileBytes, proj.keep)
+			inputs, err := run.Collect(args, cmd.InOrStdin(), limits.MaxFileBytes, proj.Keep)
 			if err != nil {
 				return usageError(err)
 			}
-			files, findings := checkAll(inputs, cfg, proj.config, false)
+			files, findings := run.Check(inputs, cfg, proj.Config, limits, false)
 			res := &report.Result{Files: files, Findings: findings, Summary: report.Summarize(files)}
 			if res.Summary.Invalid > 0 {
-				report.Text(cmd.ErrOrStderr(), res, false)
+				text, _ := report.Lookup("text", report.CheckReport)
+				text.Render(cmd.ErrOrStderr(), res, false)
 				return &exitError{code: exitInvalid, msg: "some manifests are invalid; fix them before writing a baseline"}
 			}
 			b := baseline.Build(findings, res.URI)
-			if err := writeFileAtomic(out, b.Marshal()); err != nil {
+			if err := run.WriteFileAtomic(out, b.Marshal()); err != nil {
 				return usageError(err)
 			}
 			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", len(b.Entries), len(files), out)

@@ -10,6 +10,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -209,7 +210,7 @@ func newInit() *cobra.Command {
 			}
 			for _, f := range files {
 				p := filepath.Join(dir, f.name)
-				if err := writeFileAtomic(p, []byte(f.body)); err != nil {
+				if err := run.WriteFileAtomic(p, []byte(f.body)); err != nil {
 					return usageError(err)
 				}
 				fmt.Fprintf(cmd.OutOrStdout(), "wrote %s\n", p)

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"slices"
 	"strings"
 	"testing"
 
@@ -19,8 +18,6 @@ import (
 	east "github.com/yuin/goldmark/extension/ast"
 	"github.com/yuin/goldmark/text"
 
-	"github.com/scangate/scangate/internal/report"
-	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -386,47 +383,5 @@ func TestManyFilesDeterministic(t *testing.T) {
 		if format == "text" && !strings.Contains(a.stdout, "50 files, 130 tables") {
 			t.Errorf("want the 49 good files checked:\n%s", a.stdout[max(0, len(a.stdout)-300):])
 		}
-	}
-}
-
-// check drops the analysed tables unless a report prints them (printsTables). Every
-// format whose output changes without the tables must be one printsTables names, or a
-// report would quietly lose its per-table figures.
-func TestPrintsTablesCoversEveryFormatThatReadsThem(t *testing.T) {
-	paths, _ := filepath.Glob("../../testdata/demo/*.yaml")
-	inputs, err := collect(paths, nil, limits.MaxFileBytes)
-	if err != nil {
-		t.Fatal(err)
-	}
-	cfg, _ := runConfig("2026-01-01")
-	result := func(keep bool) *report.Result {
-		files, findings := checkAll(slices.Clone(inputs), cfg, nil, keep)
-		return &report.Result{Version: "test", FailOn: rules.Error, Files: files, Findings: findings, Summary: report.Summarize(files)}
-	}
-	kept, dropped := result(true), result(false)
-	if kept.Summary != dropped.Summary {
-		t.Errorf("summary changed when tables are dropped: %+v vs %+v", kept.Summary, dropped.Summary)
-	}
-	t.Setenv("GITHUB_STEP_SUMMARY", "")
-	for _, format := range checkFormats {
-		render := func(r *report.Result) string {
-			var b bytes.Buffer
-			if format == "text" {
-				_ = report.Text(&b, r, false)
-			} else if err := writers[format](&b, r); err != nil {
-				t.Fatal(err)
-			}
-			return b.String()
-		}
-		differs := render(kept) != render(dropped)
-		if prints := printsTables([]destination{{format: format}}); differs && !prints {
-			t.Errorf("%s prints per-table figures but printsTables does not keep the tables for it", format)
-		} else if !differs && prints {
-			t.Errorf("%s prints the same without tables; printsTables keeps them for nothing", format)
-		}
-	}
-	t.Setenv("GITHUB_STEP_SUMMARY", filepath.Join(t.TempDir(), "summary.md"))
-	if !printsTables([]destination{{format: "github"}}) {
-		t.Error("the job summary is Markdown with per-table figures: github must keep the tables when it is written")
 	}
 }

@@ -5,11 +5,9 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"slices"
 	"strings"
 	"syscall"
 	"testing"
-	"time"
 )
 
 // Inputs that are not manifests at all: each is refused with a positioned message and
@@ -120,52 +118,4 @@ func TestRunPartitionBudget(t *testing.T) {
 		t.Errorf("want b.yaml refused and a, c checked:\n%s", r.stdout)
 	}
 	wantCode(t, scangate(t, dir, "", nil, "check", "--max-run-partitions", "2000", "."), 0)
-}
-
-// Workers finish loading in any order; the budget still decides as if the inputs were
-// spent one after another in input order.
-func TestRunBudgetSpendsInInputOrder(t *testing.T) {
-	sizes := []int64{5, 1, 7, 2, 9, 3, 3, 8, 1, 4, 6, 2, 5, 7, 1, 9}
-	var want []bool
-	spent := int64(0)
-	for _, n := range sizes {
-		ok := spent+n <= 20
-		if ok {
-			spent += n
-		}
-		want = append(want, ok)
-	}
-	for round := range 20 {
-		b := newRunBudget(20)
-		got := make([]bool, len(sizes))
-		parallel(len(sizes), func(i int) {
-			time.Sleep(time.Duration((i*7+round)%5) * time.Millisecond) // finish out of order
-			got[i] = b.spend(i, sizes[i])
-		})
-		if !slices.Equal(got, want) {
-			t.Fatalf("round %d: refused %v, want %v", round, got, want)
-		}
-	}
-}
-
-// Files found on disk are read when checked, not all at collection: collect keeps only
-// their paths, and a file's bytes are read again when asked for.
-func TestInputsAreReadWhenChecked(t *testing.T) {
-	good := "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: 10, partitions: {scheme: none}}]\n"
-	dir := repo(t, map[string]string{"a.yaml": good, "notes.yaml": "title: not a manifest\n"})
-	ins, err := collect([]string{dir, filepath.Join(dir, "a.yaml")}, nil, 1<<20)
-	if err != nil || len(ins) != 2 {
-		t.Fatalf("collect: %d inputs, %v", len(ins), err)
-	}
-	for _, in := range ins {
-		if in.data != nil || in.path == "" {
-			t.Errorf("%s: bytes kept at collection (%d bytes, path %q)", in.name, len(in.data), in.path)
-		}
-		if data, err := in.bytes(); err != nil || string(data) != good {
-			t.Errorf("%s: read %q, %v", in.name, data, err)
-		}
-	}
-	if len(onlyManifests(ins)) != 2 {
-		t.Error("onlyManifests dropped a manifest it had to read first")
-	}
 }

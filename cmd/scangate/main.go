@@ -3,6 +3,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -10,7 +11,7 @@ import (
 )
 
 func main() {
-	os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
+	os.Exit(execute(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
 }
 
 // Exit codes: 0 clean at the --fail-on level, 1 findings at or above it, 2 invalid
@@ -29,8 +30,8 @@ type exitError struct {
 
 func (e *exitError) Error() string { return e.msg }
 
-// run executes the command line and returns the process exit code.
-func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
+// execute runs the command line and returns the process exit code.
+func execute(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 	// A panic is a bug in scangate; the pipeline still gets a clear line and exit 2.
 	defer func() {
 		if p := recover(); p != nil {
@@ -44,7 +45,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int) {
 	if err == nil {
 		return exitClean
 	}
-	if e, ok := err.(*exitError); ok {
+	var e *exitError
+	if errors.As(err, &e) {
 		if e.msg != "" {
 			io.WriteString(stderr, "scangate: "+e.msg+"\n")
 		}

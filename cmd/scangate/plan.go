@@ -2,15 +2,13 @@ package main
 
 import (
 	"fmt"
-	"io"
-	"os"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/report"
-	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -43,27 +41,32 @@ func newPlan() *cobra.Command {
 			if horizon < 1 || horizon > maxHorizon {
 				return usageError(fmt.Errorf("--horizon %d: give a number of months from 1 to %d", horizon, maxHorizon))
 			}
-			cfg, err := runConfig(today)
+			cfg, err := run.PlainConfig(today)
 			if err != nil {
 				return usageError(err)
 			}
-			opt := report.PlanOptions{Today: cfg.Today, Horizon: horizon}
-			m, err := loadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr())
-			if err != nil {
-				return err
-			}
-			idx, err := pickTables(m, table)
-			if err != nil {
-				return usageError(err)
-			}
-			plans := advisor.Plans(m, idx, set, opt.Today, opt.Horizon)
+			outs := []string{"text"}
 			if svg != "" {
-				if err := writeFileAtomic(svg, report.PlanSVG(m, plans)); err != nil {
-					return usageError(err)
-				}
+				outs = append(outs, "svg="+svg)
 			}
-			_, err = io.WriteString(cmd.OutOrStdout(), report.PlanText(m, plans, opt))
-			return err
+			dests, err := run.ParseFormats(report.PlanReport, outs, "", nil)
+			if err != nil {
+				return usageError(err)
+			}
+			m, err := run.LoadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr(), limits)
+			if err != nil {
+				return usageError(err)
+			}
+			idx, err := run.PickTables(m, table)
+			if err != nil {
+				return usageError(err)
+			}
+			doc := &report.Plan{Manifest: m, Today: cfg.Today, Horizon: horizon}
+			doc.Plans = advisor.Plans(m, idx, set, doc.Today, doc.Horizon)
+			if err := run.Write(dests, doc, cmd.OutOrStdout(), false); err != nil {
+				return usageError(err)
+			}
+			return nil
 		},
 	}
 	f := cmd.Flags()
@@ -94,62 +97,4 @@ func parseCapacities(s string) ([]int64, error) {
 		out = append(out, n)
 	}
 	return out, nil
-}
-
-// loadOne reads and validates one manifest; schema problems are printed to stderr in
-// the check command's style, each at its line and column, and end the run with exit 2.
-func loadOne(path string, stdin io.Reader, stderr io.Writer) (*schema.Manifest, error) {
-	var in input
-	if path == "-" {
-		data, err := readLimited(stdin, limits.MaxFileBytes)
-		in = input{name: stdinName, data: data, err: err}
-	} else {
-		info, err := os.Stat(path)
-		if err != nil {
-			return nil, usageError(fmt.Errorf("cannot read %s: %v", path, unwrapPath(err)))
-		}
-		if info.IsDir() {
-			return nil, usageError(fmt.Errorf("%s is a directory; plan reads one manifest file", path))
-		}
-		in = readFile(path, limits.MaxFileBytes)
-	}
-	if in.err != nil {
-		return nil, usageError(fmt.Errorf("cannot read %s: %v", in.name, in.err))
-	}
-	m, err := schema.Load(in.name, in.data, limits)
-	if err == nil {
-		return m, nil
-	}
-	se, ok := err.(*schema.Error)
-	if !ok {
-		return nil, usageError(fmt.Errorf("%s: %v", in.name, err))
-	}
-	for _, f := range rules.SchemaFindings(se) {
-		loc := f.File
-		if f.Pos.Line > 0 {
-			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
-		}
-		fmt.Fprintf(stderr, "%s: error: %s [%s]\n", loc, f.Message, f.Rule)
-	}
-	return nil, usageError(fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name))
-}
-
-// pickTables is every table, or the one --table names.
-func pickTables(m *schema.Manifest, name string) ([]int, error) {
-	var idx, all []int
-	var names []string
-	for i, t := range m.Tables {
-		all = append(all, i)
-		names = append(names, t.Name)
-		if t.Name == name {
-			idx = append(idx, i)
-		}
-	}
-	if name == "" {
-		return all, nil
-	}
-	if len(idx) == 0 {
-		return nil, fmt.Errorf("--table %q: %s has no such table; it has %s", name, m.File, strings.Join(names, ", "))
-	}
-	return idx, nil
 }

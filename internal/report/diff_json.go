@@ -150,8 +150,8 @@ type jsonDiffFinding struct {
 	Numbers      map[string]float64 `json:"numbers"`
 }
 
-// DiffJSON writes the versioned machine-readable diff (schema/diff.schema.json).
-func DiffJSON(w io.Writer, r *DiffResult) error {
+// writeDiffJSON writes the versioned machine-readable diff (schema/diff.schema.json).
+func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 	d := r.Diff
 	tables, changed := r.counts()
 	doc := jsonDiff{

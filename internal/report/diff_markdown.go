@@ -8,10 +8,10 @@ import (
 	"github.com/scangate/scangate/internal/change"
 )
 
-// DiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,
+// writeDiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,
 // a table of the changed tables and model totals (before → after, delta), the new
 // findings with their hints, findings that got more severe, and the resolved ones.
-func DiffMarkdown(w io.Writer, r *DiffResult) error {
+func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 	d := r.Diff
 	var b strings.Builder
 	status := "passed"

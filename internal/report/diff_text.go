@@ -174,11 +174,11 @@ func points(t change.TableChange) string {
 	return s + " pp"
 }
 
-// DiffText writes the change for a terminal: one block per changed table with its
+// writeDiffText writes the change for a terminal: one block per changed table with its
 // figures before, after and the delta in aligned columns, the model totals, the new,
 // worsened and resolved findings in the GNU style, the gate, the verdict and one
 // summary line.
-func DiffText(w io.Writer, r *DiffResult, useColor bool) error {
+func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))

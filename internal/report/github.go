@@ -8,9 +8,13 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
-// GitHub writes one workflow command per finding, so the runner annotates the manifest
+func init() {
+	register(writers{traits: Traits{Name: "github", Kinds: CheckReport, StepSummary: true}, check: writeGitHub})
+}
+
+// writeGitHub writes one workflow command per finding, so the runner annotates the manifest
 // line in the pull request: ::error, ::warning or ::notice with file, line, col and title.
-func GitHub(w io.Writer, r *Result) error {
+func writeGitHub(w io.Writer, r *Result, _ bool) error {
 	var b strings.Builder
 	for _, f := range r.Findings {
 		if f.Accepted() {

@@ -10,6 +10,14 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
+func init() {
+	register(writers{
+		traits: Traits{Name: "json", Kinds: CheckReport | DiffReport, NeedsTables: true},
+		check:  writeJSON,
+		diff:   writeDiffJSON,
+	})
+}
+
 // JSONSchemaVersion is the version of the JSON report's shape (schema/output.schema.json).
 // It changes only when a field is removed or changes meaning.
 const JSONSchemaVersion = 1
@@ -92,8 +100,8 @@ type jsonWaiver struct {
 	Line    int    `json:"line"`
 }
 
-// JSON writes the versioned machine-readable report (schema/output.schema.json).
-func JSON(w io.Writer, r *Result) error {
+// writeJSON writes the versioned machine-readable report (schema/output.schema.json).
+func writeJSON(w io.Writer, r *Result, _ bool) error {
 	n := r.Counts()
 	waived, baselined := r.Accepted()
 	doc := jsonReport{

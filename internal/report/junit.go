@@ -9,6 +9,10 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
+func init() {
+	register(writers{traits: Traits{Name: "junit", Kinds: CheckReport, NeedsTables: true}, check: writeJUnit})
+}
+
 type junitSuites struct {
 	XMLName  xml.Name     `xml:"testsuites"`
 	Name     string       `xml:"name,attr"`
@@ -38,11 +42,11 @@ type junitFailure struct {
 	Text    string `xml:",chardata"`
 }
 
-// JUnit writes JUnit XML with a test suite per manifest, a test case per table, and a
+// writeJUnit writes JUnit XML with a test suite per manifest, a test case per table, and a
 // failure per finding at or above the failing level. An invalid manifest is one case,
 // "schema", with a failure per problem; findings about a whole model are one case,
 // "model NAME".
-func JUnit(w io.Writer, r *Result) error {
+func writeJUnit(w io.Writer, r *Result, _ bool) error {
 	doc := junitSuites{Name: "scangate"}
 	for _, f := range r.Files {
 		suite := junitSuite{Name: f.URI}

@@ -10,10 +10,18 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
-// Markdown writes a summary for a job page or a pull-request comment: a verdict line, a
+func init() {
+	register(writers{
+		traits: Traits{Name: "markdown", Kinds: CheckReport | DiffReport, NeedsTables: true},
+		check:  writeMarkdown,
+		diff:   writeDiffMarkdown,
+	})
+}
+
+// writeMarkdown writes a summary for a job page or a pull-request comment: a verdict line, a
 // table of tables with their layout against the budget, then the findings grouped by
 // severity with their hints.
-func Markdown(w io.Writer, r *Result) error {
+func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 	var b strings.Builder
 	n := r.Counts()
 	verdict := "passed"

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"html"
+	"io"
 	"math"
 
 	"github.com/scangate/scangate/internal/units"
@@ -12,6 +13,16 @@ import (
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
+
+func init() {
+	register(writers{
+		traits: Traits{Name: "svg", Kinds: PlanReport},
+		plan: func(w io.Writer, p *Plan, _ bool) error {
+			_, err := w.Write(planSVG(p.Manifest, p.Plans))
+			return err
+		},
+	})
+}
 
 // SVG geometry: one band per table, a fill chart on the left and the sweep's
 // ms-against-memory chart on the right.
@@ -30,7 +41,7 @@ const (
 // planSVG draws, per table, the fill of each partition's segments and the sweep's
 // fixed-ms-against-refresh-memory chart with the front and the recommendation, every
 // number as text so it can be read without a viewer.
-func PlanSVG(m *schema.Manifest, plans []advisor.TablePlan) []byte {
+func planSVG(m *schema.Manifest, plans []advisor.TablePlan) []byte {
 	var b bytes.Buffer
 	h := bandH * max(len(plans), 1)
 	fmt.Fprintf(&b, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")

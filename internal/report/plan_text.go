@@ -24,9 +24,9 @@ type PlanOptions struct {
 	Horizon int
 }
 
-// PlanText writes the plan of every table for an 80-column terminal, separated by blank
+// planText writes the plan of every table for an 80-column terminal, separated by blank
 // lines.
-func PlanText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) string {
+func planText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) string {
 	var b strings.Builder
 	for n, p := range plans {
 		if n > 0 {

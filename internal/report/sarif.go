@@ -10,15 +10,19 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
+func init() {
+	register(writers{traits: Traits{Name: "sarif", Kinds: CheckReport}, check: writeSARIF})
+}
+
 // InformationURI is where the SARIF report sends readers for the tool.
 const InformationURI = "https://github.com/scangate/scangate"
 
 // fingerprintKey names scangate's partial fingerprint; the suffix is the algorithm's version.
 const fingerprintKey = "scangateFinding/v1"
 
-// SARIF writes a SARIF 2.1.0 log (OASIS standard): one run, a rule descriptor for every
+// writeSARIF writes a SARIF 2.1.0 log (OASIS standard): one run, a rule descriptor for every
 // rule, and a result per finding located relative to the repository root (%SRCROOT%).
-func SARIF(w io.Writer, r *Result) error {
+func writeSARIF(w io.Writer, r *Result, _ bool) error {
 	log := sarif.NewReport()
 	run := sarif.NewRunWithInformationURI("scangate", InformationURI)
 	run.Tool.Driver.WithVersion(r.Version)

@@ -11,10 +11,22 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
-// Text writes findings in the GNU style, "path:line:col: severity: message [rule]",
+func init() {
+	register(writers{
+		traits: Traits{Name: "text", Kinds: CheckReport | DiffReport | PlanReport, Colours: true},
+		check:  writeText,
+		diff:   writeDiffText,
+		plan: func(w io.Writer, p *Plan, _ bool) error {
+			_, err := io.WriteString(w, planText(p.Manifest, p.Plans, PlanOptions{Today: p.Today, Horizon: p.Horizon}))
+			return err
+		},
+	})
+}
+
+// writeText writes findings in the GNU style, "path:line:col: severity: message [rule]",
 // each followed by indented hint lines, then one summary line. Colour is used only
 // when asked for; the caller decides from the terminal, NO_COLOR and --no-color.
-func Text(w io.Writer, r *Result, useColor bool) error {
+func writeText(w io.Writer, r *Result, useColor bool) error {
 	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))

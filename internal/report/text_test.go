@@ -17,7 +17,7 @@ func TestTextLayout(t *testing.T) {
 		{Rule: "truncated-segments", Severity: rules.Note, File: "m.yaml", Pos: schema.Pos{Line: 9, Col: 5}, Message: "t: 1 excess segment"},
 	}
 	var b bytes.Buffer
-	if err := Text(&b, &Result{Findings: fs, Summary: Summary{Files: 2, Invalid: 1, Tables: 1}}, false); err != nil {
+	if err := writeText(&b, &Result{Findings: fs, Summary: Summary{Files: 2, Invalid: 1, Tables: 1}}, false); err != nil {
 		t.Fatal(err)
 	}
 	want := `m.yaml:8:5: error: t: too slow [scan-overhead]
@@ -30,7 +30,7 @@ m.yaml:9:5: note: t: 1 excess segment [truncated-segments]
 		t.Errorf("got:\n%s\nwant:\n%s", b.String(), want)
 	}
 	b.Reset()
-	Text(&b, &Result{Summary: Summary{Files: 1, Tables: 3}}, true)
+	writeText(&b, &Result{Summary: Summary{Files: 1, Tables: 3}}, true)
 	if b.String() != "1 file, 3 tables: no findings\n" {
 		t.Errorf("clean run: %q", b.String())
 	}

@@ -1,4 +1,4 @@
-package main
+package run
 
 import (
 	"errors"
@@ -13,9 +13,9 @@ import (
 	"github.com/scangate/scangate/schema"
 )
 
-// project is the run's project config: the file it came from and what it says.
-type project struct {
-	config *schema.ProjectConfig // nil without a config file
+// Project is the run's project config: the file it came from and what it says.
+type Project struct {
+	Config *schema.ProjectConfig // nil without a config file
 	dir    string                // the config file's directory; globs are relative to it
 }
 
@@ -49,14 +49,15 @@ func findConfig(paths []string) string {
 	}
 }
 
-// loadProject reads the config named by --config, or the one found from the paths.
-// A config that breaks its schema is an error with the file's line and column.
-func loadProject(flag string, paths []string) (project, error) {
+// LoadProject reads the config named by --config (flag), or the one found from the
+// paths. A config that breaks its schema is a *schema.Error with the file's line and
+// column.
+func LoadProject(flag string, paths []string, limits schema.Limits) (Project, error) {
 	file := flag
 	if file == "" {
 		file = findConfig(paths)
 		if file == "" {
-			return project{}, nil
+			return Project{}, nil
 		}
 		if wd, err := os.Getwd(); err == nil {
 			if rel, err := filepath.Rel(wd, file); err == nil && !strings.HasPrefix(rel, "..") {
@@ -66,17 +67,17 @@ func loadProject(flag string, paths []string) (project, error) {
 	}
 	in := readFile(file, limits.MaxFileBytes)
 	if in.err != nil {
-		return project{}, fmt.Errorf("cannot read the config %s: %v", file, in.err)
+		return Project{}, fmt.Errorf("cannot read the config %s: %v", file, in.err)
 	}
 	cfg, err := schema.LoadConfig(in.name, in.data, limits)
 	if err != nil {
-		return project{}, err
+		return Project{}, err
 	}
-	return project{config: cfg, dir: filepath.Dir(file)}, nil
+	return Project{Config: cfg, dir: filepath.Dir(file)}, nil
 }
 
-// rulesConfig turns the project's rule settings and --today into the rules' Config.
-func (p project) rulesConfig(today string) (rules.Config, error) {
+// RulesConfig turns the project's rule settings and --today into the rules' Config.
+func (p Project) RulesConfig(today string) (rules.Config, error) {
 	day := time.Now().UTC().Truncate(24 * time.Hour)
 	if today != "" {
 		d, err := time.Parse("2006-01-02", today)
@@ -85,13 +86,13 @@ func (p project) rulesConfig(today string) (rules.Config, error) {
 		}
 		day = d
 	}
-	return rules.ConfigFrom(p.config, day)
+	return rules.ConfigFrom(p.Config, day)
 }
 
-// keep applies the config's include and exclude globs to a file found by walking a
+// Keep applies the config's include and exclude globs to a file found by walking a
 // directory; files named on the command line are always checked.
-func (p project) keep(file string) bool {
-	if p.config == nil || (len(p.config.Include) == 0 && len(p.config.Exclude) == 0) {
+func (p Project) Keep(file string) bool {
+	if p.Config == nil || (len(p.Config.Include) == 0 && len(p.Config.Exclude) == 0) {
 		return true
 	}
 	abs, err1 := filepath.Abs(file)
@@ -101,16 +102,16 @@ func (p project) keep(file string) bool {
 		return true
 	}
 	rel = filepath.ToSlash(rel)
-	if len(p.config.Include) > 0 {
+	if len(p.Config.Include) > 0 {
 		in := false
-		for _, g := range p.config.Include {
+		for _, g := range p.Config.Include {
 			in = in || globMatch(g, rel)
 		}
 		if !in {
 			return false
 		}
 	}
-	for _, g := range p.config.Exclude {
+	for _, g := range p.Config.Exclude {
 		if globMatch(g, rel) {
 			return false
 		}
@@ -145,7 +146,7 @@ func matchParts(pat, name []string) bool {
 	return len(name) == 0
 }
 
-// runConfig is the rules' Config for a run without a project config.
-func runConfig(today string) (rules.Config, error) {
-	return project{}.rulesConfig(today)
+// PlainConfig is the rules' Config for a run without a project config.
+func PlainConfig(today string) (rules.Config, error) {
+	return Project{}.RulesConfig(today)
 }

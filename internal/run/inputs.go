@@ -1,4 +1,9 @@
-package main
+// Package run is the driver behind the commands: it finds the inputs, reads the
+// project config, loads and checks files on a bounded pool of workers within the run's
+// partition budget, reads the base revision from git for diff, applies a baseline and
+// writes reports safely. The commands parse flags and call it; it never reaches back
+// into them.
+package run
 
 import (
 	"bytes"
@@ -13,10 +18,10 @@ import (
 	"strings"
 )
 
-// input is one manifest to check: the name to report and its bytes, or why it could
+// Input is one manifest to check: the name to report and its bytes, or why it could
 // not be read. A file found on disk may keep only its path and limit, and be read when
 // it is checked: a run over thousands of files then holds the bytes of the few in flight.
-type input struct {
+type Input struct {
 	name  string
 	data  []byte
 	err   error
@@ -25,7 +30,7 @@ type input struct {
 }
 
 // bytes returns the input's bytes, reading its file now if they were not kept.
-func (in input) bytes() ([]byte, error) {
+func (in Input) bytes() ([]byte, error) {
 	if in.data == nil && in.err == nil && in.path != "" {
 		r := readFile(in.path, in.limit)
 		return r.data, r.err
@@ -34,41 +39,38 @@ func (in input) bytes() ([]byte, error) {
 }
 
 // lazy drops the bytes of a file that was read, to be read again when it is checked.
-func (in input) lazy(path string, limit int) input {
+func (in Input) lazy(path string, limit int) Input {
 	if in.err == nil {
 		in.data, in.path, in.limit = nil, path, limit
 	}
 	return in
 }
 
-const stdinName = "<stdin>"
+// StdinName is how standard input is named in reports.
+const StdinName = "<stdin>"
 
 // manifestMarker tells a manifest from other YAML or JSON files in a directory walk.
 var manifestMarker = regexp.MustCompile(`(?m)(^|[{,\s])["']?format["']?\s*:`)
 
-// collect resolves the paths of the command line into inputs, in a stable order:
+// Collect resolves the paths of the command line into inputs, in a stable order:
 // files as given, directories walked for *.yaml, *.yml and *.json files that hold
-// "format:", "-" read from stdin. A path that does not exist is a usage error.
-func collect(paths []string, stdin io.Reader, maxBytes int) ([]input, error) {
-	return collectFiltered(paths, stdin, maxBytes, nil)
-}
-
-// collectFiltered is collect with a filter for files found by walking directories (the
-// project's include and exclude globs); nil keeps every file.
-func collectFiltered(paths []string, stdin io.Reader, maxBytes int, keep func(string) bool) ([]input, error) {
+// "format:", "-" read from stdin; the default is the current directory. keep filters
+// the files found by walking directories (the project's include and exclude globs);
+// nil keeps every file. A path that does not exist is an error.
+func Collect(paths []string, stdin io.Reader, maxBytes int, keep func(string) bool) ([]Input, error) {
 	if len(paths) == 0 {
 		paths = []string{"."}
 	}
-	var out []input
+	var out []Input
 	for _, p := range paths {
 		if p == "-" {
-			data, err := readLimited(stdin, maxBytes)
-			out = append(out, input{name: stdinName, data: data, err: err})
+			data, err := ReadLimited(stdin, maxBytes)
+			out = append(out, Input{name: StdinName, data: data, err: err})
 			continue
 		}
 		info, err := os.Stat(p)
 		if err != nil {
-			return nil, fmt.Errorf("cannot read %s: %w", p, unwrapPath(err))
+			return nil, fmt.Errorf("cannot read %s: %w", p, UnwrapPath(err))
 		}
 		switch {
 		case info.IsDir():
@@ -81,7 +83,7 @@ func collectFiltered(paths []string, stdin io.Reader, maxBytes int, keep func(st
 			}
 			out = append(out, found...)
 		case info.Mode().IsRegular():
-			out = append(out, input{name: filepath.ToSlash(p), path: p, limit: maxBytes})
+			out = append(out, Input{name: filepath.ToSlash(p), path: p, limit: maxBytes})
 		default:
 			return nil, fmt.Errorf("%s is not a regular file or a directory", p)
 		}
@@ -90,7 +92,7 @@ func collectFiltered(paths []string, stdin io.Reader, maxBytes int, keep func(st
 }
 
 // walk finds the manifests below dir, skipping hidden directories, sorted by path.
-func walk(dir string, maxBytes int, keep func(string) bool) ([]input, error) {
+func walk(dir string, maxBytes int, keep func(string) bool) ([]Input, error) {
 	var names []string
 	err := filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
 		if err != nil {
@@ -124,10 +126,10 @@ func walk(dir string, maxBytes int, keep func(string) bool) ([]input, error) {
 		return nil
 	})
 	if err != nil {
-		return nil, fmt.Errorf("cannot read %s: %w", dir, unwrapPath(err))
+		return nil, fmt.Errorf("cannot read %s: %w", dir, UnwrapPath(err))
 	}
 	sort.Strings(names)
-	var out []input
+	var out []Input
 	for _, n := range names {
 		in := readFile(n, maxBytes)
 		if in.err == nil && !manifestMarker.Match(in.data) {
@@ -138,30 +140,41 @@ func walk(dir string, maxBytes int, keep func(string) bool) ([]input, error) {
 	return out, nil
 }
 
-func readFile(path string, maxBytes int) input {
+func readFile(path string, maxBytes int) Input {
 	name := filepath.ToSlash(path)
 	f, err := os.Open(path)
 	if err != nil {
-		return input{name: name, err: unwrapPath(err)}
+		return Input{name: name, err: UnwrapPath(err)}
 	}
 	defer f.Close()
-	data, err := readLimited(f, maxBytes)
-	return input{name: name, data: data, err: err}
+	data, err := ReadLimited(f, maxBytes)
+	return Input{name: name, data: data, err: err}
 }
 
-// readLimited reads at most maxBytes+1 bytes, so the loader can refuse an oversized
+// ReadLimited reads at most maxBytes+1 bytes, so the loader can refuse an oversized
 // file without the whole of it in memory.
-func readLimited(r io.Reader, maxBytes int) ([]byte, error) {
+func ReadLimited(r io.Reader, maxBytes int) ([]byte, error) {
 	var b bytes.Buffer
 	_, err := io.Copy(&b, io.LimitReader(r, int64(maxBytes)+1))
-	return b.Bytes(), unwrapPath(err)
+	return b.Bytes(), UnwrapPath(err)
 }
 
-// unwrapPath drops the operation and path from an *fs.PathError; the caller names the path.
-func unwrapPath(err error) error {
+// UnwrapPath drops the operation and path from an *fs.PathError; the caller names the path.
+func UnwrapPath(err error) error {
 	var pe *fs.PathError
 	if errors.As(err, &pe) {
 		return pe.Err
 	}
 	return err
+}
+
+// OnlyManifests drops readable inputs that are not manifests, as a directory walk does.
+func OnlyManifests(inputs []Input) []Input {
+	out := inputs[:0]
+	for _, in := range inputs {
+		if data, err := in.bytes(); err != nil || manifestMarker.Match(data) {
+			out = append(out, in)
+		}
+	}
+	return out
 }

@@ -1,4 +1,4 @@
-package main
+package run
 
 import (
 	"fmt"
@@ -12,28 +12,29 @@ import (
 
 	"github.com/scangate/scangate/bench/gen"
 	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 // The benchmarks run scangate's whole check (load, validate, analyse, rules with their
 // hints) in process, next to a baseline that only decodes the same bytes with the same
-// YAML library: compare the two in one run (go test -bench . -benchmem ./cmd/scangate),
+// YAML library: compare the two in one run (go test -bench . -benchmem ./internal/run),
 // not across machines. bench/run.sh measures the built binaries the same way.
 
-func benchInputs(files map[string][]byte) []input {
+func benchInputs(files map[string][]byte) []Input {
 	names := make([]string, 0, len(files))
 	for n := range files {
 		names = append(names, n)
 	}
 	sort.Strings(names)
-	out := make([]input, len(names))
+	out := make([]Input, len(names))
 	for i, n := range names {
-		out[i] = input{name: n, data: files[n]}
+		out[i] = Input{name: n, data: files[n]}
 	}
 	return out
 }
 
-func benchCheck(b *testing.B, inputs []input) {
-	cfg, _ := runConfig("2026-01-01")
+func benchCheck(b *testing.B, inputs []Input) {
+	cfg, _ := PlainConfig("2026-01-01")
 	var size int64
 	for _, in := range inputs {
 		size += int64(len(in.data))
@@ -41,7 +42,7 @@ func benchCheck(b *testing.B, inputs []input) {
 	b.SetBytes(size)
 	b.ReportAllocs()
 	for b.Loop() {
-		files, findings := checkAll(slices.Clone(inputs), cfg, nil, false) // as a text report runs; checkAll consumes its inputs' bytes
+		files, findings := Check(slices.Clone(inputs), cfg, nil, schema.DefaultLimits, false) // as a text report runs; Check consumes its inputs' bytes
 		if len(files) != len(inputs) {
 			b.Fatal("files lost")
 		}
@@ -55,7 +56,7 @@ func benchCheck(b *testing.B, inputs []input) {
 	}
 }
 
-func benchDecode(b *testing.B, inputs []input) {
+func benchDecode(b *testing.B, inputs []Input) {
 	var size int64
 	for _, in := range inputs {
 		size += int64(len(in.data))

@@ -1,0 +1,141 @@
+package run
+
+import (
+	"errors"
+	"fmt"
+	"runtime"
+	"sort"
+	"sync"
+
+	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/internal/units"
+	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
+)
+
+// Check loads and checks every input on a bounded pool of workers and returns the
+// files in input order and the findings sorted; unreadable and invalid files become
+// schema findings and never stop the others. The run's partition budget
+// (limits.MaxRunPartitions) is spent in input order, the same on every machine. It
+// consumes the inputs: their bytes are released as they are loaded. Files keep their
+// analysed tables only with keepTables (see NeedsTables).
+func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits schema.Limits, keepTables bool) ([]report.File, []rules.Finding) {
+	files := make([]report.File, len(inputs))
+	found := make([][]rules.Finding, len(inputs))
+	root := RepositoryRoot()
+	budget := newRunBudget(limits.MaxRunPartitions)
+	// Each file is read, loaded and checked by one worker, so only the files in flight
+	// hold their bytes and parse trees. A run of thousands of files keeps no more than
+	// their findings, and their tables when a report prints them.
+	parallel(len(inputs), func(i int) {
+		f, m, fs := loadInput(inputs[i], root, proj, limits)
+		inputs[i].data = nil
+		var n int64
+		if m != nil {
+			n = m.Partitions()
+		}
+		if !budget.spend(i, n) {
+			f.Invalid, m = true, nil
+			fs = []rules.Finding{{
+				Rule: rules.Schema.ID, Severity: rules.Error, File: f.Name, Subject: "run budget",
+				Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
+					units.Num(n), units.Num(limits.MaxRunPartitions)),
+			}}
+		}
+		if m != nil {
+			md, own := rules.Check(m, cfg)
+			fs = own
+			f.Analysed = len(md.Tables)
+			if keepTables {
+				f.Tables = md.Tables
+			}
+		}
+		files[i], found[i] = f, fs
+	})
+	var findings []rules.Finding
+	for _, fs := range found {
+		findings = append(findings, fs...)
+	}
+	sort.SliceStable(findings, func(i, j int) bool { return rules.Less(findings[i], findings[j]) })
+	return files, findings
+}
+
+// runBudget is the run's partition budget, spent in input order whatever order the
+// workers finish loading in, so the same files are refused on every machine.
+type runBudget struct {
+	mu    sync.Mutex
+	turn  *sync.Cond
+	next  int // the input whose turn it is
+	spent int64
+	limit int64
+}
+
+func newRunBudget(limit int64) *runBudget {
+	b := &runBudget{limit: limit}
+	b.turn = sync.NewCond(&b.mu)
+	return b
+}
+
+// spend takes n partitions for input i once every input before it has spent its own,
+// and reports whether they fitted. Every input spends exactly once (0 for one that did
+// not load). parallel hands inputs out in order, so an earlier input is always held by
+// a worker that will reach here: the wait ends.
+func (b *runBudget) spend(i int, n int64) bool {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	for b.next != i {
+		b.turn.Wait()
+	}
+	ok := b.spent+n <= b.limit
+	if ok {
+		b.spent += n
+	}
+	b.next++
+	b.turn.Broadcast()
+	return ok
+}
+
+// parallel runs work(i) for i in 0..n-1 on at most GOMAXPROCS goroutines.
+func parallel(n int, work func(i int)) {
+	jobs := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), max(n, 1)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range jobs {
+				work(i)
+			}
+		}()
+	}
+	for i := 0; i < n; i++ {
+		jobs <- i
+	}
+	close(jobs)
+	wg.Wait()
+}
+
+// loadInput reads and validates one input; an invalid one returns its schema findings and
+// no manifest.
+func loadInput(in Input, root string, proj *schema.ProjectConfig, limits schema.Limits) (report.File, *schema.Manifest, []rules.Finding) {
+	f := report.File{Name: in.name, URI: RepositoryPath(root, in.name)}
+	data, err := in.bytes()
+	if err != nil {
+		f.Invalid = true
+		return f, nil, []rules.Finding{{
+			Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Subject: "read",
+			Message: fmt.Sprintf("cannot read the file: %v", err),
+		}}
+	}
+	m, err := schema.LoadWith(in.name, data, schema.Options{Limits: limits, Project: proj})
+	if err != nil {
+		f.Invalid = true
+		var se *schema.Error
+		if errors.As(err, &se) {
+			return f, nil, rules.SchemaFindings(se)
+		}
+		return f, nil, []rules.Finding{{Rule: rules.Schema.ID, Severity: rules.Error, File: in.name, Message: err.Error()}}
+	}
+	f.Model = m.Model
+	return f, m, nil
+}
