@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/scangate/scangate/internal/report"
 )
 
 // repo makes a throwaway repository (a .git directory marks its root) with the files.
@@ -288,7 +290,7 @@ func TestInitAndSchemas(t *testing.T) {
 // docs/rules.md is generated from the registry; SARIF help carries the same text.
 func TestRulesDoc(t *testing.T) {
 	path := filepath.Join(root(t), "docs", "rules.md")
-	want := rulesMarkdown()
+	want := report.RulesMarkdown()
 	if *update {
 		os.MkdirAll(filepath.Dir(path), 0o755)
 		if err := os.WriteFile(path, []byte(want), 0o644); err != nil {

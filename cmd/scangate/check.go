@@ -58,7 +58,7 @@ func newCheck() *cobra.Command {
 			}
 			files, findings := run.Check(inputs, cfg, proj.Config, limits, run.NeedsTables(outs))
 			res := &report.Result{
-				Version:  moduleVersion(),
+				Version:  run.ModuleVersion(),
 				FailOn:   threshold,
 				Files:    files,
 				Findings: findings,

@@ -91,7 +91,7 @@ func newDiff() *cobra.Command {
 			// Both sides are checked with the same config and date, so the diff shows
 			// what the manifests change and nothing else.
 			d := change.Compare(run.CheckSide(sides[0], cfg, proj, limits), run.CheckSide(sides[1], cfg, proj, limits))
-			res := report.NewDiffResult(moduleVersion(), d, gate)
+			res := report.NewDiffResult(run.ModuleVersion(), d, gate)
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {
 				return usageError(err)

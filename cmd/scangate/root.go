@@ -3,10 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
-	"runtime/debug"
 
 	"github.com/spf13/cobra"
 
+	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -55,45 +55,8 @@ func newVersion() *cobra.Command {
 		Short: "Print the module version and the revision it was built from",
 		Args:  cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
-			_, err := fmt.Fprintln(cmd.OutOrStdout(), versionLine())
+			_, err := fmt.Fprintln(cmd.OutOrStdout(), run.VersionLine())
 			return err
 		},
 	}
-}
-
-// moduleVersion is the version reports carry: the module version alone, so reports of
-// one release are byte-identical whatever the build's revision.
-func moduleVersion() string {
-	if info, ok := debug.ReadBuildInfo(); ok && info.Main.Version != "" {
-		return info.Main.Version
-	}
-	return "(devel)"
-}
-
-// versionLine reads the version and VCS revision the Go toolchain stamped into the binary.
-func versionLine() string {
-	info, ok := debug.ReadBuildInfo()
-	if !ok {
-		return "scangate (unknown version)"
-	}
-	version := info.Main.Version
-	if version == "" {
-		version = "(devel)"
-	}
-	line := "scangate " + version
-	var rev, modified string
-	for _, s := range info.Settings {
-		switch s.Key {
-		case "vcs.revision":
-			rev = s.Value
-		case "vcs.modified":
-			if s.Value == "true" {
-				modified = "+dirty"
-			}
-		}
-	}
-	if rev != "" {
-		line += fmt.Sprintf(" (revision %s%s)", rev[:min(12, len(rev))], modified)
-	}
-	return line + " " + info.GoVersion
 }
