@@ -5,6 +5,7 @@
 package action_test
 
 import (
+	"errors"
 	"fmt"
 	"os"
 	"os/exec"
@@ -211,7 +212,7 @@ func exitCode(t *testing.T, err error) int {
 	if err == nil {
 		return 0
 	}
-	if ee, ok := err.(*exec.ExitError); ok {
+	if ee := (*exec.ExitError)(nil); errors.As(err, &ee) {
 		return ee.ExitCode()
 	}
 	t.Fatal(err)

@@ -1,6 +1,7 @@
 package rules_test
 
 import (
+	"errors"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -84,7 +85,8 @@ func runCase(t *testing.T, path string) {
 	var got []rules.Finding
 	m, err := schema.Load(path, data, schema.DefaultLimits)
 	if err != nil {
-		se, ok := err.(*schema.Error)
+		var se *schema.Error
+		ok := errors.As(err, &se)
 		if !ok {
 			t.Fatalf("Load: %v", err)
 		}

@@ -3,6 +3,7 @@ package schema
 import (
 	"bytes"
 	_ "embed"
+	"errors"
 	"fmt"
 	"math/big"
 	"sort"
@@ -70,7 +71,8 @@ func (t *tree) validate(d *document) []Problem {
 	if err == nil {
 		return nil
 	}
-	ve, ok := err.(*jsonschema.ValidationError)
+	var ve *jsonschema.ValidationError
+	ok := errors.As(err, &ve)
 	if !ok {
 		return []Problem{{Message: err.Error()}}
 	}

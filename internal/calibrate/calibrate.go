@@ -12,6 +12,7 @@
 package calibrate
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -139,7 +140,7 @@ func Fit(ms []Measurement) (*Result, error) {
 		y[i] = m.CPUMs
 	}
 	fit, err := NonNegativeLeastSquares(x, y)
-	if re, ok := err.(*RankError); ok {
+	if re := (*RankError)(nil); errors.As(err, &re) {
 		var names []string
 		for _, j := range re.Columns {
 			names = append(names, fmt.Sprintf("%s (%s)", constants[j].Column, constants[j].Symbol))

@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -222,7 +223,8 @@ func TestRankDeficient(t *testing.T) {
 	y := []float64{1, 2, 3, 4, 5}
 	for _, solve := range []func(*mat.Dense, []float64) (*LinearFit, error){OrdinaryLeastSquares, NonNegativeLeastSquares} {
 		_, err := solve(design(rows), y)
-		re, ok := err.(*RankError)
+		var re *RankError
+		ok := errors.As(err, &re)
 		if !ok || len(re.Columns) != 2 || re.Columns[0] != 0 || re.Columns[1] != 2 {
 			t.Errorf("want a rank error naming columns 0 and 2, got %v", err)
 		}

@@ -1,6 +1,7 @@
 package change
 
 import (
+	"errors"
 	"strings"
 	"testing"
 	"time"
@@ -36,7 +37,7 @@ func side(t *testing.T, label string, keys []string, bodies ...string) Side {
 		name := label + ":" + key
 		m, err := schema.Load(name, []byte(bodies[i]), schema.DefaultLimits)
 		if err != nil {
-			if se, ok := err.(*schema.Error); ok {
+			if se := (*schema.Error)(nil); errors.As(err, &se) {
 				s.Files = append(s.Files, File{Name: name, Key: key, Invalid: true})
 				s.Findings = append(s.Findings, rules.SchemaFindings(se)...)
 				continue

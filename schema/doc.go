@@ -1,0 +1,13 @@
+// Package schema is scangate's contract: the embedded JSON Schemas of the manifest, the
+// project config and the json and diff reports, and the loader that turns a manifest's
+// YAML or JSON into a typed Manifest.
+//
+// Loading reads the bytes into YAML nodes, refuses what the manifest format forbids
+// (duplicate keys, documents after the first), validates the nodes
+// against manifest.schema.json (a quick check first, the JSON Schema library for
+// anything it cannot pass and for every error's wording), and decodes them into typed
+// values. Every value keeps its file, line and column, so a finding or an error points
+// at the node it is about. Quantities ("8Mi", "7.2G", "64GiB") are parsed exactly.
+//
+// It is the first layer: it imports no other scangate package.
+package schema
