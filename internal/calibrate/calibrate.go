@@ -11,6 +11,9 @@
 // it parses, fits and returns numbers; the command prints them.
 package calibrate
 
+// go generate ./... rewrites testdata/calibration/measurements.csv, the synthetic example.
+//go:generate go test . -run ^TestMeasurementsFile$ -update -count=1
+
 import (
 	"errors"
 	"fmt"
