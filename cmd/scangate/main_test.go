@@ -171,15 +171,7 @@ func TestDirectoryWalk(t *testing.T) {
 		"README.md":          "format: 1\n",
 		"sub/settings.yaml~": "format: 2\n",
 	}
-	for name, body := range files {
-		p := filepath.Join(dir, name)
-		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
+	writeTree(t, dir, files)
 	r := scangate(t, dir, "", nil, "check")
 	wantCode(t, r, 0)
 	if !strings.Contains(r.stdout, "3 files, 3 tables: no findings") {
