@@ -34,6 +34,9 @@ func newBaseline() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
+			if err := run.GuardTargets([]string{out}, []string{"--output " + out}, append(run.Paths(inputs), proj.Files()...)); err != nil {
+				return usageError(err)
+			}
 			files, findings := run.Check(inputs, cfg, proj.Config, limits, false)
 			res := &report.Result{Files: files, Findings: findings, Summary: report.Summarize(files)}
 			if res.Summary.Invalid > 0 {

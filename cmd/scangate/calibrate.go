@@ -1,15 +1,16 @@
 package main
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
-	"os"
 
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/calibrate"
 	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/internal/run"
 )
 
 func newCalibrate() *cobra.Command {
@@ -27,19 +28,11 @@ func newCalibrate() *cobra.Command {
 		Example: "  scangate calibrate testdata/calibration/measurements.csv",
 		Args:    cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			name := args[0]
-			var in io.Reader = cmd.InOrStdin()
-			if name == "-" {
-				name = "<stdin>"
-			} else {
-				f, err := os.Open(name)
-				if err != nil {
-					return usageError(fmt.Errorf("cannot read %s: %v", name, errors.Unwrap(err)))
-				}
-				defer f.Close()
-				in = f
+			name, data, err := run.ReadInput(args[0], cmd.InOrStdin(), limits.MaxFileBytes)
+			if err != nil {
+				return usageError(err)
 			}
-			res, err := calibrate.Calibrate(name, in)
+			res, err := calibrate.Calibrate(name, bytes.NewReader(data))
 			var refusal *calibrate.Refusal
 			switch {
 			case errors.As(err, &refusal):

@@ -56,6 +56,10 @@ func newCheck() *cobra.Command {
 			if manifestsOnly {
 				inputs = run.OnlyManifests(inputs)
 			}
+			read := append(append(run.Paths(inputs), proj.Files()...), baselineFile)
+			if err := run.GuardOutputs(outs, read); err != nil {
+				return usageError(err)
+			}
 			files, findings := run.Check(inputs, cfg, proj.Config, limits, run.NeedsTables(outs))
 			res := &report.Result{
 				Version:  run.ModuleVersion(),

@@ -88,6 +88,10 @@ func newDiff() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
+			read := append(append(sides[0].Paths(), sides[1].Paths()...), proj.Files()...)
+			if err := run.GuardOutputs(outs, read); err != nil {
+				return usageError(err)
+			}
 			// Both sides are checked with the same config and date, so the diff shows
 			// what the manifests change and nothing else.
 			d := change.Compare(run.CheckSide(sides[0], cfg, proj, limits), run.CheckSide(sides[1], cfg, proj, limits))

@@ -53,6 +53,9 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
+			if err := run.GuardTargets([]string{svg}, []string{"--svg " + svg}, args); err != nil {
+				return usageError(err)
+			}
 			m, err := run.LoadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr(), limits)
 			if err != nil {
 				return usageError(err)

@@ -16,6 +16,7 @@ import (
 	"regexp"
 	"sort"
 	"strings"
+	"syscall"
 )
 
 // Input is one manifest to check: the name to report and its bytes, or why it could
@@ -140,13 +141,19 @@ func walk(dir string, maxBytes int, keep func(string) bool) ([]Input, error) {
 	return out, nil
 }
 
+// readFile reads a regular file, at most maxBytes+1 bytes of it. Opening never waits
+// (a FIFO without a writer would block for ever), and anything but a regular file is
+// refused: a device such as /dev/zero never ends.
 func readFile(path string, maxBytes int) Input {
 	name := filepath.ToSlash(path)
-	f, err := os.Open(path)
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
 	if err != nil {
 		return Input{name: name, err: UnwrapPath(err)}
 	}
 	defer f.Close()
+	if info, err := f.Stat(); err != nil || !info.Mode().IsRegular() {
+		return Input{name: name, err: errors.New("not a regular file")}
+	}
 	data, err := ReadLimited(f, maxBytes)
 	return Input{name: name, data: data, err: err}
 }
@@ -174,6 +181,21 @@ func OnlyManifests(inputs []Input) []Input {
 	for _, in := range inputs {
 		if data, err := in.bytes(); err != nil || manifestMarker.Match(data) {
 			out = append(out, in)
+		}
+	}
+	return out
+}
+
+// Paths are the files the inputs are read from, for GuardTargets; standard input and
+// blobs of a git revision have none.
+func Paths(inputs []Input) []string {
+	var out []string
+	for _, in := range inputs {
+		switch {
+		case in.path != "":
+			out = append(out, in.path)
+		case in.name != StdinName:
+			out = append(out, in.name)
 		}
 	}
 	return out

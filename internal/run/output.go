@@ -2,11 +2,13 @@ package run
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 
 	"github.com/mattn/go-isatty"
 
@@ -17,6 +19,7 @@ import (
 type Destination struct {
 	Format report.Format
 	Path   string
+	Flag   string // how the user asked for it: --format NAME=FILE or --output FILE
 }
 
 // ParseFormats reads --format NAME or NAME=FILE (repeatable) and --output for a command
@@ -46,8 +49,9 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 		if strings.Contains(f, "=") && path == "" {
 			return nil, fmt.Errorf("--format %q: give a file after =, or drop the = to write to standard output", f)
 		}
+		flag := "--format " + f
 		if path == "" {
-			path = output
+			path, flag = output, "--output "+output
 		}
 		if path != "" {
 			clean := filepath.Clean(path)
@@ -56,7 +60,7 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 			}
 			seenPath[clean] = true
 		}
-		outs = append(outs, Destination{Format: format, Path: path})
+		outs = append(outs, Destination{Format: format, Path: path, Flag: flag})
 	}
 	return outs, nil
 }
@@ -145,13 +149,22 @@ func UseColor(w any, noColor bool) bool {
 	if v := os.Getenv("CLICOLOR_FORCE"); v != "" && v != "0" {
 		return true
 	}
-	f, ok := w.(*os.File)
+	f, ok := w.(interface{ Fd() uintptr })
 	return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd()))
 }
 
 // WriteFileAtomic writes data to path through a temporary file in the same directory and
 // a rename, creating parent directories; readers never see a half-written report.
+//
+// A path that names a device or a FIFO is written directly, never renamed over: the
+// special file stays what it is (/dev/null discards the report, a FIFO passes it on).
 func WriteFileAtomic(path string, data []byte) error {
+	if info, err := os.Stat(path); err == nil && !info.Mode().IsRegular() {
+		if info.IsDir() {
+			return fmt.Errorf("cannot write %s: it is a directory; name a file", path)
+		}
+		return writeSpecial(path, data)
+	}
 	dir := filepath.Dir(path)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("cannot create %s: %v", dir, UnwrapPath(err))
@@ -176,6 +189,86 @@ func WriteFileAtomic(path string, data []byte) error {
 		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
 	}
 	return nil
+}
+
+// writeSpecial writes data to an existing device or FIFO in place. A FIFO without a
+// reader is an error at once rather than a wait for one.
+func writeSpecial(path string, data []byte) error {
+	f, err := os.OpenFile(path, os.O_WRONLY|syscall.O_NONBLOCK, 0)
+	if err != nil {
+		if errors.Is(err, syscall.ENXIO) {
+			return fmt.Errorf("cannot write %s: it is a FIFO with no reader", path)
+		}
+		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
+	}
+	if _, err := f.Write(data); err != nil {
+		f.Close()
+		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
+	}
+	if err := f.Close(); err != nil {
+		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
+	}
+	return nil
+}
+
+// GuardTargets refuses, before anything is written, a report path that would write
+// over one of the run's inputs or over another report of the run: the same file by
+// device and inode (symbolic links followed) or the same clean path. flags names each
+// target as the user wrote it (e.g. "--format json=a.json"); inputs are the paths the
+// run reads (files that do not exist, such as git blobs, are skipped). Checking every
+// input once against the few targets keeps it linear in inputs.
+func GuardTargets(targets, flags []string, inputs []string) error {
+	type target struct {
+		path, flag string
+		info       os.FileInfo
+	}
+	var ts []target
+	seen := map[string]string{}
+	for i, p := range targets {
+		if p == "" {
+			continue
+		}
+		clean, _ := filepath.Abs(p)
+		if other, ok := seen[clean]; ok {
+			return fmt.Errorf("%s: %s is already the target of %s; give each report its own file", flags[i], p, other)
+		}
+		seen[clean] = flags[i]
+		t := target{path: p, flag: flags[i]}
+		t.info, _ = os.Stat(p)
+		for _, o := range ts {
+			if t.info != nil && o.info != nil && t.info.Mode().IsRegular() && os.SameFile(t.info, o.info) {
+				return fmt.Errorf("%s: %s is the same file as the target of %s; give each report its own file", t.flag, p, o.flag)
+			}
+		}
+		ts = append(ts, t)
+	}
+	if len(ts) == 0 {
+		return nil
+	}
+	for _, in := range inputs {
+		info, err := os.Stat(in)
+		if err != nil {
+			continue
+		}
+		for _, t := range ts {
+			if t.info != nil && os.SameFile(info, t.info) {
+				return fmt.Errorf("%s: %s is one of the inputs (%s); scangate never writes over what it reads: write the report elsewhere", t.flag, t.path, in)
+			}
+		}
+	}
+	return nil
+}
+
+// GuardOutputs is GuardTargets for the report files of outs.
+func GuardOutputs(outs []Destination, inputs []string) error {
+	var paths, flags []string
+	for _, o := range outs {
+		if o.Path != "" {
+			paths = append(paths, o.Path)
+			flags = append(flags, o.Flag)
+		}
+	}
+	return GuardTargets(paths, flags, inputs)
 }
 
 // RepositoryRoot is the nearest directory at or above the working directory that holds

@@ -150,3 +150,11 @@ func matchParts(pat, name []string) bool {
 func PlainConfig(today string) (rules.Config, error) {
 	return Project{}.RulesConfig(today)
 }
+
+// Files are the files the project config was read from, for GuardTargets.
+func (p Project) Files() []string {
+	if p.Config == nil {
+		return nil
+	}
+	return []string{p.Config.File}
+}

@@ -338,3 +338,12 @@ func underVisible(dir, p string) bool {
 	}
 	return true
 }
+
+// Paths are the files the side reads, for GuardTargets.
+func (s Side) Paths() []string {
+	inputs := make([]Input, len(s.inputs))
+	for i, in := range s.inputs {
+		inputs[i] = in.Input
+	}
+	return Paths(inputs)
+}
