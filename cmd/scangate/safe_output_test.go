@@ -173,3 +173,16 @@ func TestInputsAreBounded(t *testing.T) {
 		}
 	}
 }
+
+// Every format lists files and findings in one sorted order, whatever order the
+// command line names them in.
+func TestOneOrderWhateverTheCommandLine(t *testing.T) {
+	a, b := "testdata/demo/billing.yaml", "testdata/demo/network-assets.yaml"
+	for _, format := range []string{"text", "json", "sarif", "github", "markdown", "junit"} {
+		ab := scangate(t, root(t), "", nil, "check", "--format", format, a, b)
+		ba := scangate(t, root(t), "", nil, "check", "--format", format, b, a)
+		if ab.stdout != ba.stdout || ab.code != ba.code {
+			t.Errorf("%s: the report depends on the order of the paths", format)
+		}
+	}
+}

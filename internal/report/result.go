@@ -10,7 +10,7 @@ import (
 type Result struct {
 	Version  string         // scangate's version, as `scangate version` prints it
 	FailOn   rules.Severity // the lowest severity that fails the run; 0 for never
-	Files    []File         // in the order the inputs were given and walked
+	Files    []File         // sorted by name, as the findings are
 	Findings []rules.Finding
 	Summary  Summary
 	Baseline *BaselineUse // nil without --baseline

@@ -14,7 +14,8 @@ import (
 )
 
 // Check loads and checks every input on a bounded pool of workers and returns the
-// files in input order and the findings sorted; unreadable and invalid files become
+// files sorted by name and the findings sorted (by file, line, column, rule), so every
+// report lists files in one order whatever order the command line gave; unreadable and invalid files become
 // schema findings and never stop the others. The run's partition budget
 // (limits.MaxRunPartitions) is spent in input order, the same on every machine. It
 // consumes the inputs: their bytes are released as they are loaded. Files keep their
@@ -52,6 +53,7 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 		}
 		files[i], found[i] = f, fs
 	})
+	sort.SliceStable(files, func(i, j int) bool { return files[i].Name < files[j].Name })
 	var findings []rules.Finding
 	for _, fs := range found {
 		findings = append(findings, fs...)

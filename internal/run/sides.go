@@ -54,11 +54,15 @@ func CheckSide(s Side, cfg rules.Config, proj Project, limits schema.Limits) cha
 	for i, in := range s.inputs {
 		inputs[i] = in.Input
 	}
+	keys := make(map[string]string, len(s.inputs)) // file name -> key; names are unique on a side
+	for _, in := range s.inputs {
+		keys[in.name] = in.key
+	}
 	files, findings := Check(inputs, cfg, proj.Config, limits, true)
 	side := change.Side{Label: s.label, Findings: findings}
-	for i, f := range files {
+	for _, f := range files {
 		side.Files = append(side.Files, change.File{
-			Name: f.Name, Key: s.inputs[i].key, Model: f.Model, Invalid: f.Invalid, Tables: f.Tables,
+			Name: f.Name, Key: keys[f.Name], Model: f.Model, Invalid: f.Invalid, Tables: f.Tables,
 		})
 	}
 	return side
