@@ -59,6 +59,19 @@ func grade(value, budget, warnShare float64) Severity {
 	return 0
 }
 
+// ParseThreshold reads a gate's level, as the flag named flag gives it: the lowest
+// severity that fails, or 0 for "never".
+func ParseThreshold(flag, s string) (Severity, error) {
+	if s == "never" {
+		return 0, nil
+	}
+	sev, err := ParseSeverity(s)
+	if err != nil {
+		return 0, fmt.Errorf("%s %q: use error, warning, note or never", flag, s)
+	}
+	return sev, nil
+}
+
 // Finding is one graded result, at the node of the manifest it is about.
 type Finding struct {
 	Rule     string

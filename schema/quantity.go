@@ -123,3 +123,24 @@ func group(n int64) string {
 	}
 	return s
 }
+
+// ParseCapacities reads a comma-separated list of segment capacities, counts as
+// manifests write them ("8Mi,16Mi"); "" is no list.
+func ParseCapacities(s string) ([]int64, error) {
+	if s == "" {
+		return nil, nil
+	}
+	var out []int64
+	for _, part := range strings.Split(s, ",") {
+		part = strings.TrimSpace(part)
+		n, err := ParseCount(part)
+		if err != nil {
+			return nil, err
+		}
+		if n < 1 {
+			return nil, fmt.Errorf("a segment holds at least 1 row, got %q", part)
+		}
+		out = append(out, n)
+	}
+	return out, nil
+}

@@ -32,7 +32,7 @@ func newCheck() *cobra.Command {
 			"  scangate check --format text --format sarif=out/scangate.sarif .\n" +
 			"  cat model.yaml | scangate check -",
 		RunE: func(cmd *cobra.Command, args []string) error {
-			threshold, err := parseFailOn(failOn)
+			threshold, err := rules.ParseThreshold("--fail-on", failOn)
 			if err != nil {
 				return usageError(err)
 			}
@@ -118,18 +118,6 @@ func configError(cmd *cobra.Command, err error) error {
 		return &exitError{code: exitInvalid, msg: "the project config is invalid; fix it and run again"}
 	}
 	return usageError(err)
-}
-
-// parseFailOn reads --fail-on: the lowest severity that fails the run, 0 for never.
-func parseFailOn(s string) (rules.Severity, error) {
-	if s == "never" {
-		return 0, nil
-	}
-	sev, err := rules.ParseSeverity(s)
-	if err != nil {
-		return 0, fmt.Errorf("--fail-on %q: use error, warning, note or never", s)
-	}
-	return sev, nil
 }
 
 // exitFor is 2 when any input was invalid, 1 when a finding reaches the threshold, else 0.

@@ -54,12 +54,9 @@ func newDiff() *cobra.Command {
 				}
 				gate.MaxAddedSegments = &maxSegments
 			}
-			if failOnNew != "never" {
-				sev, err := rules.ParseSeverity(failOnNew)
-				if err != nil {
-					return usageError(fmt.Errorf("--fail-on-new %q: use error, warning, note or never", failOnNew))
-				}
-				gate.FailOnNew = sev
+			var err error
+			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
+				return usageError(err)
 			}
 			outs, err := run.ParseFormats(report.DiffReport, formats, output, []string{"text"})
 			if err != nil {

@@ -47,14 +47,14 @@ func execute(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int
 			code = exitInvalid
 		}
 	}()
-	out := &watched{w: stdout}
+	out := run.Watch(stdout)
 	root := newRoot(stdin, out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
 	// A report that did not reach standard output is lost: say so and fail, whatever
 	// the findings were.
-	if out.err != nil {
-		fmt.Fprintf(stderr, "scangate: cannot write to standard output: %v\n", run.UnwrapPath(out.err))
+	if err := out.Err(); err != nil {
+		fmt.Fprintf(stderr, "scangate: cannot write to standard output: %v\n", run.UnwrapPath(err))
 		return exitInvalid
 	}
 	if err == nil {
@@ -70,30 +70,4 @@ func execute(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int
 	// Cobra's own errors are usage errors: unknown command or flag, wrong arguments.
 	io.WriteString(stderr, "scangate: "+err.Error()+"\nRun 'scangate --help' for usage.\n")
 	return exitInvalid
-}
-
-// watched passes writes on and keeps the first error, so no command can lose its
-// output silently.
-type watched struct {
-	w   io.Writer
-	err error
-}
-
-func (o *watched) Write(p []byte) (int, error) {
-	if o.err != nil {
-		return 0, o.err
-	}
-	n, err := o.w.Write(p)
-	if err != nil {
-		o.err = err
-	}
-	return n, err
-}
-
-// Fd is the file descriptor beneath, so terminal detection sees through the wrapper.
-func (o *watched) Fd() uintptr {
-	if f, ok := o.w.(interface{ Fd() uintptr }); ok {
-		return f.Fd()
-	}
-	return ^uintptr(0)
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -35,8 +34,8 @@ func newPlan() *cobra.Command {
 		RunE: func(cmd *cobra.Command, args []string) error {
 			set := advisor.Settings{FixedSegmentRows: fixed}
 			var err error
-			if set.Capacities, err = parseCapacities(segRows); err != nil {
-				return usageError(err)
+			if set.Capacities, err = schema.ParseCapacities(segRows); err != nil {
+				return usageError(fmt.Errorf("--segment-rows %q: %v", segRows, err))
 			}
 			if horizon < 1 || horizon > maxHorizon {
 				return usageError(fmt.Errorf("--horizon %d: give a number of months from 1 to %d", horizon, maxHorizon))
@@ -80,24 +79,4 @@ func newPlan() *cobra.Command {
 	f.IntVar(&horizon, "horizon", 24, "months to forecast")
 	f.StringVar(&svg, "svg", "", "also draw segment fill and the sweep's front per table to this SVG file")
 	return cmd
-}
-
-// parseCapacities reads --segment-rows: counts as manifests write them, comma-separated.
-func parseCapacities(s string) ([]int64, error) {
-	if s == "" {
-		return nil, nil
-	}
-	var out []int64
-	for _, part := range strings.Split(s, ",") {
-		part = strings.TrimSpace(part)
-		n, err := schema.ParseCount(part)
-		if err != nil {
-			return nil, fmt.Errorf("--segment-rows %q: %v", s, err)
-		}
-		if n < 1 {
-			return nil, fmt.Errorf("--segment-rows %q: a segment holds at least 1 row, got %q", s, part)
-		}
-		out = append(out, n)
-	}
-	return out, nil
 }

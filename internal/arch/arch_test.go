@@ -5,6 +5,7 @@ import (
 	"go/parser"
 	"go/token"
 	"io/fs"
+	"os"
 	"path/filepath"
 	"slices"
 	"sort"
@@ -137,5 +138,26 @@ func TestViolationsCatchPlantedImports(t *testing.T) {
 	}
 	if !slices.Equal(got, want) {
 		t.Errorf("violations:\n%s\nwant:\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	}
+}
+
+// The command layer parses flags and wires packages: it stays small, and logic that
+// grows there belongs in the driver or below.
+func TestCommandStaysThin(t *testing.T) {
+	const most = 700
+	paths, _ := filepath.Glob(filepath.Join("..", "..", "cmd", "scangate", "*.go"))
+	lines := 0
+	for _, p := range paths {
+		if strings.HasSuffix(p, "_test.go") {
+			continue
+		}
+		data, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		lines += strings.Count(string(data), "\n")
+	}
+	if lines == 0 || lines > most {
+		t.Errorf("cmd/scangate holds %d non-test lines; keep it at %d or fewer by moving logic into internal/run or below", lines, most)
 	}
 }

@@ -304,3 +304,35 @@ func RepositoryPath(root, name string) string {
 	}
 	return filepath.ToSlash(rel)
 }
+
+// Watched passes writes on and keeps the first error, so no command can lose its
+// output silently.
+type Watched struct {
+	w   io.Writer
+	err error
+}
+
+func (o *Watched) Write(p []byte) (int, error) {
+	if o.err != nil {
+		return 0, o.err
+	}
+	n, err := o.w.Write(p)
+	if err != nil {
+		o.err = err
+	}
+	return n, err
+}
+
+// Fd is the file descriptor beneath, so terminal detection sees through the wrapper.
+func (o *Watched) Fd() uintptr {
+	if f, ok := o.w.(interface{ Fd() uintptr }); ok {
+		return f.Fd()
+	}
+	return ^uintptr(0)
+}
+
+// Watch wraps w.
+func Watch(w io.Writer) *Watched { return &Watched{w: w} }
+
+// Err is the first write error, nil if every write went through.
+func (o *Watched) Err() error { return o.err }
