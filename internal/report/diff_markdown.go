@@ -25,7 +25,7 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 		fmt.Fprintf(&b, "%s.\n\n", mdEscape(upperFirst(invalidWords(d))))
 		for _, inv := range d.Invalid {
 			for _, f := range inv.Findings {
-				fmt.Fprintf(&b, "- %s **%s**: %s\n", code(change.Location(f)), f.Rule, mdEscape(f.Message))
+				fmt.Fprintf(&b, "- %s **%s**: %s\n", code(change.Location(f)), mdEscape(f.Rule), mdEscape(f.Message))
 			}
 		}
 		b.WriteString("\n")
@@ -83,7 +83,7 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 		fmt.Fprintf(&b, "#### %s (%d)\n\n", title, len(fs))
 		for _, fc := range fs {
 			f := fc.Finding
-			fmt.Fprintf(&b, "- %s **%s** (%s%s): %s\n", code(change.Location(f)), f.Rule, f.Severity, suffix(fc), mdEscape(f.Message))
+			fmt.Fprintf(&b, "- %s **%s** (%s%s): %s\n", code(change.Location(f)), mdEscape(f.Rule), f.Severity, suffix(fc), mdEscape(f.Message))
 			if hints {
 				for _, h := range f.Hints {
 					fmt.Fprintf(&b, "  - hint: %s\n", mdEscape(h))
