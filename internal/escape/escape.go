@@ -22,9 +22,11 @@ func Hidden(r rune) bool {
 }
 
 // Text is s for a terminal, a log or a message on stderr: every hidden rune becomes a
-// visible escape in Go's notation (\t, \n, \r, \x1b, \u202e, \U000e0001) and every
-// byte that is not UTF-8 becomes \xNN. The result is one line of printable text.
+// visible escape in Go's notation (\t, \n, \r, \x1b, \u202e, \U000e0001), every byte
+// that is not UTF-8 becomes \xNN, and the bracket of "##[" (a CI runner's older command
+// form, read anywhere in a line) becomes \x5b. The result is one line of printable text.
 func Text(s string) string {
+	s = strings.ReplaceAll(s, "##[", `##\x5b`)
 	if clean(s) {
 		return s
 	}

@@ -1,6 +1,7 @@
 package escape
 
 import (
+	"bytes"
 	"fmt"
 	"unicode/utf8"
 )
@@ -11,7 +12,10 @@ import (
 // JSON is ASCII; it just shows the same bytes to a reader that cats it to a terminal.
 // The encoders used escape C0 controls themselves, and JSON's own white space (tab,
 // LF, CR between tokens) must stay, so runes below U+0020 are left alone.
+// "##[" gets its bracket escaped too, for a runner that reads a JSON file catted to its
+// log.
 func JSON(doc []byte) []byte {
+	doc = bytes.ReplaceAll(doc, []byte("##["), []byte(`##\u005b`))
 	i := firstHidden(doc)
 	if i < 0 {
 		return doc
