@@ -6,6 +6,7 @@ import (
 	"encoding/xml"
 	"strings"
 	"testing"
+	"unicode/utf8"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
@@ -183,4 +184,23 @@ func must(b []byte, err error) []byte {
 		panic(err)
 	}
 	return b
+}
+
+// FuzzText holds Text's promise on any bytes: valid UTF-8, one line, no hidden rune, no
+// "##[", and the same again when escaped twice.
+func FuzzText(f *testing.F) {
+	for _, s := range []string{"x\n::error::inj", "\x1b]0;t\a\u202e", "##[add-mask]", "#\x00#[", "\xff\xfe", "\U000e0041"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		got := Text(s)
+		if !utf8.ValidString(got) || strings.Contains(got, "##[") || Text(got) != got {
+			t.Fatalf("Text(%q) = %q", s, got)
+		}
+		for _, r := range got {
+			if Hidden(r) {
+				t.Fatalf("Text(%q) = %q holds %U", s, got, r)
+			}
+		}
+	})
 }
