@@ -48,7 +48,7 @@ func newBaseline() *cobra.Command {
 			if err := run.WriteFileAtomic(out, b.Marshal()); err != nil {
 				return usageError(err)
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", len(b.Entries), len(files), out)
+			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", len(b.Entries), len(files), say(out))
 			return nil
 		},
 	}

@@ -113,7 +113,7 @@ func configError(cmd *cobra.Command, err error) error {
 	var se *schema.Error
 	if errors.As(err, &se) {
 		for _, p := range se.Problems {
-			fmt.Fprintf(cmd.ErrOrStderr(), "%s:%d:%d: error: %s [config]\n", se.File, p.Pos.Line, p.Pos.Col, p.Text())
+			fmt.Fprintf(cmd.ErrOrStderr(), "%s:%d:%d: error: %s [config]\n", say(se.File), p.Pos.Line, p.Pos.Col, say(p.Text()))
 		}
 		return &exitError{code: exitInvalid, msg: "the project config is invalid; fix it and run again"}
 	}

@@ -89,7 +89,7 @@ func newInit() *cobra.Command {
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			written, err := run.WriteStarters(dir, force)
 			for _, p := range written {
-				fmt.Fprintf(cmd.OutOrStdout(), "wrote %s\n", p)
+				fmt.Fprintf(cmd.OutOrStdout(), "wrote %s\n", say(p))
 			}
 			if err != nil {
 				return usageError(err)

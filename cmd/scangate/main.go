@@ -15,6 +15,7 @@ import (
 	"os"
 	"runtime/debug"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/run"
 )
 
@@ -43,7 +44,7 @@ func execute(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int
 	// A panic is a bug in scangate; the pipeline still gets a clear line and exit 2.
 	defer func() {
 		if p := recover(); p != nil {
-			fmt.Fprintf(stderr, "scangate: internal error: %v\n%s\nPlease report this with the input that caused it.\n", p, debug.Stack())
+			fmt.Fprintf(stderr, "scangate: internal error: %s\n%s\nPlease report this with the input that caused it.\n", say(fmt.Sprint(p)), debug.Stack())
 			code = exitInvalid
 		}
 	}()
@@ -63,11 +64,15 @@ func execute(args []string, stdin io.Reader, stdout, stderr io.Writer) (code int
 	var e *exitError
 	if errors.As(err, &e) {
 		if e.msg != "" {
-			io.WriteString(stderr, "scangate: "+e.msg+"\n")
+			io.WriteString(stderr, "scangate: "+say(e.msg)+"\n")
 		}
 		return e.code
 	}
 	// Cobra's own errors are usage errors: unknown command or flag, wrong arguments.
-	io.WriteString(stderr, "scangate: "+err.Error()+"\nRun 'scangate --help' for usage.\n")
+	io.WriteString(stderr, "scangate: "+say(err.Error())+"\nRun 'scangate --help' for usage.\n")
 	return exitInvalid
 }
+
+// say is a message for stderr, which may quote paths, names and values from the input:
+// one visible line (escape.Text) that no CI runner reads as a command (escape.Log).
+func say(msg string) string { return escape.Log(escape.Text(msg)) }

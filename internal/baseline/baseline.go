@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"sort"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -73,8 +74,8 @@ func (b File) Marshal() []byte {
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")
 	enc.SetEscapeHTML(false)
-	_ = enc.Encode(b) // plain strings and ints cannot fail to encode
-	return buf.Bytes()
+	_ = enc.Encode(b)               // plain strings and ints cannot fail to encode
+	return escape.JSON(buf.Bytes()) // the same values, no hidden rune raw
 }
 
 // Parse reads a baseline file; a syntax error names the line and column.

@@ -7,11 +7,13 @@ import (
 	"strings"
 
 	"github.com/scangate/scangate/internal/calibrate"
+	"github.com/scangate/scangate/internal/escape"
 )
 
 // CalibrationText is the report of a calibration: constants, fit, worst residuals and
-// the engine snippet.
+// the engine snippet. The file name is escaped and the page guarded (escape.Text, Log).
 func CalibrationText(file string, r *calibrate.Result) string {
+	file = escape.Text(file)
 	var b strings.Builder
 	p := func(format string, a ...any) { fmt.Fprintf(&b, format, a...) }
 	p("calibrated from %d full scans in %s\n", r.N, file)
@@ -52,7 +54,7 @@ func CalibrationText(file string, r *calibrate.Result) string {
 	}
 	p("  # calibrated from %d scans of %s: f %s ms, %s MB/s; per-row CPU rho %s ms per million rows (no engine key)\n",
 		r.N, baseName(file), pm(r.Segment.Value, r.Segment.StdErr, 1), pm(r.ScanMBPerS, r.ScanMBPerSErr, 1), rho)
-	return b.String()
+	return escape.Log(b.String())
 }
 
 // nines writes a fraction close to 1 with enough decimals to show how close: 0.99999998.

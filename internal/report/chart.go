@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/scangate/scangate/internal/analysis"
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/units"
 	"github.com/scangate/scangate/rules"
 )
@@ -51,13 +52,19 @@ func charts(b *strings.Builder, r *Result) {
 			labels := make([]string, len(bars))
 			values := make([]string, len(bars))
 			for i, bar := range bars {
-				labels[i] = fmt.Sprintf("%q", bar.label)
+				labels[i] = chartString(bar.label)
 				values[i] = fmt.Sprintf("%.0f", math.Round(bar.fixedMs))
 			}
-			fmt.Fprintf(b, "```mermaid\nxychart-beta\n    title %q\n    x-axis [%s]\n    y-axis \"fixed ms per scan\"\n    bar [%s]\n```\n\n",
-				t.Spec.Name+" (today first)", strings.Join(labels, ", "), strings.Join(values, ", "))
+			fmt.Fprintf(b, "```mermaid\nxychart-beta\n    title %s\n    x-axis [%s]\n    y-axis \"fixed ms per scan\"\n    bar [%s]\n```\n\n",
+				chartString(t.Spec.Name+" (today first)"), strings.Join(labels, ", "), strings.Join(values, ", "))
 		}
 	}
+}
+
+// chartString quotes s for the chart: one visible line (escape.Text) with no double
+// quote, which would end the chart's string early.
+func chartString(s string) string {
+	return `"` + strings.ReplaceAll(escape.Text(s), `"`, "'") + `"`
 }
 
 // chartBars is today's layout, the recommended one, then the members of the Pareto front
@@ -68,7 +75,7 @@ func chartBars(l *analysis.Layouts) []bar {
 	}
 	label := func(prefix string, f analysis.LayoutFigure) bar {
 		s := prefix + f.Label + " @" + units.Count(f.SegmentRows)
-		return bar{label: strings.ReplaceAll(s, `"`, "'"), fixedMs: f.FixedMs}
+		return bar{label: s, fixedMs: f.FixedMs}
 	}
 	bars := []bar{label("today: ", l.Today)}
 	if l.Recommended != nil {

@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/json"
 	"io"
 
 	"github.com/scangate/scangate/internal/change"
@@ -225,10 +224,7 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 		doc.Models = append(doc.Models, jm)
 	}
 	doc.Summary.AddedMs = round(doc.Summary.AddedMs)
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	return enc.Encode(doc)
+	return encodeJSON(w, doc)
 }
 
 func zeroTotals(t *change.Totals) change.Totals {

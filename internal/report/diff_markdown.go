@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/scangate/scangate/internal/change"
+	"github.com/scangate/scangate/internal/escape"
 )
 
 // writeDiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,
@@ -20,12 +21,12 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 	}
 	fmt.Fprintf(&b, "### scangate diff %s\n\n", status)
 	fmt.Fprintf(&b, "**%s**\n\n", mdEscape(upperFirst(d.Verdict())))
-	fmt.Fprintf(&b, "Base %s, head %s: %s.\n\n", code(d.Base), code(d.Head), mdEscape(r.diffSummary()))
+	fmt.Fprintf(&b, "Base %s, head %s: %s.\n\n", escape.InlineCode(d.Base), escape.InlineCode(d.Head), mdEscape(r.diffSummary()))
 	if len(d.Invalid) > 0 {
 		fmt.Fprintf(&b, "%s.\n\n", mdEscape(upperFirst(invalidWords(d))))
 		for _, inv := range d.Invalid {
 			for _, f := range inv.Findings {
-				fmt.Fprintf(&b, "- %s **%s**: %s\n", code(change.Location(f)), f.Rule, mdEscape(f.Message))
+				fmt.Fprintf(&b, "- %s **%s**: %s\n", escape.InlineCode(change.Location(f)), mdEscape(f.Rule), mdEscape(f.Message))
 			}
 		}
 		b.WriteString("\n")
@@ -72,7 +73,7 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 		// The refresh peak is the model's, so it gets a line of its own under the table.
 		for _, m := range d.Models {
 			if x, ok := refreshMetric(m); ok && m.Status != change.Unchanged {
-				fmt.Fprintf(&b, "Refresh peak of %s: %s.\n\n", code(m.Name), cell(x))
+				fmt.Fprintf(&b, "Refresh peak of %s: %s.\n\n", escape.InlineCode(m.Name), cell(x))
 			}
 		}
 	}
@@ -83,7 +84,7 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 		fmt.Fprintf(&b, "#### %s (%d)\n\n", title, len(fs))
 		for _, fc := range fs {
 			f := fc.Finding
-			fmt.Fprintf(&b, "- %s **%s** (%s%s): %s\n", code(change.Location(f)), f.Rule, f.Severity, suffix(fc), mdEscape(f.Message))
+			fmt.Fprintf(&b, "- %s **%s** (%s%s): %s\n", escape.InlineCode(change.Location(f)), mdEscape(f.Rule), f.Severity, suffix(fc), mdEscape(f.Message))
 			if hints {
 				for _, h := range f.Hints {
 					fmt.Fprintf(&b, "  - hint: %s\n", mdEscape(h))

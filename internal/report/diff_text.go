@@ -13,6 +13,7 @@ import (
 	"github.com/fatih/color"
 
 	"github.com/scangate/scangate/internal/change"
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -177,7 +178,8 @@ func points(t change.TableChange) string {
 // writeDiffText writes the change for a terminal: one block per changed table with its
 // figures before, after and the delta in aligned columns, the model totals, the new,
 // worsened and resolved findings in the GNU style, the gate, the verdict and one
-// summary line.
+// summary line. Every string from the input is escaped (escape.Text) and the page is
+// guarded for the CI runner that reads it (escape.Log).
 func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
@@ -187,11 +189,11 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 	red := sev[rules.Error]
 	d := r.Diff
 	var b strings.Builder
-	fmt.Fprintf(&b, "%s %s -> %s\n", bold("scangate diff:"), d.Base, d.Head)
+	fmt.Fprintf(&b, "%s %s -> %s\n", bold("scangate diff:"), escape.Text(d.Base), escape.Text(d.Head))
 	finding := func(f rules.Finding, suffix string) {
-		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(change.Location(f)), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"), suffix)
+		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(escape.Text(change.Location(f))), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), suffix)
 		for _, h := range f.Hints {
-			fmt.Fprintf(&b, "    hint: %s\n", h)
+			fmt.Fprintf(&b, "    hint: %s\n", escape.Text(h))
 		}
 	}
 	if len(d.Invalid) > 0 {
@@ -202,7 +204,7 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 			}
 		}
 		fmt.Fprintf(&b, "\n%s %s\n", red("cannot compare:"), invalidWords(d))
-		_, err := io.WriteString(w, b.String())
+		_, err := io.WriteString(w, escape.Log(b.String()))
 		return err
 	}
 
@@ -227,9 +229,9 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 			if t.Status == change.Unchanged {
 				continue
 			}
-			blocks = append(blocks, block{fmt.Sprintf("%s: %s (%s%s)", m.Name, t.Name, t.Status, filesWords(t)), tableMetrics(t)})
+			blocks = append(blocks, block{fmt.Sprintf("%s: %s (%s%s)", escape.Text(m.Name), escape.Text(t.Name), t.Status, filesWords(t)), tableMetrics(t)})
 		}
-		blocks = append(blocks, block{fmt.Sprintf("%s: model total (%s)", m.Name, m.Status), totalMetrics(m)})
+		blocks = append(blocks, block{fmt.Sprintf("%s: model total (%s)", escape.Text(m.Name), m.Status), totalMetrics(m)})
 	}
 	widths := [4]int{0, len("before"), len("after"), len("delta")}
 	for _, bl := range blocks {
@@ -271,7 +273,7 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 	if len(d.Resolved) > 0 {
 		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("resolved findings (%d):", len(d.Resolved))))
 		for _, f := range d.Resolved {
-			fmt.Fprintf(&b, "%s: %s %s: %s %s\n", bold(change.Location(f.Finding)), green("resolved"), f.Finding.Severity, f.Finding.Message, faint("["+f.Finding.Rule+"]"))
+			fmt.Fprintf(&b, "%s: %s %s: %s %s\n", bold(escape.Text(change.Location(f.Finding))), green("resolved"), f.Finding.Severity, escape.Text(f.Finding.Message), faint("["+escape.Text(f.Finding.Rule)+"]"))
 		}
 	}
 
@@ -279,42 +281,45 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 	if r.Failed() {
 		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), r.gateWords(func(s string) string { return s }))
 		for _, br := range r.Breaches {
-			fmt.Fprintf(&b, "  %s\n", br.Message)
+			fmt.Fprintf(&b, "  %s\n", escape.Text(br.Message))
 		}
 	} else {
 		fmt.Fprintf(&b, "%s %s\n", green("gate passed:"), r.gateWords(func(s string) string { return s }))
 	}
-	fmt.Fprintf(&b, "%s\n%s\n", bold(d.Verdict()), r.diffSummary())
-	_, err := io.WriteString(w, b.String())
+	fmt.Fprintf(&b, "%s\n%s\n", bold(escape.Text(d.Verdict())), escape.Text(r.diffSummary()))
+	_, err := io.WriteString(w, escape.Log(b.String()))
 	return err
 }
 
 // filesWords names where a table is: ", in b.yaml", or ", a.yaml -> b.yaml" when its
-// file was renamed or it moved to another file.
+// file was renamed or it moved to another file. The paths are escaped (escape.Text).
 func filesWords(t change.TableChange) string {
+	base, head := escape.Text(t.BaseFile), escape.Text(t.HeadFile)
 	switch {
 	case t.BaseFile == "":
-		return ", in " + t.HeadFile
+		return ", in " + head
 	case t.HeadFile == "":
-		return ", was in " + t.BaseFile
+		return ", was in " + base
 	case t.Moved:
-		return ", " + t.BaseFile + " -> " + t.HeadFile
+		return ", " + base + " -> " + head
 	}
-	return ", in " + t.HeadFile
+	return ", in " + head
 }
 
 // fileLines says which files were added, removed or renamed, by repository path:
 // "file renamed: a.yaml -> b.yaml (model sales)". Files kept at their path are left out.
+// Paths and names are escaped (escape.Text).
 func fileLines(d *change.Diff) []string {
 	var out []string
 	for _, f := range d.Files {
+		model := escape.Text(f.Model)
 		switch f.Status {
 		case change.FileAdded:
-			out = append(out, fmt.Sprintf("file added: %s (model %s)", f.Head.Key, f.Model))
+			out = append(out, fmt.Sprintf("file added: %s (model %s)", escape.Text(f.Head.Key), model))
 		case change.FileRemoved:
-			out = append(out, fmt.Sprintf("file removed: %s (model %s)", f.Base.Key, f.Model))
+			out = append(out, fmt.Sprintf("file removed: %s (model %s)", escape.Text(f.Base.Key), model))
 		case change.FileRenamed:
-			out = append(out, fmt.Sprintf("file renamed: %s -> %s (model %s)", f.Base.Key, f.Head.Key, f.Model))
+			out = append(out, fmt.Sprintf("file renamed: %s -> %s (model %s)", escape.Text(f.Base.Key), escape.Text(f.Head.Key), model))
 		}
 	}
 	return out
@@ -343,10 +348,10 @@ func invalidWords(d *change.Diff) string {
 	}
 	var parts []string
 	if base > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the base (%s)", plural(base, "file"), d.Base))
+		parts = append(parts, fmt.Sprintf("%s of the base (%s)", plural(base, "file"), escape.Text(d.Base)))
 	}
 	if head > 0 {
-		parts = append(parts, fmt.Sprintf("%s of the head (%s)", plural(head, "file"), d.Head))
+		parts = append(parts, fmt.Sprintf("%s of the head (%s)", plural(head, "file"), escape.Text(d.Head)))
 	}
 	verb := "break"
 	if base+head == 1 {

@@ -5,6 +5,7 @@ import (
 	"io"
 	"strings"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -14,6 +15,8 @@ func init() {
 
 // writeGitHub writes one workflow command per finding, so the runner annotates the manifest
 // line in the pull request: ::error, ::warning or ::notice with file, line, col and title.
+// Data cannot end the command's line or add one: every line break is percent-encoded,
+// every other hidden rune made visible.
 func writeGitHub(w io.Writer, r *Result, _ bool) error {
 	var b strings.Builder
 	for _, f := range r.Findings {
@@ -26,9 +29,9 @@ func writeGitHub(w io.Writer, r *Result, _ bool) error {
 			props = append(props, fmt.Sprintf("line=%d", f.Pos.Line), fmt.Sprintf("col=%d", f.Pos.Col))
 		}
 		props = append(props, "title="+EscapeProperty("scangate "+f.Rule))
-		msg := f.Message
+		msg := escape.Text(f.Message)
 		for _, h := range f.Hints {
-			msg += "\nhint: " + h
+			msg += "\nhint: " + escape.Text(h)
 		}
 		fmt.Fprintf(&b, "::%s %s::%s\n", cmd, strings.Join(props, ","), EscapeData(msg))
 	}
@@ -36,12 +39,8 @@ func writeGitHub(w io.Writer, r *Result, _ bool) error {
 	return err
 }
 
-// EscapeData escapes a workflow command's message: %, CR and LF.
-func EscapeData(s string) string {
-	return strings.NewReplacer("%", "%25", "\r", "%0D", "\n", "%0A").Replace(s)
-}
+// EscapeData escapes a workflow command's message (escape.CommandData).
+func EscapeData(s string) string { return escape.CommandData(s) }
 
-// EscapeProperty escapes a workflow command's property value: as data, plus : and ,.
-func EscapeProperty(s string) string {
-	return strings.NewReplacer("%", "%25", "\r", "%0D", "\n", "%0A", ":", "%3A", ",", "%2C").Replace(s)
-}
+// EscapeProperty escapes a workflow command's property value (escape.CommandProperty).
+func EscapeProperty(s string) string { return escape.CommandProperty(s) }

@@ -24,8 +24,10 @@ func TestGitHubOneCommandPerUnacceptedFinding(t *testing.T) {
 	}
 }
 
-// A message escapes %, CR and LF, so a multi-line message stays one command; property
-// values also escape : and , which would end the value.
+// A message escapes %, so data cannot forge an escape; a line break inside the data is
+// shown as a visible \r\n (internal/escape), and the hint lines the report itself adds
+// are encoded as %0A: one command per finding. Property values also escape : and ,
+// which would end the value.
 func TestGitHubEscapesMessagesAndProperties(t *testing.T) {
 	r := &Result{
 		Files: []File{{Name: "x.yaml", URI: "dir:a,b/100%.yaml"}},
@@ -33,7 +35,7 @@ func TestGitHubEscapesMessagesAndProperties(t *testing.T) {
 			Message: "t: 95% of the budget\r\nsecond line", Hints: []string{"a, b: c"}}},
 	}
 	out := render(t, "github", r, false)
-	want := "::warning file=dir%3Aa%2Cb/100%25.yaml,line=3,col=7,title=scangate scan-time::t: 95%25 of the budget%0D%0Asecond line%0Ahint: a, b: c\n"
+	want := "::warning file=dir%3Aa%2Cb/100%25.yaml,line=3,col=7,title=scangate scan-time::t: 95%25 of the budget\\r\\nsecond line%0Ahint: a, b: c\n"
 	if out != want {
 		t.Errorf("got:\n%q\nwant:\n%q", out, want)
 	}

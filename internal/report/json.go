@@ -1,12 +1,14 @@
 package report
 
 import (
+	"bytes"
 	"encoding/json"
 	"io"
 	"math"
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -141,10 +143,21 @@ func writeJSON(w io.Writer, r *Result, _ bool) error {
 		}
 		doc.Findings = append(doc.Findings, jf)
 	}
-	enc := json.NewEncoder(w)
+	return encodeJSON(w, doc)
+}
+
+// encodeJSON writes doc as indented JSON with a final newline; hidden runes the encoder
+// leaves raw are written as \u escapes (escape.JSON), which read back the same.
+func encodeJSON(w io.Writer, doc any) error {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
 	enc.SetIndent("", "  ")
 	enc.SetEscapeHTML(false)
-	return enc.Encode(doc)
+	if err := enc.Encode(doc); err != nil {
+		return err
+	}
+	_, err := w.Write(escape.JSON(b.Bytes()))
+	return err
 }
 
 func tableJSON(t *analysis.Table) jsonTable {

@@ -4,8 +4,8 @@ import (
 	"encoding/xml"
 	"fmt"
 	"io"
-	"strings"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -45,11 +45,13 @@ type junitFailure struct {
 // writeJUnit writes JUnit XML with a test suite per manifest, a test case per table, and a
 // failure per finding at or above the failing level. An invalid manifest is one case,
 // "schema", with a failure per problem; findings about a whole model are one case,
-// "model NAME".
+// "model NAME". Every string from the input is escaped (escape.Text) before the encoder
+// sees it: XML 1.0 has no way to write most control characters, even as references.
 func writeJUnit(w io.Writer, r *Result, _ bool) error {
 	doc := junitSuites{Name: "scangate"}
 	for _, f := range r.Files {
-		suite := junitSuite{Name: f.URI}
+		uri, model := escape.Text(f.URI), escape.Text(f.Model)
+		suite := junitSuite{Name: uri}
 		byTable := map[string][]rules.Finding{}
 		var fileLevel []rules.Finding
 		for _, x := range r.Findings {
@@ -64,14 +66,14 @@ func writeJUnit(w io.Writer, r *Result, _ bool) error {
 		}
 		switch {
 		case f.Invalid:
-			suite.Cases = append(suite.Cases, junitCase{Name: "schema", Classname: f.URI, File: f.URI, Failures: failures(fileLevel)})
+			suite.Cases = append(suite.Cases, junitCase{Name: "schema", Classname: uri, File: uri, Failures: failures(fileLevel)})
 		case len(fileLevel) > 0:
 			// Findings about the model as a whole (refresh memory) belong to no table.
-			suite.Cases = append(suite.Cases, junitCase{Name: "model " + f.Model, Classname: f.Model, File: f.URI, Failures: failures(fileLevel)})
+			suite.Cases = append(suite.Cases, junitCase{Name: "model " + model, Classname: model, File: uri, Failures: failures(fileLevel)})
 		}
 		for _, t := range f.Tables {
 			suite.Cases = append(suite.Cases, junitCase{
-				Name: t.Spec.Name, Classname: f.Model, File: f.URI, Line: t.Spec.Pos.Line,
+				Name: escape.Text(t.Spec.Name), Classname: model, File: uri, Line: t.Spec.Pos.Line,
 				Failures: failures(byTable[t.Spec.Name]),
 			})
 		}
@@ -100,11 +102,12 @@ func writeJUnit(w io.Writer, r *Result, _ bool) error {
 func failures(fs []rules.Finding) []junitFailure {
 	var out []junitFailure
 	for _, f := range fs {
-		text := fmt.Sprintf("%s:%d:%d: %s: %s", f.File, f.Pos.Line, f.Pos.Col, f.Severity, f.Message)
-		if len(f.Hints) > 0 {
-			text += "\nhint: " + strings.Join(f.Hints, "\nhint: ")
+		msg := escape.Text(f.Message)
+		text := fmt.Sprintf("%s:%d:%d: %s: %s", escape.Text(f.File), f.Pos.Line, f.Pos.Col, f.Severity, msg)
+		for _, h := range f.Hints {
+			text += "\nhint: " + escape.Text(h)
 		}
-		out = append(out, junitFailure{Message: f.Message, Type: f.Rule + " (" + f.Severity.String() + ")", Text: text})
+		out = append(out, junitFailure{Message: msg, Type: escape.Text(f.Rule) + " (" + f.Severity.String() + ")", Text: text})
 	}
 	return out
 }

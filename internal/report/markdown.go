@@ -5,8 +5,8 @@ import (
 	"io"
 	"strings"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/units"
-
 	"github.com/scangate/scangate/rules"
 )
 
@@ -20,7 +20,8 @@ func init() {
 
 // writeMarkdown writes a summary for a job page or a pull-request comment: a verdict line, a
 // table of tables with their layout against the budget, then the findings grouped by
-// severity with their hints.
+// severity with their hints. Input strings are inline text (mdEscape) or code spans
+// (code), so none can break the table or become markup.
 func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 	var b strings.Builder
 	n := r.Counts()
@@ -81,34 +82,14 @@ func mdFinding(b *strings.Builder, f rules.Finding, note string) {
 	if f.Pos.Line > 0 {
 		loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
 	}
-	fmt.Fprintf(b, "- %s **%s** %s: %s%s\n", code(loc), f.Severity, f.Rule, mdEscape(f.Message), note)
+	fmt.Fprintf(b, "- %s **%s** %s: %s%s\n", escape.InlineCode(loc), f.Severity, mdEscape(f.Rule), mdEscape(f.Message), note)
 	for _, h := range f.Hints {
 		fmt.Fprintf(b, "  - hint: %s\n", mdEscape(h))
 	}
 }
 
-// mdEscape backslash-escapes the characters Markdown would read as markup.
-func mdEscape(s string) string {
-	var b strings.Builder
-	for _, r := range s {
-		if strings.ContainsRune("\\`*_[]<>|#!{}", r) {
-			b.WriteByte('\\')
-		}
-		b.WriteRune(r)
-	}
-	return b.String()
-}
-
-// code wraps s in a code span, with a fence longer than any backtick run inside it, and
-// escapes the pipe, which ends a table cell even inside a code span.
-func code(s string) string {
-	fence := "`"
-	for strings.Contains(s, fence) {
-		fence += "`"
-	}
-	s = strings.ReplaceAll(s, "|", "\\|")
-	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") {
-		s = " " + s + " "
-	}
-	return fence + s + fence
-}
+// mdEscape and code are the Markdown escapes every Markdown report uses.
+var (
+	mdEscape = escape.Markdown
+	code     = escape.Code
+)

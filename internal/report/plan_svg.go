@@ -3,10 +3,10 @@ package report
 import (
 	"bytes"
 	"fmt"
-	"html"
 	"io"
 	"math"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
@@ -63,7 +63,8 @@ func planSVG(m *schema.Manifest, plans []advisor.TablePlan) []byte {
 	return b.Bytes()
 }
 
-func esc(s string) string { return html.EscapeString(s) }
+// esc is every string the picture shows, as XML text (escape.XML).
+func esc(s string) string { return escape.XML(s) }
 
 // f1 writes a coordinate with one decimal, so the file is the same on every machine.
 func f1(x float64) string { return fmt.Sprintf("%.1f", x) }

@@ -6,6 +6,7 @@ import (
 	"strings"
 	"time"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
@@ -25,7 +26,8 @@ type PlanOptions struct {
 }
 
 // planText writes the plan of every table for an 80-column terminal, separated by blank
-// lines.
+// lines. Names from the manifest reach it in headings, paragraphs (para), grid cells
+// (grid) and the snippet; each of those escapes what it writes (escape.Text).
 func planText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) string {
 	var b strings.Builder
 	for n, p := range plans {
@@ -40,9 +42,9 @@ func planText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) st
 func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt PlanOptions) {
 	e := m.Engine
 	t := p.Spec
-	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", t.Name, m.File, t.Pos.Line, t.Pos.Col)
+	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", escape.Text(t.Name), escape.Text(m.File), t.Pos.Line, t.Pos.Col)
 	if p.Problems != "" {
-		fmt.Fprintf(b, "   %s\n", p.Problems)
+		fmt.Fprintf(b, "   %s\n", escape.Text(p.Problems))
 		return
 	}
 	sw := p.Sweep
@@ -163,7 +165,7 @@ func renderGroups(b *strings.Builder, t schema.Table, s int64) {
 	grid(b, "   ", []column{{head: "partitions", clip: true}, {head: "count", right: true},
 		{head: "rows each"}, {head: "segments"}, {head: "last segment full"}}, rows)
 	if len(parts) > 0 && parts[0].Open {
-		fmt.Fprintf(b, "   the newest %s is the open partition (still filling; not counted as excess)\n", gs[0].label)
+		fmt.Fprintf(b, "   the newest %s is the open partition (still filling; not counted as excess)\n", escape.Text(gs[0].label))
 	}
 }
 
@@ -248,7 +250,7 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	fmt.Fprintf(b, "   %-15s %s -> %s\n", "segments", units.Num(now.Layout.Segments), units.Num(c.Layout.Segments))
 	fmt.Fprintf(b, "   %-15s %s -> %s ms per scan (%s ms)\n", "fixed CPU", units.Ms(now.Layout.FixedMs), units.Ms(c.Layout.FixedMs), units.Signed(c.Layout.FixedMs-now.Layout.FixedMs))
 	if c.Widest != "" {
-		fmt.Fprintf(b, "   %-15s %s -> %s ms (%s)\n", "scan wall", units.Ms(now.WallMs), units.Ms(c.WallMs), clip(c.Widest, 30))
+		fmt.Fprintf(b, "   %-15s %s -> %s ms (%s)\n", "scan wall", units.Ms(now.WallMs), units.Ms(c.WallMs), clip(escape.Text(c.Widest), 30))
 	}
 	if sw.Profiled {
 		fmt.Fprintf(b, "   %-15s %s -> %s\n", "refresh peak", units.Size(now.Peak), units.Size(c.Peak))
@@ -265,7 +267,7 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	}
 	b.WriteString("\n")
 	for _, line := range strings.Split(strings.TrimRight(advisor.Snippet(c), "\n"), "\n") {
-		b.WriteString("   " + line + "\n")
+		b.WriteString("   " + escape.Text(line) + "\n")
 	}
 }
 
@@ -365,7 +367,7 @@ func holdsText(fc *advisor.Forecast, end string) string {
 // para writes text word-wrapped to planWidth, every line starting with indent.
 func para(b *strings.Builder, indent, text string) {
 	line := indent
-	for _, w := range strings.Fields(text) {
+	for _, w := range strings.Fields(escape.Text(text)) {
 		if len([]rune(line))+1+len([]rune(w)) > planWidth && strings.TrimSpace(line) != "" {
 			b.WriteString(strings.TrimRight(line, " ") + "\n")
 			line = indent + "  "
@@ -387,8 +389,14 @@ type column struct {
 }
 
 // grid writes rows under their headings, each column as wide as its widest cell; when
-// the lines would pass planWidth, the clippable column gives up the difference.
+// the lines would pass planWidth, the clippable column gives up the difference. Cells
+// are escaped (escape.Text) before they are measured.
 func grid(b *strings.Builder, indent string, cols []column, rows [][]string) {
+	for _, r := range rows {
+		for i := range r {
+			r[i] = escape.Text(r[i])
+		}
+	}
 	w := make([]int, len(cols))
 	for i, c := range cols {
 		w[i] = runes(c.head)

@@ -1,12 +1,14 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"strings"
 
 	"github.com/owenrumney/go-sarif/v3/pkg/report/v210/sarif"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -80,10 +82,12 @@ func writeSARIF(w io.Writer, r *Result, _ bool) error {
 		run.AddResult(res)
 	}
 	log.AddRun(run)
-	if err := log.PrettyWrite(w); err != nil {
+	var b bytes.Buffer
+	if err := log.PrettyWrite(&b); err != nil {
 		return err
 	}
-	_, err := io.WriteString(w, "\n")
+	b.WriteString("\n")
+	_, err := w.Write(escape.JSON(b.Bytes())) // the same values, no hidden rune raw
 	return err
 }
 

@@ -8,6 +8,7 @@ import (
 
 	"github.com/fatih/color"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -17,7 +18,7 @@ func init() {
 		check:  writeText,
 		diff:   writeDiffText,
 		plan: func(w io.Writer, p *Plan, _ bool) error {
-			_, err := io.WriteString(w, planText(p.Manifest, p.Plans, PlanOptions{Today: p.Today, Horizon: p.Horizon}))
+			_, err := io.WriteString(w, escape.Log(planText(p.Manifest, p.Plans, PlanOptions{Today: p.Today, Horizon: p.Horizon})))
 			return err
 		},
 	})
@@ -25,7 +26,9 @@ func init() {
 
 // writeText writes findings in the GNU style, "path:line:col: severity: message [rule]",
 // each followed by indented hint lines, then one summary line. Colour is used only
-// when asked for; the caller decides from the terminal, NO_COLOR and --no-color.
+// when asked for; the caller decides from the terminal, NO_COLOR and --no-color. Every
+// string from the input is escaped (escape.Text), and the page is guarded for the CI
+// runner that reads it (escape.Log).
 func writeText(w io.Writer, r *Result, useColor bool) error {
 	paint := painter(useColor)
 	bold := paint(color.New(color.Bold))
@@ -33,13 +36,13 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	sev := severityPaint(paint)
 	var b strings.Builder
 	line := func(f rules.Finding, note string) {
-		loc := f.File
+		loc := escape.Text(f.File)
 		if f.Pos.Line > 0 {
-			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
 		}
-		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), f.Message, faint("["+f.Rule+"]"), note)
+		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
 		for _, h := range f.Hints {
-			fmt.Fprintf(&b, "    hint: %s\n", h)
+			fmt.Fprintf(&b, "    hint: %s\n", escape.Text(h))
 		}
 	}
 	for _, f := range r.Findings {
@@ -48,12 +51,12 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 		}
 		note := ""
 		if w := f.Waiver; w != nil {
-			note = faint(fmt.Sprintf(" (waived until %s: %s)", w.Expires.Format("2006-01-02"), w.Reason))
+			note = faint(fmt.Sprintf(" (waived until %s: %s)", w.Expires.Format("2006-01-02"), escape.Text(w.Reason)))
 		}
 		line(f, note)
 	}
 	if _, baselined := r.Accepted(); baselined > 0 {
-		fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", r.Baseline.File)
+		fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
 		for _, f := range r.Findings {
 			if f.Baselined {
 				line(f, "")
@@ -62,11 +65,11 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	}
 	if r.Baseline != nil && r.Baseline.Fixed > 0 {
 		fmt.Fprintf(&b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
-			plural(r.Baseline.Fixed, "baseline entry"), r.Baseline.File)
+			plural(r.Baseline.Fixed, "baseline entry"), escape.Text(r.Baseline.File))
 	}
 	b.WriteString(SummaryLine(r))
 	b.WriteByte('\n')
-	_, err := io.WriteString(w, b.String())
+	_, err := io.WriteString(w, escape.Log(b.String()))
 	return err
 }
 

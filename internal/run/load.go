@@ -7,6 +7,7 @@ import (
 	"os"
 	"strings"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -41,11 +42,11 @@ func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limit
 		return nil, fmt.Errorf("%s: %v", in.name, err)
 	}
 	for _, f := range rules.SchemaFindings(se) {
-		loc := f.File
+		loc := escape.Text(f.File)
 		if f.Pos.Line > 0 {
-			loc = fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
+			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
 		}
-		fmt.Fprintf(stderr, "%s: error: %s [%s]\n", loc, f.Message, f.Rule)
+		fmt.Fprint(stderr, escape.Log(fmt.Sprintf("%s: error: %s [%s]\n", loc, escape.Text(f.Message), escape.Text(f.Rule))))
 	}
 	return nil, fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name)
 }
