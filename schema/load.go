@@ -184,7 +184,7 @@ func keyProblem(msg string, lines []string, line int, reported bool) (Problem, b
 	}
 	for i := 0; i < last; i++ {
 		if col, n := longKey(lines[i]); n > 0 {
-			return Problem{Pos: Pos{i + 1, col}, Message: fmt.Sprintf("invalid YAML: the key that starts here is %s characters long, above YAML's limit of %s for a key (YAML 1.2, section 7.4); shorten it", group(int64(n)), group(maxKeyLength))}, true
+			return Problem{Pos: Pos{i + 1, col}, Message: fmt.Sprintf("invalid YAML: the key that starts here is %s characters long, above YAML's limit of %s characters for a key; shorten it", group(int64(n)), group(maxKeyLength))}, true
 		}
 	}
 	if !missingColon || line > len(lines) {

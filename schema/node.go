@@ -267,9 +267,9 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	return nil, problemAt(n, t.here(), "unsupported YAML node")
 }
 
-// maxKeyLength is YAML's bound on an implicit key (YAML 1.2, section 7.4: 1024
-// characters), kept for JSON and quoted keys too: no manifest key comes near it, and a
-// longer one would be quoted whole in messages.
+// maxKeyLength is YAML 1.2's bound on an implicit key, 1024 characters (the note on its
+// implicit-key productions; from memory), kept for JSON and explicit keys too: no
+// manifest key comes near it, and a longer one would be quoted whole in messages.
 const maxKeyLength = 1024
 
 func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
