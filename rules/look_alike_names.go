@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strings"
 	"unicode"
+	"unicode/utf8"
 
 	"golang.org/x/text/cases"
 	"golang.org/x/text/unicode/norm"
@@ -55,28 +56,43 @@ type named struct {
 	pos  schema.Pos
 }
 
-// lookAlikes returns, for each name whose key an earlier, different name already has,
-// that pair (earlier first). Linear in the names.
-func lookAlikes(names []named) [][2]named {
-	first := make(map[string]named, len(names))
+// lookAlikes returns, for each of the n names whose key an earlier, different name
+// already has, that pair (earlier first). Linear in the names.
+func lookAlikes(n int, at func(i int) named) [][2]named {
+	first := make(map[string]named, n)
 	fold := cases.Fold() // a Caser holds state: one per call, as checks run in parallel
 	var out [][2]named
-	for _, n := range names {
-		k := lookAlikeKey(fold, n.name)
+	for i := range n {
+		nm := at(i)
+		k := lookAlikeKey(fold, nm.name)
 		if f, seen := first[k]; !seen {
-			first[k] = n
-		} else if f.name != n.name {
-			out = append(out, [2]named{f, n})
+			first[k] = nm
+		} else if f.name != nm.name {
+			out = append(out, [2]named{f, nm})
 		}
 	}
 	return out
 }
 
 // lookAlikeKey is the name as a reader sees it: without invisible characters, NFKC,
-// case-folded (Unicode Standard section 3.13, compatibility caseless matching).
+// case-folded (Unicode Standard section 3.13, compatibility caseless matching). Plain
+// ASCII, the common case, only needs lower case: it has no invisible characters and
+// NFKC leaves it alone.
 func lookAlikeKey(fold cases.Caser, s string) string {
+	if isASCII(s) {
+		return strings.ToLower(s)
+	}
 	s = norm.NFKC.String(stripInvisible(s))
 	return stripInvisible(norm.NFKC.String(fold.String(s)))
+}
+
+func isASCII(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if s[i] >= utf8.RuneSelf {
+			return false
+		}
+	}
+	return true
 }
 
 func invisible(r rune) bool {
@@ -143,12 +159,8 @@ func lookAlikeFinding(file, table, kind string, pair [2]named) Finding {
 // checkLookAlikeTables compares the names of every table of the manifest.
 func checkLookAlikeTables(md *analysis.Model, _ Config) []Finding {
 	m := md.Manifest
-	names := make([]named, len(m.Tables))
-	for i, t := range m.Tables {
-		names[i] = named{t.Name, t.Pos}
-	}
 	var out []Finding
-	for _, pair := range lookAlikes(names) {
+	for _, pair := range lookAlikes(len(m.Tables), func(i int) named { return named{m.Tables[i].Name, m.Tables[i].Pos} }) {
 		f := lookAlikeFinding(m.File, "", "table", pair)
 		f.Table = pair[1].name
 		out = append(out, f)
@@ -160,18 +172,11 @@ func checkLookAlikeTables(md *analysis.Model, _ Config) []Finding {
 // partitions' names.
 func checkLookAlikeColumnsAndItems(t *analysis.Table, _ Config) []Finding {
 	var out []Finding
-	cols := make([]named, len(t.Spec.Columns))
-	for i, c := range t.Spec.Columns {
-		cols[i] = named{c.Name, c.Pos}
-	}
-	for _, pair := range lookAlikes(cols) {
+	cols, items := t.Spec.Columns, t.Spec.Partitions.Items
+	for _, pair := range lookAlikes(len(cols), func(i int) named { return named{cols[i].Name, cols[i].Pos} }) {
 		out = append(out, lookAlikeFinding(t.File, t.Spec.Name, "column", pair))
 	}
-	items := make([]named, len(t.Spec.Partitions.Items))
-	for i, it := range t.Spec.Partitions.Items {
-		items[i] = named{it.Name, it.Pos}
-	}
-	for _, pair := range lookAlikes(items) {
+	for _, pair := range lookAlikes(len(items), func(i int) named { return named{items[i].Name, items[i].Pos} }) {
 		out = append(out, lookAlikeFinding(t.File, t.Spec.Name, "partition", pair))
 	}
 	return out
