@@ -28,7 +28,9 @@ type jsonReader struct {
 	lim   Limits
 }
 
-// jsonFail is a reader error: a positioned problem that ends the read.
+// jsonFail is a reader error: a positioned problem that ends the read. fail panics with
+// it and parseJSON recovers it, so the recursive reader needs no error returns; any
+// other panic is passed on.
 type jsonFail struct{ p Problem }
 
 // parseJSON reads data (already known to be UTF-8 without NUL bytes) into a node tree.

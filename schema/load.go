@@ -31,7 +31,8 @@ type Options struct {
 // LoadWith is Load with a project config: engine fields resolve manifest first, then the
 // named profile, then the defaults; budgets resolve table, then manifest, then project.
 func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
-	t, ps := parse(file, data, o.Limits, "a manifest starts with \"format: 1\"")
+	const start = "a manifest starts with \"format: 1\""
+	t, ps := parse(file, data, o.Limits, start)
 	if t == nil {
 		return nil, &Error{File: file, Problems: ps}
 	}
@@ -43,6 +44,9 @@ func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
 		var dps []Problem
 		m, dps = t.decode(root, o.Project, bad)
 		ps = append(ps, dps...)
+	} else if len(ps) == 0 {
+		// The schema refuses any other root; this keeps a nil manifest from passing.
+		ps = []Problem{{Pos: Pos{1, 1}, Message: "a manifest is a mapping of keys; " + start}}
 	}
 	if len(ps) > 0 {
 		return nil, &Error{File: file, Problems: sortProblems(ps)}

@@ -65,18 +65,21 @@ type tree struct {
 	// refused are the pointers of values the conversion refused: validation and decoding
 	// say nothing more about them.
 	refused map[string]bool
+	// reported are the nodes a problem was recorded for: a node reached again through an
+	// alias is refused at every pointer but reported once, where it is written.
+	reported map[*yaml.Node]bool
 }
 
-// refuse records a problem the conversion goes on after. Inside an alias it is only
-// marked: the anchored value reports it once, where it is written.
+// refuse records a problem the conversion goes on after.
 func (t *tree) refuse(n *yaml.Node, ptr, msg string, value bool) {
+	if t.refused == nil {
+		t.refused, t.reported = map[string]bool{}, map[*yaml.Node]bool{}
+	}
 	if value {
-		if t.refused == nil {
-			t.refused = map[string]bool{}
-		}
 		t.refused[ptr] = true
 	}
-	if t.inAlias == 0 {
+	if !t.reported[n] {
+		t.reported[n] = true
 		t.problems = append(t.problems, *problemAt(n, ptr, msg))
 	}
 }

@@ -213,3 +213,29 @@ func TestLoadConfigReportsEveryProblem(t *testing.T) {
 		}
 	}
 }
+
+// A refused value reached through aliases is reported once, at the anchor, and also when
+// the anchor itself is never read (a merged key the mapping sets itself): a refused value
+// must never load as nothing. A node with an anchor starts at the anchor.
+func TestLoadRefusedThroughAlias(t *testing.T) {
+	const src = `format: 1
+model: m
+engine: {segment_rows: 1M}
+tables:
+  - name: a
+    rows: 5
+    <<: {rows: &r 0x10}
+    partitions: {scheme: none}
+  - {name: b, rows: *r, partitions: {scheme: none}}
+  - {name: c, rows: *r, partitions: {scheme: none}}
+`
+	ps := problems(t, []byte(src), schema.DefaultLimits)
+	if len(ps) != 1 || ps[0].Pos != at(t, src, 7, "&r") || !strings.Contains(ps[0].Message, `"0x10" is a hexadecimal number`) {
+		t.Errorf("problems = %v", ps)
+	}
+	const anchored = "format: 1\nmodel: m\nengine: {segment_rows: &s 0x10}\nbudgets: {refresh_memory: *s}\ntables: [{name: a, rows: *s, partitions: {scheme: none}}]\n"
+	ps = problems(t, []byte(anchored), schema.DefaultLimits)
+	if len(ps) != 1 || ps[0].Pos != at(t, anchored, 3, "&s") || ps[0].Path != "/engine/segment_rows" {
+		t.Errorf("problems = %v", ps)
+	}
+}
