@@ -11,7 +11,7 @@ var Schema = Rule{
 		"file is refused as a whole and every problem in it is listed with its line and column.",
 	Fix: "Change the value at the reported line and column as the message says. The manifest " +
 		"reference in the README lists every key, its type and its default.",
-	How: "The file is parsed as YAML (JSON is YAML), validated against schema/manifest.schema.json, then checked for what a schema cannot say: whole-number quantities within limits, unique names, tiers from finer to coarser grains.",
+	How: "The file is parsed as YAML, or as strict JSON when its name ends in .json, validated against schema/manifest.schema.json and, in the same pass, checked for what a schema cannot say: whole-number quantities within limits, unique names, tiers from finer to coarser grains, list sums.",
 	Bad: `engine:
   segment_rows: 8Xi   # not a count`,
 	Good: `engine:

@@ -77,19 +77,20 @@ func sortedNames[V any](m map[string]V) []string {
 // LoadConfig reads and validates a project config with the same positioned errors as
 // manifests.
 func LoadConfig(file string, data []byte, lim Limits) (*ProjectConfig, error) {
-	t, ps := parse(data, lim, "write at least one of engines:, budgets:, rules:, include:, exclude:")
-	if len(ps) == 0 {
-		ps = t.validate(configDoc)
-	}
-	if len(ps) > 0 {
+	t, ps := parse(file, data, lim, "write at least one of engines:, budgets:, rules:, include:, exclude:")
+	if t == nil {
 		return nil, &Error{File: file, Problems: ps}
 	}
-	d := &decoder{t: t}
+	// As for manifests, the schema and the decoding report together.
+	ps, bad := t.check(configDoc)
+	d := &decoder{t: t, bad: bad}
 	root, _ := t.root.(map[string]any)
 	c := &ProjectConfig{File: file, Engines: map[string]EngineSettings{}, Rules: map[string]RuleSettings{}}
 	engines, _ := root["engines"].(map[string]any)
 	for _, name := range sortedNames(engines) {
-		c.Engines[name] = d.engineSettings("/engines/"+escapeToken(name), engines[name].(map[string]any))
+		if e, ok := engines[name].(map[string]any); ok {
+			c.Engines[name] = d.engineSettings("/engines/"+escapeToken(name), e)
+		}
 	}
 	if b, ok := root["budgets"].(map[string]any); ok {
 		c.Budgets = d.budgets("/budgets", b)
@@ -111,9 +112,8 @@ func LoadConfig(file string, data []byte, lim Limits) (*ProjectConfig, error) {
 	}
 	c.Include = stringList(root["include"])
 	c.Exclude = stringList(root["exclude"])
-	if len(d.problems) > 0 {
-		sortProblems(d.problems)
-		return nil, &Error{File: file, Problems: d.problems}
+	if ps = append(ps, d.kept()...); len(ps) > 0 {
+		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
 	return c, nil
 }

@@ -13,40 +13,67 @@ import (
 // keep: 1000000000 days is refused instead of exhausting memory.
 const MaxPartitions = 1_000_000
 
-// decoder turns a validated tree into a Manifest. The schema has already checked
-// shapes and types, so decoding only parses quantities and checks what a JSON Schema
-// cannot say (unique names, tier order, exact whole numbers).
+// decoder turns a tree into a Manifest: it parses quantities and checks what a JSON
+// Schema cannot say (unique names, tier order, exact whole numbers, list sums). It runs
+// beside the schema, on a tree that may not match it: it reads only values of the type it
+// expects and skips those the schema or the conversion found wrong (bad), so every
+// problem of a file is reported in one run and none twice.
 type decoder struct {
 	t        *tree
+	bad      badValues
 	problems []Problem
 }
 
-func (t *tree) decode(project *ProjectConfig) (*Manifest, []Problem) {
-	d := &decoder{t: t}
-	root := t.root.(map[string]any)
+// ok reports whether the value at ptr may be checked: neither it nor a value holding it
+// was found wrong.
+func (d *decoder) ok(ptr string) bool { return !d.bad.covers(ptr) }
+
+func (t *tree) decode(root map[string]any, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
+	d := &decoder{t: t, bad: bad}
 	m := &Manifest{Format: 1, Pos: d.pos("")}
 	m.Model, _ = root["model"].(string)
-	m.Engine = d.engine("/engine", root["engine"].(map[string]any), project)
+	engine, _ := root["engine"].(map[string]any)
+	m.Engine = d.engine("/engine", engine, project)
 	if project != nil {
 		m.Budgets = project.Budgets
 	}
 	if b, ok := root["budgets"].(map[string]any); ok {
 		m.Budgets = m.Budgets.Override(d.budgets("/budgets", b))
 	}
-	tables := root["tables"].([]any)
+	tables, _ := root["tables"].([]any)
+	if !d.ok("/tables") {
+		tables = nil
+	}
 	names := make(map[string]Pos, len(tables))
 	m.Tables = make([]Table, 0, len(tables))
 	for i, raw := range tables {
 		ptr := "/tables/" + strconv.Itoa(i)
-		tb := d.table(ptr, raw.(map[string]any))
-		if first, dup := names[tb.Name]; dup {
-			d.fail(ptr+"/name", fmt.Sprintf("table %q is already declared at line %d; table names must be unique", tb.Name, first.Line))
-		} else {
-			names[tb.Name] = d.pos(ptr + "/name")
+		tm, isMap := raw.(map[string]any)
+		if !isMap || !d.ok(ptr) {
+			continue
+		}
+		tb := d.table(ptr, tm)
+		if _, named := tm["name"].(string); named && d.ok(ptr+"/name") {
+			if first, dup := names[tb.Name]; dup {
+				d.fail(ptr+"/name", fmt.Sprintf("table %s is already declared at line %d; table names must be unique", quoteShort(tb.Name), first.Line))
+			} else {
+				names[tb.Name] = d.pos(ptr + "/name")
+			}
 		}
 		m.Tables = append(m.Tables, tb)
 	}
-	return m, d.problems
+	return m, d.kept()
+}
+
+// kept is the decoder's problems without those about values already found wrong.
+func (d *decoder) kept() []Problem {
+	out := d.problems[:0]
+	for _, p := range d.problems {
+		if d.ok(p.Path) {
+			out = append(out, p)
+		}
+	}
+	return out
 }
 
 func (d *decoder) pos(ptr string) Pos {
@@ -69,6 +96,9 @@ func (d *decoder) fail(ptr, msg string) {
 }
 
 func (d *decoder) count(ptr string, v any, positive bool) int64 {
+	if !d.ok(ptr) {
+		return 0
+	}
 	n, err := count(v, positive)
 	if err != nil {
 		d.fail(ptr, err.Error())
@@ -96,6 +126,9 @@ func optNumber(m map[string]any, key string) *float64 {
 }
 
 func (d *decoder) bytes(ptr string, v any) int64 {
+	if !d.ok(ptr) {
+		return 0
+	}
 	n, err := quantity(v, MaxBytes, "bytes", ParseBytes)
 	if err != nil {
 		d.fail(ptr, err.Error())
@@ -262,12 +295,20 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 	if b, ok := raw["budgets"].(map[string]any); ok {
 		t.Budgets = d.budgets(ptr+"/budgets", b)
 	}
-	t.Partitions = d.partitions(ptr+"/partitions", raw["partitions"].(map[string]any))
+	itemsOK := false
+	if pm, ok := raw["partitions"].(map[string]any); ok && d.ok(ptr+"/partitions") {
+		t.Partitions, itemsOK = d.partitions(ptr+"/partitions", pm)
+	}
 	ws, _ := raw["waivers"].([]any)
 	for i, w := range ws {
-		t.Waivers = append(t.Waivers, d.waiver(ptr+"/waivers/"+strconv.Itoa(i), w.(map[string]any)))
+		wp := ptr + "/waivers/" + strconv.Itoa(i)
+		if wm, ok := w.(map[string]any); ok && d.ok(wp) {
+			t.Waivers = append(t.Waivers, d.waiver(wp, wm))
+		}
 	}
-	if t.Partitions.Scheme == SchemeList && !t.RowsDeclared {
+	// The sum is checked only when every item is well-formed; a wrong item would make it
+	// a guess.
+	if t.Partitions.Scheme == SchemeList && !t.RowsDeclared && itemsOK {
 		for _, it := range t.Partitions.Items {
 			t.Rows += it.Rows // each item is <= MaxCount and items are bounded by the file size
 		}
@@ -279,77 +320,131 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 	seen := map[string]int{}
 	for i, c := range cols {
 		cp := ptr + "/columns/" + strconv.Itoa(i)
-		col := d.column(cp, c.(map[string]any))
-		if line, dup := seen[col.Name]; dup {
-			d.fail(cp+"/name", fmt.Sprintf("column %q is already profiled at line %d; column names must be unique", col.Name, line))
+		cm, ok := c.(map[string]any)
+		if !ok || !d.ok(cp) {
+			continue
 		}
-		seen[col.Name] = col.Pos.Line
+		col := d.column(cp, cm)
+		if _, named := cm["name"].(string); named && d.ok(cp+"/name") {
+			if line, dup := seen[col.Name]; dup {
+				d.fail(cp+"/name", fmt.Sprintf("column %s is already profiled at line %d; column names must be unique", quoteShort(col.Name), line))
+			} else {
+				seen[col.Name] = col.Pos.Line
+			}
+		}
 		t.Columns = append(t.Columns, col)
 	}
 	return t
 }
 
-func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
-	p := Partitions{Pos: d.keyPos(ptr)}
+// partitions decodes a policy; itemsOK says a list policy's items are all well-formed.
+func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, itemsOK bool) {
+	p = Partitions{Pos: d.keyPos(ptr)}
 	s, _ := raw["scheme"].(string)
+	if !d.ok(ptr + "/scheme") {
+		s = ""
+	}
 	p.Scheme = Scheme(s)
 	switch p.Scheme {
 	case SchemeEven:
-		p.Count = int(number(raw["count"]))
+		if d.ok(ptr + "/count") {
+			p.Count = int(min(number(raw["count"]), MaxPartitions+1))
+		}
 		if p.Count > MaxPartitions {
 			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", group(int64(p.Count)), group(MaxPartitions)))
 		}
 	case SchemeTime:
-		total := 0.0
-		for i, raw := range raw["tiers"].([]any) {
-			tp := ptr + "/tiers/" + strconv.Itoa(i)
-			tm := raw.(map[string]any)
-			g, _ := tm["grain"].(string)
-			keep := number(tm["keep"])
-			tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: d.pos(tp)}
-			if i > 0 {
-				prev := p.Tiers[i-1]
-				if tier.Grain.Rank() <= prev.Grain.Rank() {
-					d.fail(tp+"/grain", fmt.Sprintf("grain %s must be coarser than the %s of the tier before it; tiers go from newest to oldest, finer to coarser", tier.Grain, prev.Grain))
-				}
-			}
-			total += keep
-			p.Tiers = append(p.Tiers, tier)
-		}
-		if total > MaxPartitions {
-			d.fail(ptr+"/tiers", fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
-		}
+		p.Tiers = d.tiers(ptr+"/tiers", raw["tiers"])
 	case SchemeList:
-		items := raw["items"].([]any)
-		names := make(map[string]int, len(items))
-		p.Items = make([]Item, 0, len(items))
-		// A list may hold 100,000 items: find the sequence once and take each item's
-		// position from it, and build an item's pointer only to report a problem there.
-		seq := deref(d.t.locate(ptr + "/items").value)
-		bySeq := seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items)
-		for i, raw := range items {
-			ip := func() string { return ptr + "/items/" + strconv.Itoa(i) }
-			im := raw.(map[string]any)
-			it := Item{}
-			if bySeq {
-				it.Pos = Pos{seq.Content[i].Line, seq.Content[i].Column}
-			} else {
-				it.Pos = d.pos(ip())
-			}
-			it.Name, _ = im["name"].(string)
+		p.Items, itemsOK = d.items(ptr+"/items", raw["items"])
+	}
+	return p, itemsOK
+}
+
+// tiers decodes a time policy's tiers and checks their order and total. Only two
+// well-formed neighbours are compared.
+func (d *decoder) tiers(ptr string, v any) []Tier {
+	list, _ := v.([]any)
+	if !d.ok(ptr) {
+		return nil
+	}
+	var out []Tier
+	var prev *Tier
+	total := 0.0
+	for i, raw := range list {
+		tp := ptr + "/" + strconv.Itoa(i)
+		tm, isMap := raw.(map[string]any)
+		g, _ := tm["grain"].(string)
+		keep := 0.0
+		if d.ok(tp + "/keep") {
+			keep = number(tm["keep"])
+		}
+		tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: d.pos(tp)}
+		if !isMap || !d.ok(tp) || !d.ok(tp+"/grain") || tier.Grain.Rank() < 0 {
+			prev = nil
+			total += keep
+			continue
+		}
+		if prev != nil && tier.Grain.Rank() <= prev.Grain.Rank() {
+			d.fail(tp+"/grain", fmt.Sprintf("grain %s must be coarser than the %s of the tier before it; tiers go from newest to oldest, finer to coarser", tier.Grain, prev.Grain))
+		}
+		total += keep
+		out = append(out, tier)
+		prev = &out[len(out)-1]
+	}
+	if total > MaxPartitions {
+		d.fail(ptr, fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
+	}
+	return out
+}
+
+// items decodes a list policy's items and checks their names are unique; allOK is false
+// when any item is wrong, so its rows are not summed.
+func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
+	items, _ := v.([]any)
+	if !d.ok(ptr) {
+		return nil, false
+	}
+	allOK = !d.bad.touches(ptr)
+	names := make(map[string]int, len(items))
+	out = make([]Item, 0, len(items))
+	// A list may hold 100,000 items: find the sequence once and take each item's
+	// position from it, and build an item's pointer only to report a problem there.
+	seq := deref(d.t.locate(ptr).value)
+	bySeq := seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items)
+	for i, raw := range items {
+		ip := func() string { return ptr + "/" + strconv.Itoa(i) }
+		im, isMap := raw.(map[string]any)
+		// Pointers are built only when something in the list is wrong.
+		if !isMap || (!allOK && !d.ok(ip())) {
+			continue
+		}
+		it := Item{}
+		if bySeq {
+			it.Pos = Pos{seq.Content[i].Line, seq.Content[i].Column}
+		} else {
+			it.Pos = d.pos(ip())
+		}
+		name, named := im["name"].(string)
+		it.Name = name
+		if allOK || d.ok(ip()+"/rows") {
 			rows, err := count(im["rows"], false)
 			if err != nil {
+				allOK = false
 				d.fail(ip()+"/rows", err.Error())
 			}
 			it.Rows = rows
-			if line, dup := names[it.Name]; dup {
-				d.fail(ip()+"/name", fmt.Sprintf("partition %q is already listed at line %d; partition names must be unique", it.Name, line))
-			}
-			names[it.Name] = it.Pos.Line
-			p.Items = append(p.Items, it)
 		}
+		if named && (allOK || d.ok(ip()+"/name")) {
+			if line, dup := names[it.Name]; dup {
+				d.fail(ip()+"/name", fmt.Sprintf("partition %s is already listed at line %d; partition names must be unique", quoteShort(it.Name), line))
+			} else {
+				names[it.Name] = it.Pos.Line
+			}
+		}
+		out = append(out, it)
 	}
-	return p
+	return out, allOK
 }
 
 func (d *decoder) column(ptr string, raw map[string]any) Column {
@@ -378,10 +473,13 @@ func (d *decoder) waiver(ptr string, raw map[string]any) Waiver {
 	w := Waiver{Pos: d.pos(ptr)}
 	w.Rule, _ = raw["rule"].(string)
 	w.Reason, _ = raw["reason"].(string)
-	date, _ := raw["expires"].(string)
+	date, ok := raw["expires"].(string)
+	if !ok || !d.ok(ptr+"/expires") {
+		return w
+	}
 	t, err := time.Parse("2006-01-02", date)
 	if err != nil {
-		d.fail(ptr+"/expires", fmt.Sprintf("%q is not a calendar date; write it as YYYY-MM-DD", date))
+		d.fail(ptr+"/expires", fmt.Sprintf("%s is not a calendar date; write it as YYYY-MM-DD", quoteShort(date)))
 	}
 	w.Expires = t
 	return w

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -30,24 +31,39 @@ type Options struct {
 // LoadWith is Load with a project config: engine fields resolve manifest first, then the
 // named profile, then the defaults; budgets resolve table, then manifest, then project.
 func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
-	t, ps := parse(data, o.Limits, "a manifest starts with \"format: 1\"")
-	if len(ps) == 0 {
-		ps = t.validate(manifestDoc)
-	}
-	if len(ps) > 0 {
+	const start = "a manifest starts with \"format: 1\""
+	t, ps := parse(file, data, o.Limits, start)
+	if t == nil {
 		return nil, &Error{File: file, Problems: ps}
 	}
-	m, ps := t.decode(o.Project)
+	// The schema and the checks it cannot express run in one pass, each over the parts
+	// that are well-formed, so every problem is reported at once.
+	ps, bad := t.check(manifestDoc)
+	var m *Manifest
+	if root, ok := t.root.(map[string]any); ok {
+		var dps []Problem
+		m, dps = t.decode(root, o.Project, bad)
+		ps = append(ps, dps...)
+	} else if len(ps) == 0 {
+		// The schema refuses any other root; this keeps a nil manifest from passing.
+		ps = []Problem{{Pos: Pos{1, 1}, Message: "a manifest is a mapping of keys; " + start}}
+	}
 	if len(ps) > 0 {
-		sortProblems(ps)
-		return nil, &Error{File: file, Problems: ps}
+		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
 	m.File = file
 	return m, nil
 }
 
-// parse reads one YAML or JSON document into a tree, enforcing the limits.
-func parse(data []byte, lim Limits, start string) (*tree, []Problem) {
+// isJSON is a file named *.json: it is read as strict JSON, not as YAML.
+func isJSON(file string) bool {
+	return strings.EqualFold(filepath.Ext(file), ".json")
+}
+
+// parse reads one YAML or JSON document into a tree, enforcing the limits. A nil tree
+// comes with the problem that stopped the read; a tree may carry problems of its own
+// (t.problems) that left the rest readable.
+func parse(file string, data []byte, lim Limits, start string) (*tree, []Problem) {
 	fail := func(p Problem) (*tree, []Problem) { return nil, []Problem{p} }
 	if lim.MaxFileBytes > 0 && len(data) > lim.MaxFileBytes {
 		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several files", len(data), lim.MaxFileBytes)})
@@ -55,30 +71,51 @@ func parse(data []byte, lim Limits, start string) (*tree, []Problem) {
 	if p := encodingProblem(data); p != nil {
 		return fail(*p)
 	}
-	dec := yaml.NewDecoder(bytes.NewReader(data))
-	var doc yaml.Node
-	if err := dec.Decode(&doc); err != nil {
-		if errors.Is(err, io.EOF) {
-			return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
+	var top *yaml.Node
+	if isJSON(file) {
+		n, p := parseJSON(data, lim, start)
+		if p != nil {
+			return fail(*p)
 		}
-		return fail(syntaxProblem(err, data))
+		top = n
+	} else {
+		n, p := parseYAML(data, start)
+		if p != nil {
+			return fail(*p)
+		}
+		top = n
 	}
-	var next yaml.Node
-	if err := dec.Decode(&next); err == nil {
-		return fail(Problem{Pos: Pos{next.Line, next.Column}, Message: "file holds more than one YAML document; put each in a file of its own"})
-	} else if !errors.Is(err, io.EOF) {
-		return fail(syntaxProblem(err, data))
-	}
-	if len(doc.Content) == 0 || isEmptyDocument(doc.Content[0]) {
-		return fail(Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start})
-	}
-	t := &tree{doc: doc.Content[0], lim: lim}
-	root, p := t.convert(doc.Content[0], 0)
+	t := &tree{doc: top, lim: lim}
+	root, p := t.convert(top, 0)
 	if p != nil {
 		return fail(*p)
 	}
 	t.root = root
 	return t, nil
+}
+
+// parseYAML reads the one YAML document of a file.
+func parseYAML(data []byte, start string) (*yaml.Node, *Problem) {
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, &Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start}
+		}
+		p := syntaxProblem(err, data)
+		return nil, &p
+	}
+	var next yaml.Node
+	if err := dec.Decode(&next); err == nil {
+		return nil, &Problem{Pos: Pos{next.Line, next.Column}, Message: "file holds more than one YAML document; put each in a file of its own"}
+	} else if !errors.Is(err, io.EOF) {
+		p := syntaxProblem(err, data)
+		return nil, &p
+	}
+	if len(doc.Content) == 0 || isEmptyDocument(doc.Content[0]) {
+		return nil, &Problem{Pos: Pos{1, 1}, Message: "file is empty; " + start}
+	}
+	return doc.Content[0], nil
 }
 
 var yamlLine = regexp.MustCompile(`^yaml: (?:line (\d+): )?(.*)$`)
@@ -121,6 +158,12 @@ func syntaxProblem(err error, data []byte) Problem {
 			col = i + 1
 		}
 	}
+	if p, ok := keyProblem(msg, lines, line, reported); ok {
+		return p
+	}
+	if p, ok := escapeProblem(msg, lines, line, reported); ok {
+		return p
+	}
 	hint := "fix the YAML syntax"
 	if strings.HasPrefix(msg, "did not find expected ',' or") {
 		hint = "look on this line for a missing comma, colon or closing bracket"
@@ -129,6 +172,104 @@ func syntaxProblem(err error, data []byte) Problem {
 		hint = "indent with spaces; YAML does not allow tabs for indentation"
 	}
 	return Problem{Pos: Pos{line, col}, Message: fmt.Sprintf("invalid YAML: %s; %s", msg, hint)}
+}
+
+// keyProblem words the parser's errors about a key that never reaches its ':'. A key
+// longer than maxKeyLength is named with its length at its first character; otherwise
+// the key is pointed at and the missing ':' named.
+func keyProblem(msg string, lines []string, line int, reported bool) (Problem, bool) {
+	missingColon := strings.HasPrefix(msg, "could not find expected ':'")
+	if !missingColon && msg != "mapping values are not allowed in this context" && !strings.HasPrefix(msg, "did not find expected ',' or '}'") {
+		return Problem{}, false
+	}
+	last := len(lines)
+	if reported {
+		last = min(line, len(lines))
+	}
+	for i := 0; i < last; i++ {
+		if col, n := longKey(lines[i]); n > 0 {
+			return Problem{Pos: Pos{i + 1, col}, Message: fmt.Sprintf("invalid YAML: the key that starts here is %s characters long, above YAML's limit of %s characters for a key; shorten it", group(int64(n)), group(maxKeyLength))}, true
+		}
+	}
+	if !missingColon || line > len(lines) {
+		return Problem{}, false
+	}
+	text := lines[line-1]
+	col := 1 + utf8.RuneCountInString(text[:len(text)-len(strings.TrimLeft(text, " -"))])
+	return Problem{Pos: Pos{line, col}, Message: "invalid YAML: the mapping is malformed at the key that starts here: no ':' follows it; write key: value on one line (a key is at most 1024 characters)"}, true
+}
+
+// longKey finds, on one line, a key longer than maxKeyLength before its ':': its 1-based
+// column and length in characters, 0 for none. A key starts after the indentation, a
+// "- " and the flow punctuation { [ ,.
+func longKey(text string) (col, n int) {
+	const before, inValue = -1, -2 // before a key; in a value, until flow punctuation
+	start, runes := before, 0
+	pos := 0
+	for i, r := range text {
+		pos++
+		switch {
+		case r == ',' || r == '{' || r == '[':
+			start = before
+		case start == inValue:
+		case start == before && (r == ' ' || r == '-'):
+		case start == before:
+			start, runes = pos, 1
+		case r == ':' && (i+1 == len(text) || text[i+1] == ' ' || text[i+1] == ','):
+			if runes > maxKeyLength {
+				return start, runes
+			}
+			start = inValue
+		default:
+			runes++
+		}
+	}
+	return 0, 0
+}
+
+// escapeProblem points at the escape the YAML parser refused: a UTF-16 surrogate half
+// or a code point past U+10FFFF.
+func escapeProblem(msg string, lines []string, line int, reported bool) (Problem, bool) {
+	if !strings.Contains(msg, "invalid Unicode character escape code") {
+		return Problem{}, false
+	}
+	first, last := 0, len(lines)
+	if reported && line <= len(lines) {
+		first, last = line-1, line
+	}
+	for i := first; i < last; i++ {
+		if col, esc := badEscape(lines[i]); col > 0 {
+			return Problem{Pos: Pos{i + 1, col}, Message: fmt.Sprintf("invalid YAML: %s is not a character (an invalid surrogate or past U+10FFFF); YAML escapes name whole characters: write the character itself or its \\U escape, e.g. \\U0001F600", esc)}, true
+		}
+	}
+	return Problem{}, false
+}
+
+// badEscape finds the first \uXXXX escape naming a surrogate half, or \UXXXXXXXX past
+// U+10FFFF, on a line: its 1-based column and text.
+func badEscape(text string) (int, string) {
+	col := 0
+	for i := 0; i < len(text); i++ {
+		if text[i] < utf8.RuneSelf || utf8.RuneStart(text[i]) {
+			col++
+		}
+		if text[i] != '\\' || i+1 == len(text) {
+			continue
+		}
+		width := map[byte]int{'u': 4, 'U': 8}[text[i+1]]
+		if width == 0 || i+2+width > len(text) {
+			i++ // an escaped character, whatever it is
+			col++
+			continue
+		}
+		v, err := strconv.ParseUint(text[i+2:i+2+width], 16, 32)
+		if err == nil && (v >= 0xD800 && v <= 0xDFFF || v > 0x10FFFF) {
+			return col, text[i : i+2+width]
+		}
+		i++
+		col++
+	}
+	return 0, ""
 }
 
 // encodingProblem refuses input that is not text before the parser sees it.

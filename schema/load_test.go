@@ -592,7 +592,8 @@ func TestLoadNeverPanicsOnTruncation(t *testing.T) {
 	for _, path := range []string{"testdata/design-example.yaml", "testdata/design-example.json"} {
 		data := readFile(t, path)
 		for i := range len(data) + 1 {
-			checkOutcome(t, fmt.Sprintf("%s[:%d]", path, i), data[:i])
+			// The name keeps the extension, so the JSON file is read as JSON.
+			checkOutcome(t, fmt.Sprintf("%s-%d%s", path, i, filepath.Ext(path)), data[:i])
 		}
 	}
 }
@@ -609,6 +610,7 @@ func FuzzLoad(f *testing.F) {
 	f.Add([]byte(anchorsManifest))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		checkOutcome(t, "fuzz.yaml", data)
+		checkOutcome(t, "fuzz.json", data) // the strict JSON reader
 	})
 }
 

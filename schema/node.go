@@ -2,12 +2,14 @@ package schema
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"math"
 	"math/big"
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"go.yaml.in/yaml/v3"
 )
@@ -56,6 +58,30 @@ type tree struct {
 	inAlias    int // how many aliases deep the conversion is
 	aliasNodes int
 	lim        Limits
+	// problems are what the conversion refused without stopping (a duplicate key, a
+	// number in a form the schema does not allow, an unknown tag); the rest of the file
+	// is still validated and decoded, so every problem is reported in one run.
+	problems []Problem
+	// refused are the pointers of values the conversion refused: validation and decoding
+	// say nothing more about them.
+	refused map[string]bool
+	// reported are the nodes a problem was recorded for: a node reached again through an
+	// alias is refused at every pointer but reported once, where it is written.
+	reported map[*yaml.Node]bool
+}
+
+// refuse records a problem the conversion goes on after.
+func (t *tree) refuse(n *yaml.Node, ptr, msg string, value bool) {
+	if t.refused == nil {
+		t.refused, t.reported = map[string]bool{}, map[*yaml.Node]bool{}
+	}
+	if value {
+		t.refused[ptr] = true
+	}
+	if !t.reported[n] {
+		t.reported[n] = true
+		t.problems = append(t.problems, *problemAt(n, ptr, msg))
+	}
 }
 
 // step is one token of the conversion's path: a key, or an index when key is "".
@@ -213,37 +239,15 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 		t.inAlias--
 		return v, p
 	}
+	if msg := tagProblem(n); msg != "" {
+		t.refuse(n, t.here(), msg, true)
+		if n.Kind == yaml.ScalarNode {
+			return n.Value, nil
+		}
+	}
 	switch n.Kind {
 	case yaml.MappingNode:
-		out := make(map[string]any, len(n.Content)/2)
-		var merges []*yaml.Node
-		for i := 0; i+1 < len(n.Content); i += 2 {
-			k, v := n.Content[i], n.Content[i+1]
-			if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
-				merges = append(merges, v)
-				continue
-			}
-			if k.Kind != yaml.ScalarNode {
-				return nil, problemAt(k, t.here(), "a key must be a plain name, not a mapping or a sequence")
-			}
-			if _, dup := out[k.Value]; dup {
-				return nil, problemAt(k, t.here(), fmt.Sprintf("key %q is already defined at line %d; remove one of them", k.Value, firstKey(n, k.Value).Line))
-			}
-			t.path = append(t.path, step{key: k.Value, isKey: true})
-			cv, p := t.convert(v, depth+1)
-			t.path = t.path[:len(t.path)-1]
-			if p != nil {
-				return nil, p
-			}
-			out[k.Value] = cv
-		}
-		// Merge keys (<<) fill in only the keys the mapping does not set itself.
-		for _, m := range merges {
-			if p := t.merge(out, m, depth); p != nil {
-				return nil, p
-			}
-		}
-		return out, nil
+		return t.mapping(n, depth)
 	case yaml.SequenceNode:
 		out := make([]any, 0, len(n.Content))
 		for i, e := range n.Content {
@@ -257,9 +261,82 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 		}
 		return out, nil
 	case yaml.ScalarNode:
-		return scalar(n, t.here)
+		v, msg := scalar(n)
+		if msg != "" {
+			t.refuse(n, t.here(), msg, true)
+		}
+		return v, nil
 	}
 	return nil, problemAt(n, t.here(), "unsupported YAML node")
+}
+
+// maxKeyLength is YAML 1.2's bound on an implicit key, 1024 characters (the note on its
+// implicit-key productions; from memory), kept for JSON and explicit keys too: no
+// manifest key comes near it, and a longer one would be quoted whole in messages.
+const maxKeyLength = 1024
+
+func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
+	out := make(map[string]any, len(n.Content)/2)
+	var merges []*yaml.Node
+	var firstMerge *yaml.Node
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k, v := n.Content[i], n.Content[i+1]
+		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
+			if firstMerge != nil {
+				t.refuse(k, t.here(), fmt.Sprintf("a second merge key (<<) in one mapping; the first is at line %d. Merge several mappings with one key: <<: [*first, *second]", firstMerge.Line), false)
+				continue
+			}
+			firstMerge = k
+			merges = append(merges, v)
+			continue
+		}
+		if k.Kind != yaml.ScalarNode {
+			t.refuse(k, t.here(), "a key must be a plain name, not a mapping or a sequence", false)
+			continue
+		}
+		if msg := tagProblem(k); msg != "" {
+			t.refuse(k, t.here(), msg, false)
+			continue
+		}
+		if l := utf8.RuneCountInString(k.Value); l > maxKeyLength {
+			t.refuse(k, t.here(), fmt.Sprintf("key is %s characters long, above the limit of %s; shorten it (manifest keys are short names)", group(int64(l)), group(maxKeyLength)), false)
+			continue
+		}
+		if _, dup := out[k.Value]; dup {
+			t.refuse(k, t.here(), fmt.Sprintf("key %s is already defined at line %d; remove one of them", quoteShort(k.Value), firstKey(n, k.Value).Line), false)
+			continue
+		}
+		t.path = append(t.path, step{key: k.Value, isKey: true})
+		cv, p := t.convert(v, depth+1)
+		t.path = t.path[:len(t.path)-1]
+		if p != nil {
+			return nil, p
+		}
+		out[k.Value] = cv
+	}
+	// Merge keys (<<) fill in only the keys the mapping does not set itself.
+	for _, m := range merges {
+		if p := t.merge(out, m, depth); p != nil {
+			return nil, p
+		}
+	}
+	return out, nil
+}
+
+// explicitTags are the tags a manifest may write: YAML's core types. A plain date
+// resolves to !!timestamp and stays a string; !!merge is what << resolves to.
+var explicitTags = map[string]bool{
+	"!!str": true, "!!int": true, "!!float": true, "!!bool": true, "!!null": true,
+	"!!map": true, "!!seq": true, "!!timestamp": true,
+}
+
+// tagProblem refuses a tag outside the core types: !foo or !!binary would be read
+// as a plain string, not as what the writer meant.
+func tagProblem(n *yaml.Node) string {
+	if n.Style&yaml.TaggedStyle == 0 || explicitTags[n.Tag] {
+		return ""
+	}
+	return fmt.Sprintf("unknown tag %s; remove it (a manifest uses plain values; the tags allowed are !!str, !!int, !!float, !!bool, !!null, !!map and !!seq)", quoteShort(n.Tag))
 }
 
 // firstKey is the first key node of mapping n named key, for a duplicate's message.
@@ -302,17 +379,34 @@ func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 		return nil
 	case yaml.MappingNode:
 	default:
-		return problemAt(m, t.here(), "a merge key (<<) must refer to a mapping or a list of mappings")
+		t.refuse(m, t.here(), "a merge key (<<) must refer to a mapping or a list of mappings", false)
+		return nil
 	}
+	// A mapping written in place under << is checked here as a mapping of its own is.
+	own := map[string]bool{}
+	var firstMerge *yaml.Node
 	for i := 0; i+1 < len(target.Content); i += 2 {
 		k, v := target.Content[i], target.Content[i+1]
 		if k.Kind == yaml.ScalarNode && k.Tag == "!!merge" {
+			if firstMerge != nil {
+				t.refuse(k, t.here(), fmt.Sprintf("a second merge key (<<) in one mapping; the first is at line %d. Merge several mappings with one key: <<: [*first, *second]", firstMerge.Line), false)
+				continue
+			}
+			firstMerge = k
 			if p := t.merge(out, v, depth+1); p != nil {
 				return p
 			}
 			continue
 		}
-		if _, set := out[k.Value]; set || k.Kind != yaml.ScalarNode {
+		if k.Kind != yaml.ScalarNode {
+			continue
+		}
+		if own[k.Value] {
+			t.refuse(k, t.here(), fmt.Sprintf("key %s is already defined at line %d; remove one of them", quoteShort(k.Value), firstKey(target, k.Value).Line), false)
+			continue
+		}
+		own[k.Value] = true
+		if _, set := out[k.Value]; set {
 			continue
 		}
 		t.path = append(t.path, step{key: k.Value, isKey: true})
@@ -342,51 +436,45 @@ func canonicalInt(s string) bool {
 
 var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?$`)
 
-// scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number.
-func scalar(n *yaml.Node, here func() string) (any, *Problem) {
+// scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number. A
+// value it refuses comes back as written, with the reason.
+func scalar(n *yaml.Node) (any, string) {
 	switch n.ShortTag() {
 	case "!!null":
-		return nil, nil
+		return nil, ""
 	case "!!bool":
 		var b bool
 		if err := n.Decode(&b); err != nil {
-			return nil, problemAt(n, here(), "not a valid true/false value")
+			return n.Value, "not a valid true/false value"
 		}
-		return b, nil
+		return b, ""
 	case "!!int":
 		if canonicalInt(n.Value) {
-			return json.Number(n.Value), nil // already as big.Int would print it
+			return json.Number(n.Value), "" // already as big.Int would print it
 		}
-		s := strings.ReplaceAll(n.Value, "_", "")
-		neg := strings.HasPrefix(s, "-")
-		s = strings.TrimLeft(s, "+-")
-		if strings.HasPrefix(s, "0o") {
-			s = "0" + s[2:]
+		if !jsonInt.MatchString(n.Value) {
+			if msg := numberFormProblem(n.Value); msg != "" {
+				return n.Value, msg
+			}
+			return n.Value, fmt.Sprintf("%s is not a valid integer", quoteShort(n.Value))
 		}
 		var i big.Int
-		if _, ok := i.SetString(s, 0); !ok {
-			return nil, problemAt(n, here(), fmt.Sprintf("%q is not a valid integer", n.Value))
-		}
-		if neg {
-			i.Neg(&i)
-		}
-		return json.Number(i.String()), nil
+		i.SetString(n.Value, 10)
+		return json.Number(i.String()), ""
 	case "!!float":
-		f, err := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64)
-		lower := strings.ToLower(n.Value)
-		if strings.Contains(lower, "nan") || strings.Contains(lower, "inf") || math.IsInf(f, 0) || math.IsNaN(f) {
-			return nil, problemAt(n, here(), fmt.Sprintf("%s is not a finite number; write a plain number", n.Value))
+		if !jsonNumber.MatchString(n.Value) {
+			if msg := numberFormProblem(n.Value); msg != "" {
+				return n.Value, msg
+			}
+			return n.Value, fmt.Sprintf("%s is not a valid number", quoteShort(n.Value))
 		}
-		if err != nil {
-			return nil, problemAt(n, here(), fmt.Sprintf("%q is not a valid number", n.Value))
+		if f, err := strconv.ParseFloat(n.Value, 64); err != nil && !errors.Is(err, strconv.ErrRange) || math.IsInf(f, 0) {
+			return n.Value, fmt.Sprintf("%s is not a finite number; write a plain number", quoteShort(n.Value))
 		}
-		// Keep the number as written when it is valid JSON, so messages quote the user.
-		if text := strings.ReplaceAll(n.Value, "_", ""); jsonNumber.MatchString(text) {
-			return json.Number(text), nil
-		}
-		return json.Number(strconv.FormatFloat(f, 'g', -1, 64)), nil
+		// Kept as written, so messages quote the user.
+		return json.Number(n.Value), ""
 	default:
-		// Strings, timestamps and anything else custom-tagged are kept as written.
-		return n.Value, nil
+		// Strings and plain dates (!!timestamp) are kept as written.
+		return n.Value, ""
 	}
 }

@@ -70,8 +70,8 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		tr, ps := parse(data, DefaultLimits, "")
-		if len(ps) > 0 {
+		tr, _ := parse(path, data, DefaultLimits, "")
+		if tr == nil {
 			continue
 		}
 		n[agree(t, path, manifestDoc, tr.root)]++
@@ -123,8 +123,8 @@ func TestQuickAgreesWithLibraryOnEdges(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		tr, ps := parse(data, DefaultLimits, "")
-		if len(ps) > 0 {
+		tr, ps := parse(path, data, DefaultLimits, "")
+		if tr == nil {
 			t.Fatalf("%s: %v", path, ps)
 		}
 		var leaves []func(any) any // each sets one leaf and returns the old value
@@ -181,8 +181,8 @@ func FuzzQuickAgreesWithLibrary(f *testing.F) {
 		}
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		tr, ps := parse(data, DefaultLimits, "")
-		if len(ps) > 0 {
+		tr, _ := parse("fuzz.yaml", data, DefaultLimits, "")
+		if tr == nil {
 			return
 		}
 		agree(t, "fuzz.yaml", manifestDoc, tr.root)

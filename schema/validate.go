@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"math/big"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -52,15 +53,38 @@ var manifestDoc = newDocument("https://github.com/scangate/scangate/schema/manif
 
 var printer = message.NewPrinter(message.MatchLanguage("en"))
 
+// check validates the tree against the schema and returns the conversion's problems and
+// the schema's, with the values either found wrong: decoding skips those, so one wrong
+// value is reported once.
+func (t *tree) check(d *document) ([]Problem, badValues) {
+	var bad badValues
+	for ptr := range t.refused {
+		bad.add(ptr)
+	}
+	ps := append([]Problem(nil), t.problems...)
+	schemaPs, wrong := t.validate(d)
+	for i, p := range schemaPs {
+		if bad.covers(p.Path) {
+			continue // the conversion refused this value and said why
+		}
+		ps = append(ps, p)
+		if wrong[i] {
+			bad.add(p.Path)
+		}
+	}
+	return ps, bad
+}
+
 // validate checks the document against the schema and returns one problem per
-// failing leaf, positioned at the value (or key) it is about.
-func (t *tree) validate(d *document) []Problem {
+// failing leaf, positioned at the value (or key) it is about; wrong[i] says the problem
+// is about the value at its path (not a key missing from it).
+func (t *tree) validate(d *document) (out []Problem, wrong []bool) {
 	q, err := d.quick()
 	if err != nil {
 		panic(fmt.Sprintf("embedded schema %s: %v", d.url, err)) // a build defect, as below
 	}
 	if q.check(t.root) == passes {
-		return nil
+		return nil, nil
 	}
 	sch, err := d.compiled()
 	if err != nil {
@@ -69,27 +93,68 @@ func (t *tree) validate(d *document) []Problem {
 	}
 	err = sch.Validate(t.root)
 	if err == nil {
-		return nil
+		return nil, nil
 	}
 	var ve *jsonschema.ValidationError
 	ok := errors.As(err, &ve)
 	if !ok {
-		return []Problem{{Message: err.Error()}}
+		return []Problem{{Message: err.Error()}}, []bool{false}
 	}
 	var leaves []*jsonschema.ValidationError
 	collectLeaves(ve, &leaves)
 	seen := map[string]bool{}
-	var out []Problem
 	for _, l := range leaves {
+		_, missing := l.ErrorKind.(*kind.Required)
 		for _, p := range t.describe(d, l) {
 			if k := p.Path + "\x00" + p.Message; !seen[k] {
 				seen[k] = true
 				out = append(out, p)
+				wrong = append(wrong, !missing)
 			}
 		}
 	}
-	sortProblems(out)
-	return out
+	return out, wrong
+}
+
+// badValues are the pointers of values found wrong, so the checks that read them are
+// skipped: at holds the pointers, within every pointer that holds one of them.
+type badValues struct {
+	at     map[string]bool
+	within map[string]bool
+}
+
+func (b *badValues) add(ptr string) {
+	if b.at == nil {
+		b.at, b.within = map[string]bool{}, map[string]bool{}
+	}
+	b.at[ptr] = true
+	for p := ptr; p != "" && !b.within[parentPointer(p)]; {
+		p = parentPointer(p)
+		b.within[p] = true
+	}
+}
+
+// covers reports whether the value at ptr, or one holding it, is wrong.
+func (b badValues) covers(ptr string) bool {
+	for p := ptr; ; p = parentPointer(p) {
+		if b.at[p] {
+			return true
+		}
+		if p == "" {
+			return false
+		}
+	}
+}
+
+// touches reports whether the value at ptr, one holding it or one inside it is wrong.
+func (b badValues) touches(ptr string) bool { return b.within[ptr] || b.covers(ptr) }
+
+// parentPointer is the pointer of the value holding ptr's; "" for the root.
+func parentPointer(ptr string) string {
+	if i := strings.LastIndexByte(ptr, '/'); i > 0 {
+		return ptr[:i]
+	}
+	return ""
 }
 
 func collectLeaves(e *jsonschema.ValidationError, out *[]*jsonschema.ValidationError) {
@@ -155,7 +220,10 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	case *kind.MinItems:
 		return []Problem{at(ptr, loc, fmt.Sprintf("must list at least %d item(s)", k.Want))}
 	case *kind.MinLength:
-		return []Problem{at(ptr, loc, "must not be empty")}
+		if k.Want <= 1 {
+			return []Problem{at(ptr, loc, "must not be empty")}
+		}
+		return []Problem{at(ptr, loc, fmt.Sprintf("must be at least %d characters, not %d", k.Want, k.Got))}
 	case *kind.MaxLength:
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be at most %d characters", k.Want))}
 	}
@@ -283,7 +351,8 @@ func quoteList(names []string) string {
 	return strings.Join(q, ", ")
 }
 
-func sortProblems(ps []Problem) {
+// sortProblems orders problems by position and drops exact repeats.
+func sortProblems(ps []Problem) []Problem {
 	sort.SliceStable(ps, func(i, j int) bool {
 		a, b := ps[i], ps[j]
 		if a.Pos.Line != b.Pos.Line {
@@ -292,8 +361,12 @@ func sortProblems(ps []Problem) {
 		if a.Pos.Col != b.Pos.Col {
 			return a.Pos.Col < b.Pos.Col
 		}
-		return a.Message < b.Message
+		if a.Message != b.Message {
+			return a.Message < b.Message
+		}
+		return a.Path < b.Path
 	})
+	return slices.CompactFunc(ps, func(a, b Problem) bool { return a == b })
 }
 
 //go:embed output.schema.json

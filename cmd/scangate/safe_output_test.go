@@ -33,7 +33,7 @@ func sums(t *testing.T, dir string) map[string][32]byte {
 func TestReportsNeverReplaceInputs(t *testing.T) {
 	manifest := "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables: [{name: t, rows: 10, partitions: {scheme: none}}]\n"
 	dir := repo(t, map[string]string{"billing.yaml": manifest, "other.yaml": manifest, ".scangate.yaml": "rules: {}\n"})
-	if err := os.Symlink("billing.yaml", filepath.Join(dir, "link.json")); err != nil {
+	if err := os.Symlink("billing.yaml", filepath.Join(dir, "link.yml")); err != nil {
 		t.Fatal(err)
 	}
 	if r := scangate(t, dir, "", nil, "baseline", "write", ".", "-o", "base.json"); r.code != 0 {
@@ -45,13 +45,13 @@ func TestReportsNeverReplaceInputs(t *testing.T) {
 		want string
 	}{
 		{[]string{"check", "--format", "json=billing.yaml", "."}, "--format json=billing.yaml: billing.yaml is one of the inputs"},
-		{[]string{"check", "--output", "link.json", "."}, "--output link.json: link.json is one of the inputs (billing.yaml)"},
+		{[]string{"check", "--output", "link.yml", "."}, "--output link.yml: link.yml is one of the inputs (billing.yaml)"},
 		{[]string{"check", "--format", "markdown=.scangate.yaml", "."}, "is one of the inputs"},
 		{[]string{"check", "--baseline", "base.json", "--format", "sarif=base.json", "."}, "base.json is one of the inputs"},
 		{[]string{"check", "--format", "json=r.json", "--format", "sarif=./r.json", "."}, "already the target of another format"},
 		{[]string{"diff", "--format", "markdown=other.yaml", "billing.yaml", "other.yaml"}, "other.yaml is one of the inputs"},
 		{[]string{"baseline", "write", ".", "-o", "billing.yaml"}, "--output billing.yaml: billing.yaml is one of the inputs"},
-		{[]string{"plan", "billing.yaml", "--svg", "link.json"}, "--svg link.json: link.json is one of the inputs"},
+		{[]string{"plan", "billing.yaml", "--svg", "link.yml"}, "--svg link.yml: link.yml is one of the inputs"},
 	} {
 		r := scangate(t, dir, "", nil, c.args...)
 		if r.code != 2 || !strings.Contains(r.stderr, c.want) {
