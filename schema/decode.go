@@ -295,9 +295,12 @@ func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
 	p.Scheme = Scheme(s)
 	switch p.Scheme {
 	case SchemeEven:
-		p.Count = int(number(raw["count"]))
+		// Capped before the conversion: beyond int64 it wraps (count: 1e19 once became
+		// a negative count and the table was silently left out).
+		count := number(raw["count"])
+		p.Count = int(min(count, MaxPartitions+1))
 		if p.Count > MaxPartitions {
-			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", group(int64(p.Count)), group(MaxPartitions)))
+			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", figure(count), group(MaxPartitions)))
 		}
 	case SchemeTime:
 		total := 0.0
@@ -317,7 +320,7 @@ func (d *decoder) partitions(ptr string, raw map[string]any) Partitions {
 			p.Tiers = append(p.Tiers, tier)
 		}
 		if total > MaxPartitions {
-			d.fail(ptr+"/tiers", fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
+			d.fail(ptr+"/tiers", fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", figure(total), group(MaxPartitions)))
 		}
 	case SchemeList:
 		items := raw["items"].([]any)

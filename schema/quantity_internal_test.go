@@ -2,6 +2,7 @@ package schema
 
 import (
 	"fmt"
+	"math"
 	"testing"
 )
 
@@ -18,6 +19,20 @@ func TestParseNumberShortcutMatchesExact(t *testing.T) {
 			if n != m || fmt.Sprint(err) != fmt.Sprint(err2) {
 				t.Errorf("parseNumber(%q, %d) = %d, %v; exact gives %d, %v", c, limit, n, err, m, err2)
 			}
+		}
+	}
+}
+
+// group and figure are total: the most negative int64 has no positive twin (negating it
+// recursed forever), and a float beyond int64 is written, not wrapped.
+func TestGroupAndFigureExtremes(t *testing.T) {
+	for _, c := range []struct{ got, want string }{
+		{group(math.MinInt64), "-9,223,372,036,854,775,808"}, {group(math.MaxInt64), "9,223,372,036,854,775,807"},
+		{group(-1000), "-1,000"}, {group(0), "0"},
+		{figure(1e15), "1,000,000,000,000,000"}, {figure(1e19), "1e+19"}, {figure(-1e300), "-1e+300"},
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
 		}
 	}
 }
