@@ -113,6 +113,15 @@ func quantity(v any, limit int64, unit string, parse func(string) (int64, error)
 	return 0, fmt.Errorf("must be a quantity, not %T", v)
 }
 
+// maxCores is the manifest schema's maximum of cores and refresh_parallelism.
+const maxCores = 4096
+
+// wholeUpTo is a validated whole number as an int, clamped to [0, limit] before the
+// conversion, which is left to the implementation beyond the int range.
+func wholeUpTo(v any, limit float64) int {
+	return int(min(max(number(v), 0), limit))
+}
+
 func number(v any) float64 {
 	if n, ok := v.(json.Number); ok {
 		f, _ := n.Float64()
@@ -163,7 +172,7 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		s.SegmentRows = &n
 	}
 	if v, ok := e["cores"]; ok {
-		n := int(number(v))
+		n := wholeUpTo(v, maxCores)
 		s.Cores = &n
 	}
 	s.SegmentOverheadMs = optNumber(e, "segment_overhead_ms")
@@ -173,7 +182,7 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		s.Memory = &n
 	}
 	if v, ok := e["refresh_parallelism"]; ok {
-		n := int(number(v))
+		n := wholeUpTo(v, maxCores)
 		s.RefreshParallelism = &n
 	}
 	return s

@@ -1,6 +1,7 @@
 package schema
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"testing"
@@ -34,5 +35,28 @@ func TestGroupAndFigureExtremes(t *testing.T) {
 		if c.got != c.want {
 			t.Errorf("got %q, want %q", c.got, c.want)
 		}
+	}
+}
+
+// The loader clamps cores and refresh_parallelism to the schema's maximum before
+// converting; the two must not drift apart.
+func TestMaxCoresMatchesSchema(t *testing.T) {
+	var doc struct {
+		Defs struct {
+			Engine struct {
+				Properties map[string]struct{ Maximum float64 } `json:"properties"`
+			} `json:"engine"`
+		} `json:"$defs"`
+	}
+	if err := json.Unmarshal(ManifestSchema(), &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"cores", "refresh_parallelism"} {
+		if got := doc.Defs.Engine.Properties[k].Maximum; got != maxCores {
+			t.Errorf("schema maximum of engine.%s is %v, maxCores is %v", k, got, maxCores)
+		}
+	}
+	if got := wholeUpTo(json.Number("1e300"), maxCores); got != maxCores {
+		t.Errorf("wholeUpTo(1e300) = %d", got)
 	}
 }
