@@ -54,10 +54,13 @@ func init() { register(BudgetForecast) }
 const budgetForecastID = "budget-forecast"
 
 // forecastHorizon is how far ahead a crossing is warned of.
-var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12)."}
+// Its bound is plan's --horizon bound: the forecast is computed month by month, and an
+// unbounded horizon (1e9) ran for minutes and took gigabytes.
+var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Max: advisor.MaxHorizonMonths,
+	Doc: "Months ahead a budget crossing is warned of (default 12, at most 600)."}
 
 func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
-	horizon := int(cfg.Value(budgetForecastID, forecastHorizon))
+	horizon := units.Int(cfg.Value(budgetForecastID, forecastHorizon))
 	md := t.Advisor()
 	if md == nil {
 		return nil

@@ -2,6 +2,7 @@ package rules
 
 import (
 	"fmt"
+	"github.com/scangate/scangate/internal/units"
 	"time"
 
 	"github.com/scangate/scangate/internal/advisor"
@@ -116,6 +117,6 @@ func (c Config) Levels() advisor.Levels {
 		TruncWarnMin:      c.Value(truncatedSegmentsID, truncWarnMin),
 		TruncWarnShare:    c.Value(truncatedSegmentsID, truncWarnShare),
 		PartitionLimit:    c.Value(partitionCountID, partitionLimit),
-		HorizonMonths:     int(c.Value(budgetForecastID, forecastHorizon)),
+		HorizonMonths:     units.Int(c.Value(budgetForecastID, forecastHorizon)),
 	}
 }

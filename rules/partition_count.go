@@ -38,7 +38,7 @@ var partitionLimit = Param{Name: "limit", Default: 5000, Doc: "Most partitions o
 
 func checkPartitionCount(t *analysis.Table, cfg Config) []Finding {
 	n := int64(t.Layout.Partitions)
-	limit := int64(cfg.Value(partitionCountID, partitionLimit))
+	limit := units.Int64(cfg.Value(partitionCountID, partitionLimit))
 	if n <= limit {
 		return nil
 	}

@@ -225,7 +225,7 @@ func fitParallelism(limit, model float64, s int64, rowBytes float64, today int) 
 	if !(perPartition > 0) || room < perPartition {
 		return 0
 	}
-	return int(min(math.Floor(room/perPartition), float64(today-1)))
+	return units.Int(min(math.Floor(room/perPartition), float64(today-1)))
 }
 
 // fitSegments is the largest power of two below s whose peak fits limit, trying down to

@@ -34,6 +34,7 @@ type Param struct {
 	Name    string
 	Default float64
 	Doc     string
+	Max     float64 // the largest value the config schema accepts; 0: no bound
 }
 
 // registered collects the rules as their files' init functions run.

@@ -59,7 +59,7 @@ func checkScanOverhead(t *analysis.Table, cfg Config) []Finding {
 	}
 	msg := fmt.Sprintf("a full scan pays %s ms of fixed CPU for %s segments (%s ms each), %s of the %s ms budget",
 		units.Ms(f), units.Num(t.Layout.Segments), units.Ms(t.Engine.SegmentOverheadMs), units.Pct(f / *b), units.Ms(*b))
-	allowed := int64(*b / t.Engine.SegmentOverheadMs)
+	allowed := units.Int64(*b / t.Engine.SegmentOverheadMs) // +Inf at overhead 0: saturates
 	var hints []string
 	// The plan's recommendation first, so check and plan name the same layout.
 	if r, ok := t.Recommended(); ok {

@@ -80,5 +80,5 @@ func checkScanTime(t *analysis.Table, cfg Config) []Finding {
 
 // coresNeeded is the fewest cores whose even share of the CPU fits the budget.
 func coresNeeded(cpuMs, budget float64) int64 {
-	return max(int64(min(cpuMs/budget, 1e15))+1, 1)
+	return max(units.Int64(min(cpuMs/budget, 1e15))+1, 1) // NaN counts as 0
 }

@@ -20,7 +20,7 @@ func applyWaivers(t *analysis.Table, fs []Finding, cfg Config) []Finding {
 		w := &t.Spec.Waivers[i]
 		if today.After(w.Expires) {
 			if !cfg.off(ExpiredWaiver.ID) {
-				days := int64(math.Round(today.Sub(w.Expires).Hours() / 24))
+				days := units.Int64(math.Round(today.Sub(w.Expires).Hours() / 24))
 				fs = append(fs, waiverFinding(t, ExpiredWaiver, cfg, w,
 					fmt.Sprintf("waiver for %s expired on %s, %s %s ago; its findings count again", w.Rule, w.Expires.Format(dateLayout), units.Num(days), units.Plural(days, "day", "days")),
 					fmt.Sprintf("fix what %s reports, or renew the waiver with a later expires: and a reason that still holds", w.Rule)))

@@ -146,6 +146,15 @@ func quantity(v any, limit int64, unit string, parse func(string) (int64, error)
 	return 0, fmt.Errorf("must be a quantity, not %T", v)
 }
 
+// maxCores is the manifest schema's maximum of cores and refresh_parallelism.
+const maxCores = 4096
+
+// wholeUpTo is a validated whole number as an int, clamped to [0, limit] before the
+// conversion, which is left to the implementation beyond the int range.
+func wholeUpTo(v any, limit float64) int {
+	return int(min(max(number(v), 0), limit))
+}
+
 func number(v any) float64 {
 	if n, ok := v.(json.Number); ok {
 		f, _ := n.Float64()
@@ -196,7 +205,7 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		s.SegmentRows = &n
 	}
 	if v, ok := e["cores"]; ok {
-		n := int(number(v))
+		n := wholeUpTo(v, maxCores)
 		s.Cores = &n
 	}
 	s.SegmentOverheadMs = optNumber(e, "segment_overhead_ms")
@@ -206,7 +215,7 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		s.Memory = &n
 	}
 	if v, ok := e["refresh_parallelism"]; ok {
-		n := int(number(v))
+		n := wholeUpTo(v, maxCores)
 		s.RefreshParallelism = &n
 	}
 	return s
@@ -347,11 +356,15 @@ func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, item
 	p.Scheme = Scheme(s)
 	switch p.Scheme {
 	case SchemeEven:
+		count := 0.0
 		if d.ok(ptr + "/count") {
-			p.Count = int(min(number(raw["count"]), MaxPartitions+1))
+			count = number(raw["count"])
 		}
+		// Capped before the conversion: beyond int64 it wraps (count: 1e19 once became
+		// a negative count and the table was silently left out).
+		p.Count = int(min(count, MaxPartitions+1))
 		if p.Count > MaxPartitions {
-			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", group(int64(p.Count)), group(MaxPartitions)))
+			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", figure(count), group(MaxPartitions)))
 		}
 	case SchemeTime:
 		p.Tiers = d.tiers(ptr+"/tiers", raw["tiers"])
@@ -393,7 +406,7 @@ func (d *decoder) tiers(ptr string, v any) []Tier {
 		prev = &out[len(out)-1]
 	}
 	if total > MaxPartitions {
-		d.fail(ptr, fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", group(int64(min(total, float64(MaxCount)))), group(MaxPartitions)))
+		d.fail(ptr, fmt.Sprintf("the tiers keep %s periods, above the limit of %s partitions per table; keep fewer periods or use a coarser grain", figure(total), group(MaxPartitions)))
 	}
 	return out
 }

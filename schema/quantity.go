@@ -114,14 +114,31 @@ func digits(s string) bool {
 
 // group writes n with thousands separators: 1,000,000.
 func group(n int64) string {
-	s := fmt.Sprint(n)
+	sign := ""
 	if n < 0 {
-		return "-" + group(-n)
+		sign = "-" // through uint64: -n overflows for the most negative int64
 	}
+	s := strconv.FormatUint(abs(n), 10)
 	for i := len(s) - 3; i > 0; i -= 3 {
 		s = s[:i] + "," + s[i:]
 	}
-	return s
+	return sign + s
+}
+
+func abs(n int64) uint64 {
+	if n < 0 {
+		return uint64(0) - uint64(n)
+	}
+	return uint64(n)
+}
+
+// figure writes a whole number the schema accepted for a message: grouped while int64
+// holds it exactly (up to MaxCount), beyond that in three significant digits (1e+19).
+func figure(f float64) string {
+	if f >= -float64(MaxCount) && f <= float64(MaxCount) {
+		return group(int64(f))
+	}
+	return strconv.FormatFloat(f, 'g', 3, 64)
 }
 
 // ParseCapacities reads a comma-separated list of segment capacities, counts as

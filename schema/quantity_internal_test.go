@@ -1,7 +1,9 @@
 package schema
 
 import (
+	"encoding/json"
 	"fmt"
+	"math"
 	"testing"
 )
 
@@ -19,5 +21,42 @@ func TestParseNumberShortcutMatchesExact(t *testing.T) {
 				t.Errorf("parseNumber(%q, %d) = %d, %v; exact gives %d, %v", c, limit, n, err, m, err2)
 			}
 		}
+	}
+}
+
+// group and figure are total: the most negative int64 has no positive twin (negating it
+// recursed forever), and a float beyond int64 is written, not wrapped.
+func TestGroupAndFigureExtremes(t *testing.T) {
+	for _, c := range []struct{ got, want string }{
+		{group(math.MinInt64), "-9,223,372,036,854,775,808"}, {group(math.MaxInt64), "9,223,372,036,854,775,807"},
+		{group(-1000), "-1,000"}, {group(0), "0"},
+		{figure(1e15), "1,000,000,000,000,000"}, {figure(1e19), "1e+19"}, {figure(-1e300), "-1e+300"},
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+}
+
+// The loader clamps cores and refresh_parallelism to the schema's maximum before
+// converting; the two must not drift apart.
+func TestMaxCoresMatchesSchema(t *testing.T) {
+	var doc struct {
+		Defs struct {
+			Engine struct {
+				Properties map[string]struct{ Maximum float64 } `json:"properties"`
+			} `json:"engine"`
+		} `json:"$defs"`
+	}
+	if err := json.Unmarshal(ManifestSchema(), &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"cores", "refresh_parallelism"} {
+		if got := doc.Defs.Engine.Properties[k].Maximum; got != maxCores {
+			t.Errorf("schema maximum of engine.%s is %v, maxCores is %v", k, got, maxCores)
+		}
+	}
+	if got := wholeUpTo(json.Number("1e300"), maxCores); got != maxCores {
+		t.Errorf("wholeUpTo(1e300) = %d", got)
 	}
 }

@@ -156,6 +156,8 @@ tables:
 		{"rules:\n  scan-overhead: {limit: 3}\n", `.scangate.yaml:2:19: error: /rules/scan-overhead/limit: unknown key "limit"`},
 		{"rules:\n  made-up: {severity: off}\n", `.scangate.yaml:2:3: error: /rules/made-up: unknown key "made-up"`},
 		{"engines:\n  x: {segment_rows: 8Xi}\n", `.scangate.yaml:2:21: error: /engines/x/segment_rows: "8Xi" is not a count`},
+		// The forecast runs month by month: 1e9 months once ran for minutes in gigabytes.
+		{"rules:\n  budget-forecast: {horizon_months: 1e9}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: must be <= 600 [config]`},
 	} {
 		dir := repo(t, map[string]string{"m.yaml": manifest, ".scangate.yaml": c.cfg})
 		r := scangate(t, dir, "", nil, "check", "m.yaml")

@@ -104,7 +104,11 @@ func configSchema(t *testing.T) []byte {
 			"enum":        []any{"error", "warning", "note", "off"},
 		}}
 		for _, p := range r.Params {
-			props[p.Name] = obj{"title": p.Name, "description": p.Doc, "type": "number", "default": p.Default}
+			prop := obj{"title": p.Name, "description": p.Doc, "type": "number", "default": p.Default}
+			if p.Max > 0 {
+				prop["maximum"] = p.Max
+			}
+			props[p.Name] = prop
 		}
 		ruleProps[r.ID] = obj{
 			"title":                r.ID,

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"flag"
 	"os"
@@ -38,7 +39,13 @@ type result struct {
 // scangate runs the binary in dir with env added to a clean environment.
 func scangate(t *testing.T, dir, stdin string, env []string, args ...string) result {
 	t.Helper()
-	cmd := exec.Command(binary, args...)
+	return scangateCtx(t, context.Background(), dir, stdin, env, args...)
+}
+
+// scangateCtx is scangate, killed when ctx ends.
+func scangateCtx(t *testing.T, ctx context.Context, dir, stdin string, env []string, args ...string) result {
+	t.Helper()
+	cmd := exec.CommandContext(ctx, binary, args...)
 	cmd.Dir = dir
 	cmd.Env = append([]string{"PATH=" + os.Getenv("PATH"), "HOME=" + t.TempDir()}, env...)
 	cmd.Stdin = strings.NewReader(stdin)

@@ -11,8 +11,8 @@ import (
 	"github.com/scangate/scangate/schema"
 )
 
-// maxHorizon bounds --horizon: fifty years of months is already far past any plan.
-const maxHorizon = 600
+// maxHorizon bounds --horizon.
+const maxHorizon = advisor.MaxHorizonMonths
 
 func newPlan() *cobra.Command {
 	var table, segRows, today, svg string

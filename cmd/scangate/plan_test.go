@@ -354,3 +354,27 @@ func TestREADMEPlanExample(t *testing.T) {
 		t.Errorf("only %d lines of the example checked", shown)
 	}
 }
+
+// Each limit is written in its figure's unit. The unit was guessed from the size: a scan
+// budget of 2,000,000 ms (above 1 MiB as a number) printed as 1.91 MiB, and a refresh
+// budget under 1 MiB printed in ms.
+func TestPlanLimitUnits(t *testing.T) {
+	dir := repo(t, map[string]string{"m.yaml": `format: 1
+model: m
+engine: {segment_rows: 1Mi}
+budgets: {scan_overhead_ms: 2000000, scan_ms: 5000000, refresh_memory: 1000}
+tables:
+  - name: t
+    rows: 10M
+    partitions: {scheme: none}
+    columns:
+      - {name: a, type: int64, distinct: 10M}
+`})
+	r := scangate(t, dir, "", nil, "plan", "--today", "2026-01-01", "m.yaml")
+	wantCode(t, r, 0)
+	for _, want := range []string{`(?m)^   fixed CPU .* budget 2,000,000 ms `, `(?m)^   scan wall, a .* budget 5,000,000 ms `, `(?m)^ +budget 1000 B `} {
+		if !regexp.MustCompile(want).MatchString(r.stdout) {
+			t.Errorf("plan lacks %s:\n%s", want, r.stdout)
+		}
+	}
+}

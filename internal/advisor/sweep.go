@@ -33,6 +33,10 @@ var DefaultLevels = Levels{OverheadWarnShare: 0.8, ScanWarnShare: 0.8, TruncWarn
 // ForecastMonths is how far ahead the budget-forecast rule warns of a crossing by default.
 const ForecastMonths = 12
 
+// MaxHorizonMonths bounds every forecast horizon (plan's --horizon, budget-forecast's
+// horizon_months): fifty years of months is already far past any plan.
+const MaxHorizonMonths = 600
+
 // horizon is the forecast window of the levels, the default when unset.
 func (l Levels) horizon() int {
 	if l.HorizonMonths > 0 {
@@ -632,7 +636,7 @@ func Grow(spec schema.Table, months int) schema.Table {
 		for n := range cols {
 			if cols[n].EncodedBytes > 0 {
 				v := math.Round(float64(cols[n].EncodedBytes) * k)
-				cols[n].EncodedBytes = int64(min(max(v, 1), float64(schema.MaxBytes)))
+				cols[n].EncodedBytes = units.Int64(min(max(v, 1), float64(schema.MaxBytes)))
 			}
 		}
 		out.Columns = cols

@@ -95,7 +95,7 @@ func MergeTiers(tiers []schema.Tier, i int, g schema.Grain, window int) ([]schem
 		span -= float64(window) * tiers[i].Grain.Days()
 	}
 	// Round up: the periods must still cover the whole span the tiers kept.
-	keep := max(1, int(math.Ceil(span/g.Days()-1e-9)))
+	keep := max(1, units.Int(math.Ceil(span/g.Days()-1e-9)))
 	out = append(out, schema.Tier{Grain: g, Keep: keep, Pos: tiers[i].Pos})
 	return append(out, tiers[j:]...), j
 }

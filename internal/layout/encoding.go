@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"github.com/scangate/scangate/internal/units"
 	"math"
 	"math/bits"
 
@@ -194,7 +195,7 @@ func SegmentSize(c schema.Column, tableRows, n int64) Size {
 
 // singleRunBytes is the index stream of n rows of one value: the header of one run.
 func singleRunBytes(n float64) float64 {
-	return float64(varintBytes(int64(math.Ceil(2 * n))))
+	return float64(varintBytes(units.Int64(math.Ceil(2 * n))))
 }
 
 // randomIndexBytes is the expected index stream of n indexes of w bits whose neighbours
@@ -285,10 +286,10 @@ func wholeGroupShare(l, m float64) float64 {
 func hybridBytes(w int, uniform, mixed, rleRuns, bpRuns float64) float64 {
 	b := mixed * float64(w)
 	if mixed > 0 && bpRuns > 0 {
-		b += float64(bpRuns * float64(varintBytes(int64(math.Ceil(2*mixed/bpRuns))+1)))
+		b += float64(bpRuns * float64(varintBytes(units.Int64(math.Ceil(2*mixed/bpRuns))+1)))
 	}
 	if uniform > 0 && rleRuns > 0 {
-		header := varintBytes(int64(math.Ceil(16 * uniform / rleRuns)))
+		header := varintBytes(units.Int64(math.Ceil(16 * uniform / rleRuns)))
 		b += float64(rleRuns * float64(header+(w+7)/8))
 	}
 	return b

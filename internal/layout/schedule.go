@@ -1,6 +1,10 @@
 package layout
 
-import "math"
+import (
+	"math"
+
+	"github.com/scangate/scangate/internal/units"
+)
 
 // TaskGroup is Count identical tasks of Ms each: the full segments of a partition
 // all cost the same, so a billion segments are a handful of groups, not a billion tasks.
@@ -152,7 +156,7 @@ func (h *coreHeap) bulk(c int64, t float64) {
 	var done int64
 	for i, l := range h.load {
 		if lo > l {
-			k := int64(math.Ceil((lo - l) / t))
+			k := units.Int64(math.Ceil((lo - l) / t))
 			h.load[i] = l + float64(float64(k)*t)
 			done += k
 		}

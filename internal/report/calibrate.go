@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"github.com/scangate/scangate/internal/units"
 	"math"
 	"strconv"
 	"strings"
@@ -81,7 +82,7 @@ func pm(v, se, scale float64) string {
 	if math.IsNaN(se) || se <= 0 {
 		return sig(v, 4)
 	}
-	dec := max(0, 1-int(math.Floor(math.Log10(se))))
+	dec := max(0, 1-units.Int(math.Floor(math.Log10(se))))
 	dec = min(dec, 12)
 	return strconv.FormatFloat(v, 'f', dec, 64) + " ± " + strconv.FormatFloat(se, 'f', dec, 64)
 }
@@ -91,7 +92,7 @@ func sig(v float64, n int) string {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return strconv.FormatFloat(v, 'f', 0, 64)
 	}
-	dec := max(0, n-1-int(math.Floor(math.Log10(math.Abs(v)))))
+	dec := max(0, n-1-units.Int(math.Floor(math.Log10(math.Abs(v)))))
 	return strconv.FormatFloat(v, 'f', dec, 64)
 }
 

@@ -158,7 +158,7 @@ func frontChart(b *bytes.Buffer, sw *advisor.Sweep) {
 		if sw.Profiled {
 			return units.Size(v)
 		}
-		return units.Count(int64(v)) + " rows"
+		return units.Count(units.Int64(v)) + " rows"
 	}
 	x0, x1 := math.Inf(1), math.Inf(-1)
 	y0, y1 := math.Inf(1), math.Inf(-1)

@@ -65,16 +65,16 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 	}
 	budgets := m.Budgets.Override(t.Budgets)
 	var rows [][]string
-	row := func(name, value, limitName string, limit *float64, fig float64) {
+	row := func(name, value, limitName string, limit *float64, fig float64, unit func(float64) string) {
 		r := []string{name, value, "", ""}
 		if limit != nil && *limit > 0 {
-			r[2], r[3] = limitName+" "+limitText(limitName, *limit), units.Pct(fig / *limit)
+			r[2], r[3] = limitName+" "+unit(*limit), units.Pct(fig / *limit)
 		}
 		rows = append(rows, r)
 	}
-	row("fixed CPU per full scan", units.Ms(l.FixedMs)+" ms", "budget", budgets.ScanOverheadMs, l.FixedMs)
+	row("fixed CPU per full scan", msText(l.FixedMs), "budget", budgets.ScanOverheadMs, l.FixedMs, msText)
 	if now.Widest != "" {
-		row("scan wall, "+now.Widest, units.Ms(now.WallMs)+" ms", "budget", budgets.ScanMs, now.WallMs)
+		row("scan wall, "+now.Widest, msText(now.WallMs), "budget", budgets.ScanMs, now.WallMs, msText)
 	} else {
 		rows = append(rows, []string{"scan wall", "-", "needs column profiles", ""})
 	}
@@ -83,9 +83,9 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 		if len(t.Columns) == 0 {
 			name = "refresh peak (others)" // this table's own size is unknown without profiles
 		}
-		row(name, units.Size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak)
+		row(name, units.Size(now.Peak), "engine", bytesLimit(e.Memory), now.Peak, units.Size)
 		if p.RefreshBudget != nil {
-			row("", "", "budget", p.RefreshBudget, now.Peak)
+			row("", "", "budget", p.RefreshBudget, now.Peak, units.Size)
 		}
 	}
 	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)
@@ -95,13 +95,10 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 	renderForecast(b, p, opt)
 }
 
-// limitText writes a budget in its unit: ms for the scan budgets, bytes for memory.
-func limitText(kind string, v float64) string {
-	if kind == "engine" || v >= 1<<20 {
-		return units.Size(v)
-	}
-	return units.Ms(v) + " ms"
-}
+// msText writes a scan figure or budget with its unit. Each limit is written in its own
+// figure's unit: guessing it from the size wrote a 2,000,000 ms budget as 1.91 MiB and a
+// 1 B memory budget as 1.0 ms.
+func msText(v float64) string { return units.Ms(v) + " ms" }
 
 func bytesLimit(n int64) *float64 {
 	if n <= 0 {

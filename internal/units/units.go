@@ -10,11 +10,43 @@ import (
 	"strings"
 )
 
-// These write figures exactly as the rules' messages do (rules/format.go); a test in
-// package rules keeps the two in step.
+// Every function here is total: any int64 or float64, NaN and infinities included, gives
+// a short string (at most 26 bytes) whose sign is the figure's. Figures up to exactLimit
+// are written digit for digit; beyond it, or when not finite, see bounded.
+
+// exactLimit is the largest magnitude written digit for digit: 10^15, the most rows or
+// distinct values a manifest may declare (schema.MaxCount). A larger figure can only come
+// from extreme settings (10^15 segments x 100,000 ms), and its 19 digits would say no
+// more than three significant ones and a power of ten: 1.2e20.
+const exactLimit = 1e15
+
+// bounded writes v when it is beyond exactLimit or not finite: three significant digits
+// and a power of ten (1e20, -9.22e18, 1.8e308), or inf, -inf, NaN. The arithmetic keeps
+// its figures finite; the words exist so that no input can make a format fail or lie.
+func bounded(v float64) (string, bool) {
+	switch {
+	case math.IsNaN(v):
+		return "NaN", true
+	case math.IsInf(v, 1):
+		return "inf", true
+	case math.IsInf(v, -1):
+		return "-inf", true
+	case math.Abs(v) <= exactLimit:
+		return "", false
+	}
+	mant, exp, _ := strings.Cut(strconv.FormatFloat(v, 'e', 2, 64), "e")
+	if strings.Contains(mant, ".") {
+		mant = strings.TrimRight(strings.TrimRight(mant, "0"), ".")
+	}
+	// exp is "+NN" or "+NNN": beyond 10^15 the power is never negative.
+	return mant + "e" + strings.TrimLeft(exp, "+0"), true
+}
 
 // Count writes a row or value count the way manifests write it: 8Mi, 7.2G, 400k.
 func Count(n int64) string {
+	if s, ok := bounded(float64(n)); ok {
+		return s
+	}
 	for _, u := range []struct {
 		s string
 		f int64
@@ -36,6 +68,12 @@ func Count(n int64) string {
 
 // Short keeps three significant digits and drops trailing zeros: 7.2, 40, 1.46.
 func Short(v float64) string {
+	if s, ok := bounded(v); ok {
+		return s
+	}
+	if v == 0 {
+		v = 0 // -0 writes as 0
+	}
 	prec := 2
 	switch {
 	case v >= 100:
@@ -52,6 +90,9 @@ func Short(v float64) string {
 
 // Num writes an integer with thousands separators: 1,460.
 func Num(n int64) string {
+	if s, ok := bounded(float64(n)); ok {
+		return s
+	}
 	if n < 0 {
 		// Through uint64: -n overflows for the most negative int64.
 		return "-" + group(strconv.FormatUint(uint64(0)-uint64(n), 10))
@@ -69,10 +110,16 @@ func group(s string) string {
 
 // Ms writes milliseconds: one decimal below 100, whole and grouped above.
 func Ms(x float64) string {
+	if s, ok := bounded(x); ok {
+		return s
+	}
+	if x == 0 {
+		x = 0 // -0 writes as 0.0, so Signed never writes +-0.0
+	}
 	if math.Abs(x) < 100 {
 		return strconv.FormatFloat(x, 'f', 1, 64)
 	}
-	return Num(int64(math.Round(x)))
+	return Num(int64(math.Round(x))) // |x| <= exactLimit: exact in int64
 }
 
 // Signed writes a change in milliseconds with its sign: +1.5, -642.
@@ -88,11 +135,19 @@ func Pct(f float64) string {
 	if f > 0 && f < 0.1 {
 		return strconv.FormatFloat(f*100, 'f', 1, 64) + "%"
 	}
-	return Num(int64(math.Round(min(f*100, 1e15)))) + "%"
+	p := f * 100
+	if s, ok := bounded(p); ok {
+		return s + "%"
+	}
+	return Num(int64(math.Round(p))) + "%" // |p| <= exactLimit: exact in int64
 }
 
 // Size writes bytes in binary units: 1.5 GiB.
 func Size(b float64) string {
+	if math.IsNaN(b) || math.IsInf(b, 0) {
+		s, _ := bounded(b)
+		return s + " B"
+	}
 	units := []string{"B", "KiB", "MiB", "GiB", "TiB", "PiB", "EiB"}
 	i := 0
 	for b >= 1024 && i < len(units)-1 {
