@@ -14,6 +14,9 @@ type Result struct {
 	Findings []rules.Finding
 	Summary  Summary
 	Baseline *BaselineUse // nil without --baseline
+
+	uris      map[string]string // File.Name -> File.URI, built by URI on first use
+	urisFiles int               // len(Files) when uris was built
 }
 
 // BaselineUse says which baseline a run was compared with and how many of its entries
@@ -101,12 +104,21 @@ func (r *Result) Fails(f rules.Finding) bool {
 	return !f.Accepted() && r.FailOn != 0 && f.Severity >= r.FailOn
 }
 
-// URI is the repository-relative path of a finding's file.
+// URI is the repository-relative path of a finding's file. Every finding asks, so the
+// files are indexed once rather than searched each time (a run of thousands of files).
+// Not safe for concurrent first use; reports are rendered one after another.
 func (r *Result) URI(file string) string {
-	for _, f := range r.Files {
-		if f.Name == file {
-			return f.URI
+	if r.uris == nil || r.urisFiles != len(r.Files) {
+		r.uris = make(map[string]string, len(r.Files))
+		for _, f := range r.Files {
+			if _, seen := r.uris[f.Name]; !seen { // the first file of a name, as before
+				r.uris[f.Name] = f.URI
+			}
 		}
+		r.urisFiles = len(r.Files)
+	}
+	if u, ok := r.uris[file]; ok {
+		return u
 	}
 	return file
 }
