@@ -41,7 +41,7 @@ func newBaseline() *cobra.Command {
 				text.Render(cmd.ErrOrStderr(), res, false)
 				return &exitError{code: exitInvalid, msg: "some manifests are invalid; fix them before writing a baseline"}
 			}
-			b := baseline.Build(findings, res.URI)
+			b := baseline.Build(findings, res.Key)
 			data := b.Marshal()
 			// Never write a file check --baseline would refuse (a path it cannot record, a
 			// file above --max-file-size).

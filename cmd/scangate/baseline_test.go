@@ -11,9 +11,9 @@ import (
 	"time"
 )
 
-// findingIDs runs check --format json in dir and returns each finding's uri and
-// fingerprint, sorted.
-func findingIDs(t *testing.T, dir string, args ...string) []string {
+// fingerprints runs check --format json in dir and returns the findings' fingerprints
+// and uris, each sorted.
+func fingerprints(t *testing.T, dir string, args ...string) (fps, uris []string) {
 	t.Helper()
 	r := scangate(t, dir, "", nil, append([]string{"check", "--format", "json", "--fail-on", "never"}, args...)...)
 	wantCode(t, r, 0)
@@ -23,16 +23,19 @@ func findingIDs(t *testing.T, dir string, args ...string) []string {
 	if err := json.Unmarshal([]byte(r.stdout), &doc); err != nil {
 		t.Fatalf("%v\n%s", err, r.stdout)
 	}
-	var ids []string
 	for _, f := range doc.Findings {
-		ids = append(ids, f.URI+" "+f.Fingerprint)
+		fps = append(fps, f.Fingerprint)
+		uris = append(uris, f.URI)
 	}
-	sort.Strings(ids)
-	if len(ids) == 0 {
+	sort.Strings(fps)
+	sort.Strings(uris)
+	if len(fps) == 0 {
 		t.Fatalf("no findings in %s", r.stdout)
 	}
-	return ids
+	return fps, uris
 }
+
+func same(a, b []string) bool { return strings.Join(a, "\n") == strings.Join(b, "\n") }
 
 func demoManifest(t *testing.T) string {
 	t.Helper()
@@ -56,57 +59,62 @@ func hasRepositoryAbove(dir string) bool {
 }
 
 // Outside any repository the path hashed into a fingerprint is taken from the input's own
-// location, so where scangate runs from does not change it.
+// location, so where scangate runs from does not change it; reports still name the file
+// relative to the working directory, so annotations find it.
 func TestFingerprintsIndependentOfWorkingDirectory(t *testing.T) {
 	dir := t.TempDir()
 	if hasRepositoryAbove(dir) {
 		t.Skipf("%s is inside a repository", dir)
 	}
-	src := demoManifest(t)
-	for _, p := range []string{"models/sub/m.yaml", "other/.keep"} {
-		os.MkdirAll(filepath.Join(dir, filepath.Dir(p)), 0o755)
+	for _, d := range []string{"models/sub", "other"} {
+		os.MkdirAll(filepath.Join(dir, d), 0o755)
 	}
-	os.WriteFile(filepath.Join(dir, "models/sub/m.yaml"), []byte(src), 0o644)
+	os.WriteFile(filepath.Join(dir, "models/sub/m.yaml"), []byte(demoManifest(t)), 0o644)
 
-	// A named file: its own directory, from three working directories.
-	want := findingIDs(t, dir, "models/sub/m.yaml")
-	if !strings.HasPrefix(want[0], "m.yaml ") {
-		t.Errorf("a named file outside a repository: uri %q, want m.yaml", want[0])
+	// A named file, from four working directories.
+	want, uris := fingerprints(t, dir, "models/sub/m.yaml")
+	if uris[0] != "models/sub/m.yaml" {
+		t.Errorf("report path %q, want models/sub/m.yaml (relative to the working directory)", uris[0])
 	}
-	for wd, arg := range map[string]string{"models/sub": "m.yaml", "other": "../models/sub/m.yaml", "/": filepath.Join(dir, "models/sub/m.yaml")} {
+	for wd, arg := range map[string]string{"models/sub": "m.yaml", "models": "sub/m.yaml", "other": "../models/sub/m.yaml", "/": filepath.Join(dir, "models/sub/m.yaml")} {
 		if wd != "/" {
 			wd = filepath.Join(dir, wd)
 		}
-		if got := findingIDs(t, wd, arg); strings.Join(got, "\n") != strings.Join(want, "\n") {
-			t.Errorf("from %s with %s:\n%s\nwant\n%s", wd, arg, strings.Join(got, "\n"), strings.Join(want, "\n"))
+		if got, _ := fingerprints(t, wd, arg); !same(got, want) {
+			t.Errorf("from %s with %s: fingerprints\n%s\nwant\n%s", wd, arg, strings.Join(got, "\n"), strings.Join(want, "\n"))
 		}
 	}
 
-	// A named directory: paths below it, from two working directories.
-	walked := findingIDs(t, dir, "models")
-	if !strings.HasPrefix(walked[0], "sub/m.yaml ") {
-		t.Errorf("a walked file outside a repository: uri %q, want sub/m.yaml", walked[0])
+	// A named directory, from two working directories.
+	walked, _ := fingerprints(t, dir, "models")
+	if got, _ := fingerprints(t, filepath.Join(dir, "other"), "../models"); !same(got, walked) {
+		t.Errorf("walk from other/: fingerprints\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(walked, "\n"))
 	}
-	if got := findingIDs(t, filepath.Join(dir, "other"), "../models"); strings.Join(got, "\n") != strings.Join(walked, "\n") {
-		t.Errorf("walk from other/:\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(walked, "\n"))
+
+	// So a baseline written in one place holds the findings seen from another.
+	wantCode(t, scangate(t, dir, "", nil, "baseline", "write", "-o", "base.json", "models/sub/m.yaml"), 0)
+	r := scangate(t, filepath.Join(dir, "other"), "", nil, "check", "--format", "json", "--baseline", "../base.json", "../models/sub/m.yaml")
+	wantCode(t, r, 0)
+	if d := parseJSON(t, r); d.Summary.Baselined != len(want) || *d.Summary.BaselineFixed != 0 {
+		t.Errorf("baseline from another directory: %+v", d.Summary)
 	}
 }
 
 // Inside a repository paths stay relative to its root, from wherever in it scangate runs;
-// a file of another repository is relative to that repository's root.
+// a file of another repository hashes its path in that repository.
 func TestFingerprintsInsideRepositories(t *testing.T) {
 	src := demoManifest(t)
 	a := repo(t, map[string]string{"models/m.yaml": src, "docs/.keep": ""})
-	want := findingIDs(t, a, "models/m.yaml")
-	if !strings.HasPrefix(want[0], "models/m.yaml ") {
-		t.Errorf("uri %q, want models/m.yaml", want[0])
+	want, uris := fingerprints(t, a, "models/m.yaml")
+	if uris[0] != "models/m.yaml" {
+		t.Errorf("uri %q, want models/m.yaml", uris[0])
 	}
-	if got := findingIDs(t, filepath.Join(a, "docs"), "../models/m.yaml"); strings.Join(got, "\n") != strings.Join(want, "\n") {
-		t.Errorf("from docs/:\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	if got, uris := fingerprints(t, filepath.Join(a, "docs"), "../models/m.yaml"); !same(got, want) || uris[0] != "models/m.yaml" {
+		t.Errorf("from docs/: %v %v, want %v", got, uris, want)
 	}
 	b := repo(t, map[string]string{"models/m.yaml": src})
-	if got := findingIDs(t, b, filepath.Join(a, "models/m.yaml")); strings.Join(got, "\n") != strings.Join(want, "\n") {
-		t.Errorf("from another repository:\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	if got, _ := fingerprints(t, b, filepath.Join(a, "models/m.yaml")); !same(got, want) {
+		t.Errorf("from another repository: %v, want %v", got, want)
 	}
 }
 

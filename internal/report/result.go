@@ -15,8 +15,8 @@ type Result struct {
 	Summary  Summary
 	Baseline *BaselineUse // nil without --baseline
 
-	uris      map[string]string // File.Name -> File.URI, built by URI on first use
-	urisFiles int               // len(Files) when uris was built
+	byName      map[string]int // File.Name -> index of its first file, built on first use
+	byNameFiles int            // len(Files) when byName was built
 }
 
 // BaselineUse says which baseline a run was compared with and how many of its entries
@@ -28,8 +28,12 @@ type BaselineUse struct {
 
 // File is one input and what was computed for it.
 type File struct {
-	Name    string // as reported: the path given or found, "<stdin>" for standard input
-	URI     string // path relative to the repository root, with forward slashes
+	Name string // as reported: the path given or found, "<stdin>" for standard input
+	URI  string // path relative to the repository root, with forward slashes
+	// Key is the path its findings' fingerprints hash: URI, except for a file outside the
+	// working directory's repository, where it does not depend on the working directory.
+	// "" means URI.
+	Key     string
 	Model   string
 	Invalid bool // could not be read or broke the schema; its findings say why
 	// Analysed counts the tables analysed. Tables holds them only when a report prints
@@ -104,26 +108,40 @@ func (r *Result) Fails(f rules.Finding) bool {
 	return !f.Accepted() && r.FailOn != 0 && f.Severity >= r.FailOn
 }
 
-// URI is the repository-relative path of a finding's file. Every finding asks, so the
-// files are indexed once rather than searched each time (a run of thousands of files).
-// Not safe for concurrent first use; reports are rendered one after another.
+// URI is the repository-relative path of a finding's file.
 func (r *Result) URI(file string) string {
-	if r.uris == nil || r.urisFiles != len(r.Files) {
-		r.uris = make(map[string]string, len(r.Files))
-		for _, f := range r.Files {
-			if _, seen := r.uris[f.Name]; !seen { // the first file of a name, as before
-				r.uris[f.Name] = f.URI
-			}
-		}
-		r.urisFiles = len(r.Files)
-	}
-	if u, ok := r.uris[file]; ok {
-		return u
+	if f := r.file(file); f != nil {
+		return f.URI
 	}
 	return file
 }
 
+// Key is the path the fingerprints of a finding's file hash (see File.Key).
+func (r *Result) Key(file string) string {
+	if f := r.file(file); f != nil && f.Key != "" {
+		return f.Key
+	}
+	return r.URI(file)
+}
+
+// file finds the first file of a name. Every finding asks, so the files are indexed once
+// rather than searched each time (a run of thousands of files). Not safe for concurrent
+// first use; reports are rendered one after another.
+func (r *Result) file(name string) *File {
+	if r.byName == nil || r.byNameFiles != len(r.Files) {
+		r.byName = make(map[string]int, len(r.Files))
+		for i := len(r.Files) - 1; i >= 0; i-- {
+			r.byName[r.Files[i].Name] = i
+		}
+		r.byNameFiles = len(r.Files)
+	}
+	if i, ok := r.byName[name]; ok {
+		return &r.Files[i]
+	}
+	return nil
+}
+
 // Fingerprint is the stable identity of a finding in this run.
 func (r *Result) Fingerprint(f rules.Finding) string {
-	return rules.Fingerprint(f, r.URI(f.File))
+	return rules.Fingerprint(f, r.Key(f.File))
 }

@@ -21,7 +21,7 @@ func ApplyBaseline(file string, r *report.Result, limits schema.Limits) (*report
 	if err != nil {
 		return nil, err
 	}
-	fixed := b.Apply(r.Findings, r.URI)
+	fixed := b.Apply(r.Findings, r.Key)
 	return &report.BaselineUse{File: file, Fixed: fixed}, nil
 }
 

@@ -62,10 +62,10 @@ func TestApplyBaselineErrors(t *testing.T) {
 	}
 }
 
-// Repository paths come from the input's own location: the working directory's
-// repository when it holds the file, else the nearest repository above the file, else
-// the directory named on the command line.
-func TestURIRoots(t *testing.T) {
+// The path a fingerprint hashes comes from the input's own location: the working
+// directory's repository when it holds the file, else the nearest repository above the
+// file, else the directory named on the command line.
+func TestFingerprintPaths(t *testing.T) {
 	outside := t.TempDir()
 	if repositoryAbove(outside, nil) != "" {
 		t.Skipf("%s is inside a repository", outside)
@@ -75,7 +75,7 @@ func TestURIRoots(t *testing.T) {
 	for _, d := range []string{filepath.Join(repoA, ".git"), filepath.Join(nested, ".git"), filepath.Join(outside, "loose", "deep")} {
 		os.MkdirAll(d, 0o755)
 	}
-	r := &uriRoots{above: map[string]string{}}
+	r := &fingerprintPaths{above: map[string]string{}}
 	r.wdRepo = repositoryAbove(repoA, r.above)
 	if r.wdRepo != repoA {
 		t.Fatalf("repository of %s: %q", repoA, r.wdRepo)
@@ -91,16 +91,16 @@ func TestURIRoots(t *testing.T) {
 		{Input{name: filepath.Join(outside, "loose", "deep", "m.yaml"), root: filepath.Join(outside, "loose")}, "deep/m.yaml"},
 		{Input{name: filepath.Join(outside, "loose", "deep", "m.yaml")}, "m.yaml"},
 	} {
-		if got := r.uri(c.in); got != c.want {
-			t.Errorf("uri(%+v) = %q, want %q", c.in, got, c.want)
+		if got := r.key(c.in); got != c.want {
+			t.Errorf("key(%+v) = %q, want %q", c.in, got, c.want)
 		}
 	}
 	// Run from outside repository a, the nested repository is the nearest above its file.
-	r = &uriRoots{above: map[string]string{}}
-	if got := r.uri(Input{name: filepath.Join(nested, "m.yaml")}); got != "m.yaml" {
+	r = &fingerprintPaths{above: map[string]string{}}
+	if got := r.key(Input{name: filepath.Join(nested, "m.yaml")}); got != "m.yaml" {
 		t.Errorf("nested repository from outside: %q", got)
 	}
-	if got := r.uri(Input{name: filepath.Join(repoA, "models", "m.yaml")}); got != "models/m.yaml" {
+	if got := r.key(Input{name: filepath.Join(repoA, "models", "m.yaml")}); got != "models/m.yaml" {
 		t.Errorf("repository a from outside: %q", got)
 	}
 }

@@ -179,7 +179,7 @@ func WriteFileAtomic(path string, data []byte) error {
 }
 
 // RepositoryRoot is the nearest directory at or above the working directory that holds
-// .git; without one, the working directory. diff keys its sides and runs git from it.
+// .git; without one, the working directory. Report paths are relative to it.
 func RepositoryRoot() string {
 	wd, err := os.Getwd()
 	if err != nil {
@@ -218,26 +218,27 @@ func repositoryAbove(dir string, seen map[string]string) string {
 	return root
 }
 
-// uriRoots picks the directory each input's repository path is taken from, so the path,
-// and the fingerprints hashed over it, do not depend on where scangate runs: the working
-// directory's repository when it holds the file (paths there are as they always were),
-// else the nearest repository above the file, else, outside any repository, the
-// directory named on the command line (a named file's own directory).
-type uriRoots struct {
+// fingerprintPaths picks the path hashed into an input's fingerprints so that it does not
+// depend on where scangate runs: the report path when the working directory's repository
+// holds the file (as it always was), else the path relative to the nearest repository
+// above the file, else, outside any repository, relative to the directory named on the
+// command line (a named file's own directory). Report paths stay relative to the working
+// directory there, so annotations still find the file.
+type fingerprintPaths struct {
 	wdRepo string            // "" when the working directory is in no repository
 	above  map[string]string // directory -> nearest repository root at or above it
 }
 
-func newURIRoots() *uriRoots {
-	r := &uriRoots{above: map[string]string{}}
+func newFingerprintPaths() *fingerprintPaths {
+	r := &fingerprintPaths{above: map[string]string{}}
 	if wd, err := os.Getwd(); err == nil {
 		r.wdRepo = repositoryAbove(wd, r.above)
 	}
 	return r
 }
 
-// uri is the repository path of one input.
-func (r *uriRoots) uri(in Input) string {
+// key is the path hashed into the fingerprints of one input's findings.
+func (r *fingerprintPaths) key(in Input) string {
 	if in.name == StdinName {
 		return RepositoryPath("", in.name)
 	}
