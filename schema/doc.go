@@ -1,6 +1,7 @@
 // Package schema is scangate's contract: the embedded JSON Schemas of the manifest, the
-// project config and the json and diff reports, and the loader that turns a manifest's
-// YAML or JSON into a typed Manifest.
+// project config, the baseline file and the json and diff reports, and the loaders that
+// turn a manifest's YAML or JSON into a typed Manifest and a baseline's strict JSON into
+// positioned values.
 //
 // Loading reads the bytes into YAML nodes, refuses what the manifest format forbids
 // (duplicate keys, documents after the first), validates the nodes

@@ -64,7 +64,18 @@ func isJSON(file string) bool {
 // comes with the problem that stopped the read; a tree may carry problems of its own
 // (t.problems) that left the rest readable.
 func parse(file string, data []byte, lim Limits, start string) (*tree, []Problem) {
-	fail := func(p Problem) (*tree, []Problem) { return nil, []Problem{p} }
+	return parseAs(isJSON(file), data, lim, start)
+}
+
+// parseAs is parse with the syntax chosen by the caller: strict JSON, or YAML.
+func parseAs(asJSON bool, data []byte, lim Limits, start string) (*tree, []Problem) {
+	fail := func(p Problem) (*tree, []Problem) {
+		// A merge's leftover marker breaks the syntax somewhere at or after it; say why.
+		if at, marker, ok := conflictMarker(data); ok && at.Line <= p.Pos.Line {
+			p = Problem{Pos: at, Message: "merge conflict marker " + marker + "; resolve the conflict, then run again"}
+		}
+		return nil, []Problem{p}
+	}
 	if lim.MaxFileBytes > 0 && len(data) > lim.MaxFileBytes {
 		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several files", len(data), lim.MaxFileBytes)})
 	}
@@ -72,7 +83,7 @@ func parse(file string, data []byte, lim Limits, start string) (*tree, []Problem
 		return fail(*p)
 	}
 	var top *yaml.Node
-	if isJSON(file) {
+	if asJSON {
 		n, p := parseJSON(data, lim, start)
 		if p != nil {
 			return fail(*p)
@@ -305,4 +316,26 @@ func lineFeeds(data []byte) []byte {
 	}
 	out := bytes.ReplaceAll(data, []byte("\r\n"), []byte("\n"))
 	return bytes.ReplaceAll(out, []byte("\r"), []byte("\n"))
+}
+
+// conflictMarker finds the first line a merge left behind (<<<<<<<, =======, >>>>>>>),
+// counting lines as YAML does (CR LF, a lone CR and LF each one break).
+func conflictMarker(data []byte) (Pos, string, bool) {
+	line := 1
+	for off := 0; off < len(data); line++ {
+		end := off
+		for end < len(data) && data[end] != '\n' && data[end] != '\r' {
+			end++
+		}
+		for _, m := range []string{"<<<<<<<", "=======", ">>>>>>>"} {
+			if bytes.HasPrefix(data[off:end], []byte(m)) {
+				return Pos{Line: line, Col: 1}, m, true
+			}
+		}
+		if end+1 < len(data) && data[end] == '\r' && data[end+1] == '\n' {
+			end++
+		}
+		off = end + 1
+	}
+	return Pos{}, "", false
 }

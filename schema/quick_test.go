@@ -15,7 +15,7 @@ import (
 // is always allowed; it only costs time.
 
 func TestQuickCompilesEmbeddedSchemas(t *testing.T) {
-	for _, d := range []*document{manifestDoc, configDoc} {
+	for _, d := range []*document{manifestDoc, configDoc, baselineDoc} {
 		if _, err := d.quick(); err != nil {
 			t.Errorf("%s: %v", d.url, err)
 		}
@@ -76,8 +76,14 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 		}
 		n[agree(t, path, manifestDoc, tr.root)]++
 		agree(t, path+" (as a config)", configDoc, tr.root)
+		agree(t, path+" (as a baseline)", baselineDoc, tr.root)
 		// Every manifest meant to be valid must take the quick path, or the quick check
 		// has quietly stopped saving time.
+		if strings.Contains(path, filepath.Join("testdata", "baselines", "good-")) {
+			if got := mustQuick(t, baselineDoc).check(tr.root); got != passes {
+				t.Errorf("%s: valid baseline not passed by the quick check (verdict %d)", path, got)
+			}
+		}
 		if strings.Contains(path, filepath.Join("testdata", "valid")) || strings.Contains(path, filepath.Join("testdata", "demo")) {
 			if got := mustQuick(t, manifestDoc).check(tr.root); got != passes {
 				t.Errorf("%s: valid manifest not passed by the quick check (verdict %d)", path, got)

@@ -30,6 +30,7 @@ type document struct {
 	compiled func() (*jsonschema.Schema, error)
 	quick    func() (*quick, error)
 	doc      func() any
+	json     bool // a JSON file: types are worded as JSON names them
 }
 
 func newDocument(url string, raw []byte) *document {
@@ -204,6 +205,9 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	case *kind.Required:
 		return []Problem{at(ptr, loc, fmt.Sprintf("missing required key %s%s", quoteList(k.Missing), t.schemeContext(e)))}
 	case *kind.Type:
+		if d.json {
+			return []Problem{at(ptr, loc, fmt.Sprintf("must be %s, not %s", jsonTypeWords(k.Want), jsonTypeWords([]string{k.Got})))}
+		}
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be %s, not %s", typeWords(k.Want, e.SchemaURL), k.Got))}
 	case *kind.Minimum:
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be >= %s", ratWords(k.Want)))}
@@ -214,6 +218,9 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 	case *kind.Pattern:
 		return []Problem{at(ptr, loc, patternWords(fmt.Sprint(k.Got), e.SchemaURL))}
 	case *kind.Const:
+		if d.json {
+			return []Problem{at(ptr, loc, fmt.Sprintf("must be %v, not %s", k.Want, valueWords(valueAt(t.root, e.InstanceLocation))))}
+		}
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be %v", k.Want))}
 	case *kind.Enum:
 		return []Problem{at(ptr, loc, fmt.Sprintf("%v is not one of %s", k.Got, enumWords(k.Want)))}
@@ -313,6 +320,37 @@ func typeWords(want []string, schemaURL string) string {
 	return strings.Join(words, " or ")
 }
 
+// jsonTypeWords names JSON types as RFC 8259 does, with an article.
+func jsonTypeWords(types []string) string {
+	words := make([]string, len(types))
+	for i, w := range types {
+		switch w {
+		case "object", "array", "integer":
+			words[i] = "an " + w
+		case "null":
+			words[i] = "null"
+		default:
+			words[i] = "a " + w
+		}
+	}
+	return strings.Join(words, " or ")
+}
+
+// valueWords quotes a scalar as the file wrote it and names the type of anything else.
+func valueWords(v any) string {
+	switch v := v.(type) {
+	case string:
+		return strconv.Quote(v)
+	case map[string]any:
+		return "an object"
+	case []any:
+		return "an array"
+	case nil:
+		return "null"
+	}
+	return fmt.Sprint(v)
+}
+
 // ratWords writes a schema bound as a plain decimal: -0.99, not -99/100.
 func ratWords(r *big.Rat) string {
 	if r.IsInt() {
@@ -323,6 +361,12 @@ func ratWords(r *big.Rat) string {
 }
 
 func patternWords(got, schemaURL string) string {
+	switch {
+	case strings.HasSuffix(schemaURL, "/$defs/fingerprint"):
+		return fmt.Sprintf("%q is not a fingerprint; a fingerprint is 32 lowercase hexadecimal digits", got)
+	case strings.HasSuffix(schemaURL, "/$defs/path"):
+		return fmt.Sprintf("%q is not a repository path; write it relative to the repository root with forward slashes, without . or .. segments, a leading slash, a backslash or control characters", got)
+	}
 	if strings.HasSuffix(schemaURL, "/expires") {
 		return fmt.Sprintf("%q is not a date; write it as YYYY-MM-DD (ISO 8601)", got)
 	}

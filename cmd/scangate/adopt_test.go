@@ -244,7 +244,7 @@ func TestBaseline(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "bad.json"), []byte("{\"schema_version\": 1,\n \"entries\": [}\n"), 0o644)
 	r = scangate(t, dir, "", nil, "check", "--baseline", "bad.json", "models")
 	wantCode(t, r, 2)
-	if !strings.Contains(r.stderr, "bad.json:2:14: not valid JSON") {
+	if !strings.Contains(r.stderr, "bad.json:2:14: error: invalid JSON") {
 		t.Errorf("a broken baseline should name line and column: %s", r.stderr)
 	}
 }

@@ -44,8 +44,14 @@ func newBaseline() *cobra.Command {
 				text.Render(cmd.ErrOrStderr(), res, false)
 				return &exitError{code: exitInvalid, msg: "some manifests are invalid; fix them before writing a baseline"}
 			}
-			b := baseline.Build(findings, res.URI)
-			if err := run.WriteFileAtomic(out, b.Marshal()); err != nil {
+			b := baseline.Build(findings, res.Key)
+			data := b.Marshal()
+			// Never write a file check --baseline would refuse (a path it cannot record, a
+			// file above --max-file-size).
+			if _, err := baseline.Parse(out, data, limits); err != nil {
+				return usageError(fmt.Errorf("not writing %s: check --baseline would refuse it:\n%v", out, err))
+			}
+			if err := run.WriteFileAtomic(out, data); err != nil {
 				return usageError(err)
 			}
 			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", len(b.Entries), len(files), say(out))

@@ -69,8 +69,8 @@ func newCheck() *cobra.Command {
 				Summary:  report.Summarize(files),
 			}
 			if baselineFile != "" {
-				if res.Baseline, err = run.ApplyBaseline(baselineFile, res); err != nil {
-					return usageError(err)
+				if res.Baseline, err = run.ApplyBaseline(baselineFile, res, limits); err != nil {
+					return baselineError(cmd, err)
 				}
 			}
 			stdout := cmd.OutOrStdout()
@@ -110,12 +110,21 @@ func projectConfig(cmd *cobra.Command, configFile string, paths []string, today 
 // configError reports an invalid project config the way manifest errors are reported:
 // every problem at its line and column, then exit 2.
 func configError(cmd *cobra.Command, err error) error {
+	return problemsError(cmd, err, "config", "the project config is invalid; fix it and run again")
+}
+
+// baselineError reports an invalid baseline file the same way.
+func baselineError(cmd *cobra.Command, err error) error {
+	return problemsError(cmd, err, "baseline", "the baseline file is invalid; fix it, or write it again with `scangate baseline write`")
+}
+
+func problemsError(cmd *cobra.Command, err error, tag, msg string) error {
 	var se *schema.Error
 	if errors.As(err, &se) {
 		for _, p := range se.Problems {
-			fmt.Fprintf(cmd.ErrOrStderr(), "%s:%d:%d: error: %s [config]\n", say(se.File), p.Pos.Line, p.Pos.Col, say(p.Text()))
+			fmt.Fprintf(cmd.ErrOrStderr(), "%s:%d:%d: error: %s [%s]\n", say(se.File), p.Pos.Line, p.Pos.Col, say(p.Text()), tag)
 		}
-		return &exitError{code: exitInvalid, msg: "the project config is invalid; fix it and run again"}
+		return &exitError{code: exitInvalid, msg: msg}
 	}
 	return usageError(err)
 }

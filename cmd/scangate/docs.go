@@ -58,12 +58,13 @@ func newSchemaCmd() *cobra.Command {
 		"config":   schema.ConfigSchema,
 		"output":   schema.OutputSchema,
 		"diff":     schema.DiffSchema,
+		"baseline": schema.BaselineSchema,
 	}
 	return &cobra.Command{
-		Use:       "schema [manifest|config|output|diff]",
+		Use:       "schema [manifest|config|output|diff|baseline]",
 		Short:     "Print an embedded JSON Schema (default: manifest)",
 		Args:      cobra.MaximumNArgs(1),
-		ValidArgs: []string{"manifest", "config", "output", "diff"},
+		ValidArgs: []string{"manifest", "config", "output", "diff", "baseline"},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			name := "manifest"
 			if len(args) == 1 {
@@ -71,7 +72,7 @@ func newSchemaCmd() *cobra.Command {
 			}
 			get, ok := schemas[name]
 			if !ok {
-				return usageError(fmt.Errorf("unknown schema %q; use manifest, config, output or diff", name))
+				return usageError(fmt.Errorf("unknown schema %q; use manifest, config, output, diff or baseline", name))
 			}
 			_, err := cmd.OutOrStdout().Write(get())
 			return err

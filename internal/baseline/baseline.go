@@ -6,12 +6,14 @@ package baseline
 import (
 	"bytes"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"sort"
+	"strconv"
+	"strings"
 
 	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 // SchemaVersion is the version of the baseline file's shape.
@@ -36,9 +38,11 @@ type Entry struct {
 }
 
 // Build records findings (schema findings excluded: a broken file is never accepted),
-// one entry per fingerprint, sorted so the file diffs cleanly in review.
+// one entry per fingerprint, sorted so the file diffs cleanly in review. Findings that
+// share a fingerprint differ only in their message; the least one is kept, so the file
+// does not depend on the order of the findings.
 func Build(findings []rules.Finding, uri func(file string) string) File {
-	seen := map[string]bool{}
+	at := map[string]int{}
 	out := File{SchemaVersion: SchemaVersion, Entries: []Entry{}}
 	for _, f := range findings {
 		if f.Rule == rules.Schema.ID {
@@ -46,10 +50,11 @@ func Build(findings []rules.Finding, uri func(file string) string) File {
 		}
 		u := uri(f.File)
 		fp := rules.Fingerprint(f, u)
-		if seen[fp] {
+		if i, seen := at[fp]; seen {
+			out.Entries[i].Message = min(out.Entries[i].Message, f.Message)
 			continue
 		}
-		seen[fp] = true
+		at[fp] = len(out.Entries)
 		out.Entries = append(out.Entries, Entry{Fingerprint: fp, Rule: f.Rule, File: u, Table: f.Table, Message: f.Message})
 	}
 	sort.Slice(out.Entries, func(i, j int) bool {
@@ -78,46 +83,79 @@ func (b File) Marshal() []byte {
 	return escape.JSON(buf.Bytes()) // the same values, no hidden rune raw
 }
 
-// Parse reads a baseline file; a syntax error names the line and column.
-func Parse(data []byte) (File, error) {
-	var b File
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&b); err != nil {
-		var se *json.SyntaxError
-		var te *json.UnmarshalTypeError
-		switch {
-		case errors.As(err, &se):
-			line, col := position(data, se.Offset-1) // Offset counts the bytes read, the bad one included
-			return b, fmt.Errorf("%d:%d: not valid JSON: %v; write the file with `scangate baseline write`", line, col, se)
-		case errors.As(err, &te):
-			line, col := position(data, te.Offset)
-			return b, fmt.Errorf("%d:%d: %s must be %s; write the file with `scangate baseline write`", line, col, te.Field, te.Type)
-		}
-		return b, fmt.Errorf("1:1: %v; write the file with `scangate baseline write`", err)
+// Parse reads a baseline file: strict JSON valid against the baseline schema, each
+// entry's rule a rule of the registry, each fingerprint recorded once. Invalid input
+// returns a *schema.Error listing every problem at its line and column.
+func Parse(file string, data []byte, lim schema.Limits) (File, error) {
+	doc, err := schema.LoadBaseline(file, data, lim)
+	if err != nil {
+		return File{}, err
 	}
-	if b.SchemaVersion != SchemaVersion {
-		return b, fmt.Errorf("1:1: schema_version %d is not %d; write the file again with `scangate baseline write`", b.SchemaVersion, SchemaVersion)
+	b := decode(doc.Value)
+	if ps := b.problems(doc); len(ps) > 0 {
+		return File{}, &schema.Error{File: file, Problems: ps}
 	}
 	return b, nil
 }
 
-func position(data []byte, offset int64) (line, col int) {
-	line, col = 1, 1
-	for i := int64(0); i < offset && i < int64(len(data)); i++ {
-		if data[i] == '\n' {
-			line, col = line+1, 1
-		} else {
-			col++
+// decode reads a document the schema has passed, so every field has its type.
+func decode(v any) File {
+	root, _ := v.(map[string]any)
+	list, _ := root["entries"].([]any)
+	b := File{SchemaVersion: SchemaVersion, Entries: make([]Entry, 0, len(list))}
+	for _, raw := range list {
+		e, _ := raw.(map[string]any)
+		text := func(k string) string { s, _ := e[k].(string); return s }
+		b.Entries = append(b.Entries, Entry{
+			Fingerprint: text("fingerprint"), Rule: text("rule"), File: text("file"),
+			Table: text("table"), Message: text("message"),
+		})
+	}
+	return b
+}
+
+// problems are what the schema cannot say: rules of the registry, fingerprints once.
+func (b File) problems(doc *schema.Document) []schema.Problem {
+	var out []schema.Problem
+	add := func(ptr, msg string) {
+		out = append(out, schema.Problem{Pos: doc.Pos(ptr), Path: ptr, Message: msg})
+	}
+	first := make(map[string]int, len(b.Entries))
+	for i, e := range b.Entries {
+		at := "/entries/" + strconv.Itoa(i)
+		switch _, known := rules.Lookup(e.Rule); {
+		case e.Rule == rules.Schema.ID:
+			add(at+"/rule", "schema findings are never baselined (a broken manifest always fails); remove the entry")
+		case !known:
+			add(at+"/rule", fmt.Sprintf("unknown rule %q; use one of %s", e.Rule, ruleList()))
+		}
+		if j, dup := first[e.Fingerprint]; dup {
+			line := doc.Pos("/entries/" + strconv.Itoa(j) + "/fingerprint").Line
+			add(at+"/fingerprint", fmt.Sprintf("fingerprint %s is already recorded at line %d; remove one of the entries", e.Fingerprint, line))
+			continue
+		}
+		first[e.Fingerprint] = i
+	}
+	return out
+}
+
+// ruleList names the rules a baseline may record: every rule but schema.
+func ruleList() string {
+	var ids []string
+	for _, r := range rules.All() {
+		if r.ID != rules.Schema.ID {
+			ids = append(ids, r.ID)
 		}
 	}
-	return line, col
+	return strings.Join(ids, ", ")
 }
 
 // Apply marks the findings the baseline holds and returns how many baseline entries
-// matched none: findings fixed since the baseline was written.
+// matched none: findings fixed since the baseline was written. Every entry counts, so
+// two entries of one fingerprint (Parse refuses them; a File built in code may hold
+// them) are two fixed entries.
 func (b File) Apply(findings []rules.Finding, uri func(file string) string) (fixed int) {
-	want := map[string]bool{}
+	want := make(map[string]bool, len(b.Entries))
 	for _, e := range b.Entries {
 		want[e.Fingerprint] = true
 	}
@@ -133,5 +171,10 @@ func (b File) Apply(findings []rules.Finding, uri func(file string) string) (fix
 			matched[fp] = true
 		}
 	}
-	return len(want) - len(matched)
+	for _, e := range b.Entries {
+		if !matched[e.Fingerprint] {
+			fixed++
+		}
+	}
+	return fixed
 }

@@ -1,6 +1,11 @@
 package baseline
 
 import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
@@ -29,8 +34,6 @@ func finding(rule, file, table, subject, msg string, line int) rules.Finding {
 		Message:  msg,
 	}
 }
-
-const retry = "; write the file with `scangate baseline write`"
 
 func TestConstants(t *testing.T) {
 	// Both are on disk in adopting repositories; changing either breaks them.
@@ -82,9 +85,9 @@ func TestBuildOneEntryPerFingerprint(t *testing.T) {
 		byFP[e.Fingerprint] = e
 	}
 	scan := byFP[rules.Fingerprint(in[0], "models/a.yaml")]
-	// The first finding of a fingerprint is the one recorded.
+	// The least message of a fingerprint is the one recorded.
 	if scan.Message != "scan takes 40 s" {
-		t.Errorf("scan entry = %+v, want the first finding's message", scan)
+		t.Errorf("scan entry = %+v, want the least message", scan)
 	}
 	if _, ok := byFP[rules.Fingerprint(in[3], "models/a.yaml")]; !ok {
 		t.Errorf("refresh finding missing from %+v", b.Entries)
@@ -223,7 +226,7 @@ func TestMarshalParseRoundTrip(t *testing.T) {
 		"empty": Build(nil, identity),
 	} {
 		data := b.Marshal()
-		got, err := Parse(data)
+		got, err := Parse("b.json", data, schema.DefaultLimits)
 		if err != nil {
 			t.Fatalf("%s: Parse(Marshal) = %v", name, err)
 		}
@@ -236,59 +239,240 @@ func TestMarshalParseRoundTrip(t *testing.T) {
 	}
 }
 
-func TestParseAccepts(t *testing.T) {
-	got, err := Parse([]byte(`{"schema_version":1,"entries":[{"fingerprint":"ab","rule":"scan-time","file":"m.yaml","message":"x"}]}`))
+// Every rule of the registry but schema, on many files: what Build writes, Parse reads.
+// 2,000 files keep the file well inside the default size limit whatever rules are added.
+func TestParseReadsWhatBuildWrites(t *testing.T) {
+	const files = 2000
+	var in []rules.Finding
+	for i := 0; i < files; i++ {
+		for _, r := range rules.All() {
+			in = append(in, finding(r.ID, fmt.Sprintf("/ci/checkout/models/m%d.yaml", i), "t", "s", "m", 1))
+		}
+	}
+	b := Build(in, repoURI)
+	if len(b.Entries) != files*(len(rules.All())-1) {
+		t.Fatalf("built %d entries", len(b.Entries))
+	}
+	got, err := Parse("b.json", b.Marshal(), schema.DefaultLimits)
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := File{SchemaVersion: 1, Entries: []Entry{{Fingerprint: "ab", Rule: "scan-time", File: "m.yaml", Message: "x"}}}
+	if !reflect.DeepEqual(got, b) {
+		t.Error("the parsed baseline differs from the built one")
+	}
+}
+
+const fp1, fp2 = "0123456789abcdef0123456789abcdef", "fedcba9876543210fedcba9876543210"
+
+func TestParseAccepts(t *testing.T) {
+	got, err := Parse("b.json", []byte(`{"schema_version":1,"entries":[{"fingerprint":"`+fp1+`","rule":"scan-time","file":"m.yaml","message":"x"}]}`), schema.DefaultLimits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := File{SchemaVersion: 1, Entries: []Entry{{Fingerprint: fp1, Rule: "scan-time", File: "m.yaml", Message: "x"}}}
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("Parse = %#v, want %#v", got, want)
 	}
 }
 
-// Refusals whose position is exact: the whole message is pinned.
-func TestParseRefusals(t *testing.T) {
-	for _, c := range []struct{ name, in, want string }{
-		{"empty", ``, "1:1: EOF" + retry},
-		{"truncated", `{"schema_version":1,`, "1:1: unexpected EOF" + retry},
-		// Offset counts the bad byte, so the first byte must come out as column 1.
-		{"syntax at first byte", `x`, "1:1: not valid JSON: invalid character 'x' looking for beginning of value" + retry},
-		{"syntax on a later line", "{\n  \"schema_version\": 1,\n  x\n}", "3:3: not valid JSON: invalid character 'x' looking for beginning of object key string" + retry},
-		{"unknown top-level field", `{"schema_version":1,"entries":[],"extra":1}`, `1:1: json: unknown field "extra"` + retry},
-		{"unknown entry field", `{"schema_version":1,"entries":[{"fingerprint":"a","line":3}]}`, `1:1: json: unknown field "line"` + retry},
-		{"newer schema_version", `{"schema_version":2,"entries":[]}`, "1:1: schema_version 2 is not 1; write the file again with `scangate baseline write`"},
-		{"missing schema_version", `{"entries":[]}`, "1:1: schema_version 0 is not 1; write the file again with `scangate baseline write`"},
-		{"null", `null`, "1:1: schema_version 0 is not 1; write the file again with `scangate baseline write`"},
+// A byte-order mark is skipped and CR LF is a line break, as the manifest loader does.
+func TestParseAcceptsTestdata(t *testing.T) {
+	orders := Entry{Fingerprint: fp1, Rule: "scan-time", File: "models/a.yaml", Table: "orders", Message: "scan takes 40 s"}
+	lines := Entry{Fingerprint: fp2, Rule: "scan-time", File: "models/a.yaml", Table: "lines", Message: "scan takes 40 s"}
+	for name, want := range map[string][]Entry{
+		"good-bom.json":  {orders},
+		"good-crlf.json": {orders, lines},
 	} {
-		_, err := Parse([]byte(c.in))
-		if err == nil {
-			t.Errorf("%s: Parse(%q) accepted it", c.name, c.in)
+		got, err := Parse(name, readTestdata(t, name), schema.DefaultLimits)
+		if err != nil {
+			t.Errorf("%s: %v", name, err)
 			continue
 		}
-		if err.Error() != c.want {
-			t.Errorf("%s: Parse(%q)\n got %q\nwant %q", c.name, c.in, err, c.want)
+		if !reflect.DeepEqual(got.Entries, want) {
+			t.Errorf("%s: entries %+v, want %+v", name, got.Entries, want)
 		}
 	}
 }
 
-// Type errors: the line and the text are pinned; the column is not, because it points
-// just past the offending value rather than at it.
-func TestParseTypeErrors(t *testing.T) {
-	for _, c := range []struct{ name, in, line, text string }{
-		{"schema_version as a string", `{"schema_version":"1","entries":[]}`, "1", "schema_version must be int" + retry},
-		{"schema_version not whole", `{"schema_version":1.5,"entries":[]}`, "1", "schema_version must be int" + retry},
-		{"fingerprint as a number", "{\n \"schema_version\": 1,\n \"entries\": [{\"fingerprint\": 5}]\n}", "3", "entries.fingerprint must be string" + retry},
+func readTestdata(t *testing.T, name string) []byte {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join("..", "..", "testdata", "baselines", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return data
+}
+
+const pathWords = "is not a repository path; write it relative to the repository root with forward slashes, without . or .. segments, a leading slash, a backslash or control characters"
+
+// Every file of testdata/baselines/bad-*.json with its whole error: the position is the
+// character the problem is about (columns in characters, CR LF and a lone CR line breaks).
+var badBaselines = map[string]string{
+	"bad-crlf-columns.json":           "7:31: /entries/0/rule: must be a string, not a number",
+	"bad-duplicate-entry-key.json":    `7:7: /entries/0: key "rule" is already defined at line 6; remove one of them`,
+	"bad-duplicate-fingerprint.json":  "12:22: /entries/1/fingerprint: fingerprint " + fp1 + " is already recorded at line 5; remove one of the entries",
+	"bad-duplicate-key.json":          `3:3: key "schema_version" is already defined at line 2; remove one of them`,
+	"bad-empty.json":                  `1:1: file is empty; a baseline starts with {"schema_version": 1`,
+	"bad-entries-null.json":           "3:14: /entries: must be an array, not null",
+	"bad-entries-object.json":         "3:14: /entries: must be an array, not an object",
+	"bad-entry-empty.json":            `4:5: /entries/0: missing required key "fingerprint", "rule", "file", "message"`,
+	"bad-file-absolute.json":          `7:15: /entries/0/file: "/etc/passwd" ` + pathWords,
+	"bad-file-backslash.json":         `7:15: /entries/0/file: "models\\a.yaml" ` + pathWords,
+	"bad-file-control.json":           `7:15: /entries/0/file: "models/a\a.yaml" ` + pathWords,
+	"bad-file-dotdot.json":            `7:15: /entries/0/file: "../../etc/passwd" ` + pathWords,
+	"bad-fingerprint-control.json":    `5:22: /entries/0/fingerprint: "0123456789abcdef\n\x00" is not a fingerprint; a fingerprint is 32 lowercase hexadecimal digits`,
+	"bad-fingerprint-number.json":     "5:22: /entries/0/fingerprint: must be a string, not a number",
+	"bad-fingerprint-upper.json":      `5:22: /entries/0/fingerprint: "0123456789ABCDEF0123456789ABCDEF" is not a fingerprint; a fingerprint is 32 lowercase hexadecimal digits`,
+	"bad-lone-cr.json":                "4:128: /entries/0/table: must be a string, not a number",
+	"bad-merge-conflict.json":         "1:1: merge conflict marker <<<<<<<; resolve the conflict, then run again",
+	"bad-schema-rule.json":            "6:15: /entries/0/rule: schema findings are never baselined (a broken manifest always fails); remove the entry",
+	"bad-schema-version-2.json":       "2:21: /schema_version: must be 1, not 2",
+	"bad-schema-version-missing.json": `1:1: missing required key "schema_version"`,
+	"bad-schema-version-string.json":  `2:21: /schema_version: must be 1, not "1"`,
+	"bad-syntax.json":                 "3:15: invalid JSON: unexpected \"}\"; a value is an object, a list, a \"string\", a number, true, false or null",
+	"bad-top-array.json":              "1:1: must be an object, not an array",
+	"bad-trailing-text.json":          "4:3: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object",
+	"bad-truncated.json":              "6:1: invalid JSON: expected a key in double quotes; write \"key\": value",
+	"bad-two-objects.json":            "5:1: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object",
+	"bad-unknown-entry-field.json":    `10:7: /entries/0/line: unknown key "line"; allowed here: file, fingerprint, message, rule, table`,
+	"bad-unknown-field.json":          `4:3: /extra: unknown key "extra"; allowed here: entries, schema_version`,
+	"bad-unknown-rule.json":           `6:15: /entries/0/rule: unknown rule "scan-tme"; use one of ` + strings.Join(recordable(), ", "),
+}
+
+func recordable() []string {
+	var ids []string
+	for _, r := range rules.All() {
+		if r.ID != rules.Schema.ID {
+			ids = append(ids, r.ID)
+		}
+	}
+	return ids
+}
+
+func TestParseRefusesTestdata(t *testing.T) {
+	files, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "baselines", "bad-*.json"))
+	if len(files) != len(badBaselines) {
+		t.Errorf("%d bad-*.json files, %d expected errors: every file needs its error here", len(files), len(badBaselines))
+	}
+	for _, path := range files {
+		name := filepath.Base(path)
+		want, ok := badBaselines[name]
+		if !ok {
+			t.Errorf("%s: no expected error", name)
+			continue
+		}
+		_, err := Parse(name, readTestdata(t, name), schema.DefaultLimits)
+		if err == nil {
+			t.Errorf("%s: accepted", name)
+			continue
+		}
+		var se *schema.Error
+		if !errors.As(err, &se) {
+			t.Errorf("%s: error %T, want *schema.Error", name, err)
+		}
+		if got := err.Error(); got != name+":"+want {
+			t.Errorf("%s:\n got %q\nwant %q", name, got, name+":"+want)
+		}
+	}
+}
+
+// Inline refusals, whole messages pinned.
+func TestParseRefusals(t *testing.T) {
+	for _, c := range []struct{ name, in, want string }{
+		// The decoder's offset counts the bad byte, so the first byte comes out as column 1.
+		{"syntax at first byte", `x`, "1:1: invalid JSON: unexpected \"x\"; write a string in double quotes, a number, true, false or null"},
+		{"syntax on a later line", "{\n  \"schema_version\": 1,\n  x\n}", "3:3: invalid JSON: expected a key in double quotes; write \"key\": value"},
+		{"only white space", " \n\t", `1:1: file is empty; a baseline starts with {"schema_version": 1`},
+		{"cut off after a comma", `{"schema_version":1,`, "1:21: invalid JSON: expected a key in double quotes; write \"key\": value"},
+		{"trailing comma after the object", `{"schema_version":1,"entries":[]},`, "1:34: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object"},
+		{"conflict marker between entries", "{\"schema_version\":1,\"entries\":[\n=======\n]}", "2:1: merge conflict marker =======; resolve the conflict, then run again"},
+		{"infinite number", `{"schema_version":1e999,"entries":[]}`, "1:19: /schema_version: \"1e999\" is not a finite number; write a plain number"},
+		{"UTF-16", "\xff\xfe{\x00}\x00", "1:1: file is UTF-16; save it as UTF-8"},
+		{"NUL byte", "{\"schema_version\":1,\n\x00}", "2:1: file is not UTF-8 text (binary data or another encoding); a baseline is JSON in UTF-8"},
+		{"deep nesting", strings.Repeat("[", 100), "1:66: nesting deeper than 64 levels; a baseline needs three"},
 	} {
-		_, err := Parse([]byte(c.in))
+		_, err := Parse("b.json", []byte(c.in), schema.DefaultLimits)
 		if err == nil {
 			t.Errorf("%s: Parse(%q) accepted it", c.name, c.in)
 			continue
 		}
-		parts := strings.SplitN(err.Error(), ":", 3)
-		if len(parts) != 3 || parts[0] != c.line || strings.TrimPrefix(parts[2], " ") != c.text {
-			t.Errorf("%s: Parse(%q) = %q, want line %s and %q", c.name, c.in, err, c.line, c.text)
+		if got := strings.TrimPrefix(err.Error(), "b.json:"); got != c.want {
+			t.Errorf("%s: Parse(%q)\n got %q\nwant %q", c.name, c.in, got, c.want)
 		}
+	}
+}
+
+// A type error points at the value's first character, not one past it, and is worded
+// without the program's type names.
+func TestParseTypeErrors(t *testing.T) {
+	for _, c := range []struct{ name, in, want string }{
+		{"schema_version as a string", `{"schema_version":"1","entries":[]}`, `1:19: /schema_version: must be 1, not "1"`},
+		{"schema_version not whole", `{"schema_version":1.5,"entries":[]}`, "1:19: /schema_version: must be 1, not 1.5"},
+		{"top level an array", `[]`, "1:1: must be an object, not an array"},
+		{"entries an object", `{"schema_version":1,"entries":{}}`, "1:31: /entries: must be an array, not an object"},
+		{"fingerprint as a number", "{\n \"schema_version\": 1,\n \"entries\": [{\"fingerprint\": 5, \"rule\": \"scan-time\", \"file\": \"m.yaml\", \"message\": \"\"}]\n}", "3:30: /entries/0/fingerprint: must be a string, not a number"},
+		{"entry a string", `{"schema_version":1,"entries":["x"]}`, "1:32: /entries/0: must be an object, not a string"},
+	} {
+		_, err := Parse("b.json", []byte(c.in), schema.DefaultLimits)
+		if err == nil {
+			t.Errorf("%s: Parse(%q) accepted it", c.name, c.in)
+			continue
+		}
+		got := strings.TrimPrefix(err.Error(), "b.json:")
+		if got != c.want {
+			t.Errorf("%s: Parse(%q)\n got %q\nwant %q", c.name, c.in, got, c.want)
+		}
+		for _, goName := range []string{"baseline.", "[]", "json:", " int", "Entry"} {
+			if strings.Contains(got, goName) {
+				t.Errorf("%s: %q names a Go type (%q)", c.name, got, goName)
+			}
+		}
+	}
+}
+
+// The file field is a clean relative repository path, whatever the platform.
+func TestParseFilePaths(t *testing.T) {
+	doc := func(file string) []byte {
+		q, _ := json.Marshal(file)
+		return []byte(`{"schema_version":1,"entries":[{"fingerprint":"` + fp1 + `","rule":"scan-time","file":` + string(q) + `,"message":""}]}`)
+	}
+	for _, ok := range []string{"a.yaml", "models/a.yaml", "stdin", ".hidden/a.yaml", "a..b/c.yaml", ".../a", "a b/é.yaml", "c:/a.yaml"} {
+		if _, err := Parse("b.json", doc(ok), schema.DefaultLimits); err != nil {
+			t.Errorf("%q refused: %v", ok, err)
+		}
+	}
+	for _, bad := range []string{"", "/a.yaml", "a/", "a//b", ".", "./a", "a/./b", "..", "../a", "a/..", "a/../b",
+		`a\b`, `\\server\a`, "a\x00b", "a\nb", "a\tb", "a\x7fb", "a\u0085b"} {
+		_, err := Parse("b.json", doc(bad), schema.DefaultLimits)
+		if err == nil || !strings.Contains(err.Error(), pathWords) {
+			t.Errorf("%q: err %v, want a path refusal", bad, err)
+		}
+	}
+}
+
+// Baselines are bounded like manifests: a file above the limit is refused unread.
+func TestParseSizeLimit(t *testing.T) {
+	data := Build(nil, identity).Marshal()
+	lim := schema.DefaultLimits
+	lim.MaxFileBytes = len(data) - 1
+	_, err := Parse("b.json", data, lim)
+	if err == nil || !strings.Contains(err.Error(), fmt.Sprintf("b.json:1:1: file is %d bytes, above the limit of %d", len(data), len(data)-1)) {
+		t.Errorf("err = %v", err)
+	}
+	lim.MaxFileBytes = len(data)
+	if _, err := Parse("b.json", data, lim); err != nil {
+		t.Errorf("at the limit: %v", err)
+	}
+}
+
+// Findings of one fingerprint differ only in their message; the baseline does not depend
+// on which came first.
+func TestBuildKeepsLeastMessage(t *testing.T) {
+	a := finding("scan-time", "m.yaml", "orders", "scan", "scan takes 41 s", 9)
+	b := finding("scan-time", "m.yaml", "orders", "scan", "scan takes 40 s", 30)
+	one, two := Build([]rules.Finding{a, b}, identity), Build([]rules.Finding{b, a}, identity)
+	if !reflect.DeepEqual(one, two) || len(one.Entries) != 1 || one.Entries[0].Message != "scan takes 40 s" {
+		t.Errorf("order changed the baseline or kept another message:\n%+v\n%+v", one.Entries, two.Entries)
 	}
 }
 
@@ -364,5 +548,20 @@ func TestApplyFixedCount(t *testing.T) {
 	}
 	if fixed := (File{SchemaVersion: 1, Entries: []Entry{}}).Apply([]rules.Finding{a}, identity); fixed != 0 {
 		t.Errorf("empty baseline: fixed = %d, want 0", fixed)
+	}
+}
+
+// Fixed counts entries, not fingerprints: two entries of one fingerprint that match
+// nothing are two fixed entries (Parse refuses such a file; a File built in code may not).
+func TestApplyCountsEveryEntry(t *testing.T) {
+	a := finding("scan-time", "m.yaml", "t1", "scan", "m", 1)
+	c := finding("scan-time", "m.yaml", "t2", "scan", "m", 2)
+	e := Entry{Fingerprint: rules.Fingerprint(a, "m.yaml"), Rule: "scan-time", File: "m.yaml"}
+	b := File{SchemaVersion: 1, Entries: []Entry{e, e}}
+	if fixed := b.Apply([]rules.Finding{c}, identity); fixed != 2 {
+		t.Errorf("fixed = %d, want 2", fixed)
+	}
+	if fixed := b.Apply([]rules.Finding{a}, identity); fixed != 0 {
+		t.Errorf("both entries matched: fixed = %d, want 0", fixed)
 	}
 }

@@ -14,6 +14,9 @@ type Result struct {
 	Findings []rules.Finding
 	Summary  Summary
 	Baseline *BaselineUse // nil without --baseline
+
+	byName      map[string]int // File.Name -> index of its first file, built on first use
+	byNameFiles int            // len(Files) when byName was built
 }
 
 // BaselineUse says which baseline a run was compared with and how many of its entries
@@ -25,8 +28,12 @@ type BaselineUse struct {
 
 // File is one input and what was computed for it.
 type File struct {
-	Name    string // as reported: the path given or found, "<stdin>" for standard input
-	URI     string // path relative to the repository root, with forward slashes
+	Name string // as reported: the path given or found, "<stdin>" for standard input
+	URI  string // path relative to the repository root, with forward slashes
+	// Key is the path its findings' fingerprints hash: URI, except for a file outside the
+	// working directory's repository, where it does not depend on the working directory.
+	// "" means URI.
+	Key     string
 	Model   string
 	Invalid bool // could not be read or broke the schema; its findings say why
 	// Analysed counts the tables analysed. Tables holds them only when a report prints
@@ -103,15 +110,38 @@ func (r *Result) Fails(f rules.Finding) bool {
 
 // URI is the repository-relative path of a finding's file.
 func (r *Result) URI(file string) string {
-	for _, f := range r.Files {
-		if f.Name == file {
-			return f.URI
-		}
+	if f := r.file(file); f != nil {
+		return f.URI
 	}
 	return file
 }
 
+// Key is the path the fingerprints of a finding's file hash (see File.Key).
+func (r *Result) Key(file string) string {
+	if f := r.file(file); f != nil && f.Key != "" {
+		return f.Key
+	}
+	return r.URI(file)
+}
+
+// file finds the first file of a name. Every finding asks, so the files are indexed once
+// rather than searched each time (a run of thousands of files). Not safe for concurrent
+// first use; reports are rendered one after another.
+func (r *Result) file(name string) *File {
+	if r.byName == nil || r.byNameFiles != len(r.Files) {
+		r.byName = make(map[string]int, len(r.Files))
+		for i := len(r.Files) - 1; i >= 0; i-- {
+			r.byName[r.Files[i].Name] = i
+		}
+		r.byNameFiles = len(r.Files)
+	}
+	if i, ok := r.byName[name]; ok {
+		return &r.Files[i]
+	}
+	return nil
+}
+
 // Fingerprint is the stable identity of a finding in this run.
 func (r *Result) Fingerprint(f rules.Finding) string {
-	return rules.Fingerprint(f, r.URI(f.File))
+	return rules.Fingerprint(f, r.Key(f.File))
 }

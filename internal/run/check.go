@@ -23,13 +23,17 @@ import (
 func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits schema.Limits, keepTables bool) ([]report.File, []rules.Finding) {
 	files := make([]report.File, len(inputs))
 	found := make([][]rules.Finding, len(inputs))
-	root := RepositoryRoot()
+	root, paths := RepositoryRoot(), newFingerprintPaths()
+	keys := make([]string, len(inputs))
+	for i, in := range inputs {
+		keys[i] = paths.key(in)
+	}
 	budget := newRunBudget(limits.MaxRunPartitions)
 	// Each file is read, loaded and checked by one worker, so only the files in flight
 	// hold their bytes and parse trees. A run of thousands of files keeps no more than
 	// their findings, and their tables when a report prints them.
 	parallel(len(inputs), func(i int) {
-		f, m, fs := loadInput(inputs[i], root, proj, limits)
+		f, m, fs := loadInput(inputs[i], root, keys[i], proj, limits)
 		inputs[i].data = nil
 		var n int64
 		if m != nil {
@@ -119,8 +123,8 @@ func parallel(n int, work func(i int)) {
 
 // loadInput reads and validates one input; an invalid one returns its schema findings and
 // no manifest.
-func loadInput(in Input, root string, proj *schema.ProjectConfig, limits schema.Limits) (report.File, *schema.Manifest, []rules.Finding) {
-	f := report.File{Name: in.name, URI: RepositoryPath(root, in.name)}
+func loadInput(in Input, root, key string, proj *schema.ProjectConfig, limits schema.Limits) (report.File, *schema.Manifest, []rules.Finding) {
+	f := report.File{Name: in.name, URI: RepositoryPath(root, in.name), Key: key}
 	data, err := in.bytes()
 	if err != nil {
 		f.Invalid = true

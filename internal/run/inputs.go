@@ -28,6 +28,7 @@ type Input struct {
 	err   error
 	path  string // where to read the bytes when data is nil and err is nil
 	limit int    // the size bound to read path with
+	root  string // the directory named on the command line that led to it ("" for stdin)
 }
 
 // bytes returns the input's bytes, reading its file now if they were not kept.
@@ -82,9 +83,12 @@ func Collect(paths []string, stdin io.Reader, maxBytes int, keep func(string) bo
 			if len(found) == 0 {
 				return nil, fmt.Errorf("no manifest found under %s (looked for *.yaml, *.yml and *.json files that hold \"format:\")", p)
 			}
+			for i := range found {
+				found[i].root = p
+			}
 			out = append(out, found...)
 		case info.Mode().IsRegular():
-			out = append(out, Input{name: filepath.ToSlash(p), path: p, limit: maxBytes})
+			out = append(out, Input{name: filepath.ToSlash(p), path: p, limit: maxBytes, root: filepath.Dir(p)})
 		default:
 			return nil, fmt.Errorf("%s is not a regular file or a directory", p)
 		}

@@ -278,14 +278,82 @@ func RepositoryRoot() string {
 	if err != nil {
 		return ""
 	}
-	for dir := wd; ; dir = filepath.Dir(dir) {
-		if _, err := os.Stat(filepath.Join(dir, ".git")); err == nil {
-			return dir
+	if root := repositoryAbove(wd, nil); root != "" {
+		return root
+	}
+	return wd
+}
+
+// repositoryAbove is the nearest directory at or above dir (absolute) that holds .git, ""
+// for none. seen memoises the answer per directory, so files of one tree cost one walk.
+func repositoryAbove(dir string, seen map[string]string) string {
+	var walked []string
+	root := ""
+	for d := dir; ; d = filepath.Dir(d) {
+		if r, ok := seen[d]; ok {
+			root = r
+			break
 		}
-		if filepath.Dir(dir) == dir {
-			return wd
+		walked = append(walked, d)
+		if _, err := os.Stat(filepath.Join(d, ".git")); err == nil {
+			root = d
+			break
+		}
+		if filepath.Dir(d) == d {
+			break
 		}
 	}
+	if seen != nil {
+		for _, d := range walked {
+			seen[d] = root
+		}
+	}
+	return root
+}
+
+// fingerprintPaths picks the path hashed into an input's fingerprints so that it does not
+// depend on where scangate runs: the report path when the working directory's repository
+// holds the file (as it always was), else the path relative to the nearest repository
+// above the file, else, outside any repository, relative to the directory named on the
+// command line (a named file's own directory). Report paths stay relative to the working
+// directory there, so annotations still find the file.
+type fingerprintPaths struct {
+	wdRepo string            // "" when the working directory is in no repository
+	above  map[string]string // directory -> nearest repository root at or above it
+}
+
+func newFingerprintPaths() *fingerprintPaths {
+	r := &fingerprintPaths{above: map[string]string{}}
+	if wd, err := os.Getwd(); err == nil {
+		r.wdRepo = repositoryAbove(wd, r.above)
+	}
+	return r
+}
+
+// key is the path hashed into the fingerprints of one input's findings.
+func (r *fingerprintPaths) key(in Input) string {
+	if in.name == StdinName {
+		return RepositoryPath("", in.name)
+	}
+	abs, err := filepath.Abs(filepath.FromSlash(in.name))
+	if err != nil {
+		return RepositoryPath("", in.name)
+	}
+	if r.wdRepo != "" {
+		if _, inside := relToRoot(r.wdRepo, abs); inside {
+			return RepositoryPath(r.wdRepo, in.name)
+		}
+	}
+	if root := repositoryAbove(filepath.Dir(abs), r.above); root != "" {
+		return RepositoryPath(root, in.name)
+	}
+	base := filepath.Dir(abs)
+	if in.root != "" {
+		if b, err := filepath.Abs(in.root); err == nil {
+			base = b
+		}
+	}
+	return RepositoryPath(base, in.name)
 }
 
 // RepositoryPath is name relative to root with forward slashes, as SARIF, annotations
