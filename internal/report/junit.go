@@ -48,14 +48,17 @@ type junitFailure struct {
 // "model NAME".
 func writeJUnit(w io.Writer, r *Result, _ bool) error {
 	doc := junitSuites{Name: "scangate"}
+	byFile := map[string][]rules.Finding{} // failing findings, in report order
+	for _, x := range r.Findings {
+		if r.Fails(x) {
+			byFile[x.File] = append(byFile[x.File], x)
+		}
+	}
 	for _, f := range r.Files {
 		suite := junitSuite{Name: f.URI}
 		byTable := map[string][]rules.Finding{}
 		var fileLevel []rules.Finding
-		for _, x := range r.Findings {
-			if x.File != f.Name || !r.Fails(x) {
-				continue
-			}
+		for _, x := range byFile[f.Name] {
 			if x.Table == "" {
 				fileLevel = append(fileLevel, x)
 			} else {

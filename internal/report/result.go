@@ -1,6 +1,8 @@
 package report
 
 import (
+	"slices"
+
 	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/rules"
 )
@@ -14,6 +16,8 @@ type Result struct {
 	Findings []rules.Finding
 	Summary  Summary
 	Baseline *BaselineUse // nil without --baseline
+
+	uris map[string]string // Files' URIs by name, built on first use
 }
 
 // BaselineUse says which baseline a run was compared with and how many of its entries
@@ -103,10 +107,15 @@ func (r *Result) Fails(f rules.Finding) bool {
 
 // URI is the repository-relative path of a finding's file.
 func (r *Result) URI(file string) string {
-	for _, f := range r.Files {
-		if f.Name == file {
-			return f.URI
+	if r.uris == nil {
+		// Every finding asks: one look-up each, not a walk over the files.
+		r.uris = make(map[string]string, len(r.Files))
+		for _, f := range slices.Backward(r.Files) {
+			r.uris[f.Name] = f.URI // the first file of a name wins, as a walk finds it
 		}
+	}
+	if u, ok := r.uris[file]; ok {
+		return u
 	}
 	return file
 }
