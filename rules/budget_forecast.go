@@ -2,6 +2,7 @@ package rules
 
 import (
 	"fmt"
+	"github.com/scangate/scangate/schema"
 
 	"github.com/scangate/scangate/internal/analysis"
 
@@ -54,7 +55,13 @@ func init() { register(BudgetForecast) }
 const budgetForecastID = "budget-forecast"
 
 // forecastHorizon is how far ahead a crossing is warned of.
-var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12)."}
+var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12).",
+	// Twenty years: a forecast month by month beyond that says nothing a plan can act on,
+	// and each month lays out every growing table again.
+	Range: schema.Range{Min: 1, Max: maxHorizonMonths, Integer: true}}
+
+// maxHorizonMonths bounds horizon_months (20 years).
+const maxHorizonMonths = 240
 
 func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
 	horizon := int(cfg.Value(budgetForecastID, forecastHorizon))

@@ -29,11 +29,13 @@ type Rule struct {
 	CheckModel func(m *analysis.Model, cfg Config) []Finding
 }
 
-// Param is one tunable threshold of a rule.
+// Param is one tunable threshold of a rule and the values a project may set it to: the
+// config schema is generated from its Range, and ConfigFrom refuses a value outside it.
 type Param struct {
 	Name    string
 	Default float64
 	Doc     string
+	schema.Range
 }
 
 // registered collects the rules as their files' init functions run.
