@@ -156,11 +156,15 @@ type tableMiss struct {
 }
 
 // grownTables is the tables grown for some months, with their partitions (the same at
-// every segment capacity), each expanded when first needed.
+// every segment capacity), each expanded when first needed. Most months need few of
+// the model's tables (the profiled ones), so each is held by pointer.
 type grownTables struct {
-	have  []bool
-	specs []schema.Table
-	parts [][]layout.Partition // nil when it cannot be expanded
+	tables []*grownTableEntry // by table; nil until first needed
+}
+
+type grownTableEntry struct {
+	spec  schema.Table
+	parts []layout.Partition // nil when it cannot be expanded
 }
 
 // NewModel prepares m for sweeps and forecasts.
@@ -247,15 +251,16 @@ func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
 	g, ok := md.grown[month]
 	if !ok {
 		n := len(md.M.Tables)
-		g = &grownTables{have: make([]bool, n), specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
+		g = &grownTables{tables: make([]*grownTableEntry, n)}
 		md.grown[month] = g
 	}
-	if !g.have[j] {
-		g.specs[j] = Grow(t, month)
-		g.parts[j], _ = md.expand(g.specs[j]) // nil when it cannot be expanded
-		g.have[j] = true
+	e := g.tables[j]
+	if e == nil {
+		e = &grownTableEntry{spec: Grow(t, month)}
+		e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
+		g.tables[j] = e
 	}
-	return g.specs[j], g.parts[j]
+	return e.spec, e.parts
 }
 
 // view is the model laid out with segments of s rows after month months of growth,
