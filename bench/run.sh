@@ -2,8 +2,9 @@
 # Benchmarks scangate against a decode-only baseline on generated inputs (seeded, so the
 # same on every machine): (a) one manifest with 100,000 listed partitions, (b) a
 # monorepo of 2,000 manifests of about 40 tables (5% of them messy), a stress set where
-# every table is messy, (c) the demo; then growth with 10k/100k/1M partitions and the
-# startup time. Prints medians of RUNS runs and the ratios against the targets.
+# every table is messy, (c) the demo, (d) one manifest of 100,000 small tables; then
+# growth with 10k/100k/1M partitions and with 10k/100k tables, and the startup time.
+# Prints medians of RUNS runs and the ratios against the targets.
 #
 #   bench/run.sh            RUNS=3 bench/run.sh
 set -euo pipefail

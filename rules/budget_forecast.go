@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/schema"
+
 	"github.com/scangate/scangate/internal/analysis"
 
 	"github.com/scangate/scangate/internal/units"
@@ -54,10 +56,13 @@ func init() { register(BudgetForecast) }
 const budgetForecastID = "budget-forecast"
 
 // forecastHorizon is how far ahead a crossing is warned of.
-// Its bound is plan's --horizon bound: the forecast is computed month by month, and an
-// unbounded horizon (1e9) ran for minutes and took gigabytes.
-var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Max: advisor.MaxHorizonMonths,
-	Doc: "Months ahead a budget crossing is warned of (default 12, at most 600)."}
+var forecastHorizon = Param{Name: "horizon_months", Default: advisor.ForecastMonths, Doc: "Months ahead a budget crossing is warned of (default 12).",
+	// Twenty years: a forecast month by month beyond that says nothing a plan can act on,
+	// and each month lays out every growing table again.
+	Range: schema.Range{Min: 1, Max: maxHorizonMonths, Integer: true}}
+
+// maxHorizonMonths bounds horizon_months (20 years).
+const maxHorizonMonths = 240
 
 func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
 	horizon := units.Int(cfg.Value(budgetForecastID, forecastHorizon))

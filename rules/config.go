@@ -2,8 +2,11 @@ package rules
 
 import (
 	"fmt"
-	"github.com/scangate/scangate/internal/units"
+	"math"
+	"strconv"
 	"time"
+
+	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
 
@@ -87,7 +90,13 @@ func ConfigFrom(p *schema.ProjectConfig, today time.Time) (Config, error) {
 				problems = append(problems, schema.Problem{Pos: set.ParamPos[name], Path: "/rules/" + id + "/" + name, Message: fmt.Sprintf("rule %s has no setting %q; it has: %s", id, name, paramNames(r))})
 				continue
 			}
-			rc.Params[name] = set.Params[name]
+			v := set.Params[name]
+			if prm := paramOf(r, name); !prm.Allows(v) {
+				problems = append(problems, schema.Problem{Pos: set.ParamPos[name], Path: "/rules/" + id + "/" + name,
+					Message: schema.SettingProblem(id, name, valueWords(v), prm.Range)})
+				continue
+			}
+			rc.Params[name] = v
 		}
 		cfg.Rules[id] = rc
 	}
@@ -95,6 +104,26 @@ func ConfigFrom(p *schema.ProjectConfig, today time.Time) (Config, error) {
 		return cfg, &schema.Error{File: p.File, Problems: problems}
 	}
 	return cfg, nil
+}
+
+// shareRange is the range of a share of a budget or a table: above 0, at most all of it.
+var shareRange = schema.Range{Min: 0, MinExclusive: true, Max: 1}
+
+// valueWords writes a setting's value plainly: 100000000, 0.5, 1e+300.
+func valueWords(v float64) string {
+	if math.Abs(v) < 1e21 {
+		return strconv.FormatFloat(v, 'f', -1, 64)
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+func paramOf(r Rule, name string) Param {
+	for _, p := range r.Params {
+		if p.Name == name {
+			return p
+		}
+	}
+	return Param{}
 }
 
 func paramNames(r Rule) string {

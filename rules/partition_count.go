@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/schema"
+
 	"github.com/scangate/scangate/internal/analysis"
 
 	"github.com/scangate/scangate/internal/units"
@@ -34,7 +36,9 @@ func init() { register(PartitionCount) }
 const partitionCountID = "partition-count"
 
 // partitionLimit is the most partitions one table should have.
-var partitionLimit = Param{Name: "limit", Default: 5000, Doc: "Most partitions one table may have before a warning (default 5,000)."}
+var partitionLimit = Param{Name: "limit", Default: 5000, Doc: "Most partitions one table may have before a warning (default 5,000).",
+	// A table generates at most schema.MaxPartitions; a higher limit could never be passed.
+	Range: schema.Range{Min: 1, Max: schema.MaxPartitions, Integer: true}}
 
 func checkPartitionCount(t *analysis.Table, cfg Config) []Finding {
 	n := int64(t.Layout.Partitions)

@@ -29,12 +29,13 @@ type Rule struct {
 	CheckModel func(m *analysis.Model, cfg Config) []Finding
 }
 
-// Param is one tunable threshold of a rule.
+// Param is one tunable threshold of a rule and the values a project may set it to: the
+// config schema is generated from its Range, and ConfigFrom refuses a value outside it.
 type Param struct {
 	Name    string
 	Default float64
 	Doc     string
-	Max     float64 // the largest value the config schema accepts; 0: no bound
+	schema.Range
 }
 
 // registered collects the rules as their files' init functions run.
@@ -115,6 +116,7 @@ func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
 		}
 		out = append(out, fs[:n]...)
 		out = append(out, fs[n+len(model):]...)
+		t.Settle() // no rule reads it again: drop its sweep before the next table's
 	}
 	out = append(out, model...)
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })

@@ -41,7 +41,8 @@ func init() { register(RowCountMismatch) }
 const rowCountMismatchID = "row-count-mismatch"
 
 // mismatchTolerance is the relative difference accepted between the two counts.
-var mismatchTolerance = Param{Name: "tolerance", Default: 0.01, Doc: "Relative difference accepted between declared and listed rows (default 0.01, 1%)."}
+var mismatchTolerance = Param{Name: "tolerance", Default: 0.01, Doc: "Relative difference accepted between declared and listed rows (default 0.01, 1%).",
+	Range: shareRange}
 
 func checkRowCountMismatch(t *analysis.Table, cfg Config) []Finding {
 	if !t.Spec.RowsDeclared || len(t.Spec.Partitions.Items) == 0 {

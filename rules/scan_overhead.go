@@ -45,7 +45,8 @@ func init() { register(ScanOverhead) }
 const scanOverheadID = "scan-overhead"
 
 // overheadWarnShare is the share of the budget above which a warning is raised.
-var overheadWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
+var overheadWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8).",
+	Range: shareRange}
 
 func checkScanOverhead(t *analysis.Table, cfg Config) []Finding {
 	b := t.Budgets.ScanOverheadMs

@@ -48,7 +48,8 @@ func init() { register(ScanTime) }
 const scanTimeID = "scan-time"
 
 // scanWarnShare is the share of the budget above which a warning is raised.
-var scanWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8)."}
+var scanWarnShare = Param{Name: "warn_share", Default: 0.8, Doc: "Share of the budget above which a warning is raised (default 0.8).",
+	Range: shareRange}
 
 func checkScanTime(t *analysis.Table, cfg Config) []Finding {
 	b := t.Budgets.ScanMs

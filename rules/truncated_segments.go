@@ -3,6 +3,8 @@ package rules
 import (
 	"fmt"
 
+	"github.com/scangate/scangate/schema"
+
 	"github.com/scangate/scangate/internal/analysis"
 
 	"github.com/scangate/scangate/internal/units"
@@ -49,8 +51,10 @@ const truncatedSegmentsID = "truncated-segments"
 
 // A warning from max(warn_min, warn_share x segments) excess segments, else a note.
 var (
-	truncWarnMin   = Param{Name: "warn_min", Default: 8, Doc: "Excess segments from which a warning is raised however small the table (default 8)."}
-	truncWarnShare = Param{Name: "warn_share", Default: 0.1, Doc: "Share of the table's segments from which excess segments raise a warning (default 0.1)."}
+	// Each partition leaves at most one part-empty segment, and a table has at most
+	// schema.MaxPartitions: a higher warn_min could never be reached.
+	truncWarnMin   = Param{Name: "warn_min", Default: 8, Doc: "Excess segments from which a warning is raised however small the table (default 8).", Range: schema.Range{Min: 1, Max: schema.MaxPartitions, Integer: true}}
+	truncWarnShare = Param{Name: "warn_share", Default: 0.1, Doc: "Share of the table's segments from which excess segments raise a warning (default 0.1).", Range: shareRange}
 )
 
 func checkTruncatedSegments(t *analysis.Table, cfg Config) []Finding {

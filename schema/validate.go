@@ -180,6 +180,9 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 		pr := problemAt(n, p, msg)
 		return *pr
 	}
+	if msg, ok := t.settingProblem(d, e); ok {
+		return []Problem{at(ptr, loc, msg)}
+	}
 	switch k := e.ErrorKind.(type) {
 	case *kind.AdditionalProperties:
 		// Point at each unknown key itself, and say which keys are allowed.
@@ -219,7 +222,7 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 		return []Problem{at(ptr, loc, patternWords(fmt.Sprint(k.Got), e.SchemaURL))}
 	case *kind.Const:
 		if d.json {
-			return []Problem{at(ptr, loc, fmt.Sprintf("must be %v, not %s", k.Want, valueWords(valueAt(t.root, e.InstanceLocation))))}
+			return []Problem{at(ptr, loc, fmt.Sprintf("must be %v, not %s", k.Want, jsonValueWords(valueAt(t.root, e.InstanceLocation))))}
 		}
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be %v", k.Want))}
 	case *kind.Enum:
@@ -235,6 +238,26 @@ func (t *tree) describe(d *document, e *jsonschema.ValidationError) []Problem {
 		return []Problem{at(ptr, loc, fmt.Sprintf("must be at most %d characters", k.Want))}
 	}
 	return []Problem{at(ptr, loc, e.ErrorKind.LocalizedString(printer))}
+}
+
+// settingProblem words a rule setting of the project config that is not a number in
+// its range, naming the rule, the setting, the value and the range (SettingProblem).
+func (t *tree) settingProblem(d *document, e *jsonschema.ValidationError) (string, bool) {
+	loc := e.InstanceLocation
+	if d != configDoc || len(loc) != 3 || loc[0] != "rules" || loc[2] == "severity" {
+		return "", false
+	}
+	switch e.ErrorKind.(type) {
+	case *kind.Type, *kind.Minimum, *kind.ExclusiveMinimum, *kind.Maximum:
+	default:
+		return "", false
+	}
+	obj, _ := valueAt(d.doc(), []string{"properties", "rules", "properties", loc[1], "properties", loc[2]}).(map[string]any)
+	r, ok := rangeOf(obj)
+	if !ok {
+		return "", false
+	}
+	return SettingProblem(loc[1], loc[2], valueWords(valueAt(t.root, loc)), r), true
 }
 
 // allowedKeys lists the properties the failing object's schema declares.
@@ -336,8 +359,9 @@ func jsonTypeWords(types []string) string {
 	return strings.Join(words, " or ")
 }
 
-// valueWords quotes a scalar as the file wrote it and names the type of anything else.
-func valueWords(v any) string {
+// jsonValueWords quotes a scalar as the file wrote it and names the type of anything
+// else in JSON's words (object, array), for files that are JSON whatever their syntax.
+func jsonValueWords(v any) string {
 	switch v := v.(type) {
 	case string:
 		return strconv.Quote(v)

@@ -78,3 +78,33 @@ func Monorepo(files, tables int, messy float64, seed uint64) map[string][]byte {
 	}
 	return out
 }
+
+// ManyTables is one manifest of n small tables, to show how the cost grows with tables:
+// a third of them grow, one in sixteen has column profiles, one in four is partitioned
+// (most of those waste segments, so their hints sweep other layouts), and the model has
+// every budget and engine memory, so every whole-model figure (refresh peak, forecast)
+// is computed for every table. 100,000 tables are about 7 MiB, within the file limit.
+func ManyTables(n int, seed uint64) []byte {
+	r := rand.New(rand.NewPCG(seed, 3))
+	var b strings.Builder
+	fmt.Fprintf(&b, "format: 1\nmodel: many-tables\nengine: {segment_rows: 1Mi, memory: 4PiB}\nbudgets: {scan_overhead_ms: 600, scan_ms: 5000, refresh_memory: 2PiB}\ntables:\n")
+	for t := 0; t < n; t++ {
+		fmt.Fprintf(&b, "  - {name: t%06d, rows: %dM", t, 1+r.IntN(400))
+		if r.IntN(3) == 0 {
+			fmt.Fprintf(&b, ", growth_per_year: 0.%d", 1+r.IntN(9))
+		}
+		switch k := r.IntN(8); {
+		case k == 0:
+			fmt.Fprintf(&b, ", partitions: {scheme: even, count: %d}", 2+r.IntN(200))
+		case k == 1:
+			fmt.Fprintf(&b, ", partitions: {scheme: time, tiers: [{grain: month, keep: %d}]}", 2+r.IntN(36))
+		default:
+			b.WriteString(", partitions: {scheme: none}")
+		}
+		if r.IntN(16) == 0 {
+			fmt.Fprintf(&b, ", columns: [{name: id, type: int64, order: sorted}, {name: v, type: float64, distinct: %d}]", 1+r.IntN(1_000_000))
+		}
+		b.WriteString("}\n")
+	}
+	return []byte(b.String())
+}

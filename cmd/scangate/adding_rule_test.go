@@ -75,6 +75,11 @@ func TestAddingARule(t *testing.T) {
 	}
 	dir := t.TempDir()
 	copyTree(t, root(t), dir)
+	// The copy is a repository root as the checkout is (reports and fingerprints name
+	// files relative to it); it has no history, so builds stamp no revision.
+	if err := os.Mkdir(filepath.Join(dir, ".git"), 0o755); err != nil {
+		t.Fatal(err)
+	}
 	before := hashTree(t, dir)
 	write := func(rel, body string) {
 		p := filepath.Join(dir, filepath.FromSlash(rel))
@@ -93,7 +98,7 @@ func TestAddingARule(t *testing.T) {
 		t.Helper()
 		cmd := exec.Command("go", args...)
 		cmd.Dir = dir
-		cmd.Env = append(os.Environ(), "SCANGATE_RULE_COPY=1")
+		cmd.Env = append(os.Environ(), "SCANGATE_RULE_COPY=1", "GOFLAGS=-buildvcs=false")
 		if out, err := cmd.CombinedOutput(); err != nil {
 			t.Fatalf("go %s in the copy: %v\n%s", strings.Join(args, " "), err, out)
 		}
@@ -134,10 +139,13 @@ func copyTree(t *testing.T, src, dst string) {
 			return err
 		}
 		rel, _ := filepath.Rel(src, p)
-		if d.IsDir() {
-			if d.Name() == ".git" {
+		if d.Name() == ".git" {
+			if d.IsDir() {
 				return filepath.SkipDir
 			}
+			return nil
+		}
+		if d.IsDir() {
 			return os.MkdirAll(filepath.Join(dst, rel), 0o755)
 		}
 		if !d.Type().IsRegular() {

@@ -145,6 +145,11 @@ tables:
 	if rulesSeen["scan-overhead"] != "warning" || rulesSeen["partition-count"] != "warning" {
 		t.Errorf("overrides not applied: %v", rulesSeen)
 	}
+	// The ends of the horizon's range are taken.
+	for _, h := range []string{"1", "240"} {
+		dir := repo(t, map[string]string{"m.yaml": manifest, ".scangate.yaml": "rules:\n  budget-forecast: {horizon_months: " + h + "}\n"})
+		wantCode(t, scangate(t, dir, "", nil, "check", "m.yaml"), 1)
+	}
 	dir = repo(t, map[string]string{"m.yaml": manifest, ".scangate.yaml": "rules:\n  scan-overhead: {severity: off}\n"})
 	r = scangate(t, dir, "", nil, "check", "m.yaml")
 	wantCode(t, r, 0)
@@ -156,8 +161,18 @@ tables:
 		{"rules:\n  scan-overhead: {limit: 3}\n", `.scangate.yaml:2:19: error: /rules/scan-overhead/limit: unknown key "limit"`},
 		{"rules:\n  made-up: {severity: off}\n", `.scangate.yaml:2:3: error: /rules/made-up: unknown key "made-up"`},
 		{"engines:\n  x: {segment_rows: 8Xi}\n", `.scangate.yaml:2:21: error: /engines/x/segment_rows: "8Xi" is not a count`},
-		// The forecast runs month by month: 1e9 months once ran for minutes in gigabytes.
-		{"rules:\n  budget-forecast: {horizon_months: 1e9}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: must be <= 600 [config]`},
+		// A horizon of 100,000,000 months once ran for minutes; -5, 0.5 and 1e300 were taken
+		// silently. Each is refused at the value, with the rule, the setting and the range.
+		{"rules:\n  budget-forecast: {horizon_months: 1e9}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: 1e9 is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  budget-forecast: {horizon_months: 100000000}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: 100000000 is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  budget-forecast: {horizon_months: -5}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: -5 is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  budget-forecast: {horizon_months: 0.5}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: 0.5 is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  budget-forecast:\n    horizon_months: 1e300\n", `.scangate.yaml:3:21: error: /rules/budget-forecast/horizon_months: 1e300 is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  budget-forecast: {horizon_months: \"12\"}\n", `.scangate.yaml:2:37: error: /rules/budget-forecast/horizon_months: "12" is out of range: horizon_months of rule budget-forecast is a whole number from 1 to 240 [config]`},
+		{"rules:\n  scan-overhead: {warn_share: 0}\n", `.scangate.yaml:2:31: error: /rules/scan-overhead/warn_share: 0 is out of range: warn_share of rule scan-overhead is a number above 0 and at most 1 [config]`},
+		{"rules:\n  row-count-mismatch: {tolerance: 2}\n", `/rules/row-count-mismatch/tolerance: 2 is out of range: tolerance of rule row-count-mismatch is a number above 0 and at most 1 [config]`},
+		{"rules:\n  partition-count: {limit: 0}\n", `/rules/partition-count/limit: 0 is out of range: limit of rule partition-count is a whole number from 1 to 1,000,000 [config]`},
+		{"rules:\n  truncated-segments: {warn_min: 1.5}\n", `/rules/truncated-segments/warn_min: 1.5 is out of range: warn_min of rule truncated-segments is a whole number from 1 to 1,000,000 [config]`},
 	} {
 		dir := repo(t, map[string]string{"m.yaml": manifest, ".scangate.yaml": c.cfg})
 		r := scangate(t, dir, "", nil, "check", "m.yaml")

@@ -69,6 +69,23 @@ var waiverEnum = regexp.MustCompile(`"description": "ID of the rule whose findin
 
 type obj = map[string]any
 
+// settingSchema is a rule setting's schema: its type and range, so the schema refuses a
+// value the rule would never use (rules.ConfigFrom checks the same range).
+func settingSchema(p rules.Param) obj {
+	o := obj{"title": p.Name, "description": p.Doc + " " + upperFirst(p.Words()) + ".", "type": "number", "default": p.Default, "maximum": p.Max}
+	if p.Integer {
+		o["type"] = "integer"
+	}
+	if p.MinExclusive {
+		o["exclusiveMinimum"] = p.Min
+	} else {
+		o["minimum"] = p.Min
+	}
+	return o
+}
+
+func upperFirst(s string) string { return strings.ToUpper(s[:1]) + s[1:] }
+
 func configSchema(t *testing.T) []byte {
 	var manifest obj
 	if err := json.Unmarshal(schema.ManifestSchema(), &manifest); err != nil {
@@ -104,11 +121,7 @@ func configSchema(t *testing.T) []byte {
 			"enum":        []any{"error", "warning", "note", "off"},
 		}}
 		for _, p := range r.Params {
-			prop := obj{"title": p.Name, "description": p.Doc, "type": "number", "default": p.Default}
-			if p.Max > 0 {
-				prop["maximum"] = p.Max
-			}
-			props[p.Name] = prop
+			props[p.Name] = settingSchema(p)
 		}
 		ruleProps[r.ID] = obj{
 			"title":                r.ID,

@@ -1,6 +1,7 @@
 package advisor
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -33,8 +34,8 @@ var DefaultLevels = Levels{OverheadWarnShare: 0.8, ScanWarnShare: 0.8, TruncWarn
 // ForecastMonths is how far ahead the budget-forecast rule warns of a crossing by default.
 const ForecastMonths = 12
 
-// MaxHorizonMonths bounds every forecast horizon (plan's --horizon, budget-forecast's
-// horizon_months): fifty years of months is already far past any plan.
+// MaxHorizonMonths bounds plan's --horizon: fifty years of months is already far past
+// any plan. The budget-forecast rule's horizon_months has a tighter bound of its own.
 const MaxHorizonMonths = 600
 
 // horizon is the forecast window of the levels, the default when unset.
@@ -112,6 +113,7 @@ type Model struct {
 	budgets     []schema.Budgets     // by table: Budgets(i)
 	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
 	grown       map[int]*grownTables // by month; a cache only, never ranged over
+	work        int                  // tables expanded or laid out so far, for the tests that hold it linear
 }
 
 type viewKey struct {
@@ -125,12 +127,31 @@ type viewKey struct {
 // table is left out until another table's what-if needs it: a model of one large table
 // never lays it out, or holds its partitions, twice.
 type view struct {
-	figs    []*Figures  // by table; nil when left out or when it cannot be expanded
-	own     []Figures   // by table: the figures figs points to, unless shared with month 0
-	bytes   []float64   // by table: figs' Bytes, 0 when nil
+	scan    []scanState // by table: whether it fits its scan budgets, judged when first asked for
+	bytes   []float64   // by table: the encoded size of its profiled columns, 0 when unknown
+	total   exactSum    // of bytes, so a refresh peak costs the same however many tables
 	skip    int         // the table left out, -1 none
-	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one
-	overFor int         // -1: over lists every table; i: every table but i; -2: not listed
+	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one, by table
+	listed  bool        // over has been listed
+	lacking []int       // tables over could not judge yet: a view had left them out
+}
+
+// scanState is what a view keeps of a table's figures besides its bytes: a view holds
+// every table of the model, so it holds no more of each than a what-if reads.
+type scanState uint8
+
+const (
+	scanUnjudged scanState = iota
+	scanFits
+	scanBreaks
+	scanNone // cannot be expanded
+)
+
+func scanStateOf(b schema.Budgets, f Figures) scanState {
+	if fitsScan(b, f) {
+		return scanFits
+	}
+	return scanBreaks
 }
 
 type tableMiss struct {
@@ -139,11 +160,15 @@ type tableMiss struct {
 }
 
 // grownTables is the tables grown for some months, with their partitions (the same at
-// every segment capacity), each expanded when first needed.
+// every segment capacity), each expanded when first needed. Most months need few of
+// the model's tables (the profiled ones), so each is held by pointer.
 type grownTables struct {
-	have  []bool
-	specs []schema.Table
-	parts [][]layout.Partition // nil when it cannot be expanded
+	tables []*grownTableEntry // by table; nil until first needed
+}
+
+type grownTableEntry struct {
+	spec  schema.Table
+	parts []layout.Partition // nil when it cannot be expanded
 }
 
 // NewModel prepares m for sweeps and forecasts.
@@ -186,15 +211,22 @@ func (md *Model) engineAt(s int64) schema.Engine {
 // Evaluate lays spec out in segments of s rows, with its rows grown for month months.
 func (md *Model) Evaluate(spec schema.Table, s int64, month int) (Figures, error) {
 	spec = Grow(spec, month)
-	parts, err := layout.Expand(spec)
+	parts, err := md.expand(spec)
 	if err != nil {
 		return Figures{}, err
 	}
 	return md.figures(spec, parts, s), nil
 }
 
+// expand is layout.Expand, counted.
+func (md *Model) expand(spec schema.Table) ([]layout.Partition, error) {
+	md.work++
+	return layout.Expand(spec)
+}
+
 // figures lays out partitions already expanded from spec.
 func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) Figures {
+	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	e := md.engineAt(s)
 	best, widest := -1.0, -1
@@ -223,15 +255,16 @@ func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
 	g, ok := md.grown[month]
 	if !ok {
 		n := len(md.M.Tables)
-		g = &grownTables{have: make([]bool, n), specs: make([]schema.Table, n), parts: make([][]layout.Partition, n)}
+		g = &grownTables{tables: make([]*grownTableEntry, n)}
 		md.grown[month] = g
 	}
-	if !g.have[j] {
-		g.specs[j] = Grow(t, month)
-		g.parts[j], _ = layout.Expand(g.specs[j]) // nil when it cannot be expanded
-		g.have[j] = true
+	e := g.tables[j]
+	if e == nil {
+		e = &grownTableEntry{spec: Grow(t, month)}
+		e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
+		g.tables[j] = e
 	}
-	return g.specs[j], g.parts[j]
+	return e.spec, e.parts
 }
 
 // view is the model laid out with segments of s rows after month months of growth,
@@ -241,7 +274,7 @@ func (md *Model) view(s int64, month, i int) *view {
 	v, ok := md.views[k]
 	if !ok {
 		n := len(md.M.Tables)
-		v = &view{figs: make([]*Figures, n), own: make([]Figures, n), bytes: make([]float64, n), skip: -1, overFor: -2}
+		v = &view{scan: make([]scanState, n), bytes: make([]float64, n), skip: -1}
 		md.views[k] = v
 		if i >= 0 && i < n {
 			v.skip = i
@@ -258,59 +291,96 @@ func (md *Model) view(s int64, month, i int) *view {
 	return v
 }
 
-// layOut puts table j (not i) into v.
+// layOut puts table j (not i) into v. Only a profiled table has bytes; whether a table
+// fits its scan budgets is judged when a what-if at another capacity first asks
+// (scanOf), so a view of a model of many tables without profiles costs little.
 func (md *Model) layOut(v *view, s int64, month, j, i int) {
+	if len(md.M.Tables[j].Columns) == 0 {
+		return
+	}
 	if month != 0 && !grows(md.M.Tables[j]) {
 		// Growth leaves it as it is: share today's figures (j != i, so they are there).
 		base := md.view(s, 0, i)
-		v.figs[j], v.bytes[j] = base.figs[j], base.bytes[j]
+		v.scan[j], v.bytes[j] = base.scan[j], base.bytes[j]
+		v.total.add(v.bytes[j])
 		return
 	}
 	spec, parts := md.grownTable(j, month)
 	if parts == nil {
+		v.scan[j] = scanNone
 		return
 	}
-	v.own[j] = md.figures(spec, parts, s)
-	v.figs[j], v.bytes[j] = &v.own[j], v.own[j].Bytes
+	f := md.figures(spec, parts, s)
+	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
+	v.total.add(v.bytes[j])
 }
 
-// outgrown lists the tables of the model, table i aside, that fit their scan budgets
-// with today's segment capacity but not with s, after month months of growth.
+// scanOf is whether table j, laid out as view v (segments of s rows, month months of
+// growth) has it, fits its scan budgets; judged once.
+func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
+	if v.scan[j] != scanUnjudged {
+		return v.scan[j]
+	}
+	b := md.budgets[j]
+	switch spec, parts := md.grownTable(j, month); {
+	case parts == nil:
+		v.scan[j] = scanNone
+	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
+		v.scan[j] = scanFits // no scan budget applies
+	default:
+		v.scan[j] = scanStateOf(b, md.figures(spec, parts, s))
+	}
+	return v.scan[j]
+}
+
+// outgrown lists the tables of the model that fit their scan budgets with today's
+// segment capacity but not with s, after month months of growth, by table; table i
+// may be among them (the caller leaves it out). The list is made once per view; a table
+// a view had left out is judged when a what-if of another table first needs it.
 func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
-	v, now := md.view(s, month, i), md.view(md.M.Engine.SegmentRows, month, i)
-	if v.overFor == -1 || v.overFor == i {
-		return v.over
+	today := md.M.Engine.SegmentRows
+	v, now := md.view(s, month, i), md.view(today, month, i)
+	judge := func(j int) { md.judgeOver(v, now, s, today, month, j) }
+	if !v.listed {
+		v.listed = true
+		for j := range md.M.Tables {
+			judge(j)
+		}
 	}
-	// Both views now leave out at most table i.
-	v.over, v.overFor = nil, -1
-	if v.skip == i || now.skip == i {
-		v.overFor = i
-	}
-	for j, t := range md.M.Tables {
-		if now.figs[j] == nil || v.figs[j] == nil {
+	for k := 0; k < len(v.lacking); {
+		if j := v.lacking[k]; j != i {
+			// Both views now hold every table but i.
+			v.lacking = slices.Delete(v.lacking, k, k+1)
+			judge(j)
 			continue
 		}
-		if fitsScan(md.budgets[j], *now.figs[j]) && !fitsScan(md.budgets[j], *v.figs[j]) {
-			v.over = append(v.over, tableMiss{j, Miss{"table " + t.Name, fmt.Sprintf("table %s over its scan budgets", t.Name)}})
-		}
+		k++
 	}
 	return v.over
+}
+
+// judgeOver adds table j to v.over, in table order, when it fits its scan budgets in
+// now but not in v; when either view left it out, it waits in v.lacking.
+func (md *Model) judgeOver(v, now *view, s, today int64, month, j int) {
+	if j == v.skip || j == now.skip {
+		v.lacking = append(v.lacking, j)
+		return
+	}
+	if md.scanOf(now, today, month, j) != scanFits || md.scanOf(v, s, month, j) != scanBreaks {
+		return // fits in both, breaks today already, or cannot be expanded
+	}
+	name := md.M.Tables[j].Name
+	at, _ := slices.BinarySearchFunc(v.over, j, func(o tableMiss, j int) int { return cmp.Compare(o.j, j) })
+	v.over = slices.Insert(v.over, at, tableMiss{j, Miss{"table " + name, fmt.Sprintf("table %s over its scan budgets", name)}})
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
 // and the other tables as the manifest has them, all grown for month months.
 func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
-	// Summed in table order from f's bytes, as ever, so the float result is unchanged
-	// (a total less table i's own would round differently).
-	all := md.view(s, month, i).bytes
-	bytes := f.Bytes
-	for _, b := range all[:i] {
-		bytes += b
-	}
-	for _, b := range all[i+1:] {
-		bytes += b
-	}
-	return layout.RefreshPeak(bytes, md.parallelism, s, md.rowBytes)
+	v := md.view(s, month, i)
+	// The other tables' bytes, summed exactly and rounded once: the same figure whichever
+	// table asks, at the cost of one table, not of the model.
+	return layout.RefreshPeak(v.total.swap(v.bytes[i], f.Bytes), md.parallelism, s, md.rowBytes)
 }
 
 // Budgets are the budgets table i answers to: the model's with the table's own on top.
@@ -438,7 +508,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			p, ok := policies[v.Change]
 			if !ok {
 				p = &policy{}
-				if p.parts, _ = layout.Expand(v.Spec); p.parts != nil {
+				if p.parts, _ = md.expand(v.Spec); p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
 				}
 				policies[v.Change] = p
@@ -502,7 +572,7 @@ func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int
 	}
 	if !p.hasLater {
 		p.grown = Grow(v.Spec, horizon)
-		p.later, _ = layout.Expand(p.grown)
+		p.later, _ = md.expand(p.grown)
 		p.hasLater = true
 	}
 	if p.later == nil {

@@ -135,14 +135,21 @@ func (t *Table) EncodedBytes() float64 {
 // A table that was swept keeps its layouts in brief (Layouts).
 func (md *Model) Settle() {
 	for _, t := range md.Tables {
-		if t.settled {
-			continue
-		}
-		t.encoded = t.EncodedBytes()
-		if t.swept {
-			t.kept = layoutsOf(t.sweep)
-		}
-		t.settled = true
-		t.Parts, t.options, t.sweep, t.model = nil, nil, nil, nil
+		t.Settle()
 	}
+	md.advisor = nil // its caches hold every table's partitions at several sizes and months
+}
+
+// Settle is Model.Settle for one table, once every rule has read it: the rules read one
+// table at a time, so a model of many tables never holds every table's sweep at once.
+func (t *Table) Settle() {
+	if t.settled {
+		return
+	}
+	t.encoded = t.EncodedBytes()
+	if t.swept {
+		t.kept = layoutsOf(t.sweep)
+	}
+	t.settled = true
+	t.Parts, t.options, t.sweep, t.model = nil, nil, nil, nil
 }

@@ -209,18 +209,22 @@ func Compare(base, head Side) *Diff {
 }
 
 func invalid(side string, s Side) []Invalid {
+	byFile := map[string][]rules.Finding{}
+	for _, f := range s.Files {
+		if f.Invalid {
+			byFile[f.Name] = nil
+		}
+	}
+	for _, x := range s.Findings {
+		if list, ok := byFile[x.File]; ok {
+			byFile[x.File] = append(list, x)
+		}
+	}
 	var out []Invalid
 	for _, f := range s.Files {
-		if !f.Invalid {
-			continue
+		if f.Invalid {
+			out = append(out, Invalid{Side: side, File: f, Findings: byFile[f.Name]})
 		}
-		inv := Invalid{Side: side, File: f}
-		for _, x := range s.Findings {
-			if x.File == f.Name {
-				inv.Findings = append(inv.Findings, x)
-			}
-		}
-		out = append(out, inv)
 	}
 	return out
 }
@@ -252,14 +256,19 @@ func matchFiles(base, head []File) ([]FileChange, map[string]string) {
 	sort.SliceStable(fresh, func(i, j int) bool { return fresh[i].Key < fresh[j].Key })
 	rename := map[string]string{}
 	paired := map[*File]bool{}
+	freshByModel := map[string][]*File{} // in key order; the first is taken
+	for _, h := range fresh {
+		if h.Model != "" {
+			freshByModel[h.Model] = append(freshByModel[h.Model], h)
+		}
+	}
 	for _, b := range gone {
-		for _, h := range fresh {
-			if !paired[h] && h.Model != "" && h.Model == b.Model {
-				paired[h], paired[b] = true, true
-				rename[b.Key] = h.Key
-				out = append(out, FileChange{Status: FileRenamed, Model: h.Model, Base: b, Head: h})
-				break
-			}
+		if q := freshByModel[b.Model]; b.Model != "" && len(q) > 0 {
+			h := q[0]
+			freshByModel[b.Model] = q[1:]
+			paired[h], paired[b] = true, true
+			rename[b.Key] = h.Key
+			out = append(out, FileChange{Status: FileRenamed, Model: h.Model, Base: b, Head: h})
 		}
 	}
 	byKey := map[string]*File{}
@@ -317,20 +326,43 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	bs, hs := list(base, rename), list(head, nil)
 	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
 	used := make([]bool, len(bs))
+	// The base tables by (model, table) and by (file, model, table), in base order: each
+	// head table takes the first unused one, in the same file first.
+	type name struct{ model, table string }
+	type placedName struct {
+		key string
+		name
+	}
+	inFile, anywhere := map[placedName][]int{}, map[name][]int{}
+	for j, b := range bs {
+		n := name{b.file.Model, b.table.Spec.Name}
+		inFile[placedName{b.key, n}] = append(inFile[placedName{b.key, n}], j)
+		anywhere[n] = append(anywhere[n], j)
+	}
+	take := func(q []int) ([]int, int) {
+		for len(q) > 0 && used[q[0]] {
+			q = q[1:] // taken by an earlier head table; never wanted again
+		}
+		if len(q) == 0 {
+			return q, -1
+		}
+		return q[1:], q[0]
+	}
 	for pass := 0; pass < 2; pass++ {
 		for i, h := range hs {
 			if pair[i] != 0 {
 				continue
 			}
-			for j, b := range bs {
-				if used[j] || b.file.Model != h.file.Model || b.table.Spec.Name != h.table.Spec.Name {
-					continue
-				}
-				if pass == 0 && b.key != h.key {
-					continue
-				}
+			n := name{h.file.Model, h.table.Spec.Name}
+			j := -1
+			if pass == 0 {
+				k := placedName{h.key, n}
+				inFile[k], j = take(inFile[k])
+			} else {
+				anywhere[n], j = take(anywhere[n])
+			}
+			if j >= 0 {
 				used[j], pair[i] = true, j+1
-				break
 			}
 		}
 	}
@@ -374,16 +406,17 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return p
 	}
 	inBase, inHead := present(base), present(head)
+	baseTables, headTables := tablesByModel(base), tablesByModel(head)
 	out := make([]ModelChange, 0, len(models))
 	for _, name := range sortedNames(models) {
 		m := models[name]
 		if inBase[name] {
 			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
-			m.Before.RefreshBytes = refreshPeak(tablesOf(base, name))
+			m.Before.RefreshBytes = refreshPeak(baseTables[name])
 		}
 		if inHead[name] {
 			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
-			m.After.RefreshBytes = refreshPeak(tablesOf(head, name))
+			m.After.RefreshBytes = refreshPeak(headTables[name])
 		}
 		switch {
 		case m.Before == nil:
@@ -406,13 +439,11 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	return out
 }
 
-// tablesOf lists the tables of a model on one side.
-func tablesOf(files []File, model string) []*analysis.Table {
-	var out []*analysis.Table
+// tablesByModel lists the tables of each model on one side, in file order.
+func tablesByModel(files []File) map[string][]*analysis.Table {
+	out := map[string][]*analysis.Table{}
 	for _, f := range files {
-		if f.Model == model {
-			out = append(out, f.Tables...)
-		}
+		out[f.Model] = append(out[f.Model], f.Tables...)
 	}
 	return out
 }

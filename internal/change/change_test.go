@@ -333,3 +333,20 @@ func TestRefreshPeak(t *testing.T) {
 		t.Error("a model without profiles has no refresh peak")
 	}
 }
+
+// Tables pair first within their file, then across the model's files, each base table
+// once, the earliest first: a model split in two keeps both tables, and a copy of a
+// table in the new file is added, not matched again.
+func TestCompareSplitModelPairsEachTableOnce(t *testing.T) {
+	base := side(t, "base", []string{"a.yaml"}, manifest("sales", "1.5", ordersEven4+stores))
+	head := side(t, "head", []string{"a.yaml", "b.yaml"}, manifest("sales", "1.5", ordersEven4), manifest("sales", "1.5", stores+ordersNone))
+	d := Compare(base, head)
+	var got []string
+	for _, tc := range d.Tables() {
+		got = append(got, tc.HeadFile+" "+tc.Name+" "+string(tc.Status)+" from "+tc.BaseFile)
+	}
+	want := "head:a.yaml orders unchanged from base:a.yaml; head:b.yaml stores unchanged from base:a.yaml; head:b.yaml orders added from "
+	if strings.Join(got, "; ") != want {
+		t.Errorf("tables:\n%s\nwant:\n%s", strings.Join(got, "; "), want)
+	}
+}

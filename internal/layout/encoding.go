@@ -1,9 +1,10 @@
 package layout
 
 import (
-	"github.com/scangate/scangate/internal/units"
 	"math"
 	"math/bits"
+
+	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/schema"
 )

@@ -2,10 +2,11 @@ package report
 
 import (
 	"fmt"
-	"github.com/scangate/scangate/internal/units"
 	"math"
 	"strconv"
 	"strings"
+
+	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/calibrate"
 	"github.com/scangate/scangate/internal/escape"

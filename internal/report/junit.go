@@ -49,15 +49,18 @@ type junitFailure struct {
 // sees it: XML 1.0 has no way to write most control characters, even as references.
 func writeJUnit(w io.Writer, r *Result, _ bool) error {
 	doc := junitSuites{Name: "scangate"}
+	byFile := map[string][]rules.Finding{} // failing findings, in report order
+	for _, x := range r.Findings {
+		if r.Fails(x) {
+			byFile[x.File] = append(byFile[x.File], x)
+		}
+	}
 	for _, f := range r.Files {
 		uri, model := escape.Text(f.URI), escape.Text(f.Model)
 		suite := junitSuite{Name: uri}
 		byTable := map[string][]rules.Finding{}
 		var fileLevel []rules.Finding
-		for _, x := range r.Findings {
-			if x.File != f.Name || !r.Fails(x) {
-				continue
-			}
+		for _, x := range byFile[f.Name] {
 			if x.Table == "" {
 				fileLevel = append(fileLevel, x)
 			} else {

@@ -19,7 +19,7 @@ func RuleText(r rules.Rule) string {
 	if len(r.Params) > 0 {
 		b.WriteString("Settings (.scangate.yaml, rules: " + r.ID + ": {...})\n")
 		for _, p := range r.Params {
-			fmt.Fprintf(&b, "  %s: %s\n", p.Name, p.Doc)
+			fmt.Fprintf(&b, "  %s: %s %s.\n", p.Name, p.Doc, upperFirst(p.Words()))
 		}
 		b.WriteString("\n")
 	}
@@ -43,7 +43,7 @@ func RulesMarkdown() string {
 		if len(r.Params) > 0 {
 			b.WriteString("**Settings** in `.scangate.yaml` under `rules: " + r.ID + ":`\n\n")
 			for _, p := range r.Params {
-				fmt.Fprintf(&b, "- `%s`: %s\n", p.Name, p.Doc)
+				fmt.Fprintf(&b, "- `%s`: %s %s.\n", p.Name, p.Doc, upperFirst(p.Words()))
 			}
 			b.WriteString("- `severity`: `error`, `warning`, `note` or `off`\n\n")
 		}

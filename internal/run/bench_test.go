@@ -108,3 +108,20 @@ func BenchmarkCheckPartitions(b *testing.B) {
 		})
 	}
 }
+
+// Cost against tables: one manifest of 10k and 100k small tables (gen.ManyTables), beside
+// the decode-only baseline of the same bytes. Every whole-model figure (refresh peak,
+// forecast, sweep) must stay linear in tables.
+func BenchmarkCheckTables(b *testing.B) {
+	for _, n := range []int{10_000, 100_000} {
+		in := benchInputs(map[string][]byte{"tables.yaml": gen.ManyTables(n, 1)})
+		b.Run(fmt.Sprint(n), func(b *testing.B) { benchCheck(b, in) })
+	}
+}
+
+func BenchmarkDecodeTables(b *testing.B) {
+	for _, n := range []int{10_000, 100_000} {
+		in := benchInputs(map[string][]byte{"tables.yaml": gen.ManyTables(n, 1)})
+		b.Run(fmt.Sprint(n), func(b *testing.B) { benchDecode(b, in) })
+	}
+}

@@ -37,4 +37,7 @@ func main() {
 	for _, n := range []int{10_000, 100_000, 1_000_000} {
 		write(fmt.Sprintf("days/%d/days.yaml", n), gen.Days(n))
 	}
+	for _, n := range []int{10_000, 100_000} {
+		write(fmt.Sprintf("tables/%d/tables.yaml", n), gen.ManyTables(n, *seed))
+	}
 }

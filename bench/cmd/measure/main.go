@@ -107,6 +107,7 @@ func main() {
 		{"(b) monorepo 2000x40", "monorepo"},
 		{"    stress 200x40", "stress"},
 		{"(c) demo", "demo"},
+		{"(d) 100k tables", "tables/100000"},
 	} {
 		dir := filepath.Join(*in, c.dir)
 		s := measure(*runs, scangate, "check", "--fail-on", "never", dir)
@@ -129,6 +130,17 @@ func main() {
 			growth = fmt.Sprintf("  x%.1f for 10x the partitions", float64(s.cpu)/float64(prev.cpu))
 		}
 		fmt.Printf("  %9d partitions: %8.0f ms cpu %8.1f MiB%s\n", n, ms(s.cpu), float64(s.rssKB)/1024, growth)
+		prev = s
+	}
+	fmt.Println("\ngrowth with tables (one manifest):")
+	for i, n := range []int{10_000, 100_000} {
+		dir := filepath.Join(*in, "tables", fmt.Sprint(n))
+		s, b := measure(*runs, scangate, "check", "--fail-on", "never", dir), measure(*runs, decode, dir)
+		growth := ""
+		if i > 0 {
+			growth = fmt.Sprintf("  x%.1f for 10x the tables", float64(s.cpu)/float64(prev.cpu))
+		}
+		fmt.Printf("  %9d tables: %8.0f ms cpu (%.2fx the baseline) %8.1f MiB%s\n", n, ms(s.cpu), float64(s.cpu)/float64(b.cpu), float64(s.rssKB)/1024, growth)
 		prev = s
 	}
 	v := measure(*runs*2, scangate, "version")
