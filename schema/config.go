@@ -3,7 +3,11 @@ package schema
 import (
 	"bytes"
 	_ "embed"
+	"fmt"
+	"path"
 	"sort"
+	"strconv"
+	"strings"
 )
 
 //go:embed config.schema.json
@@ -110,8 +114,8 @@ func LoadConfig(file string, data []byte, lim Limits) (*ProjectConfig, error) {
 		}
 		c.Rules[id] = rs
 	}
-	c.Include = stringList(root["include"])
-	c.Exclude = stringList(root["exclude"])
+	c.Include = d.globs("/include", root["include"])
+	c.Exclude = d.globs("/exclude", root["exclude"])
 	if ps = append(ps, d.kept()...); len(ps) > 0 {
 		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
@@ -119,6 +123,32 @@ func LoadConfig(file string, data []byte, lim Limits) (*ProjectConfig, error) {
 }
 
 func escapeToken(s string) string { return pointer([]string{s})[1:] }
+
+// globs reads a list of path globs and refuses, at its line and column, one that can
+// never match: a bad pattern would otherwise only show as "no manifest found".
+func (d *decoder) globs(ptr string, v any) []string {
+	list := stringList(v)
+	for i, g := range list {
+		if err := CheckGlob(g); err != nil {
+			d.fail(ptr+"/"+strconv.Itoa(i), fmt.Sprintf("glob %q: %v", g, err))
+		}
+	}
+	return list
+}
+
+// CheckGlob reports why a slash-separated glob (** for any number of directories, the
+// other wildcards as in path.Match) is malformed, nil when it is well formed.
+func CheckGlob(g string) error {
+	for _, part := range strings.Split(g, "/") {
+		if part == "**" {
+			continue
+		}
+		if _, err := path.Match(part, ""); err != nil {
+			return fmt.Errorf("%q is not a valid pattern (an unclosed [ or a trailing \\); write * ? [abc] [a-z] or ** for any number of directories", part)
+		}
+	}
+	return nil
+}
 
 func stringList(v any) []string {
 	list, _ := v.([]any)

@@ -70,3 +70,27 @@ func messages(t *testing.T, err error) string {
 	}
 	return strings.Join(out, "; ")
 }
+
+// A glob that can never match is refused where it is written, not left to show as "no
+// manifest found"; ** and the wildcards of path.Match are accepted.
+func TestConfigGlobsChecked(t *testing.T) {
+	good := "include: [\"models/**/*.yaml\", \"m?/[a-c]*.yml\"]\nexclude: [\"**/drafts/**\"]\n"
+	if _, err := schema.LoadConfig(".scangate.yaml", []byte(good), schema.DefaultLimits); err != nil {
+		t.Fatalf("well-formed globs refused: %v", err)
+	}
+	bad := "include:\n  - \"models/[ab/*.yaml\"\nexclude: [\"ok/**\", \"x\\\\\"]\n"
+	_, err := schema.LoadConfig(".scangate.yaml", []byte(bad), schema.DefaultLimits)
+	var se *schema.Error
+	if !errors.As(err, &se) || len(se.Problems) != 2 {
+		t.Fatalf("want two problems, got %v", err)
+	}
+	for i, want := range []struct {
+		line, col int
+		text      string
+	}{{2, 5, `glob "models/[ab/*.yaml": "[ab" is not a valid pattern`}, {3, 20, `glob "x\\": "x\\" is not a valid pattern`}} {
+		p := se.Problems[i]
+		if p.Pos.Line != want.line || p.Pos.Col != want.col || !strings.Contains(p.Text(), want.text) {
+			t.Errorf("problem %d: %d:%d %q; want %d:%d containing %q", i, p.Pos.Line, p.Pos.Col, p.Text(), want.line, want.col, want.text)
+		}
+	}
+}
