@@ -6,13 +6,42 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"strings"
 	"testing"
 	"time"
+	"unicode"
+	"unicode/utf8"
 
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
+
+// checkEscaped fails when data reached a report raw: invalid UTF-8, a hidden rune other
+// than the line break, the "##[" command form, or a line that starts a workflow command
+// (only the github format writes those, one per finding).
+func checkEscaped(t *testing.T, format, out string) {
+	t.Helper()
+	if !utf8.ValidString(out) || strings.Contains(out, "##[") {
+		t.Fatalf("%s report: invalid UTF-8 or ##[ in %q", format, out)
+	}
+	for _, r := range out {
+		if r != '\n' && escape.Hidden(r) {
+			t.Fatalf("%s report holds the raw rune %U", format, r)
+		}
+	}
+	for _, line := range strings.Split(out, "\n") {
+		if strings.HasPrefix(strings.TrimLeftFunc(line, unicode.IsSpace), "::") &&
+			!(format == "github" && workflowCommand.MatchString(line)) {
+			t.Fatalf("%s report: a line starts a workflow command: %q", format, line)
+		}
+	}
+}
+
+// workflowCommand is the one form the github format writes.
+var workflowCommand = regexp.MustCompile(`^::(error|warning|notice) file=[^:]*::`)
 
 // FuzzRun drives the whole run on arbitrary bytes: load, analysis, every rule, then
 // every check format. It must never panic, every number a finding carries must be
@@ -50,6 +79,7 @@ func FuzzRun(f *testing.F) {
 			if (name == "json" || name == "sarif") && !json.Valid(b.Bytes()) {
 				t.Fatalf("%s report is not valid JSON", name)
 			}
+			checkEscaped(t, name, b.String())
 		}
 	})
 }
