@@ -1,0 +1,103 @@
+package analysis
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/schema"
+)
+
+func load(t *testing.T, src string) *schema.Manifest {
+	t.Helper()
+	m, err := schema.Load("m.yaml", []byte(src), schema.DefaultLimits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// 10,000 rows in 40 even partitions at 1,000 rows per segment: 40 segments of 250 rows,
+// 60 ms per scan at 1.5 ms each, against a 50 ms budget (hand-computed); count 10 at
+// today's segment size gives 10 full segments and 15 ms.
+const evenForty = "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 50}\n" +
+	"tables:\n  - {name: quiet, rows: 10, partitions: {scheme: none}}\n" +
+	"  - {name: t, rows: 10000, growth_per_year: 0.1, partitions: {scheme: even, count: 40}}\n"
+
+func TestAnalyzeOncePerTable(t *testing.T) {
+	md := Analyze(load(t, evenForty), advisor.DefaultLevels)
+	if len(md.Tables) != 2 || md.FirstGrowing != 1 {
+		t.Fatalf("%d tables, first growing %d; want 2 and 1", len(md.Tables), md.FirstGrowing)
+	}
+	tb := md.Tables[1]
+	if tb.Index != 1 || tb.Layout.Segments != 40 || tb.Layout.FixedMs != 60 || len(tb.Parts) != 40 {
+		t.Errorf("layout %+v, %d parts", tb.Layout, len(tb.Parts))
+	}
+	if tb.Model() != md || tb.Advisor() == nil {
+		t.Error("a table does not reach its model")
+	}
+}
+
+// The recommendation is the sweep's pick, worded against today's layout; asking twice
+// computes the sweep once.
+func TestRecommendedIsTheSweepsPick(t *testing.T) {
+	tb := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[1]
+	r, ok := tb.Recommended()
+	if !ok || !r.Fits || r.Hint() != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+		t.Fatalf("recommendation %q (ok %v, fits %v)", r.Hint(), ok, r.Fits)
+	}
+	sw := tb.Sweep()
+	if c, _, _ := sw.Pick(); c != r.Candidate || tb.Sweep() != sw {
+		t.Error("the recommendation is not the one sweep's pick")
+	}
+	if q := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[0]; func() bool { _, ok := q.Recommended(); return ok }() {
+		t.Error("a one-segment table got a recommendation")
+	}
+}
+
+// Settling drops the partitions and the sweep but keeps what reports print: the encoded
+// size and the sweep in brief, equal to what it was before.
+func TestSettleKeepsWhatReportsPrint(t *testing.T) {
+	src := strings.Replace(evenForty, "partitions: {scheme: even, count: 40}}", "partitions: {scheme: even, count: 40}, columns: [{name: c, type: int64, distinct: 100}]}", 1)
+	tb := Analyze(load(t, src), advisor.DefaultLevels).Tables[1]
+	tb.Recommended()
+	before, bytes := tb.Layouts(), tb.EncodedBytes()
+	if before == nil || before.Recommended == nil || before.Recommended.FixedMs != 15 || before.Today.FixedMs != 60 {
+		t.Fatalf("layouts before settling: %+v", before)
+	}
+	tb.Settle()
+	if tb.Parts != nil || tb.Sweep() != nil || tb.Model() != nil {
+		t.Error("Settle kept the partitions, the sweep or the model")
+	}
+	after := tb.Layouts()
+	if after == nil || after.Today != before.Today || *after.Recommended != *before.Recommended || len(after.Front) != len(before.Front) {
+		t.Errorf("layouts after settling %+v, before %+v", after, before)
+	}
+	if tb.EncodedBytes() != bytes || bytes <= 0 {
+		t.Errorf("encoded bytes %v after settling, %v before", tb.EncodedBytes(), bytes)
+	}
+	// Options still work after settling: the partitions are expanded again.
+	if len(tb.Options()) == 0 {
+		t.Error("no options after settling")
+	}
+}
+
+// Options price each candidate change; the even layout's waste-free count is among them.
+func TestOptionsPriceEveryChange(t *testing.T) {
+	tb := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[1]
+	found := false
+	for _, o := range tb.Options() {
+		if o.Change == "use count: 10" && o.Layout.Segments == 10 && !o.Engine {
+			found = true
+			if e := tb.Effect(o); e != "40 -> 10 segments, -45.0 ms per scan" {
+				t.Errorf("effect %q", e)
+			}
+		}
+		if o.Layout.Segments <= 0 {
+			t.Errorf("%s: %d segments", o.Change, o.Layout.Segments)
+		}
+	}
+	if !found {
+		t.Error("count 10 is not among the options")
+	}
+}
