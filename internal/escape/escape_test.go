@@ -127,10 +127,10 @@ func TestXML(t *testing.T) {
 		}
 		// It must parse as character data and as an attribute value (XML 1.0, 2.2 and 3.1).
 		var v struct {
-			A    string `xml:"a,attr"`
+			Attr string `xml:"v,attr"`
 			Text string `xml:",chardata"`
 		}
-		if err := xml.Unmarshal([]byte(`<t a="`+got+`">`+got+`</t>`), &v); err != nil {
+		if err := xml.Unmarshal([]byte(`<t v="`+got+`">`+got+`</t>`), &v); err != nil {
 			t.Errorf("XML(%q) does not parse: %v", c.in, err)
 		}
 	}
