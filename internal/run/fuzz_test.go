@@ -59,7 +59,7 @@ func FuzzRun(f *testing.F) {
 	// Small limits keep one execution quick; the arithmetic is the same at any size.
 	limits := schema.DefaultLimits
 	limits.MaxFileBytes = 64 << 10
-	limits.MaxRunPartitions = 200_000
+	limits.MaxRunPartitions = 20_000
 	f.Fuzz(func(t *testing.T, data []byte) {
 		files, findings := Check([]Input{{name: "fuzz.yaml", data: data}}, cfg, nil, limits, true)
 		for _, fd := range findings {
