@@ -386,7 +386,7 @@ func TestDiffRevisionErrors(t *testing.T) {
 		{t.TempDir(), nil, []string{"--base", "HEAD"}, "is not inside a git repository"},
 		{dir, []string{"PATH=" + t.TempDir()}, []string{"--base", "HEAD"}, "--base needs git, which is not on PATH"},
 		{dir, nil, []string{"m.yaml"}, "diff compares two paths, OLD and NEW (got 1)"},
-		{dir, nil, []string{"--format", "sarif", "--base", "HEAD"}, "unknown format; use one of text, json, markdown"},
+		{dir, nil, []string{"--format", "sarif", "--base", "HEAD"}, "unknown format; use one of text, github, json, markdown"},
 	} {
 		r := scangate(t, c.dir, "", c.env, append([]string{"diff"}, c.args...)...)
 		if r.code != 2 || !strings.Contains(r.stderr, c.want) {

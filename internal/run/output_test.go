@@ -29,7 +29,7 @@ func TestParseFormats(t *testing.T) {
 		output  string
 		want    string
 	}{
-		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, json, markdown`},
+		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, github, json, markdown`},
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
 		{report.CheckReport, []string{"json=a", "sarif=./a"}, "", "already the target of another format"},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
