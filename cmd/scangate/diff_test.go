@@ -525,6 +525,7 @@ func TestDiffREADMEAndSchema(t *testing.T) {
 	runs := map[string]string{
 		"text":     scangate(t, root(t), "", nil, "diff", "--max-added-ms", "200", "testdata/diff/before", "testdata/diff/after").stdout,
 		"markdown": scangate(t, root(t), "", nil, "diff", "--format", "markdown", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
+		"github":   scangate(t, root(t), "", nil, "diff", "--format", "github", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
 	}
 	for lang, out := range runs {
 		_, block, ok := strings.Cut(sec, "```"+lang+"\n")
