@@ -44,15 +44,19 @@ func writeDiffGitHub(w io.Writer, r *DiffResult, _ bool) error {
 	for _, f := range worsened(d) {
 		finding(f.Finding, " (was "+f.Was.String()+")")
 	}
+	label := d.Labeler()
+	heads := map[[2]string]change.TableChange{} // the head's tables, for the breaches
 	for _, t := range r.changedTables() {
 		file, pos := keys.of(t.HeadFile), t.HeadPos
 		if t.HeadFile == "" {
 			file = keys.of(t.BaseFile) // removed: the base's line is not the head's
+		} else {
+			heads[[2]string{t.Model, t.Name}] = t
 		}
-		command(&b, "notice", file, pos, "scangate diff", tableWords(d, t))
+		command(&b, "notice", file, pos, "scangate diff", tableWords(label(t), t))
 	}
 	for _, br := range r.Breaches {
-		file, pos := breachPlace(d, keys, br)
+		file, pos := breachPlace(heads, keys, br)
 		command(&b, "error", file, pos, "scangate gate", escape.Text(br.Message))
 	}
 	_, err := io.WriteString(w, b.String())
@@ -61,28 +65,25 @@ func writeDiffGitHub(w io.Writer, r *DiffResult, _ bool) error {
 
 // tableWords is a changed table in one line: "pumps changed: segments 4 -> 1 (-3),
 // fixed ms per scan 6.0 -> 1.5 (-4.5)", a missing side written –.
-func tableWords(d *change.Diff, t change.TableChange) string {
+func tableWords(label string, t change.TableChange) string {
 	parts := []string{}
 	for _, x := range tableMetrics(t) {
 		if x.name == "segments" || x.name == "fixed ms per scan" {
 			parts = append(parts, x.name+" "+x.before+" -> "+x.after+" ("+x.delta+")")
 		}
 	}
-	return escape.Text(d.Label(t)) + " " + string(t.Status) + ": " + strings.Join(parts, ", ")
+	return escape.Text(label) + " " + string(t.Status) + ": " + strings.Join(parts, ", ")
 }
 
 // breachPlace is where a breach is annotated: a new finding at its own line, a limit
-// at the line of the table that crosses it.
-func breachPlace(d *change.Diff, keys fileKeyMap, br change.Breach) (string, schema.Pos) {
+// at the line of the table that crosses it (a changed table of the head: only those
+// add segments or ms).
+func breachPlace(heads map[[2]string]change.TableChange, keys fileKeyMap, br change.Breach) (string, schema.Pos) {
 	if br.Finding != nil {
 		return keys.of(br.Finding.Finding.File), br.Finding.Finding.Pos
 	}
-	for _, t := range d.Tables() {
-		if t.Model == br.Model && t.Name == br.Table && t.HeadFile != "" {
-			return keys.of(t.HeadFile), t.HeadPos
-		}
-	}
-	return "", schema.Pos{}
+	t := heads[[2]string{br.Model, br.Table}]
+	return keys.of(t.HeadFile), t.HeadPos
 }
 
 // fileKeyMap maps a file's reported name (a path, or REV:path) to its repository path,
