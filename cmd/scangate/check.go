@@ -3,7 +3,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"os"
 
 	"github.com/spf13/cobra"
 
@@ -40,12 +39,7 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return err
 			}
-			// Without --format: text, plus annotations when running in a GitHub Actions job.
-			defaults := []string{"text"}
-			if os.Getenv("GITHUB_ACTIONS") == "true" && output == "" {
-				defaults = append(defaults, "github")
-			}
-			outs, err := run.ParseFormats(report.CheckReport, formats, output, defaults)
+			outs, err := run.ParseFormats(report.CheckReport, formats, output, run.DefaultFormats(output))
 			if err != nil {
 				return usageError(err)
 			}

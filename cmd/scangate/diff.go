@@ -35,7 +35,8 @@ func newDiff() *cobra.Command {
 			"subject; never the line), so moving lines changes nothing.\n\n" +
 			"Exit codes: 1 when the change crosses --max-added-ms, --max-added-segments or\n" +
 			"--fail-on-new; 2 when a file on either side breaks the schema, or on wrong usage;\n" +
-			"0 otherwise. Formats: " + report.NameList(report.DiffReport) + " (NAME or NAME=FILE, as for check).",
+			"0 otherwise. Formats: " + report.NameList(report.DiffReport) + " (NAME or NAME=FILE, as for check).\n" +
+			"Without --format: text, plus github when GITHUB_ACTIONS=true.",
 		Example: "  scangate diff --base origin/main\n" +
 			"  scangate diff --base origin/main --max-added-ms 200 --fail-on-new error models/\n" +
 			"  scangate diff --base HEAD~1 --format markdown=out/diff.md --format text\n" +
@@ -58,7 +59,7 @@ func newDiff() *cobra.Command {
 			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
 				return usageError(err)
 			}
-			outs, err := run.ParseFormats(report.DiffReport, formats, output, []string{"text"})
+			outs, err := run.ParseFormats(report.DiffReport, formats, output, run.DefaultFormats(output))
 			if err != nil {
 				return usageError(err)
 			}

@@ -386,7 +386,7 @@ func TestDiffRevisionErrors(t *testing.T) {
 		{t.TempDir(), nil, []string{"--base", "HEAD"}, "is not inside a git repository"},
 		{dir, []string{"PATH=" + t.TempDir()}, []string{"--base", "HEAD"}, "--base needs git, which is not on PATH"},
 		{dir, nil, []string{"m.yaml"}, "diff compares two paths, OLD and NEW (got 1)"},
-		{dir, nil, []string{"--format", "sarif", "--base", "HEAD"}, "unknown format; use one of text, json, markdown"},
+		{dir, nil, []string{"--format", "sarif", "--base", "HEAD"}, "unknown format; use one of text, github, json, markdown"},
 	} {
 		r := scangate(t, c.dir, "", c.env, append([]string{"diff"}, c.args...)...)
 		if r.code != 2 || !strings.Contains(r.stderr, c.want) {
@@ -525,6 +525,7 @@ func TestDiffREADMEAndSchema(t *testing.T) {
 	runs := map[string]string{
 		"text":     scangate(t, root(t), "", nil, "diff", "--max-added-ms", "200", "testdata/diff/before", "testdata/diff/after").stdout,
 		"markdown": scangate(t, root(t), "", nil, "diff", "--format", "markdown", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
+		"github":   scangate(t, root(t), "", nil, "diff", "--format", "github", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
 	}
 	for lang, out := range runs {
 		_, block, ok := strings.Cut(sec, "```"+lang+"\n")
@@ -544,5 +545,109 @@ func TestDiffREADMEAndSchema(t *testing.T) {
 	}
 	if r := scangate(t, root(t), "", nil, "schema", "diff"); r.code != 0 || r.stdout != string(file) {
 		t.Errorf("scangate schema diff: exit %d, %d bytes, want schema/diff.schema.json", r.code, len(r.stdout))
+	}
+}
+
+// The demo pair as workflow commands; run with -update after a deliberate change.
+func TestDiffGitHubGolden(t *testing.T) {
+	args := []string{"diff", "--format", "github", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after"}
+	r := scangate(t, root(t), "", nil, args...)
+	wantCode(t, r, 1)
+	checkGolden(t, "diff.github", r.stdout)
+	// Worked out from the text report of the same pair: one command per new and
+	// escalated finding, changed table and breach, each at the head's line.
+	lines := strings.Split(strings.TrimSuffix(r.stdout, "\n"), "\n")
+	for i, want := range []string{
+		"::error file=testdata/diff/after/pump-telemetry.yaml,line=14,col=5,title=scangate scan-overhead::pump_readings: a full scan pays 744 ms",
+		"::warning file=testdata/diff/after/pump-telemetry.yaml,line=17,col=5,title=scangate truncated-segments::pump_readings: 233 excess segments",
+		"::notice file=testdata/diff/after/pump-telemetry.yaml,line=14,col=5,title=scangate diff::pump_readings changed: segments 274 -> 496 (+222), fixed ms per scan 411 -> 744 (+333)",
+		"::notice file=testdata/diff/after/pump-telemetry.yaml,line=26,col=5,title=scangate diff::pumps changed: segments 4 -> 1 (-3), fixed ms per scan 6.0 -> 1.5 (-4.5)",
+		"::error file=testdata/diff/after/pump-telemetry.yaml,line=14,col=5,title=scangate gate::pump_readings adds 333 ms per scan, more than the 200 ms allowed (--max-added-ms)",
+		"::error file=testdata/diff/after/pump-telemetry.yaml,line=14,col=5,title=scangate gate::new error scan-overhead on pump_readings at testdata/diff/after/pump-telemetry.yaml:14:5 (--fail-on-new error)",
+	} {
+		if i >= len(lines) || !strings.HasPrefix(lines[i], want) {
+			t.Errorf("line %d: want it to start %q\n%s", i+1, want, r.stdout)
+		}
+	}
+	if len(lines) != 6 || !strings.Contains(lines[1], "(was note)%0Ahint: ") {
+		t.Errorf("%d lines, want 6, the escalated one saying what it was:\n%s", len(lines), r.stdout)
+	}
+}
+
+// In a CI job without --format, diff writes text plus annotations, as check does, and
+// appends its Markdown to the step summary after what earlier steps wrote; outside one
+// nothing changes.
+func TestDiffInCIJob(t *testing.T) {
+	pair := []string{"testdata/diff/before", "testdata/diff/after"}
+	text := scangate(t, root(t), "", nil, append([]string{"diff"}, pair...)...)
+	gh := scangate(t, root(t), "", nil, append([]string{"diff", "--format", "github"}, pair...)...)
+	md := scangate(t, root(t), "", nil, append([]string{"diff", "--format", "markdown"}, pair...)...)
+	if gh.stdout == "" || !strings.HasPrefix(md.stdout, "### scangate diff passed") {
+		t.Fatalf("the demo pair gives no annotations or no Markdown:\n%s\n%s", gh.stdout, md.stdout)
+	}
+	summary := filepath.Join(t.TempDir(), "summary.md")
+	os.WriteFile(summary, []byte("earlier step\n"), 0o644)
+	ci := []string{"GITHUB_ACTIONS=true", "GITHUB_STEP_SUMMARY=" + summary}
+	for range 2 {
+		r := scangate(t, root(t), "", ci, append([]string{"diff"}, pair...)...)
+		wantCode(t, r, 0)
+		if r.stdout != text.stdout+gh.stdout {
+			t.Errorf("in a CI job the default is text plus github:\n%s", r.stdout)
+		}
+	}
+	if got, _ := os.ReadFile(summary); string(got) != "earlier step\n"+md.stdout+md.stdout {
+		t.Errorf("the summary keeps the earlier step and both runs:\n%s", got)
+	}
+	// Outside a CI job: text alone, and a summary file named by the environment is left alone.
+	os.WriteFile(summary, []byte("earlier step\n"), 0o644)
+	r := scangate(t, root(t), "", []string{"GITHUB_STEP_SUMMARY=" + summary}, append([]string{"diff"}, pair...)...)
+	if r.stdout != text.stdout {
+		t.Errorf("without GITHUB_ACTIONS diff prints text alone:\n%s", r.stdout)
+	}
+	if got, _ := os.ReadFile(summary); string(got) != "earlier step\n" {
+		t.Errorf("without GITHUB_ACTIONS the summary is untouched:\n%s", got)
+	}
+	// --output takes one report, so the CI default is text alone there, as for check.
+	out := filepath.Join(t.TempDir(), "diff.txt")
+	if r := scangate(t, root(t), "", ci, append([]string{"diff", "--output", out}, pair...)...); r.code != 0 || r.stdout != "" {
+		t.Errorf("--output in a CI job: exit %d\n%s%s", r.code, r.stdout, r.stderr)
+	}
+	if got, _ := os.ReadFile(out); string(got) != text.stdout {
+		t.Errorf("--output in a CI job writes the text report:\n%s", got)
+	}
+}
+
+// A report named to the step summary file, by --format NAME=FILE or --output and by any
+// spelling of its path, is appended: the runner owns the file and earlier steps' text
+// stays. Check and diff alike; two runs keep both.
+func TestReportsAppendToTheStepSummary(t *testing.T) {
+	dir := t.TempDir()
+	summary := filepath.Join(dir, "summary.md")
+	os.Symlink(summary, filepath.Join(dir, "link.md"))
+	env := []string{"GITHUB_STEP_SUMMARY=" + summary}
+	for _, c := range []struct {
+		cmd    []string
+		target func(path string) []string
+	}{
+		{[]string{"check", "testdata/demo"}, func(p string) []string { return []string{"--format", "markdown=" + p} }},
+		{[]string{"check", "testdata/demo"}, func(p string) []string { return []string{"--format", "markdown", "--output", p} }},
+		{[]string{"diff", "testdata/diff/before", "testdata/diff/after"}, func(p string) []string { return []string{"--format", "markdown=" + p} }},
+		{[]string{"diff", "testdata/diff/before", "testdata/diff/after"}, func(p string) []string { return []string{"--format", "markdown", "--output", p} }},
+	} {
+		md := scangate(t, root(t), "", nil, append(append([]string{c.cmd[0]}, "--format", "markdown"), c.cmd[1:]...)...).stdout
+		os.WriteFile(summary, []byte("earlier step\n"), 0o644)
+		// The summary's own path, then one through a link and an unclean one.
+		for _, p := range []string{summary, filepath.Join(dir, "link.md"), filepath.Join(dir, "sub", "..", "summary.md")} {
+			args := append(append([]string{c.cmd[0]}, c.target(p)...), c.cmd[1:]...)
+			if r := scangate(t, root(t), "", env, args...); r.code == 2 {
+				t.Fatalf("%v: exit 2\n%s", args, r.stderr)
+			}
+		}
+		if got, _ := os.ReadFile(summary); string(got) != "earlier step\n"+md+md+md {
+			t.Errorf("%s %v: the summary should hold the earlier step and three reports:\n%s", c.cmd[0], c.target("S"), got)
+		}
+		if info, err := os.Lstat(filepath.Join(dir, "link.md")); err != nil || info.Mode()&os.ModeSymlink == 0 {
+			t.Errorf("the link to the summary was replaced: %v", err)
+		}
 	}
 }

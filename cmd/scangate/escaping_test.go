@@ -72,6 +72,7 @@ func TestHostileNamesInEveryOutput(t *testing.T) {
 		outs = append(outs, hostileRun(t, dir, f, nil, "diff", "--max-added-ms", "1", "--format", f, "testdata/hostile/before", "testdata/hostile/after")...)
 		outs = append(outs, hostileRun(t, dir, f, nil, "diff", "--format", f, "testdata/hostile/schema.yaml", "testdata/hostile/after/names.yaml")...)
 	}
+	outs = append(outs, hostileRun(t, dir, "text+github", nil, "diff", "--max-added-ms", "1", "testdata/hostile/before", "testdata/hostile/after")...) // the CI default
 	tmp := t.TempDir()
 	svg := filepath.Join(tmp, "plan.svg")
 	outs = append(outs, hostileRun(t, dir, "text", nil, "plan", "--svg", svg, "testdata/hostile/before/names.yaml")...)

@@ -13,6 +13,7 @@ import (
 	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
+	"github.com/scangate/scangate/schema"
 )
 
 // File is one checked manifest on one side of a change.
@@ -108,6 +109,9 @@ type TableChange struct {
 	// file was renamed, or the table moved to another file of its model.
 	Moved         bool
 	Before, After *Figures
+	// BasePos and HeadPos are where the table is written on each side (its mapping's
+	// first key); zero on the side without the table.
+	BasePos, HeadPos schema.Pos
 }
 
 // AddedMs is the fixed overhead per scan the change adds to the table: an added table
@@ -376,10 +380,10 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return m
 	}
 	for i, h := range hs {
-		tc := TableChange{Model: h.file.Model, Name: h.table.Spec.Name, HeadFile: h.file.Name, After: figuresOf(h.table), Status: Added}
+		tc := TableChange{Model: h.file.Model, Name: h.table.Spec.Name, HeadFile: h.file.Name, HeadPos: h.table.Spec.Pos, After: figuresOf(h.table), Status: Added}
 		if pair[i] != 0 {
 			b := bs[pair[i]-1]
-			tc.BaseFile, tc.Before, tc.Moved = b.file.Name, figuresOf(b.table), b.file.Key != h.file.Key
+			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = b.file.Name, b.table.Spec.Pos, figuresOf(b.table), b.file.Key != h.file.Key
 			tc.Status = Changed
 			if tc.Before.equal(tc.After) {
 				tc.Status = Unchanged
@@ -393,7 +397,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			continue
 		}
 		m := model(b.file.Model)
-		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Spec.Name, BaseFile: b.file.Name, Before: figuresOf(b.table), Status: Removed})
+		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Spec.Name, BaseFile: b.file.Name, BasePos: b.table.Spec.Pos, Before: figuresOf(b.table), Status: Removed})
 	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.

@@ -163,6 +163,12 @@ func (d *Diff) labels() map[[2]string]string {
 // Label names a table for people, as Verdict and the breaches do.
 func (d *Diff) Label(t TableChange) string { return d.labels()[[2]string{t.Model, t.Name}] }
 
+// Labeler is Label for many tables: the names are worked out once.
+func (d *Diff) Labeler() func(TableChange) string {
+	labels := d.labels()
+	return func(t TableChange) string { return labels[[2]string{t.Model, t.Name}] }
+}
+
 // Verdict is one line saying what the change does to ms per scan: "adds 1,240 ms per
 // scan to meter_reads", "saves 180 ms per scan on pipes", both joined by "; ", or "no
 // change in segments or ms per scan". Tables are named largest change first, three at

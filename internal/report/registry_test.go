@@ -29,7 +29,7 @@ func TestRegisteredFormats(t *testing.T) {
 		"json":     CheckReport | DiffReport,
 		"markdown": CheckReport | DiffReport,
 		"sarif":    CheckReport,
-		"github":   CheckReport,
+		"github":   CheckReport | DiffReport,
 		"junit":    CheckReport,
 		"svg":      PlanReport,
 	}

@@ -65,6 +65,16 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 	return outs, nil
 }
 
+// DefaultFormats are check's and diff's reports without --format: text, plus annotations
+// when running in a GitHub Actions job (not with --output, which takes exactly one
+// report).
+func DefaultFormats(output string) []string {
+	if os.Getenv("GITHUB_ACTIONS") == "true" && output == "" {
+		return []string{"text", "github"}
+	}
+	return []string{"text"}
+}
+
 // NeedsTables reports whether any of the reports prints per-table figures, so check
 // keeps every analysed table to the end only when one does (the job summary counts
 // when the runner names its file).
@@ -80,8 +90,10 @@ func NeedsTables(outs []Destination) bool {
 
 // Write renders every report first, then writes the files atomically, then stdout; a
 // report that fails to render leaves nothing written. Only stdout is coloured, and
-// only with color. A format with a step summary appends the Markdown rendering of doc
-// to the runner's summary file once its own bytes are out.
+// only with color. A report bound for the runner's step summary file is appended to it
+// instead (the runner owns that file and earlier steps' text must stay). A format with
+// a step summary appends the Markdown rendering of doc there once the reports are out,
+// unless a markdown report already went there.
 func Write(outs []Destination, doc report.Doc, stdout io.Writer, color bool) error {
 	rendered := make([][]byte, len(outs))
 	for i, o := range outs {
@@ -91,11 +103,20 @@ func Write(outs []Destination, doc report.Doc, stdout io.Writer, color bool) err
 		}
 		rendered[i] = b.Bytes()
 	}
+	summary := os.Getenv("GITHUB_STEP_SUMMARY")
+	wantSummary, markdownThere := false, false
 	for i, o := range outs {
-		if o.Path != "" {
-			if err := WriteFileAtomic(o.Path, rendered[i]); err != nil {
-				return err
+		wantSummary = wantSummary || o.Format.Traits().StepSummary
+		if o.Path == "" {
+			continue
+		}
+		if summary != "" && SamePath(o.Path, summary) {
+			markdownThere = markdownThere || o.Format.Traits().Name == "markdown"
+			if err := appendFile(o.Path, rendered[i]); err != nil {
+				return fmt.Errorf("cannot write %s: %v", o.Path, err)
 			}
+		} else if err := WriteFileAtomic(o.Path, rendered[i]); err != nil {
+			return err
 		}
 	}
 	for i, o := range outs {
@@ -104,13 +125,24 @@ func Write(outs []Destination, doc report.Doc, stdout io.Writer, color bool) err
 				return err
 			}
 		}
-		if o.Format.Traits().StepSummary {
-			if err := appendStepSummary(doc); err != nil {
-				return err
-			}
-		}
+	}
+	if wantSummary && !markdownThere {
+		return appendStepSummary(doc)
 	}
 	return nil
+}
+
+// SamePath reports whether a and b name one file: the same clean absolute path, or, when
+// both exist, the same file by device and inode (symbolic and hard links followed).
+func SamePath(a, b string) bool {
+	ca, errA := filepath.Abs(a)
+	cb, errB := filepath.Abs(b)
+	if errA == nil && errB == nil && ca == cb {
+		return true
+	}
+	ia, errA := os.Stat(a)
+	ib, errB := os.Stat(b)
+	return errA == nil && errB == nil && os.SameFile(ia, ib)
 }
 
 // appendStepSummary adds the Markdown rendering of doc to the job page when the runner
@@ -129,15 +161,23 @@ func appendStepSummary(doc report.Doc) error {
 	if err := md.Render(&b, doc, false); err != nil {
 		return err
 	}
+	if err := appendFile(path, b.Bytes()); err != nil {
+		return fmt.Errorf("cannot append to the step summary %s (GITHUB_STEP_SUMMARY): %v", path, err)
+	}
+	return nil
+}
+
+// appendFile adds data at the end of path, creating it when it is missing.
+func appendFile(path string, data []byte) error {
 	f, err := os.OpenFile(path, os.O_APPEND|os.O_CREATE|os.O_WRONLY, 0o644)
 	if err != nil {
-		return fmt.Errorf("GITHUB_STEP_SUMMARY: %v", err)
+		return UnwrapPath(err)
 	}
-	if _, err := f.Write(b.Bytes()); err != nil {
+	if _, err := f.Write(data); err != nil {
 		f.Close()
-		return fmt.Errorf("GITHUB_STEP_SUMMARY: %v", err)
+		return UnwrapPath(err)
 	}
-	return f.Close()
+	return UnwrapPath(f.Close())
 }
 
 // UseColor colours only a terminal, and never with --no-color or NO_COLOR set.

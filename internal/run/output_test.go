@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/internal/report"
 )
 
@@ -29,7 +30,7 @@ func TestParseFormats(t *testing.T) {
 		output  string
 		want    string
 	}{
-		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, json, markdown`},
+		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, github, json, markdown`},
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
 		{report.CheckReport, []string{"json=a", "sarif=./a"}, "", "already the target of another format"},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
@@ -93,5 +94,88 @@ func TestWriteIsAllOrNothing(t *testing.T) {
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 0 || stdout.Len() != 0 {
 		t.Errorf("wrote %d files and %d bytes to stdout after a failed render", len(entries), stdout.Len())
+	}
+}
+
+// SamePath: the same clean absolute path, or the same file through a link.
+func TestSamePath(t *testing.T) {
+	dir := t.TempDir()
+	t.Chdir(dir)
+	p := filepath.Join(dir, "summary.md")
+	os.WriteFile(p, []byte("x"), 0o644)
+	os.Symlink(p, filepath.Join(dir, "link.md"))
+	os.Link(p, filepath.Join(dir, "hard.md"))
+	for _, c := range []struct {
+		a    string
+		same bool
+	}{
+		{p, true}, {"summary.md", true}, {"./sub/../summary.md", true}, {"link.md", true}, {"hard.md", true},
+		{"other.md", false}, {filepath.Join(dir, "missing", "..", "other.md"), false},
+	} {
+		if got := SamePath(c.a, p); got != c.same {
+			t.Errorf("SamePath(%q, %q) = %v, want %v", c.a, p, got, c.same)
+		}
+	}
+	// A summary file the runner has not created yet is still matched by its path.
+	if !SamePath("./later.md", filepath.Join(dir, "later.md")) {
+		t.Error("a missing file is not matched by its clean path")
+	}
+}
+
+// A report bound for the step summary file is appended, never renamed over it, so
+// earlier steps' text stays; two runs keep both. Other files are still replaced.
+func TestWriteAppendsToTheStepSummary(t *testing.T) {
+	dir := t.TempDir()
+	summary := filepath.Join(dir, "summary.md")
+	os.WriteFile(summary, []byte("earlier step\n"), 0o644)
+	before, _ := os.Stat(summary)
+	t.Setenv("GITHUB_STEP_SUMMARY", summary)
+	os.Symlink(summary, filepath.Join(dir, "link.md"))
+	md, _ := report.Lookup("markdown", report.CheckReport)
+	text, _ := report.Lookup("text", report.CheckReport)
+	doc := &report.Result{Summary: report.Summary{Files: 1}}
+	var one bytes.Buffer
+	md.Render(&one, doc, false)
+	other := filepath.Join(dir, "r.txt")
+	for _, path := range []string{summary, filepath.Join(dir, "link.md")} {
+		outs := []Destination{{Format: md, Path: path}, {Format: text, Path: other}}
+		if err := Write(outs, doc, &bytes.Buffer{}, false); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if got, _ := os.ReadFile(summary); string(got) != "earlier step\n"+one.String()+one.String() {
+		t.Errorf("summary:\n%s", got)
+	}
+	if after, _ := os.Stat(summary); !os.SameFile(before, after) {
+		t.Error("the summary file was replaced, not appended to")
+	}
+	if info, _ := os.Lstat(filepath.Join(dir, "link.md")); info.Mode()&os.ModeSymlink == 0 {
+		t.Error("the link to the summary was replaced")
+	}
+	var txt bytes.Buffer
+	text.Render(&txt, doc, false)
+	if got, _ := os.ReadFile(other); string(got) != txt.String() {
+		t.Errorf("another report file is written whole once, got:\n%s", got)
+	}
+}
+
+// github's step summary trait appends the Markdown once, even when a markdown report
+// is also bound for the summary file.
+func TestWriteStepSummaryOnce(t *testing.T) {
+	summary := filepath.Join(t.TempDir(), "summary.md")
+	t.Setenv("GITHUB_STEP_SUMMARY", summary)
+	md, _ := report.Lookup("markdown", report.DiffReport)
+	gh, _ := report.Lookup("github", report.DiffReport)
+	doc := report.NewDiffResult("test", &change.Diff{Base: "a", Head: "b"}, change.Gate{})
+	var one bytes.Buffer
+	md.Render(&one, doc, false)
+	for _, outs := range [][]Destination{{{Format: gh}}, {{Format: gh}, {Format: md, Path: summary}}} {
+		os.Remove(summary)
+		if err := Write(outs, doc, &bytes.Buffer{}, false); err != nil {
+			t.Fatal(err)
+		}
+		if got, _ := os.ReadFile(summary); string(got) != one.String() {
+			t.Errorf("%d reports: summary:\n%s\nwant the Markdown once:\n%s", len(outs), got, one.String())
+		}
 	}
 }
