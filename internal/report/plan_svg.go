@@ -283,6 +283,9 @@ func barLabels(b *bytes.Buffer, bars []fillBar, w float64) bool {
 			start, room, in = chartTop+chartH-4, inRoom, true
 		}
 		x := cx + px*0.35
+		// A long name is cut, never the fill after it.
+		pct := " " + units.Pct(f.fill)
+		text = fit(escape.Text(f.name()), px, room-textWidth(pct, px)) + pct
 		fmt.Fprintf(b, `<text x="%s" y="%s" font-size="9" transform="rotate(-90 %s %s)" fill="%s">%s</text>`+"\n",
 			f1(x), f1(start), f1(x), f1(start), labelColour(f.fill, in), fitEsc(text, px, room))
 	}

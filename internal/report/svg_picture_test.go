@@ -156,6 +156,11 @@ tables:
 	if !strings.Contains(out, "…") {
 		t.Errorf("no name was cut:\n%s", out)
 	}
+	// A cut partition name keeps its fill: the first item fills its one segment.
+	_, texts := textBoxes(t, bands(root)[0])
+	if !slices.ContainsFunc(texts, func(s string) bool { return strings.HasPrefix(s, "very_long") && strings.HasSuffix(s, "… 100%") }) {
+		t.Errorf("no cut name with its fill in %q", texts)
+	}
 }
 
 // Bars stand in the order the manifest gives: list items as written, even parts from
