@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/scangate/scangate/internal/analysis"
@@ -19,15 +20,18 @@ const (
 	maxBars   = 6
 )
 
-// bar is one layout in a chart.
+// bar is one layout in a chart: key is its short name on the x axis, label the
+// layout in full for the table under the chart.
 type bar struct {
+	key     string
 	label   string
 	fixedMs float64
 }
 
 // charts draws, for the first tables with a segment finding that is not waived, a bar
 // chart of fixed ms per scan by layout. It is a Mermaid xychart, which pull-request and
-// job-summary pages render.
+// job-summary pages render; a plain table under each carries the same figures for the
+// renderers that show the chart's source instead.
 func charts(b *strings.Builder, r *Result) {
 	flagged := map[[2]string]bool{} // (file, table) with a segment finding
 	for _, f := range r.Findings {
@@ -49,16 +53,55 @@ func charts(b *strings.Builder, r *Result) {
 				b.WriteString("#### Fixed ms per scan by layout\n\n")
 			}
 			drawn++
-			labels := make([]string, len(bars))
-			values := make([]string, len(bars))
-			for i, bar := range bars {
-				labels[i] = chartString(bar.label)
-				values[i] = fmt.Sprintf("%.0f", math.Round(bar.fixedMs))
-			}
-			fmt.Fprintf(b, "```mermaid\nxychart-beta\n    title %s\n    x-axis [%s]\n    y-axis \"fixed ms per scan\"\n    bar [%s]\n```\n\n",
-				chartString(t.Spec.Name+" (today first)"), strings.Join(labels, ", "), strings.Join(values, ", "))
+			chart(b, t.Spec.Name, bars, t.Budgets.ScanOverheadMs)
 		}
 	}
+}
+
+// chart writes one xychart with its y axis from 0, each bar's value in its x label and
+// the budget as a line across the bars, then the table of the same figures.
+func chart(b *strings.Builder, table string, bars []bar, budget *float64) {
+	labels := make([]string, len(bars))
+	values := make([]string, len(bars))
+	top := 0.0
+	for i, x := range bars {
+		labels[i] = chartString(x.key + " " + units.Ms(x.fixedMs) + " ms")
+		values[i] = chartNumber(x.fixedMs)
+		top = max(top, x.fixedMs)
+	}
+	title := table + ": fixed ms per scan"
+	var line []string
+	if budget != nil {
+		top = max(top, *budget)
+		title += ", budget " + units.Ms(*budget) + " ms (line)"
+		for range bars {
+			line = append(line, chartNumber(*budget))
+		}
+	}
+	fmt.Fprintf(b, "```mermaid\nxychart-beta\n    title %s\n    x-axis [%s]\n    y-axis \"fixed ms per scan\" 0 --> %s\n    bar [%s]\n",
+		chartString(title), strings.Join(labels, ", "), chartNumber(niceCeil(top*1.05)), strings.Join(values, ", "))
+	if line != nil {
+		fmt.Fprintf(b, "    line [%s]\n", strings.Join(line, ", "))
+	}
+	b.WriteString("```\n\n")
+	share := budget != nil && *budget > 0
+	b.WriteString("| bar | layout | fixed ms per scan |")
+	if share {
+		b.WriteString(" of the budget |")
+	}
+	b.WriteString("\n|---|---|--:|")
+	if share {
+		b.WriteString("--:|")
+	}
+	b.WriteString("\n")
+	for _, x := range bars {
+		fmt.Fprintf(b, "| %s | %s | %s |", mdEscape(x.key), mdEscape(x.label), units.Ms(x.fixedMs))
+		if share {
+			fmt.Fprintf(b, " %s |", units.Pct(x.fixedMs / *budget))
+		}
+		b.WriteString("\n")
+	}
+	b.WriteString("\n")
 }
 
 // chartString quotes s for the chart: one visible line (escape.Text) with no double
@@ -67,19 +110,42 @@ func chartString(s string) string {
 	return `"` + strings.ReplaceAll(escape.Text(s), `"`, "'") + `"`
 }
 
+// chartNumber is a chart value to a tenth, so a 1.5 ms bar is not drawn as 2.
+func chartNumber(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return "0"
+	}
+	return strconv.FormatFloat(math.Round(x*10)/10, 'f', -1, 64)
+}
+
+// niceCeil is the smallest of 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8 times a power of ten
+// that is at least x: a round top for the y axis (common practice).
+func niceCeil(x float64) float64 {
+	if !(x > 0) || math.IsInf(x, 0) {
+		return 1
+	}
+	p := math.Pow(10, math.Floor(math.Log10(x)))
+	for _, m := range []float64{1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6, 8, 10} {
+		if m*p >= x*(1-1e-12) {
+			return m * p
+		}
+	}
+	return 10 * p
+}
+
 // chartBars is today's layout, the recommended one, then the members of the Pareto front
-// that scan faster than today, by fewest ms; nil without a sweep.
+// that scan faster than today, by fewest ms; nil without a sweep. Their keys are
+// "today", "rec." and letters by place, short enough that x labels do not overlap.
 func chartBars(l *analysis.Layouts) []bar {
 	if l == nil {
 		return nil
 	}
-	label := func(prefix string, f analysis.LayoutFigure) bar {
-		s := prefix + f.Label + " @" + units.Count(f.SegmentRows)
-		return bar{label: s, fixedMs: f.FixedMs}
+	label := func(key string, f analysis.LayoutFigure) bar {
+		return bar{key: key, label: f.Label + " @" + units.Count(f.SegmentRows), fixedMs: f.FixedMs}
 	}
-	bars := []bar{label("today: ", l.Today)}
+	bars := []bar{label("today", l.Today)}
 	if l.Recommended != nil {
-		bars = append(bars, label("recommended: ", *l.Recommended))
+		bars = append(bars, label("rec.", *l.Recommended))
 	}
 	var faster []analysis.LayoutFigure
 	for _, f := range l.Front {
@@ -92,7 +158,7 @@ func chartBars(l *analysis.Layouts) []bar {
 		if len(bars) == maxBars {
 			break
 		}
-		bars = append(bars, label("", f))
+		bars = append(bars, label(string(rune('A'+len(bars))), f))
 	}
 	if len(bars) < 2 {
 		return nil
