@@ -139,40 +139,34 @@ func junitCaseOf(r *Result, name, classname string, fs []rules.Finding) junitCas
 	if len(fs) == 0 {
 		return c
 	}
-	var failing []rules.Finding
-	schemaProblem := false
+	var problems, failing []rules.Finding
 	for _, x := range fs {
-		if r.Fails(x) {
+		switch {
+		case x.Rule == rules.Schema.ID:
+			problems = append(problems, x)
+		case r.Fails(x):
 			failing = append(failing, x)
-			schemaProblem = schemaProblem || x.Rule == rules.Schema.ID
 		}
 	}
 	text := junitText(r, fs)
 	switch {
-	case schemaProblem:
-		c.Error = junitOutcomeOf(mostSevere(failing, true), "", text)
+	case len(problems) > 0:
+		c.Error = junitOutcomeOf(mostSevere(problems), "", text)
 	case len(failing) > 0:
-		c.Failure = junitOutcomeOf(mostSevere(failing, false), "", text)
+		c.Failure = junitOutcomeOf(mostSevere(failing), "", text)
 	default:
-		top := mostSevere(fs, false)
+		top := mostSevere(fs)
 		c.Skipped = junitOutcomeOf(top, escape.Text(top.Rule)+" "+acceptedBecause(r, top), text)
 	}
 	return c
 }
 
-// mostSevere is the first finding of the highest severity (the first schema problem when
-// schemaFirst), so the message names what matters most and ties keep report order.
-func mostSevere(fs []rules.Finding, schemaFirst bool) rules.Finding {
+// mostSevere is the first finding of the highest severity: the message names what
+// matters most, and ties keep report order.
+func mostSevere(fs []rules.Finding) rules.Finding {
 	top := fs[0]
-	rank := func(x rules.Finding) int {
-		n := int(x.Severity)
-		if schemaFirst && x.Rule == rules.Schema.ID {
-			n += 1 << 16
-		}
-		return n
-	}
 	for _, x := range fs[1:] {
-		if rank(x) > rank(top) {
+		if x.Severity > top.Severity {
 			top = x
 		}
 	}
