@@ -6,7 +6,6 @@ import (
 	"encoding/hex"
 	"fmt"
 	"io"
-	"net/url"
 	"path/filepath"
 	"regexp"
 	"slices"
@@ -120,7 +119,7 @@ func ruleDescriptor(rule rules.Rule) *sarif.ReportingDescriptor {
 		WithShortDescription(sarif.NewMultiformatMessageString().WithText(rule.Title)).
 		WithFullDescription(sarif.NewMultiformatMessageString().WithText(rule.Why)).
 		WithHelp(sarif.NewMultiformatMessageString().
-			WithText(rule.Why+"\n\nHow it is computed: "+rule.How+"\n\nFix: "+rule.Fix).
+			WithText(rule.Why + "\n\nHow it is computed: " + rule.How + "\n\nFix: " + rule.Fix).
 			WithMarkdown(helpMarkdown(rule))).
 		WithHelpURI(RulesDocURI + "#" + rule.ID).
 		WithDefaultConfiguration(sarif.NewReportingConfiguration().WithLevel(level(rule.Default)))
@@ -176,7 +175,7 @@ func artifactLocation(r *Result, file string) *sarif.ArtifactLocation {
 		return loc.WithDescription(sarif.NewMessage().WithText("standard input"))
 	}
 	if rel := r.URI(file); insideRoot(rel) {
-		return loc.WithURI((&url.URL{Path: rel}).String()).WithURIBaseID(srcRoot)
+		return loc.WithURI(escapePath(rel, true)).WithURIBaseID(srcRoot)
 	}
 	return loc.WithURI(fileURI(file))
 }
@@ -188,7 +187,7 @@ func insideRoot(uri string) bool {
 		uri != ".." && !strings.HasPrefix(uri, "../")
 }
 
-// fileURI is the absolute file URI of a path (RFC 8089), percent-encoded.
+// fileURI is the absolute file URI of a path (RFC 8089).
 func fileURI(name string) string {
 	abs, err := filepath.Abs(name)
 	if err != nil {
@@ -198,7 +197,31 @@ func fileURI(name string) string {
 	if !strings.HasPrefix(p, "/") {
 		p = "/" + p // a drive letter: file:///C:/...
 	}
-	return (&url.URL{Scheme: "file", Path: p}).String()
+	return "file://" + escapePath(p, false)
+}
+
+// escapePath percent-encodes every byte a URI path cannot hold as is (RFC 3986, 3.3:
+// unreserved, sub-delims, ":", "@" and "/" stay). In a relative reference ":" is encoded
+// too, so a first segment never reads as a scheme (RFC 3986, 4.2).
+func escapePath(p string, relative bool) string {
+	const hexDigits = "0123456789ABCDEF"
+	var b strings.Builder
+	for i := 0; i < len(p); i++ {
+		c := p[i]
+		if pathByte(c) && !(relative && c == ':') {
+			b.WriteByte(c)
+			continue
+		}
+		b.WriteByte('%')
+		b.WriteByte(hexDigits[c>>4])
+		b.WriteByte(hexDigits[c&15])
+	}
+	return b.String()
+}
+
+func pathByte(c byte) bool {
+	return 'a' <= c && c <= 'z' || 'A' <= c && c <= 'Z' || '0' <= c && c <= '9' ||
+		strings.IndexByte("-._~!$&'()*+,;=:@/", c) >= 0
 }
 
 // helpMarkdown is the rule's page as `scangate explain` and docs/rules.md give it.

@@ -189,3 +189,24 @@ func TestSARIFVersions(t *testing.T) {
 		t.Error("semver grammar")
 	}
 }
+
+// Percent-encoding of URI paths (RFC 3986, 2.1 and 3.3): what a path may hold stays, the
+// rest is %XX of its UTF-8 bytes; a relative reference encodes ":" (RFC 3986, 4.2).
+func TestEscapePath(t *testing.T) {
+	for _, c := range []struct {
+		in       string
+		relative bool
+		want     string
+	}{
+		{"models/m.yaml", true, "models/m.yaml"},
+		{"a b/c#d?e%f.yaml", true, "a%20b/c%23d%3Fe%25f.yaml"},
+		{"c:d/x.yaml", true, "c%3Ad/x.yaml"},
+		{"/C:/x y.yaml", false, "/C:/x%20y.yaml"},
+		{"é\n\"<>\\.yaml", true, "%C3%A9%0A%22%3C%3E%5C.yaml"},
+		{"keep-._~!$&'()*+,;=@", true, "keep-._~!$&'()*+,;=@"},
+	} {
+		if got := escapePath(c.in, c.relative); got != c.want {
+			t.Errorf("escapePath(%q, %v) = %q, want %q", c.in, c.relative, got, c.want)
+		}
+	}
+}

@@ -15,6 +15,9 @@ import (
 // specification's rules and exits 1 on any error or warning, 2 when it cannot run.
 func sarifValidator(t *testing.T) string {
 	t.Helper()
+	if os.Getenv("SCANGATE_RULE_COPY") != "" {
+		t.Skip("the repository copy TestAddingARule runs the suite in has no ../shared beside it")
+	}
 	bin := filepath.Join("..", "..", "..", "shared", "validators", "sarif-validate")
 	missing := func(why string) {
 		if os.Getenv("CI") == "true" {
