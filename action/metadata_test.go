@@ -540,15 +540,17 @@ func lineOf(data []byte, n int) string {
 	return "    " + lines[n-1]
 }
 
-// TestShellcheck runs shellcheck on run.sh when the machine has it.
+// TestShellcheck runs shellcheck on the action's and the release's scripts when the machine has it.
 func TestShellcheck(t *testing.T) {
 	shellcheck, err := exec.LookPath("shellcheck")
 	if err != nil {
 		t.Skip("shellcheck is not on PATH")
 	}
-	cmd := exec.Command(shellcheck, "--shell=bash", "--severity=style", "run.sh")
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Errorf("shellcheck action/run.sh: %v\n%s", err, out)
+	for _, script := range []string{"run.sh", "install.sh", "pre-commit.sh", "../.ci/release-check"} {
+		cmd := exec.Command(shellcheck, "--shell=bash", "--severity=style", script)
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Errorf("shellcheck %s: %v\n%s", script, err, out)
+		}
 	}
 }
 
