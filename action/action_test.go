@@ -5,6 +5,7 @@
 package action_test
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"os"
@@ -89,26 +90,49 @@ func TestInstalledVersion(t *testing.T) {
 		t.Fatalf("scangate version: %v\n%s", err, out)
 	}
 	line := strings.TrimSuffix(string(out), "\n")
-	// The module version is (devel) or, from a git checkout, a version derived from its
-	// tags and commit; the revision is there only when git stamped the build.
-	want := `^scangate (\(devel\)|v[0-9][^ ]*)( \(revision [0-9a-f]{12}(\+dirty)?\))? go1\.[0-9]+`
-	if !regexp.MustCompile(want).MatchString(line) {
+	// A module version derived from the checkout's tags and commit, or the revision
+	// alone; never "(devel)".
+	want := `^scangate (v[0-9][^ ]*( \(revision [0-9a-f]{12}(\+dirty)?\))?|[0-9a-f]{12}(\+dirty)?|unknown version \(no tag, module version or revision stamped\)) go1\.[0-9]+`
+	if !regexp.MustCompile(want).MatchString(line) || strings.Contains(line, "(devel)") {
 		t.Fatalf("scangate version printed %q, want it to match %s", line, want)
 	}
-	if gitCheckout(t) && !strings.Contains(line, "(revision ") {
-		t.Errorf("scangate version printed %q: built in a git checkout, it must name the revision", line)
+	// When the toolchain stamped a revision (it does not in every checkout layout), the
+	// line must name it.
+	meta, err := exec.Command("go", "version", "-m", filepath.Join(gobin, "scangate"+exe(runtime.GOOS))).Output()
+	if err != nil {
+		t.Fatalf("go version -m: %v", err)
+	}
+	if m := regexp.MustCompile(`vcs\.revision=([0-9a-f]{12})`).FindSubmatch(meta); m != nil && !strings.Contains(line, string(m[1])) {
+		t.Errorf("scangate version printed %q: the build carries revision %s, the line must name it", line, m[1])
 	}
 }
 
-// gitCheckout reports whether the repository is a git checkout git can read, so the
-// build carries a revision.
-func gitCheckout(t *testing.T) bool {
-	if _, err := os.Stat(filepath.Join(root, ".git")); err != nil {
-		return false
+// TestReleaseTagStamp builds scangate as the release does, with the tag stamped by
+// -ldflags -X: `version` prints the tag and the reports carry it as the tool version.
+func TestReleaseTagStamp(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds a binary; skipped with -short")
 	}
-	cmd := exec.Command("git", "rev-parse", "HEAD")
+	bin := filepath.Join(t.TempDir(), "scangate"+exe(runtime.GOOS))
+	build := exec.Command("go", "build", "-ldflags", "-X github.com/scangate/scangate/internal/run.releaseTag=v9.8.7", "-o", bin, "./cmd/scangate")
+	build.Dir = root
+	if out, err := build.CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	out, err := exec.Command(bin, "version").Output()
+	if err != nil || !strings.HasPrefix(string(out), "scangate v9.8.7 ") {
+		t.Fatalf("scangate version printed %q (%v), want it to start with the stamped tag", out, err)
+	}
+	cmd := exec.Command(bin, "check", "--fail-on=never", "--format=json", "testdata/demo")
 	cmd.Dir = root
-	return cmd.Run() == nil
+	report, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("check: %v", err)
+	}
+	var doc struct{ Tool struct{ Version string } }
+	if err := json.Unmarshal(report, &doc); err != nil || doc.Tool.Version != "v9.8.7" {
+		t.Errorf("the JSON report carries tool version %q (%v), want v9.8.7", doc.Tool.Version, err)
+	}
 }
 
 // TestCrossBuild builds scangate without cgo for the release targets. Each target
@@ -156,7 +180,7 @@ func TestPreCommitHook(t *testing.T) {
 		t.Fatalf(".pre-commit-hooks.yaml defines %d hooks, want 1", len(hooks))
 	}
 	h := hooks[0]
-	for key, want := range map[string]any{"id": "scangate", "entry": "scangate check --manifests-only", "language": "golang", "pass_filenames": true} {
+	for key, want := range map[string]any{"id": "scangate", "entry": "action/pre-commit.sh check --manifests-only", "language": "script", "pass_filenames": true} {
 		if h[key] != want {
 			t.Errorf("hook %s = %v, want %v", key, h[key], want)
 		}
@@ -192,11 +216,11 @@ func TestPreCommitHook(t *testing.T) {
 			staged = append(staged, p)
 		}
 	}
+	// The entry runs from a copy of the hook repository, as the framework's checkout
+	// for one rev: it must build cmd/scangate alone, then run it on the staged files.
 	entry := strings.Fields(h["entry"].(string))
-	if entry[0] != "scangate" {
-		t.Fatalf("entry %q does not run scangate", h["entry"])
-	}
-	cmd := exec.Command(scangate(t), append(entry[1:], staged...)...)
+	hookRepo := hookCheckout(t)
+	cmd := exec.Command(filepath.Join(hookRepo, entry[0]), append(entry[1:], staged...)...)
 	cmd.Dir = root
 	out, err := cmd.Output()
 	if code := exitCode(t, err); code != 1 {
@@ -205,6 +229,43 @@ func TestPreCommitHook(t *testing.T) {
 	if want := fmt.Sprintf("%d files, ", len(entries)); !strings.Contains(string(out), want) {
 		t.Errorf("the hook's command did not check every demo manifest (want %q in its summary):\n%s", want, out)
 	}
+	built, err := os.ReadDir(filepath.Join(hookRepo, ".pre-commit-bin"))
+	if err != nil || len(built) != 1 || built[0].Name() != "scangate" {
+		t.Errorf("the hook built %v (%v), want scangate alone", built, err)
+	}
+}
+
+// hookCheckout copies the files the hook's build reads (go.mod, go.sum, the hook
+// script and every Go package but the bench tools, which it must not need) into a
+// directory of its own.
+func hookCheckout(t *testing.T) string {
+	t.Helper()
+	dst := t.TempDir()
+	err := filepath.WalkDir(root, func(p string, d os.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(root, p)
+		if d.IsDir() {
+			if rel == "bench" || rel == "dist" || rel == "testdata" || strings.HasPrefix(d.Name(), ".") && rel != "." {
+				return filepath.SkipDir
+			}
+			return os.MkdirAll(filepath.Join(dst, rel), 0o755)
+		}
+		if !strings.HasSuffix(p, ".go") && !strings.HasSuffix(p, ".json") && !slices.Contains([]string{"go.mod", "go.sum", "action/pre-commit.sh"}, filepath.ToSlash(rel)) {
+			return nil
+		}
+		data, err := os.ReadFile(p)
+		if err != nil {
+			return err
+		}
+		info, _ := d.Info()
+		return os.WriteFile(filepath.Join(dst, rel), data, info.Mode().Perm())
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return dst
 }
 
 // exitCode is the exit code behind err from exec (0 for nil).

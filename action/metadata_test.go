@@ -138,9 +138,9 @@ func envName(input string) string {
 }
 
 // actionProblems checks an action.yml against the metadata rules that can be checked
-// offline. script is the text of run.sh, which a run step may call: its INPUT_*
-// variables and the outputs it writes count as that step's.
-func actionProblems(data []byte, script string) []string {
+// offline. scripts maps a script's name (run.sh, install.sh) to its text: a run step
+// that calls one gets its INPUT_* variables and the outputs it writes.
+func actionProblems(data []byte, scripts map[string]string) []string {
 	var problems []string
 	bad := func(n *yaml.Node, format string, args ...any) {
 		line := 0
@@ -233,7 +233,10 @@ func actionProblems(data []byte, script string) []string {
 		text := ""
 		if run != nil {
 			text = run.Value
-			if strings.Contains(text, "run.sh") {
+			for name, script := range scripts {
+				if !strings.Contains(text, name) {
+					continue
+				}
 				text += "\n" + script
 				if id := get(s, "id"); id != nil {
 					for _, m := range regexp.MustCompile(`"([a-z][a-z0-9-]*)=`).FindAllStringSubmatch(script, -1) {
@@ -331,8 +334,7 @@ func actionProblems(data []byte, script string) []string {
 // variables wired to their inputs, outputs read from step outputs that exist.
 func TestActionMetadata(t *testing.T) {
 	data := []byte(readFile(t, filepath.Join(root, "action", "action.yml")))
-	script := readFile(t, filepath.Join(root, "action", "run.sh"))
-	for _, p := range actionProblems(data, script) {
+	for _, p := range actionProblems(data, actionScripts(t)) {
 		t.Error(p)
 	}
 
@@ -344,8 +346,9 @@ func TestActionMetadata(t *testing.T) {
 	if err := yaml.Unmarshal(data, &md); err != nil {
 		t.Fatal(err)
 	}
-	wantInputs := map[string]string{"version": "latest", "paths": ".", "config": "", "fail-on": "error", "baseline": "",
-		"diff-base": "", "max-added-ms": "", "max-added-segments": "", "sarif-file": "scangate.sarif", "upload-sarif": "true", "summary": "true"}
+	wantInputs := map[string]string{"version": "", "paths": ".", "config": "", "fail-on": "error", "baseline": "",
+		"diff-base": "", "max-added-ms": "", "max-added-segments": "", "sarif-file": "scangate.sarif", "upload-sarif": "true",
+		"sarif-category": "", "summary": "true"}
 	if got := sortedKeys(md.Inputs); !slices.Equal(got, sortedKeys(wantInputs)) {
 		t.Errorf("inputs %v, want %v", got, sortedKeys(wantInputs))
 	}
@@ -357,8 +360,17 @@ func TestActionMetadata(t *testing.T) {
 	if got, want := sortedKeys(md.Outputs), []string{"errors", "exit-code", "findings", "sarif-file", "warnings"}; !slices.Equal(got, want) {
 		t.Errorf("outputs %v, want %v", got, want)
 	}
-	if !strings.Contains(string(data), "go install \"github.com/scangate/scangate/cmd/scangate@${INPUT_VERSION}\"") {
-		t.Error("action.yml does not install scangate at the version input")
+	if !strings.Contains(string(data), `bash "$GITHUB_ACTION_PATH/install.sh" install`) {
+		t.Error("action.yml does not install scangate with install.sh")
+	}
+}
+
+// actionScripts are the scripts action.yml's run steps call, by name.
+func actionScripts(t *testing.T) map[string]string {
+	t.Helper()
+	return map[string]string{
+		"run.sh":     readFile(t, filepath.Join(root, "action", "run.sh")),
+		"install.sh": readFile(t, filepath.Join(root, "action", "install.sh")),
 	}
 }
 
@@ -366,7 +378,7 @@ func TestActionMetadata(t *testing.T) {
 // must be caught, or the check above proves nothing.
 func TestActionMetadataCatches(t *testing.T) {
 	data := readFile(t, filepath.Join(root, "action", "action.yml"))
-	script := readFile(t, filepath.Join(root, "action", "run.sh"))
+	scripts := actionScripts(t)
 	for _, c := range []struct{ name, old, new, want string }{
 		{"no shell", "      shell: bash\n      env:\n        INPUT_VERSION", "      env:\n        INPUT_VERSION", "must declare shell"},
 		{"input pasted into a script", `run: bash "$GITHUB_ACTION_PATH/run.sh"`, `run: bash "$GITHUB_ACTION_PATH/run.sh" ${{ inputs.paths }}`, "inside a run script"},
@@ -376,7 +388,8 @@ func TestActionMetadataCatches(t *testing.T) {
 		{"env not read", "INPUT_SUMMARY: ${{ inputs.summary }}", "INPUT_SUMMARY: ${{ inputs.summary }}\n        INPUT_SPARE: ${{ inputs.summary }}", "sets INPUT_SPARE, which it never reads"},
 		{"output not written", "steps.run.outputs.errors", "steps.run.outputs.mistakes", "never writes output mistakes"},
 		{"output from a missing step", "steps.run.outputs.warnings", "steps.runner.outputs.warnings", "no step has id runner"},
-		{"step read before it runs", "if: always() && inputs.upload-sarif == 'true' && steps.run.outputs.sarif-file != ''", "if: steps.missing.outputs.x", "no step has id missing"},
+		{"step read before it runs", "if: always() && steps.run.outputs.upload-sarif == 'true' && steps.run.outputs.sarif-file != ''", "if: steps.missing.outputs.x", "no step has id missing"},
+		{"install output not written", "steps.plan.outputs.cache-key", "steps.plan.outputs.cache-kee", "never writes output cache-kee"},
 		{"not composite", "using: composite", "using: node20", "runs.using must be composite"},
 		{"no description", "\ndescription: ", "\nsummary-line: ", "required key description"},
 	} {
@@ -384,14 +397,15 @@ func TestActionMetadataCatches(t *testing.T) {
 			if !strings.Contains(data, c.old) {
 				t.Fatalf("action.yml no longer holds %q; update the case", c.old)
 			}
-			got := actionProblems([]byte(strings.Replace(data, c.old, c.new, 1)), script)
+			got := actionProblems([]byte(strings.Replace(data, c.old, c.new, 1)), scripts)
 			if !slices.ContainsFunc(got, func(p string) bool { return strings.Contains(p, c.want) }) {
 				t.Errorf("want a problem containing %q, got %q", c.want, got)
 			}
 		})
 	}
 	// run.sh reads a variable action.yml does not set.
-	got := actionProblems([]byte(data), script+"\necho \"$INPUT_NEW_THING\"\n")
+	scripts["run.sh"] += "\necho \"$INPUT_NEW_THING\"\n"
+	got := actionProblems([]byte(data), scripts)
 	if !slices.ContainsFunc(got, func(p string) bool { return strings.Contains(p, "reads INPUT_NEW_THING") }) {
 		t.Errorf("a variable run.sh reads but action.yml does not set went unnoticed: %q", got)
 	}
@@ -526,15 +540,17 @@ func lineOf(data []byte, n int) string {
 	return "    " + lines[n-1]
 }
 
-// TestShellcheck runs shellcheck on run.sh when the machine has it.
+// TestShellcheck runs shellcheck on the action's and the release's scripts when the machine has it.
 func TestShellcheck(t *testing.T) {
 	shellcheck, err := exec.LookPath("shellcheck")
 	if err != nil {
 		t.Skip("shellcheck is not on PATH")
 	}
-	cmd := exec.Command(shellcheck, "--shell=bash", "--severity=style", "run.sh")
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Errorf("shellcheck action/run.sh: %v\n%s", err, out)
+	for _, script := range []string{"run.sh", "install.sh", "pre-commit.sh", "../.ci/release-check"} {
+		cmd := exec.Command(shellcheck, "--shell=bash", "--severity=style", script)
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Errorf("shellcheck %s: %v\n%s", script, err, out)
+		}
 	}
 }
 
@@ -586,7 +602,8 @@ func TestREADMESection(t *testing.T) {
 	if err := yaml.Unmarshal([]byte(blocks[0][1]), &steps); err != nil || len(steps) != 1 {
 		t.Fatalf("the action snippet is not one step: %v", err)
 	}
-	if steps[0].Uses != "scangate/scangate/action@v1" {
+	// Until the first release tag, main (a source build); then a full release tag.
+	if !regexp.MustCompile(`^scangate/scangate/action@(main|v[0-9]+\.[0-9]+\.[0-9]+)$`).MatchString(steps[0].Uses) {
 		t.Errorf("the snippet uses %q", steps[0].Uses)
 	}
 	for k := range steps[0].With {

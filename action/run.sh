@@ -16,6 +16,10 @@
 #   INPUT_MAX_ADDED_SEGMENTS  with diff-base: segments a change may add to one table
 #   INPUT_SARIF_FILE      where the SARIF report goes (default scangate.sarif)
 #   INPUT_SUMMARY         true | false: add the Markdown reports to the job summary (default true)
+#   INPUT_UPLOAD_SARIF    true | false: written back as the upload-sarif output (default true)
+#   INPUT_SARIF_CATEGORY  code-scanning category (default scangate/$GITHUB_JOB/<sarif file>)
+#
+# Booleans read true/yes/1 and false/no/0 in any case, as a YAML boolean may be written.
 #
 # Exit code: the larger of check's and diff's (0 clean, 1 findings, 2 invalid input or usage).
 set -euo pipefail
@@ -30,6 +34,7 @@ max_added_ms=${INPUT_MAX_ADDED_MS:-}
 max_added_segments=${INPUT_MAX_ADDED_SEGMENTS:-}
 sarif=${INPUT_SARIF_FILE:-scangate.sarif}
 summary=${INPUT_SUMMARY:-true}
+upload_sarif=${INPUT_UPLOAD_SARIF:-true}
 output_file=${GITHUB_OUTPUT:-/dev/null}
 
 fail() { # usage problems of the action itself exit 2, like scangate's own
@@ -40,14 +45,25 @@ fail() { # usage problems of the action itself exit 2, like scangate's own
 
 # Written for bash 3.2 too (the system bash of some runners): no ${x,,}, and empty
 # arrays are expanded as ${a[@]+"${a[@]}"} under set -u.
-case "$summary" in
-true | True | TRUE) summary=true ;;
-false | False | FALSE) summary=false ;;
-*) fail "input summary must be true or false, got '$summary'" ;;
-esac
+# boolean NAME VALUE prints true or false, or fails naming the input.
+boolean() {
+  case "$(printf '%s' "$2" | tr '[:upper:]' '[:lower:]')" in
+  true | yes | 1) echo true ;;
+  false | no | 0) echo false ;;
+  *) fail "input $1 must be true or false (or yes/no, 1/0), got '$2'" ;;
+  esac
+}
+summary=$(boolean summary "$summary")
+upload_sarif=$(boolean upload-sarif "$upload_sarif")
 case "$sarif" in
 "") fail "input sarif-file must name a file" ;;
 *$'\n'* | *$'\r'*) fail "input sarif-file must not hold a line break" ;; # it becomes an output line
+esac
+# One category per job and SARIF file, so two runs in one workflow do not replace each
+# other's results.
+category=${INPUT_SARIF_CATEGORY:-scangate/${GITHUB_JOB:-job}/$sarif}
+case "$category" in
+*$'\n'* | *$'\r'*) fail "input sarif-category must not hold a line break" ;;
 esac
 command -v "$bin" >/dev/null 2>&1 || fail "cannot run '$bin'; install scangate or set SCANGATE_BIN"
 case "$bin" in
@@ -136,7 +152,7 @@ if [ -s "$report" ]; then
   outputs+=("findings=$((errors + warnings + notes))" "errors=$errors" "warnings=$warnings")
 fi
 if [ -f "$sarif" ]; then
-  outputs+=("sarif-file=$sarif")
+  outputs+=("sarif-file=$sarif" "sarif-category=$category" "upload-sarif=$upload_sarif")
 fi
 outputs+=("exit-code=$code")
 printf '%s\n' "${outputs[@]}" >>"$output_file"

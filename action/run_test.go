@@ -197,12 +197,13 @@ func TestRunDemo(t *testing.T) {
 		t.Fatal("the demo has no errors; this test needs one")
 	}
 
-	// Every output action.yml maps is written, and nothing else.
+	// Every output action.yml maps is written, and besides them only the two the
+	// upload step reads.
 	var md struct {
 		Outputs map[string]struct{ Value string }
 	}
 	readYAML(t, filepath.Join(root, "action", "action.yml"), &md)
-	var mapped []string
+	mapped := []string{"sarif-category", "upload-sarif"}
 	for _, o := range md.Outputs {
 		mapped = append(mapped, strings.TrimSuffix(strings.TrimPrefix(o.Value, "${{ steps.run.outputs."), " }}"))
 	}
@@ -353,6 +354,7 @@ func TestRunBadInputs(t *testing.T) {
 		want   string
 	}{
 		{"summary", map[string]string{"summary": "maybe"}, "", "summary must be true or false"},
+		{"sarif-category", map[string]string{"sarif-category": "a\nb"}, "", "sarif-category must not hold a line break"},
 		{"sarif-file", map[string]string{"sarif-file": "a\nb=c"}, "", "sarif-file must not hold a line break"},
 		{"binary", nil, "SCANGATE_BIN=" + filepath.Join(ws, "no-such-scangate"), "cannot run"},
 		{"fail-on", map[string]string{"fail-on": "sometimes"}, "", "--fail-on"},
@@ -569,4 +571,46 @@ func must[T any](v T, err error) T {
 		panic(err)
 	}
 	return v
+}
+
+// TestRunUploadSarifAndCategory: upload-sarif reads a YAML boolean written any way and
+// comes back as the upload-sarif output the upload step tests; the category names the
+// job and the SARIF file, so two runs in one workflow upload under different ones.
+func TestRunUploadSarifAndCategory(t *testing.T) {
+	ws := workspace(t, map[string]string{"testdata/demo": "models"})
+	for in, want := range map[string]string{"true": "true", "True": "true", "TRUE": "true", "yes": "true", "1": "true", "": "true",
+		"false": "false", "False": "false", "no": "false", "0": "false"} {
+		res := newRunner(t, ws).run(map[string]string{"paths": "models", "fail-on": "never", "upload-sarif": in})
+		if res.code != 0 || res.outputs["upload-sarif"] != want {
+			t.Errorf("upload-sarif %q: exit %d, output %q; want 0 and %q\n%s", in, res.code, res.outputs["upload-sarif"], want, res.stderr)
+		}
+	}
+	res := newRunner(t, ws).run(map[string]string{"paths": "models", "upload-sarif": "maybe"})
+	if res.code != 2 || !strings.Contains(res.stderr, "upload-sarif must be true or false") {
+		t.Errorf("upload-sarif maybe: exit %d, stderr %q; want 2 and a message naming the input", res.code, res.stderr)
+	}
+
+	categories := map[string]bool{}
+	for _, c := range []struct {
+		job    string
+		inputs map[string]string
+	}{
+		{"lint", map[string]string{"sarif-file": "a.sarif"}},
+		{"lint", map[string]string{"sarif-file": "b.sarif"}},
+		{"models", map[string]string{"sarif-file": "a.sarif"}},
+		{"models", map[string]string{"sarif-file": "a.sarif", "sarif-category": "nightly"}},
+	} {
+		r := newRunner(t, ws)
+		r.env = append(r.env, "GITHUB_JOB="+c.job)
+		c.inputs["paths"], c.inputs["fail-on"] = "models", "never"
+		res := r.run(c.inputs)
+		got := res.outputs["sarif-category"]
+		if res.code != 0 || got == "" || categories[got] {
+			t.Errorf("job %s, inputs %v: exit %d, category %q; want a category no other run has", c.job, c.inputs, res.code, got)
+		}
+		categories[got] = true
+	}
+	if !categories["scangate/lint/a.sarif"] || !categories["nightly"] {
+		t.Errorf("categories %v; want scangate/<job>/<sarif-file> by default and the input verbatim", sortedKeys(categories))
+	}
 }
