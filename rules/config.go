@@ -66,7 +66,7 @@ func ConfigFrom(p *schema.ProjectConfig, today time.Time) (Config, error) {
 		set := p.Rules[id]
 		r, ok := Lookup(id)
 		if !ok || r.ID == Schema.ID {
-			problems = append(problems, schema.Problem{Pos: set.Pos, Path: "/rules/" + id, Message: fmt.Sprintf("unknown rule %q; `scangate rules` lists them", id)})
+			problems = append(problems, schema.Problem{Pos: set.Pos, Path: "/rules/" + id, Message: Unknown(id)})
 			continue
 		}
 		rc := RuleConfig{Params: map[string]float64{}}

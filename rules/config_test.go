@@ -81,3 +81,27 @@ func mustLookup(t *testing.T, id string) Rule {
 	}
 	return r
 }
+
+// A mistyped rule ID is answered with the nearest registered one; a word far from every
+// ID gets no guess. Distances by hand: "scan-overheads" is one insertion from
+// "scan-overhead"; "trunc-segments" is four edits from "truncated-segments".
+func TestUnknownSuggests(t *testing.T) {
+	for _, c := range []struct{ id, want string }{
+		{"scan-overheads", `unknown rule "scan-overheads"; did you mean scan-overhead? ` + "`scangate rules` lists them"},
+		{"trunc-segments", `unknown rule "trunc-segments"; did you mean truncated-segments? ` + "`scangate rules` lists them"},
+		{"bogus", `unknown rule "bogus"; ` + "`scangate rules` lists them"},
+	} {
+		if got := Unknown(c.id); got != c.want {
+			t.Errorf("Unknown(%q) = %q, want %q", c.id, got, c.want)
+		}
+	}
+	// Levenshtein distances of the textbook examples (kitten/sitting 3, flaw/lawn 2; from memory).
+	for _, c := range []struct {
+		a, b string
+		d    int
+	}{{"kitten", "sitting", 3}, {"flaw", "lawn", 2}, {"", "abc", 3}, {"same", "same", 0}} {
+		if got := editDistance(c.a, c.b); got != c.d {
+			t.Errorf("editDistance(%q, %q) = %d, want %d", c.a, c.b, got, c.d)
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"text/tabwriter"
@@ -44,7 +45,7 @@ func newExplain() *cobra.Command {
 		RunE: func(cmd *cobra.Command, args []string) error {
 			r, ok := rules.Lookup(args[0])
 			if !ok {
-				return usageError(fmt.Errorf("unknown rule %q; `scangate rules` lists them", args[0]))
+				return usageError(errors.New(rules.Unknown(args[0])))
 			}
 			_, err := io.WriteString(cmd.OutOrStdout(), report.RuleText(r))
 			return err
