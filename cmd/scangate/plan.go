@@ -15,7 +15,7 @@ import (
 const maxHorizon = advisor.MaxHorizonMonths
 
 func newPlan() *cobra.Command {
-	var table, segRows, today, svg string
+	var table, segRows, today, svg, configFile string
 	var fixed bool
 	var horizon int
 	cmd := &cobra.Command{
@@ -40,10 +40,11 @@ func newPlan() *cobra.Command {
 			if horizon < 1 || horizon > maxHorizon {
 				return usageError(fmt.Errorf("--horizon %d: give a number of months from 1 to %d", horizon, maxHorizon))
 			}
-			cfg, err := run.PlainConfig(today)
+			proj, cfg, err := projectConfig(cmd, configFile, args, today)
 			if err != nil {
-				return usageError(err)
+				return err
 			}
+			set.Levels = cfg.Levels() // the project's warning levels, as check ranks layouts
 			outs := []string{"text"}
 			if svg != "" {
 				outs = append(outs, "svg="+svg)
@@ -52,10 +53,10 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			if err := run.GuardTargets([]string{svg}, []string{"--svg " + svg}, args); err != nil {
+			if err := run.GuardTargets([]string{svg}, []string{"--svg " + svg}, append(args, proj.Files()...)); err != nil {
 				return usageError(err)
 			}
-			m, err := run.LoadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr(), limits)
+			m, err := run.LoadOne(args[0], cmd.InOrStdin(), cmd.ErrOrStderr(), limits, proj.Config)
 			if err != nil {
 				return usageError(err)
 			}
@@ -77,6 +78,7 @@ func newPlan() *cobra.Command {
 	f.BoolVar(&fixed, "fixed-segment-rows", false, "the deployment cannot change engine.segment_rows: recommend partition changes only")
 	f.StringVar(&today, "today", "", "the date the forecast counts from, YYYY-MM-DD (default: today, UTC)")
 	f.IntVar(&horizon, "horizon", 24, "months to forecast")
+	f.StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+" from the manifest up to the repository root)")
 	f.StringVar(&svg, "svg", "", "also draw segment fill and the sweep's front per table to this SVG file")
 	return cmd
 }

@@ -378,3 +378,25 @@ tables:
 		}
 	}
 }
+
+// plan reads the project config as check does: in a directory made by `scangate init`,
+// where the manifest's engine comes from a profile, check and plan both run, plan
+// quotes the config's budget, and --config names the file explicitly.
+func TestPlanReadsTheProjectConfig(t *testing.T) {
+	dir := repo(t, nil)
+	wantCode(t, scangate(t, dir, "", nil, "init"), 0)
+	wantCode(t, scangate(t, dir, "", nil, "check", "model.yaml"), 0)
+	r := scangate(t, dir, "", nil, "plan", "model.yaml")
+	wantCode(t, r, 0)
+	// The starter manifest's own budget is 500 ms; its engine comes only from the config.
+	if !strings.Contains(r.stdout, "budget 500 ms") || !strings.Contains(r.stdout, "segments of 8Mi rows") {
+		t.Errorf("plan does not show the config's engine and the budget:\n%s", r.stdout)
+	}
+	elsewhere := t.TempDir()
+	r = scangate(t, elsewhere, "", nil, "plan", "--config", filepath.Join(dir, ".scangate.yaml"), filepath.Join(dir, "model.yaml"))
+	wantCode(t, r, 0)
+	r = scangate(t, elsewhere, "", nil, "plan", "--config", filepath.Join(dir, "missing.yaml"), filepath.Join(dir, "model.yaml"))
+	if r.code != 2 || !strings.Contains(r.stderr, "missing.yaml") {
+		t.Errorf("a missing --config: exit %d, %q", r.code, r.stderr)
+	}
+}

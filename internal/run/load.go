@@ -12,10 +12,11 @@ import (
 	"github.com/scangate/scangate/schema"
 )
 
-// LoadOne reads and validates one manifest, a path or - for standard input. Schema
+// LoadOne reads and validates one manifest, a path or - for standard input, with the
+// project config's engine profiles and budgets (proj may be nil). Schema
 // problems are printed to stderr in check's style, each at its line and column, and
 // end in an error that says what to do.
-func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limits) (*schema.Manifest, error) {
+func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limits, proj *schema.ProjectConfig) (*schema.Manifest, error) {
 	var in Input
 	if path == "-" {
 		data, err := ReadLimited(stdin, limits.MaxFileBytes)
@@ -33,7 +34,7 @@ func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limit
 	if in.err != nil {
 		return nil, fmt.Errorf("cannot read %s: %v", in.name, in.err)
 	}
-	m, err := schema.Load(in.name, in.data, limits)
+	m, err := schema.LoadWith(in.name, in.data, schema.Options{Limits: limits, Project: proj})
 	if err == nil {
 		return m, nil
 	}
