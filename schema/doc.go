@@ -12,3 +12,36 @@
 //
 // It is the first layer: it imports no other scangate package.
 package schema
+
+import (
+	"fmt"
+	"strings"
+)
+
+// embedded are the JSON Schemas scangate ships, by the name `scangate schema` takes.
+var embedded = []struct {
+	name string
+	get  func() []byte
+}{
+	{"manifest", ManifestSchema}, {"config", ConfigSchema}, {"output", OutputSchema},
+	{"diff", DiffSchema}, {"baseline", BaselineSchema},
+}
+
+// Names lists the embedded schemas, manifest first.
+func Names() []string {
+	out := make([]string, len(embedded))
+	for i, e := range embedded {
+		out[i] = e.name
+	}
+	return out
+}
+
+// Named is the embedded schema called name.
+func Named(name string) ([]byte, error) {
+	for _, e := range embedded {
+		if e.name == name {
+			return e.get(), nil
+		}
+	}
+	return nil, fmt.Errorf("unknown schema %q; use %s", name, strings.Join(Names(), ", "))
+}

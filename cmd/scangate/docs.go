@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
@@ -54,28 +55,17 @@ func newExplain() *cobra.Command {
 }
 
 func newSchemaCmd() *cobra.Command {
-	schemas := map[string]func() []byte{
-		"manifest": schema.ManifestSchema,
-		"config":   schema.ConfigSchema,
-		"output":   schema.OutputSchema,
-		"diff":     schema.DiffSchema,
-		"baseline": schema.BaselineSchema,
-	}
 	return &cobra.Command{
-		Use:       "schema [manifest|config|output|diff|baseline]",
+		Use:       "schema [" + strings.Join(schema.Names(), "|") + "]",
 		Short:     "Print an embedded JSON Schema (default: manifest)",
 		Args:      cobra.MaximumNArgs(1),
-		ValidArgs: []string{"manifest", "config", "output", "diff", "baseline"},
+		ValidArgs: schema.Names(),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			name := "manifest"
-			if len(args) == 1 {
-				name = args[0]
+			data, err := schema.Named(append(args, "manifest")[0])
+			if err != nil {
+				return usageError(err)
 			}
-			get, ok := schemas[name]
-			if !ok {
-				return usageError(fmt.Errorf("unknown schema %q; use manifest, config, output, diff or baseline", name))
-			}
-			_, err := cmd.OutOrStdout().Write(get())
+			_, err = cmd.OutOrStdout().Write(data)
 			return err
 		},
 	}

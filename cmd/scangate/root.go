@@ -46,6 +46,12 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.AddCommand(newPlan())
 	root.AddCommand(newDiff())
 	root.AddCommand(newCalibrate())
+	// Cobra's completion command prints its help, exit 0, for a shell it does not know;
+	// runnable, it refuses the argument (exit 2) like any unknown command.
+	root.InitDefaultCompletionCmd()
+	if c, _, err := root.Find([]string{"completion"}); err == nil && c.Name() == "completion" {
+		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
+	}
 	return root
 }
 
