@@ -48,7 +48,7 @@ func TestReportsNeverReplaceInputs(t *testing.T) {
 		{[]string{"check", "--output", "link.yml", "."}, "--output link.yml: link.yml is one of the inputs (billing.yaml)"},
 		{[]string{"check", "--format", "markdown=.scangate.yaml", "."}, "is one of the inputs"},
 		{[]string{"check", "--baseline", "base.json", "--format", "sarif=base.json", "."}, "base.json is one of the inputs"},
-		{[]string{"check", "--format", "json=r.json", "--format", "sarif=./r.json", "."}, "already the target of another format"},
+		{[]string{"check", "--format", "json=r.json", "--format", "sarif=./r.json", "."}, "--format sarif=./r.json: ./r.json is already the target of --format json=r.json"},
 		{[]string{"diff", "--format", "markdown=other.yaml", "billing.yaml", "other.yaml"}, "other.yaml is one of the inputs"},
 		{[]string{"baseline", "write", ".", "-o", "billing.yaml"}, "--output billing.yaml: billing.yaml is one of the inputs"},
 		{[]string{"plan", "billing.yaml", "--svg", "link.yml"}, "--svg link.yml: link.yml is one of the inputs"},

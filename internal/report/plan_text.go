@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"slices"
 	"strings"
-	"time"
 
 	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/units"
@@ -18,28 +17,22 @@ import (
 // which must stay exact, may run longer.
 const planWidth = 80
 
-// PlanOptions are what the plan text needs beyond the plans: the date the forecast counts
-// from and its length in months.
-type PlanOptions struct {
-	Today   time.Time
-	Horizon int
-}
-
 // planText writes the plan of every table for an 80-column terminal, separated by blank
 // lines. Names from the manifest reach it in headings, paragraphs (para), grid cells
 // (grid) and the snippet; each of those escapes what it writes (escape.Text).
-func planText(m *schema.Manifest, plans []advisor.TablePlan, opt PlanOptions) string {
+func planText(doc *Plan) string {
 	var b strings.Builder
-	for n, p := range plans {
+	for n, p := range doc.Plans {
 		if n > 0 {
 			b.WriteString("\n")
 		}
-		renderPlan(&b, m, p, opt)
+		renderPlan(&b, doc, p)
 	}
 	return b.String()
 }
 
-func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt PlanOptions) {
+func renderPlan(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
+	m := doc.Manifest
 	e := m.Engine
 	t := p.Spec
 	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", escape.Text(t.Name), escape.Text(m.File), t.Pos.Line, t.Pos.Col)
@@ -92,7 +85,7 @@ func renderPlan(b *strings.Builder, m *schema.Manifest, p advisor.TablePlan, opt
 
 	renderSweep(b, sw, e.SegmentRows)
 	renderRecommendation(b, p, now)
-	renderForecast(b, p, opt)
+	renderForecast(b, doc, p)
 }
 
 // msText writes a scan figure or budget with its unit. Each limit is written in its own
@@ -268,18 +261,18 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	}
 }
 
-func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
+func renderForecast(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
 	fc := p.Now
 	if fc == nil {
 		return
 	}
-	end := advisor.Month(advisor.AddMonths(opt.Today, opt.Horizon))
+	end := advisor.Month(advisor.AddMonths(doc.Today, doc.Horizon))
 	b.WriteString("\n")
 	if p.Spec.GrowthPerYear == 0 {
 		para(b, "", fmt.Sprintf("Forecast: no growth_per_year, so the table's own figures stay as today through %s.", end))
 	} else {
 		para(b, "", fmt.Sprintf("Forecast from %s for %d months at %s growth a year, today's layout:",
-			opt.Today.Format("2006-01-02"), opt.Horizon, units.Pct(p.Spec.GrowthPerYear)))
+			doc.Today.Format("2006-01-02"), doc.Horizon, units.Pct(p.Spec.GrowthPerYear)))
 	}
 	if len(fc.Crossings) > 0 {
 		var rows [][]string
@@ -299,8 +292,8 @@ func renderForecast(b *strings.Builder, p advisor.TablePlan, opt PlanOptions) {
 		return
 	}
 	// Every quarter, the last month and each month a budget is first crossed.
-	months := []int{opt.Horizon}
-	for t := 0; t < opt.Horizon; t += 3 {
+	months := []int{doc.Horizon}
+	for t := 0; t < doc.Horizon; t += 3 {
 		months = append(months, t)
 	}
 	for _, c := range fc.Crossings {

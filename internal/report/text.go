@@ -18,7 +18,7 @@ func init() {
 		check:  writeText,
 		diff:   writeDiffText,
 		plan: func(w io.Writer, p *Plan, _ bool) error {
-			_, err := io.WriteString(w, escape.Log(planText(p.Manifest, p.Plans, PlanOptions{Today: p.Today, Horizon: p.Horizon})))
+			_, err := io.WriteString(w, escape.Log(planText(p)))
 			return err
 		},
 	})

@@ -38,8 +38,8 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 	if output != "" && toStdout != 1 {
 		return nil, fmt.Errorf("--output %s: name exactly one --format without =FILE to write there (got %d)", output, toStdout)
 	}
+	// Two reports bound for one file are refused with the inputs, by GuardOutputs.
 	var outs []Destination
-	seenPath := map[string]bool{}
 	for _, f := range formats {
 		name, path, _ := strings.Cut(f, "=")
 		format, ok := report.Lookup(name, k)
@@ -52,13 +52,6 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 		flag := "--format " + f
 		if path == "" {
 			path, flag = output, "--output "+output
-		}
-		if path != "" {
-			clean := filepath.Clean(path)
-			if seenPath[clean] {
-				return nil, fmt.Errorf("--format %q: %s is already the target of another format", f, path)
-			}
-			seenPath[clean] = true
 		}
 		outs = append(outs, Destination{Format: format, Path: path, Flag: flag})
 	}

@@ -32,7 +32,6 @@ func TestParseFormats(t *testing.T) {
 	}{
 		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, github, json, markdown`},
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
-		{report.CheckReport, []string{"json=a", "sarif=./a"}, "", "already the target of another format"},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
 		{report.PlanReport, []string{"json"}, "", "use one of text, svg"},
 	} {
@@ -177,5 +176,33 @@ func TestWriteStepSummaryOnce(t *testing.T) {
 		if got, _ := os.ReadFile(summary); string(got) != one.String() {
 			t.Errorf("%d reports: summary:\n%s\nwant the Markdown once:\n%s", len(outs), got, one.String())
 		}
+	}
+}
+
+// Two reports bound for one file, by the same clean path or through a link, are refused
+// before anything is written, naming both flags.
+func TestGuardTargetsOneFileOneReport(t *testing.T) {
+	dir := t.TempDir()
+	a := filepath.Join(dir, "a.json")
+	outs, err := ParseFormats(report.CheckReport, []string{"json=" + a, "sarif=" + dir + "/./a.json"}, "", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := GuardOutputs(outs, nil); err == nil || !strings.Contains(err.Error(), "is already the target of --format json="+a) {
+		t.Errorf("same clean path: %v", err)
+	}
+	if err := os.WriteFile(a, nil, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	link := filepath.Join(dir, "link.json")
+	if err := os.Symlink(a, link); err != nil {
+		t.Fatal(err)
+	}
+	err = GuardTargets([]string{a, link}, []string{"--format json=" + a, "--format sarif=" + link}, nil)
+	if err == nil || !strings.Contains(err.Error(), "is the same file as the target of --format json=") {
+		t.Errorf("through a link: %v", err)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
+		t.Errorf("the guard wrote something: %d entries", len(entries))
 	}
 }
