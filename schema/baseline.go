@@ -3,7 +3,6 @@ package schema
 import (
 	"bytes"
 	_ "embed"
-	"strings"
 )
 
 //go:embed baseline.schema.json
@@ -43,19 +42,7 @@ func LoadBaseline(file string, data []byte, lim Limits) (*Document, error) {
 		ps = append(ps, more...)
 	}
 	if len(ps) > 0 {
-		for i := range ps {
-			ps[i].Message = baselineWords.Replace(ps[i].Message)
-		}
 		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
 	return &Document{Value: t.root, t: t}, nil
 }
-
-// baselineWords turns the reader's advice, worded for manifests, into advice for a
-// baseline file.
-var baselineWords = strings.NewReplacer(
-	"a manifest is YAML or JSON in UTF-8", "a baseline is JSON in UTF-8",
-	"or put each manifest in a file of its own", "a baseline is one object",
-	"; a manifest needs far fewer", "; a baseline needs three",
-	"; split it into several files", "; raise --max-file-size",
-)

@@ -48,7 +48,7 @@ func parseJSON(data []byte, lim Limits, start string) (*yaml.Node, *Problem) {
 		out = r.value()
 		r.space()
 		if r.i < len(r.src) {
-			r.fail(r.pos(), "invalid JSON: the file holds more than one value; remove what follows the first, or put each manifest in a file of its own")
+			r.fail(r.pos(), "invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document")
 		}
 	})
 	if err != nil {
@@ -124,7 +124,7 @@ func (r *jsonReader) value() *yaml.Node {
 		r.fail(at, fmt.Sprintf("the document holds or expands to more than %s nodes (aliases included); split it or expand fewer aliases", group(int64(r.lim.MaxNodes))))
 	}
 	if r.depth > r.lim.MaxDepth || r.depth > jsonMaxDepth {
-		r.fail(at, fmt.Sprintf("nesting deeper than %d levels; a manifest needs far fewer", min(r.lim.MaxDepth, jsonMaxDepth)))
+		r.fail(at, fmt.Sprintf("nesting deeper than %d levels; no scangate file needs more than a few", min(r.lim.MaxDepth, jsonMaxDepth)))
 	}
 	switch c := r.peek(); {
 	case c == 0:

@@ -77,7 +77,7 @@ func parseAs(asJSON bool, data []byte, lim Limits, start string) (*tree, []Probl
 		return nil, []Problem{p}
 	}
 	if lim.MaxFileBytes > 0 && len(data) > lim.MaxFileBytes {
-		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; split it into several files", len(data), lim.MaxFileBytes)})
+		return fail(Problem{Pos: Pos{1, 1}, Message: fmt.Sprintf("file is %d bytes, above the limit of %d; raise --max-file-size if it is meant to be this large", len(data), lim.MaxFileBytes)})
 	}
 	if p := encodingProblem(data); p != nil {
 		return fail(*p)
@@ -296,7 +296,7 @@ func encodingProblem(data []byte) *Problem {
 			before := lineFeeds(body[:i])
 			line := 1 + bytes.Count(before, []byte{'\n'})
 			col := 1 + utf8.RuneCount(before[bytes.LastIndexByte(before, '\n')+1:])
-			return &Problem{Pos: Pos{line, col}, Message: "file is not UTF-8 text (binary data or another encoding); a manifest is YAML or JSON in UTF-8"}
+			return &Problem{Pos: Pos{line, col}, Message: "file is not UTF-8 text (binary data or another encoding); save it as UTF-8"}
 		}
 		i += size
 	}

@@ -230,7 +230,7 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 		return nil, p
 	}
 	if depth > t.lim.MaxDepth {
-		return nil, problemAt(n, "", fmt.Sprintf("nesting deeper than %d levels; a manifest needs far fewer", t.lim.MaxDepth))
+		return nil, problemAt(n, "", fmt.Sprintf("nesting deeper than %d levels; no scangate file needs more than a few", t.lim.MaxDepth))
 	}
 	if n.Kind == yaml.AliasNode {
 		// The alias's target is recorded at this pointer, but errors point at the alias.

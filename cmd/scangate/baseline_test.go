@@ -166,7 +166,7 @@ func TestBaselineSizeAndWrite(t *testing.T) {
 		t.Fatalf("baseline of %d bytes is too small for the test", info.Size())
 	}
 	r = scangate(t, dir, "", nil, "check", "--max-file-size", "200B", "--baseline", ".scangate-baseline.json", "small")
-	if r.code != 2 || !strings.Contains(r.stderr, ".scangate-baseline.json:1:1: error: file is") || !strings.Contains(r.stderr, "above the limit of 200; raise --max-file-size [baseline]") {
+	if r.code != 2 || !strings.Contains(r.stderr, ".scangate-baseline.json:1:1: error: file is") || !strings.Contains(r.stderr, "above the limit of 200; raise --max-file-size if it is meant to be this large [baseline]") {
 		t.Errorf("a baseline above --max-file-size: exit %d\n%s", r.code, r.stderr)
 	}
 

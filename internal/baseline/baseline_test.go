@@ -331,9 +331,9 @@ var badBaselines = map[string]string{
 	"bad-schema-version-string.json":  `2:21: /schema_version: must be 1, not "1"`,
 	"bad-syntax.json":                 "3:15: invalid JSON: unexpected \"}\"; a value is an object, a list, a \"string\", a number, true, false or null",
 	"bad-top-array.json":              "1:1: must be an object, not an array",
-	"bad-trailing-text.json":          "4:3: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object",
+	"bad-trailing-text.json":          "4:3: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document",
 	"bad-truncated.json":              "6:1: invalid JSON: expected a key in double quotes; write \"key\": value",
-	"bad-two-objects.json":            "5:1: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object",
+	"bad-two-objects.json":            "5:1: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document",
 	"bad-unknown-entry-field.json":    `10:7: /entries/0/line: unknown key "line"; allowed here: file, fingerprint, message, rule, table`,
 	"bad-unknown-field.json":          `4:3: /extra: unknown key "extra"; allowed here: entries, schema_version`,
 	"bad-unknown-rule.json":           `6:15: /entries/0/rule: unknown rule "scan-tme"; use one of ` + strings.Join(recordable(), ", "),
@@ -384,12 +384,12 @@ func TestParseRefusals(t *testing.T) {
 		{"syntax on a later line", "{\n  \"schema_version\": 1,\n  x\n}", "3:3: invalid JSON: expected a key in double quotes; write \"key\": value"},
 		{"only white space", " \n\t", `1:1: file is empty; a baseline starts with {"schema_version": 1`},
 		{"cut off after a comma", `{"schema_version":1,`, "1:21: invalid JSON: expected a key in double quotes; write \"key\": value"},
-		{"trailing comma after the object", `{"schema_version":1,"entries":[]},`, "1:34: invalid JSON: the file holds more than one value; remove what follows the first, a baseline is one object"},
+		{"trailing comma after the object", `{"schema_version":1,"entries":[]},`, "1:34: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document"},
 		{"conflict marker between entries", "{\"schema_version\":1,\"entries\":[\n=======\n]}", "2:1: merge conflict marker =======; resolve the conflict, then run again"},
 		{"infinite number", `{"schema_version":1e999,"entries":[]}`, "1:19: /schema_version: \"1e999\" is not a finite number; write a plain number"},
 		{"UTF-16", "\xff\xfe{\x00}\x00", "1:1: file is UTF-16; save it as UTF-8"},
-		{"NUL byte", "{\"schema_version\":1,\n\x00}", "2:1: file is not UTF-8 text (binary data or another encoding); a baseline is JSON in UTF-8"},
-		{"deep nesting", strings.Repeat("[", 100), "1:66: nesting deeper than 64 levels; a baseline needs three"},
+		{"NUL byte", "{\"schema_version\":1,\n\x00}", "2:1: file is not UTF-8 text (binary data or another encoding); save it as UTF-8"},
+		{"deep nesting", strings.Repeat("[", 100), "1:66: nesting deeper than 64 levels; no scangate file needs more than a few"},
 	} {
 		_, err := Parse("b.json", []byte(c.in), schema.DefaultLimits)
 		if err == nil {
