@@ -7,6 +7,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"github.com/scangate/scangate/internal/units"
 )
 
 // The columns of the design, in the order they are tested for identifiability: the two
@@ -232,15 +234,4 @@ func columnsOf(x *mat.Dense, cols []int) *mat.Dense {
 }
 
 // group writes a count with thousands separators: 240,000,000.
-func group(v float64) string {
-	s := trim(math.Round(v))
-	neg := strings.HasPrefix(s, "-")
-	s = strings.TrimPrefix(s, "-")
-	for i := len(s) - 3; i > 0; i -= 3 {
-		s = s[:i] + "," + s[i:]
-	}
-	if neg {
-		return "-" + s
-	}
-	return s
-}
+func group(v float64) string { return units.Num(units.Int64(math.Round(v))) }
