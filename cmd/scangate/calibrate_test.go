@@ -193,26 +193,36 @@ func TestCalibrateJSON(t *testing.T) {
 // calibrationJSON checks a calibration document against its schema and decodes it.
 func calibrationJSON(t *testing.T, out string, v any) {
 	t.Helper()
-	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(schema.CalibrationSchema()))
-	if err != nil {
-		t.Fatal(err)
-	}
-	c := jsonschema.NewCompiler()
-	if err := c.AddResource("calibration.schema.json", doc); err != nil {
-		t.Fatal(err)
-	}
-	sch, err := c.Compile("calibration.schema.json")
-	if err != nil {
-		t.Fatal(err)
-	}
 	inst, err := jsonschema.UnmarshalJSON(strings.NewReader(out))
 	if err != nil {
 		t.Fatalf("not JSON: %v\n%s", err, out)
 	}
-	if err := sch.Validate(inst); err != nil {
+	if err := embeddedSchema(t, "calibration").Validate(inst); err != nil {
 		t.Errorf("calibration JSON breaks schema/calibration.schema.json: %v\n%s", err, out)
 	}
 	if err := json.Unmarshal([]byte(out), v); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// embeddedSchema compiles the embedded schema called name (schema.Named).
+func embeddedSchema(t *testing.T, name string) *jsonschema.Schema {
+	t.Helper()
+	data, err := schema.Named(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := jsonschema.NewCompiler()
+	if err := c.AddResource(name+".schema.json", doc); err != nil {
+		t.Fatal(err)
+	}
+	sch, err := c.Compile(name + ".schema.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return sch
 }

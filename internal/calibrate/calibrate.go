@@ -117,9 +117,6 @@ type Result struct {
 	Efficiency float64
 }
 
-// Constants are the model's terms in the order f, rho, beta.
-func (r *Result) Constants() []Constant { return []Constant{r.Segment, r.Row, r.Byte} }
-
 // Refusal is a calibration the measurements cannot support, with what to measure instead.
 type Refusal struct {
 	Msg string
@@ -266,14 +263,19 @@ func atZero(x *mat.Dense, fit []int, j int, y, fitted []float64, noise Noise) er
 	}
 	share, coef := independentShare(x, w, j, others)
 	if share < collinearShare && len(others) > 0 {
-		with := others[0]
-		for k := range others {
-			if math.Abs(coef[k]) > math.Abs(coef[slices.Index(others, with)]) {
-				with = others[k]
+		best := 0
+		for k := range coef {
+			if math.Abs(coef[k]) > math.Abs(coef[best]) {
+				best = k
 			}
 		}
-		return &Refusal{fmt.Sprintf("the fit puts %s, the cost per %s, at zero: %s moved almost together with %s across the measurements (only %.2g%% of the %s column is independent of it), so the data cannot tell the CPU per %s from the CPU per %s and gave the time to %s; %s",
-			t.sym, t.unitWord, t.col, terms[with].col, 100*share, t.col, t.unitWord, terms[with].unitWord, terms[with].sym, separateAdvice)}
+		with := terms[others[best]]
+		tied := fmt.Sprintf("%s moved almost together with %s across the measurements", t.col, with.col)
+		if with.col == "" {
+			tied = fmt.Sprintf("%s hardly varied across the measurements", t.col)
+		}
+		return &Refusal{fmt.Sprintf("the fit puts %s, the cost per %s, at zero: %s (only %.2g%% of the %s column is independent of the other terms), so the data cannot tell the CPU per %s from the CPU per %s and gave the time to %s; %s",
+			t.sym, t.unitWord, tied, 100*share, t.col, t.unitWord, with.unitWord, with.sym, separateAdvice)}
 	}
 	return &Refusal{fmt.Sprintf("the fit wants %s, the cost per %s, at zero or below: the measurements do not show CPU growing with %s, so no engine value can be derived; check the %s column, and measure scans that differ in it more widely",
 		t.sym, t.unitWord, t.col, t.col)}
