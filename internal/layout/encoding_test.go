@@ -328,3 +328,20 @@ func TestColumnBytesBySize(t *testing.T) {
 		t.Errorf("1e9 segments: %v, want %v", got, want)
 	}
 }
+
+// A measured encoded_bytes B is spread over the segments in proportion to their rows
+// (README, "Measured sizes"): the segments of any layout sum to B, whatever the segment
+// size, and the plain-or-dictionary choice does not touch a measured size, even one
+// above the plain width (here 20 bytes a row against 8).
+func TestEncodedBytesSpread(t *testing.T) {
+	parts := []Partition{{Rows: 2500, Open: true}, {Rows: 300}, {Rows: 3000}, {Rows: 999}}
+	c := schema.Column{Type: "int64", EncodedBytes: 20 * 6799}
+	for _, s := range []int64{7, 1000, 4096, 1 << 20} {
+		if got := ColumnBytes(c, parts, s); math.Abs(got-20*6799) > 1e-6 {
+			t.Errorf("segments of %d rows: %v bytes, want %d", s, got, 20*6799)
+		}
+	}
+	if got := SegmentSize(c, 6799, 1000); got != (Size{Index: 20 * 1000}) {
+		t.Errorf("a segment of 1,000 rows: %+v, want 20,000 bytes as measured", got)
+	}
+}
