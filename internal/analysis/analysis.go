@@ -41,6 +41,11 @@ type Table struct {
 	// Scan is the estimated full scan of it.
 	Widest *schema.Column
 	Scan   layout.Scan
+	// Routine and Full are what the table's routine refresh and a full refresh rebuild,
+	// and how long each takes (layout.Rebuild); Routine is Full when no routine refresh
+	// is declared.
+	Routine, Full layout.Rebuild
+	window        layout.Window // the routine refresh, read from today's policy
 
 	model   *Model
 	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
@@ -78,6 +83,10 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 			model:   md,
 		}
 		t.Widest, t.Scan = widest(spec, parts, m.Engine)
+		t.window = layout.WindowOf(spec, parts)
+		par := refreshParallelism(m.Engine)
+		t.Routine = t.window.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
+		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
 		md.Tables = append(md.Tables, t)
 	}
 	return md
@@ -103,6 +112,19 @@ func (t *Table) Levels() advisor.Levels {
 	}
 	return t.model.levels
 }
+
+// refreshParallelism is how many partitions the engine refreshes at once: the declared
+// refresh_parallelism, else the cores.
+func refreshParallelism(e schema.Engine) int {
+	if e.RefreshParallelism >= 1 {
+		return e.RefreshParallelism
+	}
+	return max(e.Cores, 1)
+}
+
+// RoutineDeclared reports whether the table declares a routine refresh that rebuilds less
+// than the whole table.
+func (t *Table) RoutineDeclared() bool { return !t.window.Whole }
 
 // widest finds the column whose full scan costs most, and that scan.
 func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*schema.Column, layout.Scan) {
