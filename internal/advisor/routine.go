@@ -2,6 +2,7 @@ package advisor
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/internal/units"
@@ -48,4 +49,43 @@ func (sw *Sweep) routineToday() *Candidate {
 		return nil
 	}
 	return &sw.Candidates[sw.Today]
+}
+
+// RoutinePeak is the model's memory peak during a routine refresh with today's layouts
+// (layout.RebuildPeak): the model stays online while every table rebuilds what its
+// routine refresh reaches (the whole table when it declares none), with at most
+// refresh_parallelism of the rebuilt partitions in flight. ok is false when no table
+// declares a routine refresh (it is then the full refresh) or no table has profiles.
+func (md *Model) RoutinePeak() (peak float64, ok bool) {
+	if md.routinePeak != nil {
+		return *md.routinePeak, !math.IsNaN(*md.routinePeak)
+	}
+	peak = math.NaN()
+	defer func() { md.routinePeak = &peak }()
+	s := md.M.Engine.SegmentRows
+	v := md.view(s, 0, -1)
+	var rebuilt float64
+	inFlight, declared := 0, false
+	for j, t := range md.M.Tables {
+		spec, parts := md.grownTable(j, 0)
+		if parts == nil {
+			continue
+		}
+		w := layout.WindowOf(spec, parts)
+		b := w.Rebuilt(spec, parts, md.parallelism, 0)
+		declared = declared || !w.Whole
+		inFlight = min(inFlight+b.Partitions, md.parallelism)
+		switch {
+		case len(t.Columns) == 0:
+		case w.Whole:
+			rebuilt += v.bytes[j]
+		default:
+			rebuilt += layout.TableBytes(spec.Columns, spec.Rows, parts[b.First:b.End], s)
+		}
+	}
+	if !declared || !md.profiled {
+		return peak, false
+	}
+	peak = layout.RebuildPeak(v.total.swap(0, 0), rebuilt, inFlight, s, md.rowBytes)
+	return peak, true
 }

@@ -87,6 +87,7 @@ type Candidate struct {
 	order    int
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
+	Full    layout.Rebuild // what a full refresh rebuilds: every partition
 }
 
 // Today reports whether the candidate is the table's layout as it is.
@@ -118,6 +119,8 @@ type Model struct {
 	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
 	grown       map[int]*grownTables // by month; a cache only, never ranged over
 	work        int                  // tables expanded or laid out so far, for the tests that hold it linear
+
+	routinePeak *float64 // RoutinePeak, once computed
 }
 
 type viewKey struct {
@@ -537,6 +540,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			f := md.figures(v.Spec, p.parts, s)
 			c.Figures = f
 			c.Routine = sw.Window.Rebuilt(v.Spec, p.parts, md.parallelism, md.M.Engine.RefreshRowsPerS)
+			c.Full = layout.Window{Whole: true}.Rebuilt(v.Spec, p.parts, md.parallelism, md.M.Engine.RefreshRowsPerS)
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
 			c.Fits = len(c.Misses) == 0
