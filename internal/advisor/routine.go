@@ -89,3 +89,13 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 	peak = layout.RebuildPeak(v.total.swap(0, 0), rebuilt, inFlight, s, md.rowBytes)
 	return peak, true
 }
+
+// FullPeak is the model's memory peak during a full refresh with today's layouts
+// (layout.RefreshPeak); ok is false without column profiles.
+func (md *Model) FullPeak() (peak float64, ok bool) {
+	if !md.profiled {
+		return 0, false
+	}
+	s := md.M.Engine.SegmentRows
+	return layout.RefreshPeak(md.view(s, 0, -1).total.swap(0, 0), md.parallelism, s, md.rowBytes), true
+}

@@ -25,6 +25,33 @@ type Model struct {
 
 	advisor *advisor.Model
 	levels  advisor.Levels
+	peaks   *Peaks // RefreshPeaks, once computed
+}
+
+// Peaks are the model's memory peaks during a full and a routine refresh with today's
+// layouts; a nil field is not estimated (no column profiles, or no table declares a
+// routine refresh, which is then the full one).
+type Peaks struct {
+	Full, Routine *float64
+}
+
+// RefreshPeaks is the model's refresh peaks, computed once; kept when the model settles.
+func (md *Model) RefreshPeaks() Peaks {
+	if md.peaks != nil || md.advisor == nil {
+		if md.peaks == nil {
+			return Peaks{}
+		}
+		return *md.peaks
+	}
+	var p Peaks
+	if v, ok := md.advisor.FullPeak(); ok {
+		p.Full = &v
+	}
+	if v, ok := md.advisor.RoutinePeak(); ok {
+		p.Routine = &v
+	}
+	md.peaks = &p
+	return p
 }
 
 // Table is one table with the numbers every rule and report needs, computed once.
@@ -49,6 +76,7 @@ type Table struct {
 
 	model   *Model
 	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
+	peaks   Peaks   // the model's, kept when the table settles
 	settled bool
 
 	options []Option // candidate changes, computed when first asked for
@@ -90,6 +118,14 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		md.Tables = append(md.Tables, t)
 	}
 	return md
+}
+
+// Peaks are the refresh peaks of the model the table belongs to.
+func (t *Table) Peaks() Peaks {
+	if t.settled || t.model == nil {
+		return t.peaks
+	}
+	return t.model.RefreshPeaks()
 }
 
 // Model is the analysed manifest the table belongs to; nil for a table built outside
@@ -156,6 +192,7 @@ func (t *Table) EncodedBytes() float64 {
 // manifest, and a run over a whole repository holds every table until it reports.
 // A table that was swept keeps its layouts in brief (Layouts).
 func (md *Model) Settle() {
+	md.RefreshPeaks()
 	for _, t := range md.Tables {
 		t.Settle()
 	}
@@ -169,6 +206,9 @@ func (t *Table) Settle() {
 		return
 	}
 	t.encoded = t.EncodedBytes()
+	if t.model != nil {
+		t.peaks = t.model.RefreshPeaks()
+	}
 	if t.swept {
 		t.kept = layoutsOf(t.sweep)
 	}

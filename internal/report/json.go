@@ -9,6 +9,7 @@ import (
 
 	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/escape"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -61,22 +62,51 @@ type jsonFile struct {
 }
 
 type jsonTable struct {
-	Name                 string   `json:"name"`
-	Line                 int      `json:"line"`
-	Column               int      `json:"column"`
-	Scheme               string   `json:"scheme"`
-	Rows                 int64    `json:"rows"`
-	SegmentRows          int64    `json:"segment_rows"`
-	Partitions           int      `json:"partitions"`
-	Segments             int64    `json:"segments"`
-	IdealSegments        int64    `json:"ideal_segments"`
-	ExcessSegments       int64    `json:"excess_segments"`
-	Fill                 float64  `json:"fill"`
-	FixedOverheadMs      float64  `json:"fixed_overhead_ms"`
-	ScanOverheadBudgetMs *float64 `json:"scan_overhead_budget_ms,omitempty"`
-	WidestColumn         string   `json:"widest_column,omitempty"`
-	ScanWallMs           *float64 `json:"scan_wall_ms,omitempty"`
-	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
+	Name                 string      `json:"name"`
+	Line                 int         `json:"line"`
+	Column               int         `json:"column"`
+	Scheme               string      `json:"scheme"`
+	Rows                 int64       `json:"rows"`
+	SegmentRows          int64       `json:"segment_rows"`
+	Partitions           int         `json:"partitions"`
+	Segments             int64       `json:"segments"`
+	IdealSegments        int64       `json:"ideal_segments"`
+	ExcessSegments       int64       `json:"excess_segments"`
+	Fill                 float64     `json:"fill"`
+	FixedOverheadMs      float64     `json:"fixed_overhead_ms"`
+	ScanOverheadBudgetMs *float64    `json:"scan_overhead_budget_ms,omitempty"`
+	WidestColumn         string      `json:"widest_column,omitempty"`
+	ScanWallMs           *float64    `json:"scan_wall_ms,omitempty"`
+	ScanBudgetMs         *float64    `json:"scan_budget_ms,omitempty"`
+	Refresh              jsonRefresh `json:"refresh"`
+}
+
+// jsonRefresh is what a full and the routine refresh of a table rebuild; Routine is
+// null when the table declares none (every refresh is then a full one).
+type jsonRefresh struct {
+	Full    jsonRebuild  `json:"full"`
+	Routine *jsonRebuild `json:"routine"`
+}
+
+type jsonRebuild struct {
+	Partitions int      `json:"partitions"`
+	Rows       int64    `json:"rows"`
+	Days       *float64 `json:"days,omitempty"`
+	Seconds    float64  `json:"seconds"`
+	PeakBytes  *float64 `json:"model_peak_bytes,omitempty"`
+}
+
+func rebuildJSON(r layout.Rebuild, peak *float64) jsonRebuild {
+	j := jsonRebuild{Partitions: r.Partitions, Rows: r.Rows, Seconds: round(r.Seconds)}
+	if r.Days > 0 {
+		d := round(r.Days)
+		j.Days = &d
+	}
+	if peak != nil {
+		p := round(*peak)
+		j.PeakBytes = &p
+	}
+	return j
 }
 
 type jsonFinding struct {
@@ -172,6 +202,12 @@ func tableJSON(t *analysis.Table) jsonTable {
 	if t.Widest != nil {
 		wall := round(t.Scan.WallMs)
 		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
+	}
+	peaks := t.Peaks()
+	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
+	if t.RoutineDeclared() {
+		r := rebuildJSON(t.Routine, peaks.Routine)
+		jt.Refresh.Routine = &r
 	}
 	return jt
 }
