@@ -308,8 +308,10 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 		t.RowsDeclared = true
 		t.RowsPos = d.pos(ptr + "/rows")
 	}
+	t.GrowthPos = t.Pos
 	if v, ok := raw["growth_per_year"]; ok {
 		t.GrowthPerYear = number(v)
+		t.GrowthPos = d.pos(ptr + "/growth_per_year")
 	}
 	if b, ok := raw["budgets"].(map[string]any); ok {
 		t.Budgets = d.budgets(ptr+"/budgets", b)

@@ -137,7 +137,8 @@ type Table struct {
 	Pos           Pos // the table's mapping (its first key)
 	RowsPos       Pos // the rows value, or the table when rows is omitted
 
-	Routine Routine // what the routine refresh rebuilds; zero: the whole table
+	Routine   Routine // what the routine refresh rebuilds; zero: the whole table
+	GrowthPos Pos     // the growth_per_year value, or the table when it is omitted
 }
 
 // Routine is what a table's routine (scheduled) refresh rebuilds: the partitions holding
