@@ -9,8 +9,18 @@ import (
 // with exit 0; the shells it knows print a script.
 func TestCompletionShells(t *testing.T) {
 	r := scangate(t, root(t), "", nil, "completion", "tcsh")
-	if r.code != 2 || !strings.Contains(r.stderr, `unknown command "tcsh" for "scangate completion"`) {
+	if r.code != 2 || !strings.Contains(r.stderr, `unknown shell "tcsh" for "scangate completion"; use one of bash, fish, powershell, zsh`) {
 		t.Errorf("completion tcsh: exit %d, %q", r.code, r.stderr)
+	}
+	// A typo gets the shell meant (internal/suggest): "bsh" is one letter from "bash".
+	r = scangate(t, root(t), "", nil, "completion", "bsh")
+	if r.code != 2 || !strings.Contains(r.stderr, `unknown shell "bsh" for "scangate completion"; did you mean bash?`) {
+		t.Errorf("completion bsh: exit %d, %q", r.code, r.stderr)
+	}
+	// The same for --format.
+	r = scangate(t, root(t), "", nil, "check", "--format", "sarf", "testdata/demo")
+	if r.code != 2 || !strings.Contains(r.stderr, `--format "sarf": unknown format; did you mean sarif?`) {
+		t.Errorf("check --format sarf: exit %d, %q", r.code, r.stderr)
 	}
 	for _, shell := range []string{"bash", "zsh", "fish", "powershell"} {
 		r := scangate(t, root(t), "", nil, "completion", shell)
