@@ -3,12 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/run"
-	"github.com/scangate/scangate/internal/suggest"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -53,7 +51,7 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.InitDefaultCompletionCmd()
 	if c, _, err := root.Find([]string{"completion"}); err == nil && c.Name() == "completion" {
 		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
-		c.Args = unknownShell
+		c.Args = func(_ *cobra.Command, args []string) error { return run.CheckShell(args) }
 	}
 	return root
 }
@@ -68,23 +66,4 @@ func newVersion() *cobra.Command {
 			return err
 		},
 	}
-}
-
-// unknownShell refuses an argument of the completion command that names no shell it
-// writes a script for, with the nearest shell when one is close: completion bsh.
-func unknownShell(c *cobra.Command, args []string) error {
-	if len(args) == 0 {
-		return nil
-	}
-	var shells []string
-	for _, sub := range c.Commands() {
-		if sub.IsAvailableCommand() {
-			shells = append(shells, sub.Name())
-		}
-	}
-	list := strings.Join(shells, ", ")
-	if near, ok := suggest.Nearest(args[0], shells); ok {
-		return fmt.Errorf("unknown shell %q for \"scangate completion\"; did you mean %s? Use one of %s", args[0], near, list)
-	}
-	return fmt.Errorf("unknown shell %q for \"scangate completion\"; use one of %s", args[0], list)
 }

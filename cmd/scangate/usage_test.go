@@ -1,8 +1,12 @@
 package main
 
 import (
+	"io"
+	"slices"
 	"strings"
 	"testing"
+
+	"github.com/scangate/scangate/internal/run"
 )
 
 // A shell the completion command does not know is a usage error (exit 2), not its help
@@ -29,6 +33,20 @@ func TestCompletionShells(t *testing.T) {
 		}
 	}
 	wantCode(t, scangate(t, root(t), "", nil, "completion"), 0)
+	// The shells the refusal names are the completion command's own.
+	c, _, err := newRoot(nil, io.Discard, io.Discard).Find([]string{"completion"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var subs []string
+	for _, sub := range c.Commands() {
+		if sub.IsAvailableCommand() {
+			subs = append(subs, sub.Name())
+		}
+	}
+	if !slices.Equal(subs, run.Shells) {
+		t.Errorf("completion writes %v, run.Shells says %v", subs, run.Shells)
+	}
 }
 
 // Every embedded schema prints by name, manifest by default, and an unknown name lists
