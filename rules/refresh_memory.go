@@ -87,6 +87,10 @@ type refreshModel struct {
 func (m refreshModel) bytesAt(s int64) float64 {
 	var b float64
 	for _, t := range m.ts {
+		if s == t.Engine.SegmentRows {
+			b += t.EncodedBytes() // today's, computed once per table
+			continue
+		}
 		b += layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, s)
 	}
 	return b

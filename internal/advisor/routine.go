@@ -3,9 +3,11 @@ package advisor
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/internal/units"
+	"github.com/scangate/scangate/schema"
 )
 
 // RoutineExtra is how many more rows each routine refresh rebuilds in layout c than in
@@ -62,6 +64,9 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 	}
 	peak = math.NaN()
 	defer func() { md.routinePeak = &peak }()
+	if !md.profiled || !slices.ContainsFunc(md.M.Tables, func(t schema.Table) bool { return t.Routine.Declared() }) {
+		return peak, false // nothing to lay out again
+	}
 	s := md.M.Engine.SegmentRows
 	v := md.view(s, 0, -1)
 	var rebuilt float64
@@ -90,12 +95,15 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 	return peak, true
 }
 
-// FullPeak is the model's memory peak during a full refresh with today's layouts
-// (layout.RefreshPeak); ok is false without column profiles.
-func (md *Model) FullPeak() (peak float64, ok bool) {
-	if !md.profiled {
-		return 0, false
+// rebuilds is what the routine refresh of w and a full refresh rebuild of the table laid
+// out as spec (policy p), computed once per policy: neither depends on the capacity.
+func (md *Model) rebuilds(w layout.Window, spec schema.Table, p *policy) (routine, full layout.Rebuild) {
+	if p.rebuilt == nil {
+		rate := md.M.Engine.RefreshRowsPerS
+		p.rebuilt = &[2]layout.Rebuild{
+			w.Rebuilt(spec, p.parts, md.parallelism, rate),
+			layout.Window{Whole: true}.Rebuilt(spec, p.parts, md.parallelism, rate),
+		}
 	}
-	s := md.M.Engine.SegmentRows
-	return layout.RefreshPeak(md.view(s, 0, -1).total.swap(0, 0), md.parallelism, s, md.rowBytes), true
+	return p.rebuilt[0], p.rebuilt[1]
 }

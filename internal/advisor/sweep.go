@@ -539,8 +539,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			}
 			f := md.figures(v.Spec, p.parts, s)
 			c.Figures = f
-			c.Routine = sw.Window.Rebuilt(v.Spec, p.parts, md.parallelism, md.M.Engine.RefreshRowsPerS)
-			c.Full = layout.Window{Whole: true}.Rebuilt(v.Spec, p.parts, md.parallelism, md.M.Engine.RefreshRowsPerS)
+			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
 			c.Fits = len(c.Misses) == 0
@@ -571,6 +570,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 type policy struct {
 	label    string
 	parts    []layout.Partition
+	rebuilt  *[2]layout.Rebuild // the routine and the full refresh, the same at every capacity (rebuilds)
 	grown    schema.Table       // grown to the horizon, once hasLater
 	later    []layout.Partition // its partitions; nil when it cannot be expanded
 	hasLater bool

@@ -44,11 +44,23 @@ func (md *Model) RefreshPeaks() Peaks {
 		return *md.peaks
 	}
 	var p Peaks
-	if v, ok := md.advisor.FullPeak(); ok {
+	var model, rowBytes float64
+	profiled, declared := false, false
+	for _, t := range md.Tables {
+		model += t.EncodedBytes()
+		rowBytes = max(rowBytes, layout.RowBytes(t.Spec.Columns))
+		profiled = profiled || len(t.Spec.Columns) > 0
+		declared = declared || t.RoutineDeclared()
+	}
+	if profiled {
+		e := md.Manifest.Engine
+		v := layout.RefreshPeak(model, refreshParallelism(e), e.SegmentRows, rowBytes)
 		p.Full = &v
 	}
-	if v, ok := md.advisor.RoutinePeak(); ok {
-		p.Routine = &v
+	if declared {
+		if v, ok := md.advisor.RoutinePeak(); ok {
+			p.Routine = &v
+		}
 	}
 	md.peaks = &p
 	return p
@@ -74,10 +86,11 @@ type Table struct {
 	Routine, Full layout.Rebuild
 	window        layout.Window // the routine refresh, read from today's policy
 
-	model   *Model
-	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
-	peaks   Peaks   // the model's, kept when the table settles
-	settled bool
+	model       *Model
+	encoded     float64 // encoded bytes of the profiled columns, kept when Parts is dropped
+	encodedDone bool
+	peaks       Peaks // the model's, kept when the table settles
+	settled     bool
 
 	options []Option // candidate changes, computed when first asked for
 	optDone bool
@@ -113,8 +126,11 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		t.Widest, t.Scan = widest(spec, parts, m.Engine)
 		t.window = layout.WindowOf(spec, parts)
 		par := refreshParallelism(m.Engine)
-		t.Routine = t.window.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
 		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
+		t.Routine = t.Full
+		if !t.window.Whole {
+			t.Routine = t.window.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
+		}
 		md.Tables = append(md.Tables, t)
 	}
 	return md
@@ -181,8 +197,8 @@ func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*sche
 
 // EncodedBytes is the encoded size of the table's profiled columns.
 func (t *Table) EncodedBytes() float64 {
-	if !t.settled {
-		return layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows)
+	if !t.encodedDone {
+		t.encoded, t.encodedDone = layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows), true
 	}
 	return t.encoded
 }

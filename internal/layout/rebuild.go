@@ -1,6 +1,8 @@
 package layout
 
 import (
+	"math"
+
 	"github.com/scangate/scangate/schema"
 )
 
@@ -85,22 +87,42 @@ func (w Window) Rebuilt(spec schema.Table, parts []Partition, parallelism int, r
 
 // RefreshSeconds estimates the wall time of refreshing parts: each partition is one
 // task of rows / rowsPerS seconds, list-scheduled in order on parallelism workers (the
-// engine processes that many partitions at once; a partition is never split). Runs of
-// equal partitions are scheduled as one group, so the cost is linear in partitions.
-// A non-positive or non-finite rate gives 0.
+// engine processes that many partitions at once; a partition is never split), as
+// Schedule does, with runs of equal partitions assigned together; nothing is allocated
+// up to stackCores workers, since every table and candidate layout is timed. A
+// non-positive or non-finite rate gives 0.
 func RefreshSeconds(parts []Partition, parallelism int, rowsPerS float64) float64 {
-	if !(rowsPerS > 0) || len(parts) == 0 {
+	if !(rowsPerS > 0) || math.IsInf(rowsPerS, 1) || len(parts) == 0 {
 		return 0
 	}
-	groups := make([]TaskGroup, 0, 8)
-	for _, p := range parts {
-		t := float64(max(p.Rows, 0)) / rowsPerS
-		if n := len(groups); n > 0 && groups[n-1].Ms == t {
-			groups[n-1].Count++
-			continue
-		}
-		groups = append(groups, TaskGroup{Count: 1, Ms: t})
+	m := max(parallelism, 1)
+	var load [stackCores]float64
+	var heap [stackCores]int
+	var h coreHeap
+	if m <= stackCores {
+		h.load, h.heap = load[:m], heap[:m]
+	} else {
+		h.load, h.heap = make([]float64, m), make([]int, m)
 	}
-	makespan, _ := Schedule(groups, parallelism)
+	h.reset()
+	for i := 0; i < len(parts); {
+		j := i + 1
+		for j < len(parts) && parts[j].Rows == parts[i].Rows {
+			j++
+		}
+		c, t := int64(j-i), float64(max(parts[i].Rows, 0))/rowsPerS
+		switch {
+		case !(t > 0) || math.IsInf(t, 1):
+		case c <= 4*int64(m):
+			h.run(c, t)
+		default:
+			h.bulk(c, t)
+		}
+		i = j
+	}
+	var makespan float64
+	for _, l := range h.load {
+		makespan = max(makespan, l)
+	}
 	return makespan
 }

@@ -157,3 +157,23 @@ func TestRebuildPeak(t *testing.T) {
 		t.Error("a full rebuild should equal RefreshPeak")
 	}
 }
+
+// RefreshSeconds schedules as Schedule does: the same partitions as task groups give the
+// same makespan, with runs long enough to take the bulk path.
+func TestRefreshSecondsAgreesWithSchedule(t *testing.T) {
+	var parts []Partition
+	var groups []TaskGroup
+	for i, n := range []int{3, 200, 1, 50, 7} {
+		rows := int64(1000 * (i + 1))
+		for range n {
+			parts = append(parts, Partition{Rows: rows})
+		}
+		groups = append(groups, TaskGroup{Count: int64(n), Ms: float64(rows) / 250})
+	}
+	for _, workers := range []int{1, 3, 8, 100} {
+		want, _ := Schedule(groups, workers)
+		if got := RefreshSeconds(parts, workers, 250); math.Abs(got-want) > 1e-9*want {
+			t.Errorf("%d workers: %v s, Schedule says %v", workers, got, want)
+		}
+	}
+}
