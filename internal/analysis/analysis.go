@@ -86,11 +86,12 @@ type Table struct {
 	Routine, Full layout.Rebuild
 	window        layout.Window // the routine refresh, read from today's policy
 
-	model       *Model
-	encoded     float64 // encoded bytes of the profiled columns, kept when Parts is dropped
-	encodedDone bool
+	model   *Model
+	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
+	settled bool
+
+	encodedDone bool  // encoded is computed
 	peaks       Peaks // the model's, kept when the table settles
-	settled     bool
 
 	options []Option // candidate changes, computed when first asked for
 	optDone bool

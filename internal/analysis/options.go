@@ -18,8 +18,9 @@ type Option struct {
 	Spec        schema.Table
 	SegmentRows int64
 	Layout      layout.Layout
-	Scan        layout.Scan    // of the same widest column; zero without profiles
-	Routine     layout.Rebuild // what the routine refresh rebuilds in this layout
+	Scan        layout.Scan // of the same widest column; zero without profiles
+
+	Routine layout.Rebuild // what the routine refresh rebuilds in this layout
 }
 
 // largerSegments are the segment sizes tried, as multiples of today's.

@@ -62,23 +62,24 @@ type jsonFile struct {
 }
 
 type jsonTable struct {
-	Name                 string      `json:"name"`
-	Line                 int         `json:"line"`
-	Column               int         `json:"column"`
-	Scheme               string      `json:"scheme"`
-	Rows                 int64       `json:"rows"`
-	SegmentRows          int64       `json:"segment_rows"`
-	Partitions           int         `json:"partitions"`
-	Segments             int64       `json:"segments"`
-	IdealSegments        int64       `json:"ideal_segments"`
-	ExcessSegments       int64       `json:"excess_segments"`
-	Fill                 float64     `json:"fill"`
-	FixedOverheadMs      float64     `json:"fixed_overhead_ms"`
-	ScanOverheadBudgetMs *float64    `json:"scan_overhead_budget_ms,omitempty"`
-	WidestColumn         string      `json:"widest_column,omitempty"`
-	ScanWallMs           *float64    `json:"scan_wall_ms,omitempty"`
-	ScanBudgetMs         *float64    `json:"scan_budget_ms,omitempty"`
-	Refresh              jsonRefresh `json:"refresh"`
+	Name                 string   `json:"name"`
+	Line                 int      `json:"line"`
+	Column               int      `json:"column"`
+	Scheme               string   `json:"scheme"`
+	Rows                 int64    `json:"rows"`
+	SegmentRows          int64    `json:"segment_rows"`
+	Partitions           int      `json:"partitions"`
+	Segments             int64    `json:"segments"`
+	IdealSegments        int64    `json:"ideal_segments"`
+	ExcessSegments       int64    `json:"excess_segments"`
+	Fill                 float64  `json:"fill"`
+	FixedOverheadMs      float64  `json:"fixed_overhead_ms"`
+	ScanOverheadBudgetMs *float64 `json:"scan_overhead_budget_ms,omitempty"`
+	WidestColumn         string   `json:"widest_column,omitempty"`
+	ScanWallMs           *float64 `json:"scan_wall_ms,omitempty"`
+	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
+
+	Refresh jsonRefresh `json:"refresh"`
 }
 
 // jsonRefresh is what a full and the routine refresh of a table rebuild; Routine is
