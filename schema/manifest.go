@@ -88,6 +88,15 @@ type Engine struct {
 	RefreshRowsPerS float64 // rows one partition's refresh loads per second
 }
 
+// RefreshWorkers is how many partitions a refresh processes at once: refresh_parallelism,
+// which the loader sets to the cores when it is not declared (at least 1).
+func (e Engine) RefreshWorkers() int {
+	if e.RefreshParallelism >= 1 {
+		return e.RefreshParallelism
+	}
+	return max(e.Cores, 1)
+}
+
 // Engine defaults of format 1.
 const (
 	DefaultCores             = 8

@@ -88,8 +88,8 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 			rebuilt += layout.TableBytes(spec.Columns, spec.Rows, parts[b.First:b.End], s)
 		}
 	}
-	if !declared || !md.profiled {
-		return peak, false
+	if !declared {
+		return peak, false // each declared routine refresh reaches every partition
 	}
 	peak = layout.RebuildPeak(v.total.swap(0, 0), rebuilt, inFlight, s, md.rowBytes)
 	return peak, true

@@ -639,9 +639,9 @@ func (md *Model) mark(sw *Sweep) {
 }
 
 // better ranks candidates that fit: fewer warnings left; then one that leaves the
-// partitions the routine refresh rewrites as they are (routine, today's layout, or nil
-// when unknown; RoutineExtra); today's segment capacity (an engine change moves every table); then the smaller capacity (less refresh memory);
-// then the most partitions kept (the least disruptive change, finer refreshes); then
+// partitions the routine refresh rewrites as they are (RoutineExtra against routine,
+// today's layout; nil when unknown); today's segment capacity (an engine change moves
+// every table); then the smaller capacity (less refresh memory); then the most partitions kept (the least disruptive change, finer refreshes); then
 // the fewest fixed ms; then the order generated.
 func better(a, b *Candidate, today int64, routine *Candidate) bool {
 	if len(a.Warnings) != len(b.Warnings) {

@@ -37,12 +37,16 @@ type Peaks struct {
 
 // RefreshPeaks is the model's refresh peaks, computed once; kept when the model settles.
 func (md *Model) RefreshPeaks() Peaks {
-	if md.peaks != nil || md.advisor == nil {
-		if md.peaks == nil {
-			return Peaks{}
-		}
-		return *md.peaks
+	if md.peaks == nil && md.advisor != nil {
+		md.peaks = md.refreshPeaks()
 	}
+	if md.peaks == nil {
+		return Peaks{} // built outside Analyze
+	}
+	return *md.peaks
+}
+
+func (md *Model) refreshPeaks() *Peaks {
 	var p Peaks
 	var model, rowBytes float64
 	profiled, declared := false, false
@@ -54,16 +58,13 @@ func (md *Model) RefreshPeaks() Peaks {
 	}
 	if profiled {
 		e := md.Manifest.Engine
-		v := layout.RefreshPeak(model, refreshParallelism(e), e.SegmentRows, rowBytes)
+		v := layout.RefreshPeak(model, e.RefreshWorkers(), e.SegmentRows, rowBytes)
 		p.Full = &v
 	}
-	if declared {
-		if v, ok := md.advisor.RoutinePeak(); ok {
-			p.Routine = &v
-		}
+	if v, ok := md.advisor.RoutinePeak(); declared && ok {
+		p.Routine = &v
 	}
-	md.peaks = &p
-	return p
+	return &p
 }
 
 // Table is one table with the numbers every rule and report needs, computed once.
@@ -126,7 +127,7 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		}
 		t.Widest, t.Scan = widest(spec, parts, m.Engine)
 		t.window = layout.WindowOf(spec, parts)
-		par := refreshParallelism(m.Engine)
+		par := m.Engine.RefreshWorkers()
 		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
 		t.Routine = t.Full
 		if !t.window.Whole {
@@ -164,15 +165,6 @@ func (t *Table) Levels() advisor.Levels {
 		return advisor.DefaultLevels
 	}
 	return t.model.levels
-}
-
-// refreshParallelism is how many partitions the engine refreshes at once: the declared
-// refresh_parallelism, else the cores.
-func refreshParallelism(e schema.Engine) int {
-	if e.RefreshParallelism >= 1 {
-		return e.RefreshParallelism
-	}
-	return max(e.Cores, 1)
 }
 
 // RoutineDeclared reports whether the table declares a routine refresh that rebuilds less

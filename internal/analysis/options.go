@@ -82,7 +82,7 @@ func (t *Table) Options() []Option {
 			parts = expanded[b]
 		}
 		o.Layout = layout.Compute(parts, o.SegmentRows, t.Engine.SegmentOverheadMs)
-		o.Routine = t.window.Rebuilt(o.Spec, parts, refreshParallelism(t.Engine), t.Engine.RefreshRowsPerS)
+		o.Routine = t.window.Rebuilt(o.Spec, parts, t.Engine.RefreshWorkers(), t.Engine.RefreshRowsPerS)
 		if t.Widest != nil {
 			e := t.Engine
 			e.SegmentRows = o.SegmentRows

@@ -93,10 +93,7 @@ func renderPlan(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
 // rebuild, how long each takes, and the model's peak during each.
 func renderRefresh(b *strings.Builder, p advisor.TablePlan, now *advisor.Candidate, e schema.Engine) {
 	sw := p.Sweep
-	par := e.RefreshParallelism
-	if par < 1 {
-		par = max(e.Cores, 1)
-	}
+	par := e.RefreshWorkers()
 	fmt.Fprintf(b, "   refresh, %d %s at a time, %s rows a second each:\n", par, units.Plural(int64(par), "partition", "partitions"), units.Count(int64(e.RefreshRowsPerS)))
 	peak := func(v *float64) string {
 		if !sw.Profiled || v == nil {
