@@ -26,20 +26,17 @@ func RoutineWords(today, then layout.Rebuild) string {
 	if then.Rows <= today.Rows {
 		return ""
 	}
-	reach := func(b layout.Rebuild) string {
-		if b.Days > 0 {
-			return fmt.Sprintf("%s days in %s", units.Short(b.Days), units.Num(int64(b.Partitions)))
+	days := func(b layout.Rebuild) string {
+		if b.Days == 1 {
+			return "1 day in "
 		}
-		return units.Num(int64(b.Partitions))
+		if b.Days > 0 {
+			return units.Short(b.Days) + " days in "
+		}
+		return ""
 	}
-	var what string
-	if then.Days > 0 {
-		what = fmt.Sprintf("%s days in %s %s instead of %s", units.Short(then.Days), units.Num(int64(then.Partitions)),
-			units.Plural(int64(then.Partitions), "partition", "partitions"), reach(today))
-	} else {
-		what = fmt.Sprintf("%s %s instead of %s", units.Num(int64(then.Partitions)),
-			units.Plural(int64(then.Partitions), "partition", "partitions"), reach(today))
-	}
+	what := fmt.Sprintf("%s%s %s instead of %s%s", days(then), units.Num(int64(then.Partitions)),
+		units.Plural(int64(then.Partitions), "partition", "partitions"), days(today), units.Num(int64(today.Partitions)))
 	return fmt.Sprintf("each routine refresh then rebuilds %s: %s rows instead of %s, +%s",
 		what, units.Count(then.Rows), units.Count(today.Rows), units.Seconds(then.Seconds-today.Seconds))
 }
