@@ -20,7 +20,8 @@ var NeedlessPartitioning = Rule{
 		"refresh has more pieces to process.",
 	Fix:   "Use partitions: {scheme: none} for the table.",
 	Check: checkNeedlessPartitioning,
-	How:   "A table with two or more partitions whose rows are at most engine.segment_rows.",
+	How: "A table with two or more partitions whose rows are at most engine.segment_rows. With " +
+		"refresh.routine, the hint adds what each routine refresh then rebuilds (the whole table).",
 	Bad: `  - name: tariffs
     rows: 5000
     partitions: {scheme: even, count: 4}`,
