@@ -104,9 +104,9 @@ func renderRefresh(b *strings.Builder, p advisor.TablePlan, now *advisor.Candida
 	rows := [][]string{{"full", units.Num(int64(now.Full.Partitions)), units.Count(now.Full.Rows), units.Seconds(now.Full.Seconds), peak(&now.Peak)}}
 	if !sw.Window.Whole {
 		r := now.Routine
-		name := "routine"
-		if p.Spec.Routine.RecentDays > 0 {
-			name = fmt.Sprintf("routine, newest %d %s", p.Spec.Routine.RecentDays, units.Plural(int64(p.Spec.Routine.RecentDays), "day", "days"))
+		name := fmt.Sprintf("routine, last %s", units.Plural(int64(p.Spec.Routine.RecentPartitions), "partition", units.Num(int64(p.Spec.Routine.RecentPartitions))+" partitions"))
+		if d := int64(p.Spec.Routine.RecentDays); d > 0 {
+			name = fmt.Sprintf("routine, newest %s", units.Plural(d, "day", units.Num(d)+" days"))
 		}
 		rows = append(rows, []string{name, units.Num(int64(r.Partitions)), units.Count(r.Rows), units.Seconds(r.Seconds), peak(p.RoutinePeak)})
 	}
