@@ -135,10 +135,10 @@ func ifSet(prefix, s string) string {
 // depend on the day the tests run.
 var caseToday = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 
-// TestRuleCases runs every annotated manifest under testdata/rules, bad, valid and hostile.
+// TestRuleCases runs every annotated manifest under testdata/rules, bad, valid, hostile and loads.
 func TestRuleCases(t *testing.T) {
 	var files []string
-	for _, dir := range []string{"../testdata/rules", "../testdata/bad", "../testdata/valid", "../testdata/hostile"} {
+	for _, dir := range []string{"../testdata/rules", "../testdata/bad", "../testdata/valid", "../testdata/hostile", "../testdata/loads"} {
 		found, _ := filepath.Glob(filepath.Join(dir, "*", "*.yaml"))
 		top, _ := filepath.Glob(filepath.Join(dir, "*.yaml"))
 		files = append(files, found...)

@@ -95,13 +95,4 @@ func TestUnknownSuggests(t *testing.T) {
 			t.Errorf("Unknown(%q) = %q, want %q", c.id, got, c.want)
 		}
 	}
-	// Levenshtein distances of the textbook examples (kitten/sitting 3, flaw/lawn 2; from memory).
-	for _, c := range []struct {
-		a, b string
-		d    int
-	}{{"kitten", "sitting", 3}, {"flaw", "lawn", 2}, {"", "abc", 3}, {"same", "same", 0}} {
-		if got := editDistance(c.a, c.b); got != c.d {
-			t.Errorf("editDistance(%q, %q) = %d, want %d", c.a, c.b, got, c.d)
-		}
-	}
 }

@@ -39,7 +39,12 @@ var RefreshMemory = Rule{
 		"the one in flight. The peak is the model's: one finding per manifest, at engine.memory " +
 		"for the error, at the budget for the warning. Tables without column profiles count as " +
 		"0; without any profiles the rule stays quiet. The hint tries refresh_parallelism below " +
-		"today's and segment_rows at the powers of two below today's (down to 1/1024 of it).",
+		"today's and segment_rows at the powers of two below today's (down to 1/1024 of it). " +
+		"When a table declares refresh.routine, the message adds the routine refresh's peak: " +
+		"the model's encoded size + the encoded size of what the routine refresh rebuilds (the " +
+		"recent partitions of the tables that declare one, the others whole) + min(" +
+		"refresh_parallelism, partitions rebuilt) x segment_rows x row width. It never exceeds " +
+		"the full refresh's, which stays the checked figure: a full refresh still has to fit.",
 	Bad: `engine: {segment_rows: 8Mi, memory: 16GiB, refresh_parallelism: 8}
 tables:
   - name: readings   # 2 x 7.5 GiB + 8 x 8Mi rows x 24 bytes = 16.5 GiB > 16 GiB
@@ -82,6 +87,10 @@ type refreshModel struct {
 func (m refreshModel) bytesAt(s int64) float64 {
 	var b float64
 	for _, t := range m.ts {
+		if s == t.Engine.SegmentRows {
+			b += t.EncodedBytes() // today's, computed once per table
+			continue
+		}
 		b += layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, s)
 	}
 	return b
@@ -157,6 +166,17 @@ func checkRefreshMemory(md *analysis.Model, _ Config) []Finding {
 	if n := len(ts) - m.profiled; n > 0 {
 		msg += fmt.Sprintf("; %d of %d tables have no column profiles and count as 0", n, len(ts))
 	}
+	routine := md.RefreshPeaks().Routine
+	if routine != nil {
+		declared := 0
+		for _, t := range ts {
+			if t.RoutineDeclared() {
+				declared++
+			}
+		}
+		msg += fmt.Sprintf("; the routine refresh (recent partitions of %d of %d tables, the others whole) peaks at %s, %s of it",
+			declared, len(ts), units.Size(*routine), units.Pct(*routine/limit))
+	}
 
 	var hints []string
 	if p := fitParallelism(limit, model, s, m.rowBytes, m.parallelism); p > 0 {
@@ -180,6 +200,17 @@ func checkRefreshMemory(md *analysis.Model, _ Config) []Finding {
 		hints = append(hints, fmt.Sprintf("no refresh_parallelism or segment_rows tried fits the %s (the two copies of the model alone take %s): %s, or shrink the model (fewer or better encoded columns)",
 			limitWords, units.Size(2*model), raise))
 	}
+	nums := map[string]float64{
+		"peak_bytes":   peak,
+		"limit_bytes":  limit,
+		"model_bytes":  model,
+		"row_bytes":    m.rowBytes,
+		"parallelism":  float64(m.parallelism),
+		"segment_rows": float64(s),
+	}
+	if routine != nil {
+		nums["routine_peak_bytes"] = *routine
+	}
 	return []Finding{{
 		Severity: sev,
 		File:     ts[0].File,
@@ -187,14 +218,7 @@ func checkRefreshMemory(md *analysis.Model, _ Config) []Finding {
 		Subject:  refreshMemoryID,
 		Message:  msg,
 		Hints:    hints,
-		Numbers: map[string]float64{
-			"peak_bytes":   peak,
-			"limit_bytes":  limit,
-			"model_bytes":  model,
-			"row_bytes":    m.rowBytes,
-			"parallelism":  float64(m.parallelism),
-			"segment_rows": float64(s),
-		},
+		Numbers:  nums,
 	}}
 }
 

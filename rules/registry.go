@@ -6,6 +6,7 @@ import (
 	"sync"
 
 	"github.com/scangate/scangate/internal/analysis"
+	"github.com/scangate/scangate/internal/suggest"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -76,37 +77,15 @@ func Lookup(id string) (Rule, bool) {
 // close (at most a third of the ID's letters apart): `unknown rule "scan-overheads"; did
 // you mean scan-overhead? `scangate rules` lists them`.
 func Unknown(id string) string {
-	best, dist := "", len(id)/3+1
+	ids := make([]string, 0, len(registered))
 	for _, r := range All() {
-		if d := editDistance(id, r.ID); d < dist {
-			best, dist = r.ID, d
-		}
+		ids = append(ids, r.ID)
 	}
-	if best == "" {
+	best, ok := suggest.Nearest(id, ids)
+	if !ok {
 		return fmt.Sprintf("unknown rule %q; `scangate rules` lists them", id)
 	}
 	return fmt.Sprintf("unknown rule %q; did you mean %s? `scangate rules` lists them", id, best)
-}
-
-// editDistance is the Levenshtein distance between a and b in bytes (rule IDs are ASCII),
-// with one row of the table kept.
-func editDistance(a, b string) int {
-	row := make([]int, len(b)+1)
-	for j := range row {
-		row[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		prev := row[0]
-		row[0] = i
-		for j := 1; j <= len(b); j++ {
-			cost := 1
-			if a[i-1] == b[j-1] {
-				cost = 0
-			}
-			prev, row[j] = row[j], min(row[j]+1, row[j-1]+1, prev+cost)
-		}
-	}
-	return row[len(b)]
 }
 
 // Run analyses every table of m and returns the findings of every rule, sorted.

@@ -172,6 +172,8 @@ type EngineSettings struct {
 	ScanMBPerS         *float64
 	Memory             *int64
 	RefreshParallelism *int
+
+	RefreshRowsPerS *float64
 }
 
 // over returns s with every field of top that is set replacing s's.
@@ -193,6 +195,9 @@ func (s EngineSettings) over(top EngineSettings) EngineSettings {
 	}
 	if top.RefreshParallelism != nil {
 		s.RefreshParallelism = top.RefreshParallelism
+	}
+	if top.RefreshRowsPerS != nil {
+		s.RefreshRowsPerS = top.RefreshRowsPerS
 	}
 	return s
 }
@@ -218,6 +223,7 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		n := wholeUpTo(v, maxCores)
 		s.RefreshParallelism = &n
 	}
+	s.RefreshRowsPerS = optNumber(e, "refresh_rows_per_s")
 	return s
 }
 
@@ -226,6 +232,7 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 		Cores:             DefaultCores,
 		SegmentOverheadMs: DefaultSegmentOverheadMs,
 		ScanMBPerS:        DefaultScanMBPerS,
+		RefreshRowsPerS:   DefaultRefreshRowsPerS,
 		Pos:               d.keyPos(ptr),
 		SegmentRowsPos:    d.pos(ptr + "/segment_rows"),
 		MemoryPos:         d.pos(ptr + "/memory"),
@@ -272,6 +279,9 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 	if s.Memory != nil {
 		out.Memory = *s.Memory
 	}
+	if s.RefreshRowsPerS != nil {
+		out.RefreshRowsPerS = *s.RefreshRowsPerS
+	}
 	out.RefreshParallelism = out.Cores
 	if s.RefreshParallelism != nil {
 		out.RefreshParallelism = *s.RefreshParallelism
@@ -298,8 +308,10 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 		t.RowsDeclared = true
 		t.RowsPos = d.pos(ptr + "/rows")
 	}
+	t.GrowthPos = t.Pos
 	if v, ok := raw["growth_per_year"]; ok {
 		t.GrowthPerYear = number(v)
+		t.GrowthPos = d.pos(ptr + "/growth_per_year")
 	}
 	if b, ok := raw["budgets"].(map[string]any); ok {
 		t.Budgets = d.budgets(ptr+"/budgets", b)
@@ -324,6 +336,9 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 		if t.Rows > MaxCount {
 			d.fail(ptr+"/partitions", fmt.Sprintf("the listed partitions sum to %s rows, above the limit of %s", group(t.Rows), group(MaxCount)))
 		}
+	}
+	if r, ok := raw["refresh"].(map[string]any); ok && d.ok(ptr+"/refresh") {
+		t.Routine = d.routine(ptr+"/refresh/routine", r, t.Partitions.Scheme)
 	}
 	cols, _ := raw["columns"].([]any)
 	seen := map[string]int{}
@@ -459,6 +474,48 @@ func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
 	}
 	return out, allOK
 }
+
+// routine decodes refresh.routine and checks its key suits the scheme: days for time,
+// partitions for the others.
+func (d *decoder) routine(ptr string, refresh map[string]any, scheme Scheme) Routine {
+	raw, ok := refresh["routine"].(map[string]any)
+	if !ok || !d.ok(ptr) {
+		return Routine{}
+	}
+	r := Routine{Pos: d.keyPos(ptr)}
+	_, days := raw["recent_days"]
+	_, parts := raw["recent_partitions"]
+	if days == parts {
+		word := "recent_days (scheme time) or recent_partitions (even, list)"
+		if scheme == SchemeTime {
+			word = "recent_days"
+		} else if scheme != "" {
+			word = "recent_partitions"
+		}
+		verb := "write"
+		if days {
+			verb = "write only one key:"
+		}
+		d.fail(ptr, fmt.Sprintf("the routine refresh needs exactly one of recent_days and recent_partitions; %s %s", verb, word))
+		return r
+	}
+	if v, ok := raw["recent_days"]; ok && d.ok(ptr+"/recent_days") {
+		r.RecentDays = wholeUpTo(v, maxRecentDays)
+		if scheme != SchemeTime && scheme != "" {
+			d.fail(ptr+"/recent_days", fmt.Sprintf("recent_days needs scheme time; this table's scheme is %s: write recent_partitions (the last partitions the routine refresh rebuilds)", scheme))
+		}
+	}
+	if v, ok := raw["recent_partitions"]; ok && d.ok(ptr+"/recent_partitions") {
+		r.RecentPartitions = wholeUpTo(v, MaxPartitions)
+		if scheme == SchemeTime {
+			d.fail(ptr+"/recent_partitions", "a time table's routine refresh is written as recent_days (the newest days it reloads), which stays true when the partition grain changes")
+		}
+	}
+	return r
+}
+
+// maxRecentDays is the manifest schema's maximum of refresh.routine.recent_days.
+const maxRecentDays = 36525
 
 func (d *decoder) column(ptr string, raw map[string]any) Column {
 	c := Column{Pos: d.pos(ptr), Order: Random}

@@ -84,6 +84,17 @@ type Engine struct {
 	Pos                Pos // the engine key
 	SegmentRowsPos     Pos
 	MemoryPos          Pos
+
+	RefreshRowsPerS float64 // rows one partition's refresh loads per second
+}
+
+// RefreshWorkers is how many partitions a refresh processes at once: refresh_parallelism,
+// which the loader sets to the cores when it is not declared (at least 1).
+func (e Engine) RefreshWorkers() int {
+	if e.RefreshParallelism >= 1 {
+		return e.RefreshParallelism
+	}
+	return max(e.Cores, 1)
 }
 
 // Engine defaults of format 1.
@@ -91,6 +102,9 @@ const (
 	DefaultCores             = 8
 	DefaultSegmentOverheadMs = 1.5
 	DefaultScanMBPerS        = 200
+	// DefaultRefreshRowsPerS is from memory: about a million rows a second per refresh
+	// thread for a fact table of a dozen columns.
+	DefaultRefreshRowsPerS = 1_000_000
 )
 
 // Budgets are optional limits; a nil field is not budgeted.
@@ -131,7 +145,22 @@ type Table struct {
 	Waivers       []Waiver
 	Pos           Pos // the table's mapping (its first key)
 	RowsPos       Pos // the rows value, or the table when rows is omitted
+
+	Routine   Routine // what the routine refresh rebuilds; zero: the whole table
+	GrowthPos Pos     // the growth_per_year value, or the table when it is omitted
 }
+
+// Routine is what a table's routine (scheduled) refresh rebuilds: the partitions holding
+// the newest RecentDays days (scheme time) or the last RecentPartitions partitions
+// (even, list). Both 0 when undeclared: every refresh rebuilds the whole table.
+type Routine struct {
+	RecentDays       int
+	RecentPartitions int
+	Pos              Pos // the routine key
+}
+
+// Declared reports whether the table declares a routine refresh.
+func (r Routine) Declared() bool { return r.RecentDays > 0 || r.RecentPartitions > 0 }
 
 // Partitions is a table's partition policy.
 type Partitions struct {

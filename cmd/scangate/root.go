@@ -51,6 +51,7 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.InitDefaultCompletionCmd()
 	if c, _, err := root.Find([]string{"completion"}); err == nil && c.Name() == "completion" {
 		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
+		c.Args = func(_ *cobra.Command, args []string) error { return run.CheckShell(args) }
 	}
 	return root
 }

@@ -157,7 +157,7 @@ func (md *Model) Holds(sw *Sweep, months int) *Candidate {
 				continue
 			}
 		}
-		if best == nil || better(c, best, today) {
+		if best == nil || better(c, best, today, sw.routineToday()) {
 			best = c
 		}
 	}

@@ -19,6 +19,7 @@ type TablePlan struct {
 	Problems string     // why the table could not be laid out, if it could not
 
 	RefreshBudget *float64 // the model's refresh-memory budget in bytes
+	RoutinePeak   *float64 // the model's routine-refresh peak, nil when it is the full one (RoutinePeak)
 }
 
 // Plans builds the plans of the tables idx of m, forecasting from today for horizon
@@ -28,6 +29,9 @@ func Plans(m *schema.Manifest, idx []int, set Settings, today time.Time, horizon
 	var out []TablePlan
 	for _, i := range idx {
 		p := TablePlan{Index: i, Spec: m.Tables[i], Sweep: md.Sweep(i, set), RefreshBudget: md.RefreshBudget()}
+		if pk, ok := md.RoutinePeak(); ok {
+			p.RoutinePeak = &pk
+		}
 		if p.Sweep.Today < 0 {
 			p.Problems = "its partitions cannot be laid out"
 			out = append(out, p)

@@ -85,6 +85,9 @@ type Candidate struct {
 	Misses   []string // the budgets it breaks, in words
 	Warnings []string // what check would still warn about, crossings within ForecastMonths included
 	order    int
+
+	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
+	Full    layout.Rebuild // what a full refresh rebuilds: every partition
 }
 
 // Today reports whether the candidate is the table's layout as it is.
@@ -99,6 +102,8 @@ type Sweep struct {
 	Recommended int  // index of the recommended layout; -1 when no candidate fits
 	Closest     int  // when none fits: the candidate that misses least, if better than today; else -1
 	Profiled    bool // the model has column profiles: the front's memory axis is the refresh peak
+
+	Window layout.Window // the table's routine refresh, read from today's policy (routine.go)
 }
 
 // Model is a manifest prepared for sweeps and forecasts; it caches the figures of the
@@ -114,6 +119,8 @@ type Model struct {
 	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
 	grown       map[int]*grownTables // by month; a cache only, never ranged over
 	work        int                  // tables expanded or laid out so far, for the tests that hold it linear
+
+	routinePeak *float64 // RoutinePeak, once computed
 }
 
 type viewKey struct {
@@ -516,6 +523,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			if p.parts == nil {
 				continue // more partitions than the format allows
 			}
+			if v.Change == "" && s == caps[0] {
+				sw.Window = layout.WindowOf(spec, p.parts) // today's policy comes first
+			}
 			c := Candidate{Change: v.Change, Label: p.label, Spec: v.Spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
 			order++
@@ -529,6 +539,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			}
 			f := md.figures(v.Spec, p.parts, s)
 			c.Figures = f
+			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
 			c.Misses = md.misses(i, f, s, 0, c.Peak)
 			c.Fits = len(c.Misses) == 0
@@ -559,6 +570,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 type policy struct {
 	label    string
 	parts    []layout.Partition
+	rebuilt  *[2]layout.Rebuild // the routine and the full refresh, the same at every capacity (rebuilds)
 	grown    schema.Table       // grown to the horizon, once hasLater
 	later    []layout.Partition // its partitions; nil when it cannot be expanded
 	hasLater bool
@@ -609,7 +621,7 @@ func (md *Model) mark(sw *Sweep) {
 	today := md.M.Engine.SegmentRows
 	for _, k := range idx {
 		c := &sw.Candidates[k]
-		if c.Fits && (sw.Recommended < 0 || better(c, &sw.Candidates[sw.Recommended], today)) {
+		if c.Fits && (sw.Recommended < 0 || better(c, &sw.Candidates[sw.Recommended], today, sw.routineToday())) {
 			sw.Recommended = k
 		}
 	}
@@ -626,13 +638,17 @@ func (md *Model) mark(sw *Sweep) {
 	}
 }
 
-// better ranks candidates that fit: fewer warnings left; today's segment capacity (an
-// engine change moves every table); then the smaller capacity (less refresh memory);
-// then the most partitions kept (the least disruptive change, finer refreshes); then
+// better ranks candidates that fit: fewer warnings left; then one that leaves the
+// partitions the routine refresh rewrites as they are (RoutineExtra against routine,
+// today's layout; nil when unknown); today's segment capacity (an engine change moves
+// every table); then the smaller capacity (less refresh memory); then the most partitions kept (the least disruptive change, finer refreshes); then
 // the fewest fixed ms; then the order generated.
-func better(a, b *Candidate, today int64) bool {
+func better(a, b *Candidate, today int64, routine *Candidate) bool {
 	if len(a.Warnings) != len(b.Warnings) {
 		return len(a.Warnings) < len(b.Warnings)
+	}
+	if routine != nil && (a.RoutineExtra(routine) > 0) != (b.RoutineExtra(routine) > 0) {
+		return a.RoutineExtra(routine) == 0
 	}
 	if (a.SegmentRows == today) != (b.SegmentRows == today) {
 		return a.SegmentRows == today
@@ -660,7 +676,11 @@ func closer(a, b *Candidate) bool {
 // Effect words a candidate's result against today's layout, as the hints do:
 // "730 -> 302 segments, -642 ms per scan".
 func Effect(today, c *Candidate) string {
-	return fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(today.Layout.Segments), units.Num(c.Layout.Segments), units.Signed(c.Layout.FixedMs-today.Layout.FixedMs))
+	e := fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(today.Layout.Segments), units.Num(c.Layout.Segments), units.Signed(c.Layout.FixedMs-today.Layout.FixedMs))
+	if r := RoutineWords(today.Routine, c.Routine); r != "" {
+		e += "; " + r
+	}
+	return e
 }
 
 // Pick returns the recommendation, or when nothing fits the closest candidate (fits

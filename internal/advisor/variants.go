@@ -25,6 +25,17 @@ type Variant struct {
 // year, a year (common practice for a recent window reloaded on every refresh).
 var recentWindow = map[schema.Grain]int{schema.Day: 14, schema.Week: 8, schema.Month: 6, schema.Quarter: 4}
 
+// windowFor is how many periods of grain g a tiered layout keeps fine before merging:
+// the recent window of the grain (recentWindow), widened to cover the days the routine
+// refresh reloads, so a merge behind the window never touches what it rewrites.
+func windowFor(spec schema.Table, g schema.Grain) (int, bool) {
+	w, ok := recentWindow[g]
+	if d := spec.Routine.RecentDays; ok && d > 0 {
+		w = max(w, units.Int(math.Ceil(float64(d)/g.Days()-1e-9)))
+	}
+	return w, ok
+}
+
 // Variants lists the candidate partition changes for spec with segments of
 // segmentRows rows: for time, each coarser grain, alone and behind a recent window of
 // the finest; for even, other counts; for list, merged neighbours; and a single
@@ -67,7 +78,7 @@ func timeVariants(spec schema.Table) []Variant {
 			}
 			merged, j := MergeTiers(tiers, i, g, 0)
 			out = append(out, withTiers(spec, merged, fmt.Sprintf("turn %s into %s", tierWords(tiers[i:j]), tierWords(merged[i:i+1]))))
-			if w, ok := recentWindow[tier.Grain]; ok && i == 0 && tier.Keep > w {
+			if w, ok := windowFor(spec, tier.Grain); ok && i == 0 && tier.Keep > w {
 				merged, _ := MergeTiers(tiers, 0, g, w)
 				if len(merged) > 1 && merged[1].Grain == g {
 					v := withTiers(spec, merged, fmt.Sprintf("keep %s partitions for %d %ss, then merge into %ss (%s)", tier.Grain, w, tier.Grain, g, tierWords(merged[:2])))

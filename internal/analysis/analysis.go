@@ -25,6 +25,46 @@ type Model struct {
 
 	advisor *advisor.Model
 	levels  advisor.Levels
+	peaks   *Peaks // RefreshPeaks, once computed
+}
+
+// Peaks are the model's memory peaks during a full and a routine refresh with today's
+// layouts; a nil field is not estimated (no column profiles, or no table declares a
+// routine refresh, which is then the full one).
+type Peaks struct {
+	Full, Routine *float64
+}
+
+// RefreshPeaks is the model's refresh peaks, computed once; kept when the model settles.
+func (md *Model) RefreshPeaks() Peaks {
+	if md.peaks == nil && md.advisor != nil {
+		md.peaks = md.refreshPeaks()
+	}
+	if md.peaks == nil {
+		return Peaks{} // built outside Analyze
+	}
+	return *md.peaks
+}
+
+func (md *Model) refreshPeaks() *Peaks {
+	var p Peaks
+	var model, rowBytes float64
+	profiled, declared := false, false
+	for _, t := range md.Tables {
+		model += t.EncodedBytes()
+		rowBytes = max(rowBytes, layout.RowBytes(t.Spec.Columns))
+		profiled = profiled || len(t.Spec.Columns) > 0
+		declared = declared || t.RoutineDeclared()
+	}
+	if profiled {
+		e := md.Manifest.Engine
+		v := layout.RefreshPeak(model, e.RefreshWorkers(), e.SegmentRows, rowBytes)
+		p.Full = &v
+	}
+	if v, ok := md.advisor.RoutinePeak(); declared && ok {
+		p.Routine = &v
+	}
+	return &p
 }
 
 // Table is one table with the numbers every rule and report needs, computed once.
@@ -41,10 +81,18 @@ type Table struct {
 	// Scan is the estimated full scan of it.
 	Widest *schema.Column
 	Scan   layout.Scan
+	// Routine and Full are what the table's routine refresh and a full refresh rebuild,
+	// and how long each takes (layout.Rebuild); Routine is Full when no routine refresh
+	// is declared.
+	Routine, Full layout.Rebuild
+	window        layout.Window // the routine refresh, read from today's policy
 
 	model   *Model
 	encoded float64 // encoded bytes of the profiled columns, kept when Parts is dropped
 	settled bool
+
+	encodedDone bool  // encoded is computed
+	peaks       Peaks // the model's, kept when the table settles
 
 	options []Option // candidate changes, computed when first asked for
 	optDone bool
@@ -78,9 +126,24 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 			model:   md,
 		}
 		t.Widest, t.Scan = widest(spec, parts, m.Engine)
+		t.window = layout.WindowOf(spec, parts)
+		par := m.Engine.RefreshWorkers()
+		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
+		t.Routine = t.Full
+		if !t.window.Whole {
+			t.Routine = t.window.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
+		}
 		md.Tables = append(md.Tables, t)
 	}
 	return md
+}
+
+// Peaks are the refresh peaks of the model the table belongs to.
+func (t *Table) Peaks() Peaks {
+	if t.settled || t.model == nil {
+		return t.peaks
+	}
+	return t.model.RefreshPeaks()
 }
 
 // Model is the analysed manifest the table belongs to; nil for a table built outside
@@ -104,6 +167,10 @@ func (t *Table) Levels() advisor.Levels {
 	return t.model.levels
 }
 
+// RoutineDeclared reports whether the table declares a routine refresh that rebuilds less
+// than the whole table.
+func (t *Table) RoutineDeclared() bool { return !t.window.Whole }
+
 // widest finds the column whose full scan costs most, and that scan.
 func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*schema.Column, layout.Scan) {
 	// Sizes are cheap; only the widest column's scan is scheduled.
@@ -123,8 +190,8 @@ func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*sche
 
 // EncodedBytes is the encoded size of the table's profiled columns.
 func (t *Table) EncodedBytes() float64 {
-	if !t.settled {
-		return layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows)
+	if !t.encodedDone {
+		t.encoded, t.encodedDone = layout.TableBytes(t.Spec.Columns, t.Spec.Rows, t.Parts, t.Engine.SegmentRows), true
 	}
 	return t.encoded
 }
@@ -134,6 +201,7 @@ func (t *Table) EncodedBytes() float64 {
 // manifest, and a run over a whole repository holds every table until it reports.
 // A table that was swept keeps its layouts in brief (Layouts).
 func (md *Model) Settle() {
+	md.RefreshPeaks()
 	for _, t := range md.Tables {
 		t.Settle()
 	}
@@ -147,6 +215,9 @@ func (t *Table) Settle() {
 		return
 	}
 	t.encoded = t.EncodedBytes()
+	if t.model != nil {
+		t.peaks = t.model.RefreshPeaks()
+	}
 	if t.swept {
 		t.kept = layoutsOf(t.sweep)
 	}

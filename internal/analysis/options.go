@@ -19,6 +19,8 @@ type Option struct {
 	SegmentRows int64
 	Layout      layout.Layout
 	Scan        layout.Scan // of the same widest column; zero without profiles
+
+	Routine layout.Rebuild // what the routine refresh rebuilds in this layout
 }
 
 // largerSegments are the segment sizes tried, as multiples of today's.
@@ -80,6 +82,7 @@ func (t *Table) Options() []Option {
 			parts = expanded[b]
 		}
 		o.Layout = layout.Compute(parts, o.SegmentRows, t.Engine.SegmentOverheadMs)
+		o.Routine = t.window.Rebuilt(o.Spec, parts, t.Engine.RefreshWorkers(), t.Engine.RefreshRowsPerS)
 		if t.Widest != nil {
 			e := t.Engine
 			e.SegmentRows = o.SegmentRows
@@ -92,5 +95,9 @@ func (t *Table) Options() []Option {
 
 // Effect words an option's result against today's layout.
 func (t *Table) Effect(o Option) string {
-	return fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(t.Layout.Segments), units.Num(o.Layout.Segments), units.Signed(o.Layout.FixedMs-t.Layout.FixedMs))
+	e := fmt.Sprintf("%s -> %s segments, %s ms per scan", units.Num(t.Layout.Segments), units.Num(o.Layout.Segments), units.Signed(o.Layout.FixedMs-t.Layout.FixedMs))
+	if r := advisor.RoutineWords(t.Routine, o.Routine); r != "" {
+		e += "; " + r
+	}
+	return e
 }

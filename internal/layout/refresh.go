@@ -33,23 +33,37 @@ func TableBytes(cols []schema.Column, tableRows int64, parts []Partition, segmen
 	return b
 }
 
-// RefreshPeak is the memory a full refresh of a model needs at its peak, the one place
-// this formula lives: the old copy of the model stays online while the new copy is
-// built (2 x its encoded size, modelBytes), and each of the parallelism partitions
-// processed at once holds one segment of uncompressed rows, segmentRows x rowBytes
-// (rowBytes: the widest row of the model, since any table may be the one in flight):
+// RefreshPeak is the memory a full refresh of a model needs at its peak: RebuildPeak
+// with every table rebuilt (rebuiltBytes = modelBytes) and parallelism partitions in
+// flight:
 //
 //	peak = 2 x modelBytes + parallelism x segmentRows x rowBytes
-//
-// Parallelism below 1 counts as 1; negative or non-finite inputs count as 0, so the
-// result is finite.
 func RefreshPeak(modelBytes float64, parallelism int, segmentRows int64, rowBytes float64) float64 {
-	if !(modelBytes > 0) || math.IsInf(modelBytes, 0) {
-		modelBytes = 0
+	return RebuildPeak(modelBytes, modelBytes, parallelism, segmentRows, rowBytes)
+}
+
+// RebuildPeak is the memory a refresh needs at its peak, the one place this formula
+// lives: the model stays online (modelBytes, its encoded size) while the new copy of
+// what the refresh rebuilds is built beside it (rebuiltBytes: the whole model for a
+// full refresh, the recent partitions for a routine one), and each of the inFlight
+// partitions processed at once holds one segment of uncompressed rows, segmentRows x
+// rowBytes (rowBytes: the widest row of the model, since any table may be the one in
+// flight):
+//
+//	peak = modelBytes + rebuiltBytes + inFlight x segmentRows x rowBytes
+//
+// inFlight below 1 counts as 1; negative or non-finite inputs count as 0, so the result
+// is finite.
+func RebuildPeak(modelBytes, rebuiltBytes float64, inFlight int, segmentRows int64, rowBytes float64) float64 {
+	modelBytes, rebuiltBytes, rowBytes = finite(modelBytes), finite(rebuiltBytes), finite(rowBytes)
+	rows := float64(float64(max(inFlight, 1)) * float64(max(segmentRows, 0)))
+	return float64(modelBytes+rebuiltBytes) + float64(rows*rowBytes)
+}
+
+// finite is x, or 0 when x is negative, NaN or infinite.
+func finite(x float64) float64 {
+	if !(x > 0) || math.IsInf(x, 0) {
+		return 0
 	}
-	if !(rowBytes > 0) || math.IsInf(rowBytes, 0) {
-		rowBytes = 0
-	}
-	inFlight := float64(float64(max(parallelism, 1)) * float64(max(segmentRows, 0)))
-	return float64(2*modelBytes) + float64(inFlight*rowBytes)
+	return x
 }

@@ -9,6 +9,7 @@ import (
 
 	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/escape"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -77,6 +78,36 @@ type jsonTable struct {
 	WidestColumn         string   `json:"widest_column,omitempty"`
 	ScanWallMs           *float64 `json:"scan_wall_ms,omitempty"`
 	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
+
+	Refresh jsonRefresh `json:"refresh"`
+}
+
+// jsonRefresh is what a full and the routine refresh of a table rebuild; Routine is
+// null when the table declares none (every refresh is then a full one).
+type jsonRefresh struct {
+	Full    jsonRebuild  `json:"full"`
+	Routine *jsonRebuild `json:"routine"`
+}
+
+type jsonRebuild struct {
+	Partitions int      `json:"partitions"`
+	Rows       int64    `json:"rows"`
+	Days       *float64 `json:"days,omitempty"`
+	Seconds    float64  `json:"seconds"`
+	PeakBytes  *float64 `json:"model_peak_bytes,omitempty"`
+}
+
+func rebuildJSON(r layout.Rebuild, peak *float64) jsonRebuild {
+	j := jsonRebuild{Partitions: r.Partitions, Rows: r.Rows, Seconds: round(r.Seconds)}
+	if r.Days > 0 {
+		d := round(r.Days)
+		j.Days = &d
+	}
+	if peak != nil {
+		p := round(*peak)
+		j.PeakBytes = &p
+	}
+	return j
 }
 
 type jsonFinding struct {
@@ -172,6 +203,12 @@ func tableJSON(t *analysis.Table) jsonTable {
 	if t.Widest != nil {
 		wall := round(t.Scan.WallMs)
 		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
+	}
+	peaks := t.Peaks()
+	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
+	if t.RoutineDeclared() {
+		r := rebuildJSON(t.Routine, peaks.Routine)
+		jt.Refresh.Routine = &r
 	}
 	return jt
 }

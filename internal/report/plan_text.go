@@ -82,10 +82,40 @@ func renderPlan(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
 		}
 	}
 	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)
+	renderRefresh(b, p, now, e)
 
 	renderSweep(b, sw, e.SegmentRows)
 	renderRecommendation(b, p, now)
 	renderForecast(b, doc, p)
+}
+
+// renderRefresh writes what a full and (when declared) the routine refresh of the table
+// rebuild, how long each takes, and the model's peak during each.
+func renderRefresh(b *strings.Builder, p advisor.TablePlan, now *advisor.Candidate, e schema.Engine) {
+	sw := p.Sweep
+	par := e.RefreshWorkers()
+	fmt.Fprintf(b, "   refresh, %d %s at a time, %s rows a second each:\n", par, units.Plural(int64(par), "partition", "partitions"), units.Count(int64(e.RefreshRowsPerS)))
+	peak := func(v *float64) string {
+		if !sw.Profiled || v == nil {
+			return "-"
+		}
+		return units.Size(*v)
+	}
+	rows := [][]string{{"full", units.Num(int64(now.Full.Partitions)), units.Count(now.Full.Rows), units.Seconds(now.Full.Seconds), peak(&now.Peak)}}
+	if !sw.Window.Whole {
+		r := now.Routine
+		name := fmt.Sprintf("routine, last %s", units.Plural(int64(p.Spec.Routine.RecentPartitions), "partition", units.Num(int64(p.Spec.Routine.RecentPartitions))+" partitions"))
+		if d := int64(p.Spec.Routine.RecentDays); d > 0 {
+			name = fmt.Sprintf("routine, newest %s", units.Plural(d, "day", units.Num(d)+" days"))
+		}
+		rows = append(rows, []string{name, units.Num(int64(r.Partitions)), units.Count(r.Rows), units.Seconds(r.Seconds), peak(p.RoutinePeak)})
+	}
+	grid(b, "     ", []column{{head: "refresh", clip: true}, {head: "partitions", right: true}, {head: "rows", right: true}, {head: "time", right: true}, {head: "peak (model)", right: true}}, rows)
+}
+
+// rebuildWords is what one refresh rebuilds: "3 partitions, 12.3M rows, 4.11 s".
+func rebuildWords(r layout.Rebuild) string {
+	return fmt.Sprintf("%s %s, %s rows, %s", units.Num(int64(r.Partitions)), units.Plural(int64(r.Partitions), "partition", "partitions"), units.Count(r.Rows), units.Seconds(r.Seconds))
 }
 
 // msText writes a scan figure or budget with its unit. Each limit is written in its own
@@ -246,6 +276,13 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 		fmt.Fprintf(b, "   %-15s %s -> %s\n", "refresh peak", units.Size(now.Peak), units.Size(c.Peak))
 	}
 	fmt.Fprintf(b, "   %-15s %s -> %s\n", "partitions", units.Num(int64(now.Layout.Partitions)), units.Num(int64(c.Layout.Partitions)))
+	fmt.Fprintf(b, "   %-15s %s -> %s\n", "full refresh", units.Seconds(now.Full.Seconds), units.Seconds(c.Full.Seconds))
+	if !sw.Window.Whole {
+		para(b, "   ", fmt.Sprintf("%-15s %s -> %s", "routine refresh", rebuildWords(now.Routine), rebuildWords(c.Routine)))
+	}
+	if r := advisor.RoutineWords(now.Routine, c.Routine); r != "" {
+		para(b, "   ", r)
+	}
 	for _, miss := range c.Misses {
 		para(b, "   ", "still breaks: "+miss)
 	}

@@ -13,6 +13,7 @@ import (
 	"github.com/mattn/go-isatty"
 
 	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/internal/suggest"
 )
 
 // Destination is one requested report: a format and where it goes ("" is stdout).
@@ -44,6 +45,9 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 		name, path, _ := strings.Cut(f, "=")
 		format, ok := report.Lookup(name, k)
 		if !ok {
+			if near, ok := suggest.Nearest(name, report.Names(k)); ok {
+				return nil, fmt.Errorf("--format %q: unknown format; did you mean %s? Use one of %s", f, near, report.NameList(k))
+			}
 			return nil, fmt.Errorf("--format %q: unknown format; use one of %s", f, report.NameList(k))
 		}
 		if strings.Contains(f, "=") && path == "" {

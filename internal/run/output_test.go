@@ -34,6 +34,10 @@ func TestParseFormats(t *testing.T) {
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
 		{report.PlanReport, []string{"json"}, "", "use one of text, svg"},
+		// A typo one or two letters off names the format meant (internal/suggest).
+		{report.CheckReport, []string{"jsn"}, "", `--format "jsn": unknown format; did you mean json? Use one of text, github, json, junit, markdown, sarif`},
+		{report.CheckReport, []string{"makdown=r.md"}, "", `--format "makdown=r.md": unknown format; did you mean markdown?`},
+		{report.CheckReport, []string{"pdf"}, "", `--format "pdf": unknown format; use one of`},
 	} {
 		if _, err := ParseFormats(c.kind, c.formats, c.output, nil); err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%v %v %q: err %v, want %q", c.kind, c.formats, c.output, err, c.want)

@@ -172,3 +172,15 @@ func Capacity(n int64) string {
 	}
 	return Count(n)
 }
+
+// Seconds writes a duration: 4.1 s below a minute, 25 min below an hour, then 1.5 h.
+func Seconds(x float64) string {
+	a := math.Abs(x)
+	switch {
+	case a < 60 || math.IsNaN(a) || math.IsInf(a, 0):
+		return Short(x) + " s"
+	case a < 3600:
+		return Short(x/60) + " min"
+	}
+	return Short(x/3600) + " h"
+}

@@ -131,3 +131,15 @@ func TestIntConversions(t *testing.T) {
 		}
 	}
 }
+
+func TestSeconds(t *testing.T) {
+	// 1 min = 60 s, 1 h = 3,600 s (SI accepted units).
+	for _, c := range []struct {
+		s    float64
+		want string
+	}{{4.10959, "4.11 s"}, {59.9, "59.9 s"}, {60, "1 min"}, {1496, "24.9 min"}, {5400, "1.5 h"}, {-90, "-1.5 min"}} {
+		if got := Seconds(c.s); got != c.want {
+			t.Errorf("Seconds(%v) = %q, want %q", c.s, got, c.want)
+		}
+	}
+}
