@@ -8,8 +8,10 @@ import (
 
 type edit func(d *Doc) error
 
-func set(text string, path ...Step) edit { return func(d *Doc) error { return d.SetText(text, path...) } }
-func del(path ...Step) edit              { return func(d *Doc) error { return d.Delete(path...) } }
+func set(text string, path ...Step) edit {
+	return func(d *Doc) error { return d.SetText(text, path...) }
+}
+func del(path ...Step) edit { return func(d *Doc) error { return d.Delete(path...) } }
 func appendItem(text string, path ...Step) edit {
 	return func(d *Doc) error {
 		v, err := Parsed(text)
