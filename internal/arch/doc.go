@@ -16,7 +16,7 @@ var Layers = [][]string{
 	{"internal/analysis"},                    // one analysis per model
 	{"rules"},                                // the rule engine and one file per rule
 	{"internal/baseline", "internal/change"}, // accepted debt; diff's comparison
-	{"internal/report"},                      // the format registry and every format
+	{"internal/report", "internal/adopt"},    // the format registry and every format; recommendations written into manifests
 	{"internal/run"},                         // the driver
 	{"cmd/scangate", "bench/cmd/decodeonly", "bench/cmd/gen", "bench/cmd/measure"}, // commands and tools
 }

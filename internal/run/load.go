@@ -38,9 +38,18 @@ func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limit
 	if err == nil {
 		return m, nil
 	}
+	if !printSchemaProblems(stderr, err) {
+		return nil, fmt.Errorf("%s: %v", in.name, err)
+	}
+	return nil, fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name)
+}
+
+// printSchemaProblems prints a *schema.Error's problems in check's style, each at its
+// line and column; false for any other error, which it leaves unprinted.
+func printSchemaProblems(stderr io.Writer, err error) bool {
 	var se *schema.Error
 	if !errors.As(err, &se) {
-		return nil, fmt.Errorf("%s: %v", in.name, err)
+		return false
 	}
 	for _, f := range rules.SchemaFindings(se) {
 		loc := escape.Text(f.File)
@@ -49,7 +58,7 @@ func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limit
 		}
 		fmt.Fprint(stderr, escape.Log(fmt.Sprintf("%s: error: %s [%s]\n", loc, escape.Text(f.Message), escape.Text(f.Rule))))
 	}
-	return nil, fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name)
+	return true
 }
 
 // PickTables is every table of m, or the one name names.

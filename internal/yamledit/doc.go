@@ -91,7 +91,19 @@ func (d *Doc) Bytes() []byte {
 func (d *Doc) Root() *yaml.Node { return d.root }
 
 // Changes are the regions edited so far, in source order.
-func (d *Doc) Changes() []Change { return append([]Change(nil), d.change...) }
+// Offsets count the byte order mark.
+func (d *Doc) Changes() []Change {
+	out := append([]Change(nil), d.change...)
+	if d.bom {
+		for i := range out {
+			for j := range 2 {
+				out[i].Old[j] += len(bomBytes)
+				out[i].New[j] += len(bomBytes)
+			}
+		}
+	}
+	return out
+}
 
 func (d *Doc) reparse() error {
 	var root *yaml.Node

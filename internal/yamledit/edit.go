@@ -271,7 +271,7 @@ func (d *Doc) replacement(s slot, v *yaml.Node, text string) (start, end int, re
 		j, err := d.jsonText(v, multi, indentAt(d.src, lineStartOf(d.src, sp.start)))
 		return sp.start, sp.end, j, err
 	}
-	if oldBlock && isBlock(v) && v.Style&yaml.FlowStyle == 0 {
+	if oldBlock && blockish(v) {
 		// The first line goes where the old entries began; the rest at their column.
 		col := sp.start - lineStartOf(d.src, sp.start)
 		lines := d.reindent(v, text, col)
@@ -364,7 +364,7 @@ func (d *Doc) addKey(s slot, key string, v *yaml.Node, text string, path []Step)
 	at := d.lineEnd(sp.end)
 	var b strings.Builder
 	b.WriteString(d.nl + strings.Repeat(" ", col) + inline(k) + ":")
-	if isBlock(v) {
+	if blockish(v) {
 		step := d.unit
 		if v.Kind == yaml.SequenceNode && !d.seqIn {
 			step = 0
@@ -443,7 +443,7 @@ func (d *Doc) Append(v *yaml.Node, path ...Step) error {
 	col := dash - lineStartOf(d.src, dash)
 	at := d.lineEnd(d.spans[last].end)
 	var text string
-	if isBlock(v) {
+	if blockish(v) {
 		lines := d.blockLines(v, col+2)
 		lines[0] = strings.Repeat(" ", col) + "- " + lines[0][col+2:]
 		text = strings.Join(lines, d.nl)

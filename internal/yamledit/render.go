@@ -86,7 +86,7 @@ func (d *Doc) blockLines(n *yaml.Node, ind int) []string {
 	case yaml.MappingNode:
 		for i := 0; i+1 < len(n.Content); i += 2 {
 			k, v := inline(n.Content[i]), n.Content[i+1]
-			if !isBlock(v) {
+			if !blockish(v) {
 				out = append(out, pad+k+": "+inline(v))
 				continue
 			}
@@ -99,7 +99,7 @@ func (d *Doc) blockLines(n *yaml.Node, ind int) []string {
 		}
 	case yaml.SequenceNode:
 		for _, c := range n.Content {
-			if !isBlock(c) {
+			if !blockish(c) {
 				out = append(out, pad+"- "+inline(c))
 				continue
 			}
@@ -117,6 +117,12 @@ func isBlock(n *yaml.Node) bool {
 		n = n.Alias
 	}
 	return (n.Kind == yaml.MappingNode || n.Kind == yaml.SequenceNode) && len(n.Content) > 0
+}
+
+// blockish is a collection with entries that is not marked for flow style: it is
+// written in block style where its place allows.
+func blockish(n *yaml.Node) bool {
+	return isBlock(n) && deref(n).Style&yaml.FlowStyle == 0
 }
 
 // jsonText renders n as JSON: on one line, or with multi set one entry a line, nested

@@ -1,0 +1,449 @@
+// Package adopt writes tables' recommendations (internal/analysis) into their manifest's
+// source: only the keys a recommendation changes are rewritten, through internal/yamledit,
+// so comments, key order and formatting elsewhere stay as they were. Pure: bytes in,
+// bytes out; the driver reads and writes the files.
+package adopt
+
+import (
+	"bytes"
+	"fmt"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
+
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
+	"github.com/scangate/scangate/internal/escape"
+	"github.com/scangate/scangate/internal/units"
+	"github.com/scangate/scangate/internal/yamledit"
+	"github.com/scangate/scangate/schema"
+)
+
+// Options are what a manifest is loaded and analysed with, as check does.
+type Options struct {
+	Limits  schema.Limits
+	Project *schema.ProjectConfig // nil without a project config
+	Levels  advisor.Levels        // the rules' warning levels (rules.Config.Levels)
+	Table   string                // adopt only this table; "" for every table
+}
+
+// Outcome is what adopting did to one table.
+type Outcome struct {
+	Table   string
+	Adopted bool
+	Fits    bool     // the layout adopted fits every budget; false: it was only the closest
+	Hint    string   // the recommendation in check's words; "" when there is none
+	Edits   []string // the keys rewritten, with the line they were at: "partitions.count (line 13)"
+	Notes   []string // what else the reader must know (a profile overridden, a change left for later)
+	// Candidate is the layout adopted, nil when nothing was.
+	Candidate *advisor.Candidate
+}
+
+// Result is one manifest before and after.
+type Result struct {
+	File          string
+	Before, After []byte
+	Tables        []Outcome
+	// Changes are the regions rewritten: Old in Before, New in After; the bytes around
+	// them are the same in both.
+	Changes []yamledit.Change
+}
+
+// Changed reports whether the manifest's bytes change.
+func (r *Result) Changed() bool { return !bytes.Equal(r.Before, r.After) }
+
+// File adopts the recommendations of the manifest file (named name, holding data). A
+// manifest that breaks its schema returns the loader's *schema.Error; one whose keys
+// cannot be rewritten in place (under an alias, say) returns an error naming the
+// line, and nothing changes.
+//
+// engine.segment_rows is one setting for the whole model, so a recommendation that
+// changes it is adopted first, and the other tables' recommendations are then taken
+// from the model analysed again with the new segment size: every recommendation adopted
+// is the one check prints for the model it lands in. A second change of the segment
+// size in the same run is left for the next run.
+func File(name string, data []byte, o Options) (*Result, error) {
+	res := &Result{File: name, Before: data, After: data}
+	m, err := schema.LoadWith(name, data, schema.Options{Limits: o.Limits, Project: o.Project})
+	if err != nil {
+		return nil, err
+	}
+	doc, err := yamledit.Parse(data, isJSON(name))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %v", name, err)
+	}
+	picked, err := pick(m, o.Table)
+	if err != nil {
+		return nil, err
+	}
+	md := analysis.Analyze(m, o.Levels)
+	recs := recommendations(md, picked)
+	done := map[string]bool{}
+	// The engine change first, alone.
+	for _, name := range picked {
+		r, ok := recs[name]
+		if !ok || !r.Candidate.Engine {
+			continue
+		}
+		out, err := apply(doc, m, name, r)
+		if err != nil {
+			return nil, err
+		}
+		res.Tables = append(res.Tables, out)
+		done[name] = true
+		if m, err = reload(res.File, doc, o); err != nil {
+			return nil, err
+		}
+		recs = recommendations(analysis.Analyze(m, o.Levels), picked)
+		break
+	}
+	for _, tn := range picked {
+		if done[tn] {
+			continue
+		}
+		r, ok := recs[tn]
+		switch {
+		case !ok:
+			res.Tables = append(res.Tables, Outcome{Table: tn})
+		case r.Candidate.Engine && len(done) > 0:
+			res.Tables = append(res.Tables, Outcome{Table: tn, Hint: r.Hint(), Notes: []string{
+				"not adopted: it changes engine.segment_rows again, after the change above; run adopt again to take it from the model as it then is"}})
+		default:
+			out, err := apply(doc, m, tn, r)
+			if err != nil {
+				return nil, err
+			}
+			res.Tables = append(res.Tables, out)
+		}
+	}
+	res.After, res.Changes = doc.Bytes(), doc.Changes()
+	if res.Changed() {
+		if err := verify(res, o); err != nil {
+			return nil, err
+		}
+	}
+	return res, nil
+}
+
+func isJSON(file string) bool { return strings.EqualFold(filepath.Ext(file), ".json") }
+
+// pick is the names of the tables to adopt, in manifest order.
+func pick(m *schema.Manifest, only string) ([]string, error) {
+	var names []string
+	for _, t := range m.Tables {
+		if only == "" || t.Name == only {
+			names = append(names, t.Name)
+		}
+	}
+	if len(names) == 0 && only != "" {
+		all := make([]string, len(m.Tables))
+		for i, t := range m.Tables {
+			all[i] = t.Name
+		}
+		return nil, &NoTable{File: m.File, Table: only, Has: all}
+	}
+	return names, nil
+}
+
+// NoTable is --table naming a table the manifest does not declare.
+type NoTable struct {
+	File, Table string
+	Has         []string
+}
+
+func (e *NoTable) Error() string {
+	return fmt.Sprintf("--table %s: %s has no such table; it has %s", escape.Text(strconv.Quote(e.Table)), escape.Text(e.File), escape.Text(strings.Join(e.Has, ", ")))
+}
+
+// recommendations are the picked tables' recommendations by table name.
+func recommendations(md *analysis.Model, picked []string) map[string]analysis.Recommendation {
+	want := map[string]bool{}
+	for _, n := range picked {
+		want[n] = true
+	}
+	out := map[string]analysis.Recommendation{}
+	for _, t := range md.Tables {
+		if !want[t.Spec.Name] {
+			continue
+		}
+		if r, ok := t.Recommended(); ok {
+			out[t.Spec.Name] = r
+		}
+	}
+	return out
+}
+
+// reload reads the edited document as the loader does, with the same config.
+func reload(name string, doc *yamledit.Doc, o Options) (*schema.Manifest, error) {
+	m, err := schema.LoadWith(name, doc.Bytes(), schema.Options{Limits: o.Limits, Project: o.Project})
+	if err != nil {
+		return nil, fmt.Errorf("%s: the manifest with the recommendation written in no longer loads (%v); nothing was written", name, err)
+	}
+	return m, nil
+}
+
+// verify loads the result and checks that each adopted table now reads as its
+// candidate: the partition policy, and the engine's segment size.
+func verify(res *Result, o Options) error {
+	m, err := schema.LoadWith(res.File, res.After, schema.Options{Limits: o.Limits, Project: o.Project})
+	if err != nil {
+		return fmt.Errorf("%s: the manifest with the recommendations written in no longer loads (%v); nothing was written", res.File, err)
+	}
+	for _, out := range res.Tables {
+		c := out.Candidate
+		if c == nil {
+			continue
+		}
+		var got *schema.Table
+		for i := range m.Tables {
+			if m.Tables[i].Name == out.Table {
+				got = &m.Tables[i]
+			}
+		}
+		if got == nil || !samePolicy(got.Partitions, c.Spec.Partitions) {
+			return fmt.Errorf("%s: table %s does not read back as the recommended layout; nothing was written", res.File, out.Table)
+		}
+	}
+	return nil
+}
+
+// samePolicy compares two partition policies, positions aside.
+func samePolicy(a, b schema.Partitions) bool {
+	if a.Scheme != b.Scheme || a.Count != b.Count || len(a.Tiers) != len(b.Tiers) || len(a.Items) != len(b.Items) {
+		return false
+	}
+	for i := range a.Tiers {
+		if a.Tiers[i].Grain != b.Tiers[i].Grain || a.Tiers[i].Keep != b.Tiers[i].Keep {
+			return false
+		}
+	}
+	for i := range a.Items {
+		if a.Items[i].Name != b.Items[i].Name || a.Items[i].Rows != b.Items[i].Rows {
+			return false
+		}
+	}
+	return true
+}
+
+// apply writes one table's recommendation into doc.
+func apply(doc *yamledit.Doc, m *schema.Manifest, table string, r analysis.Recommendation) (Outcome, error) {
+	c := r.Candidate
+	out := Outcome{Table: table, Adopted: true, Fits: r.Fits, Hint: r.Hint(), Candidate: c}
+	var spec schema.Table
+	for _, t := range m.Tables {
+		if t.Name == table {
+			spec = t
+		}
+	}
+	tp := []yamledit.Step{yamledit.Key("tables"), yamledit.Where(fmt.Sprintf("table %q", table), yamledit.Field("name", table))}
+	e := &editor{doc: doc, file: m.File}
+	if !samePolicy(spec.Partitions, c.Spec.Partitions) {
+		if err := e.partitions(append(tp, yamledit.Key("partitions")), spec.Partitions, c.Spec.Partitions); err != nil {
+			return out, err
+		}
+	}
+	if c.Engine {
+		note, err := e.segmentRows(m.Engine, c.SegmentRows)
+		if err != nil {
+			return out, err
+		}
+		if note != "" {
+			out.Notes = append(out.Notes, note)
+		}
+	}
+	out.Edits = e.edits
+	return out, nil
+}
+
+// editor rewrites keys and remembers which, with the line each was at.
+type editor struct {
+	doc   *yamledit.Doc
+	file  string
+	edits []string
+}
+
+func (e *editor) fail(err error) error {
+	return fmt.Errorf("%s:%v; nothing was written", e.file, err)
+}
+
+func (e *editor) note(key string, path []yamledit.Step) {
+	line := 0
+	if n, err := e.doc.Find(path...); err == nil && n != nil {
+		line = n.Line
+	} else if n, err := e.doc.Find(path[:len(path)-1]...); err == nil && n != nil {
+		line = n.Line
+	}
+	e.edits = append(e.edits, fmt.Sprintf("%s (line %d)", key, line))
+}
+
+// partitions rewrites a table's policy from old to new: the one key that differs when
+// the scheme stays (count, tiers, items: tiers and items item by item where they can),
+// the whole policy when the scheme changes.
+func (e *editor) partitions(pp []yamledit.Step, old, new schema.Partitions) error {
+	at := func(k string) []yamledit.Step { return append(append([]yamledit.Step(nil), pp...), yamledit.Key(k)) }
+	var err error
+	switch {
+	case old.Scheme != new.Scheme:
+		e.note("partitions", pp)
+		err = e.doc.Set(e.policyNode(pp, new), pp...)
+	case new.Scheme == schema.SchemeEven:
+		e.note("partitions.count", at("count"))
+		err = e.doc.SetScalar(new.Count, at("count")...)
+	case new.Scheme == schema.SchemeTime:
+		e.note("partitions.tiers", at("tiers"))
+		err = e.sequence(at("tiers"), len(old.Tiers), len(new.Tiers), func(i, j int) bool {
+			return old.Tiers[i].Grain == new.Tiers[j].Grain && old.Tiers[i].Keep == new.Tiers[j].Keep
+		}, func(j int) *yaml.Node { return tierNode(new.Tiers[j]) })
+	case new.Scheme == schema.SchemeList:
+		e.note("partitions.items", at("items"))
+		words := e.wordy(append(at("items"), yamledit.Index(0), yamledit.Key("rows")))
+		err = e.sequence(at("items"), len(old.Items), len(new.Items), func(i, j int) bool {
+			return old.Items[i].Name == new.Items[j].Name && old.Items[i].Rows == new.Items[j].Rows
+		}, func(j int) *yaml.Node { return itemNode(new.Items[j], words) })
+	}
+	if err != nil {
+		return e.fail(err)
+	}
+	return nil
+}
+
+// sequence rewrites the items of the sequence at path from n old to m new ones: the
+// common first and last items stay, the ones between are set in place, the surplus
+// removed or, at the end, appended; otherwise the whole sequence is set.
+func (e *editor) sequence(path []yamledit.Step, n, m int, same func(i, j int) bool, item func(j int) *yaml.Node) error {
+	pre := 0
+	for pre < n && pre < m && same(pre, pre) {
+		pre++
+	}
+	suf := 0
+	for suf < n-pre && suf < m-pre && same(n-1-suf, m-1-suf) {
+		suf++
+	}
+	oldMid, newMid := n-pre-suf, m-pre-suf
+	idx := func(i int) []yamledit.Step { return append(append([]yamledit.Step(nil), path...), yamledit.Index(i)) }
+	// New items are written in the style of the first old one: on one line in braces,
+	// or a key a line.
+	if first, err := e.doc.Find(idx(0)...); err == nil && first != nil && first.Style&yaml.FlowStyle == 0 {
+		flowItem := item
+		item = func(j int) *yaml.Node {
+			it := flowItem(j)
+			it.Style &^= yaml.FlowStyle
+			return it
+		}
+	}
+	if newMid > oldMid && suf > 0 {
+		whole := &yaml.Node{Kind: yaml.SequenceNode, Tag: "!!seq"}
+		for j := 0; j < m; j++ {
+			whole.Content = append(whole.Content, item(j))
+		}
+		return e.doc.Set(whole, path...)
+	}
+	for k := 0; k < min(oldMid, newMid); k++ {
+		if err := e.doc.Set(item(pre+k), idx(pre+k)...); err != nil {
+			return err
+		}
+	}
+	for k := newMid; k < oldMid; k++ { // surplus old items: the first surplus index, again and again
+		if err := e.doc.Delete(idx(pre + newMid)...); err != nil {
+			return err
+		}
+	}
+	for k := oldMid; k < newMid; k++ {
+		if err := e.doc.Append(item(pre+k), path...); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// policyNode is a whole partition policy, its counts in the manifest's style.
+func (e *editor) policyNode(pp []yamledit.Step, p schema.Partitions) *yaml.Node {
+	n := mapping("scheme", yamledit.Scalar(string(p.Scheme)))
+	switch p.Scheme {
+	case schema.SchemeEven:
+		n.Content = append(n.Content, key("count"), yamledit.Scalar(p.Count))
+	case schema.SchemeTime:
+		s := &yaml.Node{Kind: yaml.SequenceNode, Tag: "!!seq"}
+		for _, t := range p.Tiers {
+			s.Content = append(s.Content, tierNode(t))
+		}
+		n.Content = append(n.Content, key("tiers"), s)
+	case schema.SchemeList:
+		words := e.wordy(append(append([]yamledit.Step(nil), pp...), yamledit.Key("items"), yamledit.Index(0), yamledit.Key("rows")))
+		s := &yaml.Node{Kind: yaml.SequenceNode, Tag: "!!seq"}
+		for _, it := range p.Items {
+			s.Content = append(s.Content, itemNode(it, words))
+		}
+		n.Content = append(n.Content, key("items"), s)
+	}
+	return n
+}
+
+// wordy reports whether the count at path is written as a word ("8Mi"), so a new count
+// beside it is written alike.
+func (e *editor) wordy(path []yamledit.Step) bool {
+	n, err := e.doc.Find(path...)
+	return err == nil && n != nil && n.Kind == yaml.ScalarNode && n.Tag == "!!str"
+}
+
+// segmentRows sets engine.segment_rows. When the size came from an engine profile of
+// the project config, the manifest gets a segment_rows of its own, which overrides the
+// profile for this model alone: the profile is shared by other manifests, and the
+// recommendation was worked out for this one.
+func (e *editor) segmentRows(eng schema.Engine, rows int64) (string, error) {
+	path := []yamledit.Step{yamledit.Key("engine"), yamledit.Key("segment_rows")}
+	own, err := e.doc.Find(path...)
+	if err != nil {
+		return "", e.fail(err)
+	}
+	words := own == nil || (own.Kind == yaml.ScalarNode && own.Tag == "!!str")
+	e.note("engine.segment_rows", path)
+	if err := e.doc.Set(countNode(rows, words), path...); err != nil {
+		return "", e.fail(err)
+	}
+	note := "engine.segment_rows is one setting for the whole model: every table of it now has segments of " + units.Capacity(rows) + " rows"
+	if own == nil && eng.Profile != "" {
+		note += fmt.Sprintf("; the manifest now sets it itself, overriding engine profile %q (%s) for this model only: the profile is left as it is, since other manifests may share it",
+			eng.Profile, units.Capacity(eng.SegmentRows))
+	}
+	return note, nil
+}
+
+func key(k string) *yaml.Node { return &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!str", Value: k} }
+
+func mapping(kv ...any) *yaml.Node {
+	n := &yaml.Node{Kind: yaml.MappingNode, Tag: "!!map"}
+	for i := 0; i+1 < len(kv); i += 2 {
+		n.Content = append(n.Content, key(kv[i].(string)), kv[i+1].(*yaml.Node))
+	}
+	return n
+}
+
+// flowMapping is a mapping written on one line, as manifests write tiers and items.
+func flowMapping(kv ...any) *yaml.Node {
+	n := mapping(kv...)
+	n.Style = yaml.FlowStyle
+	return n
+}
+
+func tierNode(t schema.Tier) *yaml.Node {
+	return flowMapping("grain", yamledit.Scalar(string(t.Grain)), "keep", yamledit.Scalar(t.Keep))
+}
+
+func itemNode(it schema.Item, words bool) *yaml.Node {
+	return flowMapping("name", yamledit.Scalar(it.Name), "rows", countNode(it.Rows, words))
+}
+
+// countNode is a count as a word (8Mi, 185M) when words and a word says it exactly,
+// else as a number.
+func countNode(n int64, words bool) *yaml.Node {
+	if words {
+		w := units.Capacity(n)
+		if v, err := schema.ParseCount(w); err == nil && v == n {
+			return yamledit.Scalar(w)
+		}
+	}
+	return yamledit.Scalar(n)
+}
