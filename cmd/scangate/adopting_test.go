@@ -197,3 +197,20 @@ func TestAdoptRefuses(t *testing.T) {
 		})
 	}
 }
+
+// The README's adopt excerpt is what the command it shows prints.
+func TestReadmeAdoptExcerpt(t *testing.T) {
+	const cmd = "$ scangate adopt --dry-run testdata/demo/network-assets.yaml\n"
+	readme := read(t, filepath.Join(root(t), "README.md"))
+	i := strings.Index(readme, cmd)
+	if i < 0 {
+		t.Fatalf("README.md lacks %q", cmd)
+	}
+	shown := readme[i+len(cmd):]
+	shown = shown[:strings.Index(shown, "```")]
+	r := scangate(t, root(t), "", nil, "adopt", "--dry-run", "testdata/demo/network-assets.yaml")
+	wantCode(t, r, 0)
+	if r.stdout != shown {
+		t.Errorf("README.md's adopt excerpt differs from the output; paste this in its place:\n%s", r.stdout)
+	}
+}

@@ -293,15 +293,11 @@ func (e *editor) partitions(pp []yamledit.Step, old, new schema.Partitions) erro
 		err = e.doc.SetScalar(new.Count, at("count")...)
 	case new.Scheme == schema.SchemeTime:
 		e.note("partitions.tiers", at("tiers"))
-		err = e.sequence(at("tiers"), len(old.Tiers), len(new.Tiers), func(i, j int) bool {
-			return old.Tiers[i].Grain == new.Tiers[j].Grain && old.Tiers[i].Keep == new.Tiers[j].Keep
-		}, func(j int) *yaml.Node { return tierNode(new.Tiers[j]) })
+		err = e.sequence(at("tiers"), len(new.Tiers), tierOps(old.Tiers, new.Tiers), func(j int) *yaml.Node { return tierNode(new.Tiers[j]) })
 	case new.Scheme == schema.SchemeList:
 		e.note("partitions.items", at("items"))
 		words := e.wordy(append(at("items"), yamledit.Index(0), yamledit.Key("rows")))
-		err = e.sequence(at("items"), len(old.Items), len(new.Items), func(i, j int) bool {
-			return old.Items[i].Name == new.Items[j].Name && old.Items[i].Rows == new.Items[j].Rows
-		}, func(j int) *yaml.Node { return itemNode(new.Items[j], words) })
+		err = e.sequence(at("items"), len(new.Items), itemOps(old.Items, new.Items), func(j int) *yaml.Node { return itemNode(new.Items[j], words) })
 	}
 	if err != nil {
 		return e.fail(err)
@@ -309,19 +305,17 @@ func (e *editor) partitions(pp []yamledit.Step, old, new schema.Partitions) erro
 	return nil
 }
 
-// sequence rewrites the items of the sequence at path from n old to m new ones: the
-// common first and last items stay, the ones between are set in place, the surplus
-// removed or, at the end, appended; otherwise the whole sequence is set.
-func (e *editor) sequence(path []yamledit.Step, n, m int, same func(i, j int) bool, item func(j int) *yaml.Node) error {
-	pre := 0
-	for pre < n && pre < m && same(pre, pre) {
-		pre++
-	}
-	suf := 0
-	for suf < n-pre && suf < m-pre && same(n-1-suf, m-1-suf) {
-		suf++
-	}
-	oldMid, newMid := n-pre-suf, m-pre-suf
+// maxItemEdits bounds the edits of one sequence: each edit reads the document again,
+// so past it the sequence is written whole, in one edit, and the cost stays linear.
+const maxItemEdits = 16
+
+// seqOp sets the old item at index at to the new item j and removes the del old items
+// after it; j < 0 appends the new item -j-1 at the end.
+type seqOp struct{ at, del, j int }
+
+// sequence rewrites the sequence at path from n old items to m new ones by ops (which
+// align them: items kept are left as written), or whole when ops is nil or long.
+func (e *editor) sequence(path []yamledit.Step, m int, ops []seqOp, item func(j int) *yaml.Node) error {
 	idx := func(i int) []yamledit.Step { return append(append([]yamledit.Step(nil), path...), yamledit.Index(i)) }
 	// New items are written in the style of the first old one: on one line in braces,
 	// or a key a line.
@@ -333,29 +327,101 @@ func (e *editor) sequence(path []yamledit.Step, n, m int, same func(i, j int) bo
 			return it
 		}
 	}
-	if newMid > oldMid && suf > 0 {
+	if ops == nil || len(ops) > maxItemEdits {
 		whole := &yaml.Node{Kind: yaml.SequenceNode, Tag: "!!seq"}
 		for j := 0; j < m; j++ {
 			whole.Content = append(whole.Content, item(j))
 		}
 		return e.doc.Set(whole, path...)
 	}
-	for k := 0; k < min(oldMid, newMid); k++ {
-		if err := e.doc.Set(item(pre+k), idx(pre+k)...); err != nil {
+	// From the last to the first, so the indexes of the ones still to do hold.
+	for k := len(ops) - 1; k >= 0; k-- {
+		op := ops[k]
+		if op.j < 0 {
+			continue
+		}
+		for range op.del {
+			if err := e.doc.Delete(idx(op.at + 1)...); err != nil {
+				return err
+			}
+		}
+		if err := e.doc.Set(item(op.j), idx(op.at)...); err != nil {
 			return err
 		}
 	}
-	for k := newMid; k < oldMid; k++ { // surplus old items: the first surplus index, again and again
-		if err := e.doc.Delete(idx(pre + newMid)...); err != nil {
-			return err
-		}
-	}
-	for k := oldMid; k < newMid; k++ {
-		if err := e.doc.Append(item(pre+k), path...); err != nil {
-			return err
+	for _, op := range ops {
+		if op.j < 0 {
+			if err := e.doc.Append(item(-op.j-1), path...); err != nil {
+				return err
+			}
 		}
 	}
 	return nil
+}
+
+// tierOps aligns tiers as the advisor changes them (MergeTiers): a run in the middle
+// becomes one tier, or a window and one tier; the tiers before and after stay. nil when
+// the change is not of that shape.
+func tierOps(old, new []schema.Tier) []seqOp {
+	same := func(i, j int) bool { return old[i].Grain == new[j].Grain && old[i].Keep == new[j].Keep }
+	n, m := len(old), len(new)
+	pre := 0
+	for pre < n && pre < m && same(pre, pre) {
+		pre++
+	}
+	suf := 0
+	for suf < n-pre && suf < m-pre && same(n-1-suf, m-1-suf) {
+		suf++
+	}
+	oldMid, newMid := n-pre-suf, m-pre-suf
+	var ops []seqOp
+	switch {
+	case newMid == 0 || (newMid > oldMid && suf > 0):
+		return nil
+	case newMid <= oldMid:
+		for k := 0; k < newMid; k++ {
+			ops = append(ops, seqOp{at: pre + k, j: pre + k})
+		}
+		ops[len(ops)-1].del = oldMid - newMid
+	default: // more tiers at the end
+		for k := 0; k < oldMid; k++ {
+			ops = append(ops, seqOp{at: pre + k, j: pre + k})
+		}
+		for k := oldMid; k < newMid; k++ {
+			ops = append(ops, seqOp{j: -(pre + k) - 1})
+		}
+	}
+	return ops
+}
+
+// itemOps aligns listed partitions as the advisor merges them: each new item is an old
+// one kept, or a run of neighbouring old ones merged (names joined by "+", rows added).
+// nil when the change is not of that shape. Linear in the items.
+func itemOps(old, new []schema.Item) []seqOp {
+	ops := []seqOp{}
+	i := 0
+	for j, it := range new {
+		if i < len(old) && old[i].Name == it.Name && old[i].Rows == it.Rows {
+			i++
+			continue
+		}
+		start, name, rows := i, "", int64(0)
+		for i < len(old) && rows < it.Rows {
+			if name != "" {
+				name += "+"
+			}
+			name, rows = name+old[i].Name, rows+old[i].Rows
+			i++
+		}
+		if name != it.Name || rows != it.Rows {
+			return nil
+		}
+		ops = append(ops, seqOp{at: start, del: i - start - 1, j: j})
+	}
+	if i != len(old) {
+		return nil
+	}
+	return ops
 }
 
 // policyNode is a whole partition policy, its counts in the manifest's style.
