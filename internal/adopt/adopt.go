@@ -80,25 +80,34 @@ func File(name string, data []byte, o Options) (*Result, error) {
 	}
 	md := analysis.Analyze(m, o.Levels)
 	recs := recommendations(md, picked)
+	index := tableIndex(m)
 	done := map[string]bool{}
 	// The engine change first, alone.
-	for _, name := range picked {
-		r, ok := recs[name]
+	for _, tn := range picked {
+		r, ok := recs[tn]
 		if !ok || !r.Candidate.Engine {
 			continue
 		}
-		out, err := apply(doc, m, name, r)
+		doc.Batch()
+		out, err := apply(doc, m, index[tn], r)
+		if err == nil {
+			err = doc.Commit()
+		}
 		if err != nil {
-			return nil, err
+			return nil, commitError(m.File, err)
 		}
 		res.Tables = append(res.Tables, out)
-		done[name] = true
+		done[tn] = true
 		if m, err = reload(res.File, doc, o); err != nil {
 			return nil, err
 		}
+		index = tableIndex(m)
 		recs = recommendations(analysis.Analyze(m, o.Levels), picked)
 		break
 	}
+	// The others in one batch: each edit works out its text against the document as it
+	// is now, and the document is read back once, so the cost stays linear in tables.
+	doc.Batch()
 	for _, tn := range picked {
 		if done[tn] {
 			continue
@@ -111,12 +120,16 @@ func File(name string, data []byte, o Options) (*Result, error) {
 			res.Tables = append(res.Tables, Outcome{Table: tn, Hint: r.Hint(), Notes: []string{
 				"not adopted: it changes engine.segment_rows again, after the change above; run adopt again to take it from the model as it then is"}})
 		default:
-			out, err := apply(doc, m, tn, r)
+			out, err := apply(doc, m, index[tn], r)
 			if err != nil {
+				doc.Commit() // nothing of it is kept: the result is never used
 				return nil, err
 			}
 			res.Tables = append(res.Tables, out)
 		}
+	}
+	if err := doc.Commit(); err != nil {
+		return nil, commitError(m.File, err)
 	}
 	res.After, res.Changes = doc.Bytes(), doc.Changes()
 	if res.Changed() {
@@ -125,6 +138,13 @@ func File(name string, data []byte, o Options) (*Result, error) {
 		}
 	}
 	return res, nil
+}
+
+func commitError(file string, err error) error {
+	if _, ok := err.(*yamledit.Error); ok {
+		return fmt.Errorf("%s: %v; nothing was written", file, err)
+	}
+	return err
 }
 
 func isJSON(file string) bool { return strings.EqualFold(filepath.Ext(file), ".json") }
@@ -169,9 +189,14 @@ func recommendations(md *analysis.Model, picked []string) map[string]analysis.Re
 			continue
 		}
 		if r, ok := t.Recommended(); ok {
+			c := *r.Candidate // a copy: the sweep it points into is dropped below
+			r.Candidate = &c
 			out[t.Spec.Name] = r
 		}
+		// One table's sweep at a time: a model of many tables never holds them all.
+		t.Settle()
 	}
+	md.Settle()
 	return out
 }
 
@@ -191,18 +216,14 @@ func verify(res *Result, o Options) error {
 	if err != nil {
 		return fmt.Errorf("%s: the manifest with the recommendations written in no longer loads (%v); nothing was written", res.File, err)
 	}
+	index := tableIndex(m)
 	for _, out := range res.Tables {
 		c := out.Candidate
 		if c == nil {
 			continue
 		}
-		var got *schema.Table
-		for i := range m.Tables {
-			if m.Tables[i].Name == out.Table {
-				got = &m.Tables[i]
-			}
-		}
-		if got == nil || !samePolicy(got.Partitions, c.Spec.Partitions) {
+		i, ok := index[out.Table]
+		if !ok || !samePolicy(m.Tables[i].Partitions, c.Spec.Partitions) || (c.Engine && m.Engine.SegmentRows != c.SegmentRows) {
 			return fmt.Errorf("%s: table %s does not read back as the recommended layout; nothing was written", res.File, out.Table)
 		}
 	}
@@ -227,17 +248,22 @@ func samePolicy(a, b schema.Partitions) bool {
 	return true
 }
 
-// apply writes one table's recommendation into doc.
-func apply(doc *yamledit.Doc, m *schema.Manifest, table string, r analysis.Recommendation) (Outcome, error) {
-	c := r.Candidate
-	out := Outcome{Table: table, Adopted: true, Fits: r.Fits, Hint: r.Hint(), Candidate: c}
-	var spec schema.Table
-	for _, t := range m.Tables {
-		if t.Name == table {
-			spec = t
-		}
+// tableIndex is each table's place in the manifest, by name (names are unique).
+func tableIndex(m *schema.Manifest) map[string]int {
+	out := make(map[string]int, len(m.Tables))
+	for i, t := range m.Tables {
+		out[t.Name] = i
 	}
-	tp := []yamledit.Step{yamledit.Key("tables"), yamledit.Where(fmt.Sprintf("table %q", table), yamledit.Field("name", table))}
+	return out
+}
+
+// apply writes one table's recommendation into doc.
+func apply(doc *yamledit.Doc, m *schema.Manifest, i int, r analysis.Recommendation) (Outcome, error) {
+	c := r.Candidate
+	spec := m.Tables[i]
+	table := spec.Name
+	out := Outcome{Table: table, Adopted: true, Fits: r.Fits, Hint: r.Hint(), Candidate: c}
+	tp := []yamledit.Step{yamledit.Key("tables"), yamledit.Index(i).Named(fmt.Sprintf("table %q", table))}
 	e := &editor{doc: doc, file: m.File}
 	if !samePolicy(spec.Partitions, c.Spec.Partitions) {
 		if err := e.partitions(append(tp, yamledit.Key("partitions")), spec.Partitions, c.Spec.Partitions); err != nil {
@@ -334,14 +360,13 @@ func (e *editor) sequence(path []yamledit.Step, m int, ops []seqOp, item func(j 
 		}
 		return e.doc.Set(whole, path...)
 	}
-	// From the last to the first, so the indexes of the ones still to do hold.
-	for k := len(ops) - 1; k >= 0; k-- {
-		op := ops[k]
+	// In a batch every index is the document's as it was.
+	for _, op := range ops {
 		if op.j < 0 {
 			continue
 		}
-		for range op.del {
-			if err := e.doc.Delete(idx(op.at + 1)...); err != nil {
+		for k := range op.del {
+			if err := e.doc.Delete(idx(op.at + 1 + k)...); err != nil {
 				return err
 			}
 		}

@@ -112,3 +112,25 @@ func TestManyMergesWriteTheListWhole(t *testing.T) {
 		t.Fatalf("changed %v in %d places:\n%s", r.Changed(), len(r.Changes), r.Diff())
 	}
 }
+
+// BenchmarkAdoptTables adopts a recommendation in every table of a manifest of 1,000
+// and of 4,000 tables: the time per table should stay flat (one parse per batch).
+func BenchmarkAdoptTables(b *testing.B) {
+	for _, n := range []int{1000, 4000} {
+		var sb strings.Builder
+		sb.WriteString("format: 1\nmodel: big\nengine: {segment_rows: 8Mi}\ntables:\n")
+		for i := range n {
+			fmt.Fprintf(&sb, "  - name: t%d # table %d\n    rows: 40M\n    partitions: {scheme: even, count: 64}\n", i, i)
+		}
+		src := []byte(sb.String())
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			for b.Loop() {
+				r, err := File("big.yaml", src, Options{Limits: schema.DefaultLimits, Levels: advisor.DefaultLevels})
+				if err != nil || !r.Changed() {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(n), "ns/table")
+		})
+	}
+}

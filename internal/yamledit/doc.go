@@ -49,9 +49,12 @@ type Doc struct {
 	root   *yaml.Node
 	spans  map[*yaml.Node]span
 	uses   map[*yaml.Node][]*yaml.Node // anchored node -> the aliases of it
+	lines  []int                       // offset of each line's start
 	unit   int                         // indentation step of nested blocks
 	seqIn  bool                        // block sequences under a key are indented by unit
 	change []Change
+	batch   bool
+	pending []pending
 }
 
 // span is a node's text: [start, end) bytes of src, the anchor and tag included; block
@@ -117,7 +120,7 @@ func (d *Doc) reparse() error {
 	if err != nil {
 		return err
 	}
-	d.root, d.spans = root, spans
+	d.root, d.spans, d.lines = root, spans, lineStarts(d.src)
 	d.uses = map[*yaml.Node][]*yaml.Node{}
 	walk(root, func(n *yaml.Node) {
 		if n.Kind == yaml.AliasNode && n.Alias != nil {
@@ -139,7 +142,11 @@ func walk(n *yaml.Node, f func(*yaml.Node)) {
 
 // splice replaces src[start:end] with text, records the change, parses the result and
 // checks it with ok; on any failure the document is left as it was.
-func (d *Doc) splice(start, end int, text string, ok func() error) error {
+func (d *Doc) splice(start, end int, text string, ok func() error, eff effect) error {
+	if d.batch {
+		d.pending = append(d.pending, pending{start: start, end: end, text: text, eff: eff, seq: len(d.pending)})
+		return nil
+	}
 	old, oldChanges := d.src, d.change
 	next := make([]byte, 0, len(old)-(end-start)+len(text))
 	next = append(append(append(next, old[:start]...), text...), old[end:]...)

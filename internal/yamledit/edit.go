@@ -2,6 +2,7 @@ package yamledit
 
 import (
 	"fmt"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -29,6 +30,12 @@ func Key(k string) Step { return Step{key: k, kind: byKey, what: strconv.Quote(k
 
 // Index steps to a sequence item by position.
 func Index(i int) Step { return Step{index: i, kind: byIndex, what: "item " + strconv.Itoa(i)} }
+
+// Named is the step with another name in messages: Index(3).Named(`table "orders"`).
+func (s Step) Named(what string) Step {
+	s.what = what
+	return s
+}
 
 // Where steps to the first sequence item match accepts; what names it in messages.
 func Where(what string, match func(item *yaml.Node) bool) Step {
@@ -73,6 +80,7 @@ type slot struct {
 	value  *yaml.Node
 	at     int // index in parent.Content of the value (or item); -1 when absent
 	name   string
+	keys   []any // the path as map keys (string) and sequence indexes (int)
 }
 
 // Find is the node at path, nil without an error when only the last key is absent.
@@ -99,6 +107,7 @@ func (d *Doc) resolve(path []Step) (slot, error) {
 	}
 	cur := d.root
 	var s slot
+	var keys []any
 	for i, st := range path {
 		if err := d.editable(cur, pathWords(path[:i])); err != nil {
 			return slot{}, err
@@ -114,6 +123,7 @@ func (d *Doc) resolve(path []Step) (slot, error) {
 					s.key, s.value, s.at = k, cur.Content[j+1], j+1
 				}
 			}
+			keys = append(keys, st.key)
 			if s.value == nil && i < len(path)-1 {
 				if merged := lookup(mergedOnly(cur), st.key); merged != nil {
 					return slot{}, errAt(merged, "%s comes from a merge key (<<); write it out in this mapping before editing inside it", s.name)
@@ -124,18 +134,23 @@ func (d *Doc) resolve(path []Step) (slot, error) {
 			if cur.Kind != yaml.SequenceNode {
 				return slot{}, errAt(cur, "%s is not a sequence, so it has no %s", orTop(pathWords(path[:i])), st.what)
 			}
+			if st.kind == byIndex && st.index >= 0 && st.index < len(cur.Content) {
+				s.value, s.at = cur.Content[st.index], st.index
+			}
 			for j, item := range cur.Content {
-				if (st.kind == byIndex && j == st.index) || (st.kind == byMatch && st.match(deref(item))) {
+				if st.kind == byMatch && st.match(deref(item)) {
 					s.value, s.at = item, j
 					break
 				}
 			}
+			keys = append(keys, s.at)
 			if s.value == nil && i < len(path)-1 {
 				return slot{}, errAt(cur, "%s has no %s", orTop(pathWords(path[:i])), st.what)
 			}
 		}
 		cur = s.value
 	}
+	s.keys = keys
 	return s, nil
 }
 
@@ -246,7 +261,7 @@ func (d *Doc) set(v *yaml.Node, text string, path []Step) error {
 	if err != nil {
 		return err
 	}
-	return d.splice(start, end, repl, d.expect(path, v))
+	return d.splice(start, end, repl, d.expect(path, v), effect{keys: s.keys, v: v})
 }
 
 // expect checks, after a splice, that path reads v.
@@ -330,7 +345,7 @@ func (d *Doc) colonAfter(key *yaml.Node) int {
 }
 
 func (d *Doc) lineOf(p int) int {
-	return strings.Count(string(d.src[:p]), "\n")
+	return sort.SearchInts(d.lines, p+1)
 }
 
 // lineEnd is the offset of the line break ending p's line (before a CR), or the end.
@@ -352,9 +367,9 @@ func (d *Doc) addKey(s slot, key string, v *yaml.Node, text string, path []Step)
 		return d.insertFlow(m, func(multi bool, ind int) (string, error) {
 			j, err := d.jsonText(v, multi, ind)
 			return kt + ": " + j, err
-		}, d.expect(path, v))
+		}, d.expect(path, v), effect{keys: s.keys, v: v})
 	case m.Style&yaml.FlowStyle != 0:
-		return d.insertFlow(m, func(bool, int) (string, error) { return inline(k) + ": " + inline(v), nil }, d.expect(path, v))
+		return d.insertFlow(m, func(bool, int) (string, error) { return inline(k) + ": " + inline(v), nil }, d.expect(path, v), effect{keys: s.keys, v: v})
 	}
 	if len(m.Content) == 0 {
 		return errAt(m, "an empty block mapping cannot be extended")
@@ -373,12 +388,12 @@ func (d *Doc) addKey(s slot, key string, v *yaml.Node, text string, path []Step)
 	} else {
 		b.WriteString(" " + inline(v))
 	}
-	return d.splice(at, at, b.String(), d.expect(path, v))
+	return d.splice(at, at, b.String(), d.expect(path, v), effect{keys: s.keys, v: v})
 }
 
 // insertFlow adds an entry at the end of a flow collection (or JSON one): after its last
 // entry, one a line when the collection spreads over lines.
-func (d *Doc) insertFlow(c *yaml.Node, entry func(multi bool, ind int) (string, error), ok func() error) error {
+func (d *Doc) insertFlow(c *yaml.Node, entry func(multi bool, ind int) (string, error), ok func() error, eff effect) error {
 	sp := d.spans[c]
 	closeAt := sp.end - 1
 	if len(c.Content) == 0 {
@@ -386,7 +401,7 @@ func (d *Doc) insertFlow(c *yaml.Node, entry func(multi bool, ind int) (string, 
 		if err != nil {
 			return err
 		}
-		return d.splice(closeAt, closeAt, text, ok)
+		return d.splice(closeAt, closeAt, text, ok, eff)
 	}
 	end := d.spans[c.Content[len(c.Content)-1]].end
 	multi := d.lineOf(d.spans[c.Content[0]].start) != d.lineOf(sp.start)
@@ -397,13 +412,13 @@ func (d *Doc) insertFlow(c *yaml.Node, entry func(multi bool, ind int) (string, 
 		if err != nil {
 			return err
 		}
-		return d.splice(end, end, ","+d.nl+strings.Repeat(" ", ind)+text, ok)
+		return d.splice(end, end, ","+d.nl+strings.Repeat(" ", ind)+text, ok, eff)
 	}
 	text, err := entry(false, 0)
 	if err != nil {
 		return err
 	}
-	return d.splice(end, end, ", "+text, ok)
+	return d.splice(end, end, ", "+text, ok, eff)
 }
 
 func btoi(b bool) int {
@@ -415,10 +430,11 @@ func btoi(b bool) int {
 
 // Append adds v as the last item of the sequence at path.
 func (d *Doc) Append(v *yaml.Node, path ...Step) error {
-	seq, err := d.Find(path...)
+	s, err := d.resolve(path)
 	if err != nil {
 		return err
 	}
+	seq := s.value
 	if seq == nil || seq.Kind != yaml.SequenceNode {
 		return errAt(seq, "%s is not a sequence", pathWords(path))
 	}
@@ -427,13 +443,14 @@ func (d *Doc) Append(v *yaml.Node, path ...Step) error {
 	}
 	n := len(seq.Content)
 	ok := d.expect(append(append([]Step(nil), path...), Index(n)), v)
+	eff := effect{keys: s.keys, v: v, add: true}
 	if d.json || seq.Style&yaml.FlowStyle != 0 {
 		return d.insertFlow(seq, func(multi bool, ind int) (string, error) {
 			if d.json {
 				return d.jsonText(v, multi, ind)
 			}
 			return inline(v), nil
-		}, ok)
+		}, ok, eff)
 	}
 	last := seq.Content[n-1]
 	dash := d.dashBefore(d.spans[last].start)
@@ -450,7 +467,7 @@ func (d *Doc) Append(v *yaml.Node, path ...Step) error {
 	} else {
 		text = strings.Repeat(" ", col) + "- " + inline(v)
 	}
-	return d.splice(at, at, d.nl+text, ok)
+	return d.splice(at, at, d.nl+text, ok, eff)
 }
 
 // dashBefore is the offset of the '-' that opens the block item starting at p, when only
@@ -550,7 +567,7 @@ func (d *Doc) Delete(path ...Step) error {
 			return &Error{Msg: fmt.Sprintf("removing %s would not read back as meant; the document is left as it was", s.name)}
 		}
 		return nil
-	})
+	}, effect{keys: s.keys, del: true})
 }
 
 // without is the parent of s as it reads with s's entry removed.

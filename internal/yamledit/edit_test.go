@@ -160,3 +160,44 @@ func TestMergedKeyOverride(t *testing.T) {
 		t.Fatalf("%q", got)
 	}
 }
+
+// In a batch every path refers to the document as it was: removing item 1 leaves item 2
+// at index 2; the edits land at once and are read back once.
+func TestBatch(t *testing.T) {
+	src := "a: [x, y, z]\nb:\n  - p\n  - q # q\n  - r\nc: {k: 1}\n"
+	d, err := Parse([]byte(src), false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d.Batch()
+	for _, e := range []error{
+		d.Delete(Key("b"), Index(1)),
+		d.SetScalar("R", Key("b"), Index(2)),
+		d.SetScalar(2, Key("c"), Key("k")),
+		d.SetScalar(3, Key("c"), Key("n")),
+		d.Append(Scalar("w"), Key("a")),
+		d.Delete(Key("a"), Index(0)),
+	} {
+		if e != nil {
+			t.Fatal(e)
+		}
+	}
+	if string(d.Bytes()) != src {
+		t.Fatal("a batch changed the document before Commit")
+	}
+	if err := d.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	want := "a: [y, z, w]\nb:\n  - p\n  - R\nc: {k: 2, n: 3}\n"
+	if got := string(d.Bytes()); got != want {
+		t.Fatalf("got\n%q\nwant\n%q", got, want)
+	}
+	checkOutside(t, []byte(src), d)
+	// Overlapping edits are refused, and nothing lands.
+	d.Batch()
+	d.SetScalar(1, Key("c"))
+	d.SetScalar(2, Key("c"), Key("k"))
+	if err := d.Commit(); err == nil || string(d.Bytes()) != want {
+		t.Fatalf("overlapping edits: %v\n%s", err, d.Bytes())
+	}
+}

@@ -159,6 +159,34 @@ func TestEveryEdit(t *testing.T) {
 		})
 	}
 	t.Logf("%d edits made, %d refused", done, refused)
+	batched := 0
+	for name, src := range corpus(t) {
+		isJSON := strings.Contains(name, ".json")
+		d, err := Parse(src, isJSON)
+		if err != nil {
+			continue
+		}
+		want := decoded(t, d)
+		d.Batch()
+		paths(d.Root(), nil, nil, func(p []Step, keys []any, _ bool) {
+			n, err := d.Find(p...)
+			if err != nil || n == nil || n.Kind != yaml.ScalarNode {
+				return
+			}
+			if d.SetScalar(int64(len(keys)), p...) == nil {
+				want = setAt(want, keys, len(keys), false)
+				batched++
+			}
+		})
+		if err := d.Commit(); err != nil {
+			t.Fatalf("%s: batch of every scalar: %v", name, err)
+		}
+		if got := decoded(t, d); !reflect.DeepEqual(got, want) {
+			t.Fatalf("%s: the batch reads\n%#v\nwant\n%#v\n%s", name, got, want, d.Bytes())
+		}
+		checkOutside(t, src, d)
+	}
+	t.Logf("%d scalars set in batches", batched)
 	if done < 1000 || refused > done/4 {
 		t.Fatalf("%d edits made, %d refused: the corpus or the editor lost its reach", done, refused)
 	}
