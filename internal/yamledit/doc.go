@@ -42,17 +42,17 @@ type Change struct {
 
 // Doc is a document being edited.
 type Doc struct {
-	src    []byte // without the byte order mark
-	bom    bool
-	json   bool
-	nl     string // the line break the document uses
-	root   *yaml.Node
-	spans  map[*yaml.Node]span
-	uses   map[*yaml.Node][]*yaml.Node // anchored node -> the aliases of it
-	lines  []int                       // offset of each line's start
-	unit   int                         // indentation step of nested blocks
-	seqIn  bool                        // block sequences under a key are indented by unit
-	change []Change
+	src     []byte // without the byte order mark
+	bom     bool
+	json    bool
+	nl      string // the line break the document uses
+	root    *yaml.Node
+	spans   map[*yaml.Node]span
+	uses    map[*yaml.Node][]*yaml.Node // anchored node -> the aliases of it
+	lines   []int                       // offset of each line's start
+	unit    int                         // indentation step of nested blocks
+	seqIn   bool                        // block sequences under a key are indented by unit
+	change  []Change
 	batch   bool
 	pending []pending
 }
