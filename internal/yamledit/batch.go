@@ -146,30 +146,9 @@ func at(v any, keys []any, f func(old any, present bool) (any, bool)) any {
 	switch c := v.(type) {
 	case map[string]any:
 		k, _ := keys[0].(string)
-		old, ok := c[k]
-		if last {
-			if n, keep := f(old, ok); keep {
-				c[k] = n
-			} else {
-				delete(c, k)
-			}
-		} else {
-			c[k] = at(old, keys[1:], f)
-		}
-		return c
+		return atKey(c, k, keys[1:], f)
 	case map[any]any:
-		k := keys[0]
-		old, ok := c[k]
-		if last {
-			if n, keep := f(old, ok); keep {
-				c[k] = n
-			} else {
-				delete(c, k)
-			}
-		} else {
-			c[k] = at(old, keys[1:], f)
-		}
-		return c
+		return atKey(c, keys[0], keys[1:], f)
 	case []any:
 		i, _ := keys[0].(int)
 		if i < 0 || i >= len(c) {
@@ -186,4 +165,17 @@ func at(v any, keys []any, f func(old any, present bool) (any, bool)) any {
 		return c
 	}
 	return v
+}
+
+// atKey is at for one key of a map: rest are the keys below it.
+func atKey[K comparable](c map[K]any, k K, rest []any, f func(old any, present bool) (any, bool)) map[K]any {
+	old, ok := c[k]
+	if len(rest) > 0 {
+		c[k] = at(old, rest, f)
+	} else if n, keep := f(old, ok); keep {
+		c[k] = n
+	} else {
+		delete(c, k)
+	}
+	return c
 }
