@@ -122,8 +122,7 @@ func File(name string, data []byte, o Options) (*Result, error) {
 		default:
 			out, err := apply(doc, m, index[tn], r)
 			if err != nil {
-				doc.Commit() // nothing of it is kept: the result is never used
-				return nil, err
+				return nil, err // the batch is dropped with the document
 			}
 			res.Tables = append(res.Tables, out)
 		}

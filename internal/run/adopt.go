@@ -40,12 +40,9 @@ func Adopt(paths []string, proj Project, cfg rules.Config, table string, limits 
 	inputs = OnlyManifests(inputs)
 	o := adopt.Options{Limits: limits, Project: proj.Config, Levels: cfg.Levels(), Table: table}
 	a := &Adoption{}
-	var missing []*adopt.NoTable
+	missing := 0
 	for _, in := range inputs {
-		data, err := readWritable(in.path, limits.MaxFileBytes)
-		if err == nil && len(data) > limits.MaxFileBytes {
-			err = fmt.Errorf("%s is larger than the limit of %d bytes; raise --max-file-size if it is meant to be this large", in.name, limits.MaxFileBytes)
-		}
+		data, err := readWritable(in.path, limits.MaxFileBytes) // the loader refuses one above the limit
 		if err != nil {
 			a.Errors = append(a.Errors, err)
 			continue
@@ -54,7 +51,7 @@ func Adopt(paths []string, proj Project, cfg rules.Config, table string, limits 
 		var none *adopt.NoTable
 		switch {
 		case errors.As(err, &none) && len(inputs) > 1:
-			missing = append(missing, none)
+			missing++
 			continue // --table over several files: the files without it are left alone
 		case err != nil:
 			a.Errors = append(a.Errors, err)
@@ -62,7 +59,7 @@ func Adopt(paths []string, proj Project, cfg rules.Config, table string, limits 
 		}
 		a.Results = append(a.Results, r)
 	}
-	if len(missing) > 0 && len(missing) == len(inputs) {
+	if missing > 0 && missing == len(inputs) {
 		return nil, fmt.Errorf("--table %q: none of the %d manifests has such a table", table, len(inputs))
 	}
 	return a, nil
