@@ -5,7 +5,10 @@ import (
 	"strings"
 	"testing"
 
+	"go.yaml.in/yaml/v3"
+
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/yamledit"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -100,16 +103,47 @@ func TestItemOps(t *testing.T) {
 }
 
 // A list merged in many places is written whole, in one edit, so adopting stays linear
-// in the items; it still reads as the recommendation.
+// in the items; in few places, item by item, the rest as written.
 func TestManyMergesWriteTheListWhole(t *testing.T) {
-	var b strings.Builder
-	b.WriteString("format: 1\nmodel: m\nengine: {segment_rows: 1Mi}\nbudgets: {scan_overhead_ms: 100}\ntables:\n  - name: t\n    partitions:\n      scheme: list\n      items:\n")
-	for i := range 1000 {
-		fmt.Fprintf(&b, "        - {name: p%d, rows: 600k}\n", i)
-	}
-	r := adoptText(t, "m.yaml", b.String(), "")
-	if !r.Changed() || len(r.Changes) != 2 {
-		t.Fatalf("changed %v in %d places:\n%s", r.Changed(), len(r.Changes), r.Diff())
+	for _, pairs := range []int{maxItemEdits + 4, 3} {
+		var b strings.Builder
+		b.WriteString("items:\n")
+		var old, merged []schema.Item
+		for i := range 40 {
+			fmt.Fprintf(&b, "  - {name: p%d, rows: 10} # p%d\n", i, i)
+			old = append(old, schema.Item{Name: fmt.Sprintf("p%d", i), Rows: 10})
+		}
+		for i := 0; i < 40; i += 2 {
+			if i/2 < pairs {
+				merged = append(merged, schema.Item{Name: old[i].Name + "+" + old[i+1].Name, Rows: 20})
+			} else {
+				merged = append(merged, old[i], old[i+1])
+			}
+		}
+		doc, err := yamledit.Parse([]byte(b.String()), false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := &editor{doc: doc, file: "m.yaml"}
+		doc.Batch()
+		ops := itemOps(old, merged)
+		if len(ops) != pairs {
+			t.Fatalf("%d ops for %d merges", len(ops), pairs)
+		}
+		if err := e.sequence([]yamledit.Step{yamledit.Key("items")}, len(merged), ops, func(j int) *yaml.Node { return itemNode(merged[j], false) }); err != nil {
+			t.Fatal(err)
+		}
+		if err := doc.Commit(); err != nil {
+			t.Fatal(err)
+		}
+		got := string(doc.Bytes())
+		whole := len(doc.Changes()) == 1
+		if whole != (pairs > maxItemEdits) {
+			t.Errorf("%d merges: %d changes:\n%s", pairs, len(doc.Changes()), got)
+		}
+		if !strings.Contains(got, "  - {name: p0+p1, rows: 20}") {
+			t.Errorf("%d merges:\n%s", pairs, got)
+		}
 	}
 }
 

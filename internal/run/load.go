@@ -38,18 +38,9 @@ func LoadOne(path string, stdin io.Reader, stderr io.Writer, limits schema.Limit
 	if err == nil {
 		return m, nil
 	}
-	if !printSchemaProblems(stderr, err) {
-		return nil, fmt.Errorf("%s: %v", in.name, err)
-	}
-	return nil, fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name)
-}
-
-// printSchemaProblems prints a *schema.Error's problems in check's style, each at its
-// line and column; false for any other error, which it leaves unprinted.
-func printSchemaProblems(stderr io.Writer, err error) bool {
 	var se *schema.Error
 	if !errors.As(err, &se) {
-		return false
+		return nil, fmt.Errorf("%s: %v", in.name, err)
 	}
 	for _, f := range rules.SchemaFindings(se) {
 		loc := escape.Text(f.File)
@@ -58,7 +49,7 @@ func printSchemaProblems(stderr io.Writer, err error) bool {
 		}
 		fmt.Fprint(stderr, escape.Log(fmt.Sprintf("%s: error: %s [%s]\n", loc, escape.Text(f.Message), escape.Text(f.Rule))))
 	}
-	return true
+	return nil, fmt.Errorf("%s breaks the manifest schema; fix the errors above and plan again", in.name)
 }
 
 // PickTables is every table of m, or the one name names.
