@@ -659,3 +659,39 @@ func TestExampleWorkflow(t *testing.T) {
 		t.Errorf("example.yml: checkout with fetch-depth 0 %v, ./action with paths, diff-base and upload-sarif %v; want both", checkout, action)
 	}
 }
+
+// TestReleaseRunsOnlyFirstPartyActions holds the release workflow to its promise: the job
+// that can write releases and packages runs no third-party action code, and the tools it
+// runs are pinned to exact versions.
+func TestReleaseRunsOnlyFirstPartyActions(t *testing.T) {
+	var wf struct {
+		Jobs map[string]struct {
+			Steps []struct {
+				Uses string `yaml:"uses"`
+				Run  string `yaml:"run"`
+			} `yaml:"steps"`
+		} `yaml:"jobs"`
+	}
+	if err := yaml.Unmarshal([]byte(readFile(t, filepath.Join(root, ".github", "workflows", "release.yml"))), &wf); err != nil {
+		t.Fatal(err)
+	}
+	installs := 0
+	for name, job := range wf.Jobs {
+		for _, s := range job.Steps {
+			if s.Uses != "" && !strings.HasPrefix(s.Uses, "actions/") {
+				t.Errorf("job %s uses %s: only first-party actions/* may run in the release job", name, s.Uses)
+			}
+			for _, line := range strings.Split(s.Run, "\n") {
+				if _, mod, ok := strings.Cut(line, "go install "); ok {
+					installs++
+					if _, v, _ := strings.Cut(mod, "@"); !regexp.MustCompile(`^v\d+\.\d+\.\d+$`).MatchString(strings.TrimSpace(v)) {
+						t.Errorf("job %s: %q is not pinned to an exact version", name, strings.TrimSpace(line))
+					}
+				}
+			}
+		}
+	}
+	if installs == 0 {
+		t.Error("the release job installs no tools: the test reads the wrong file or shape")
+	}
+}

@@ -24,7 +24,7 @@ var ScanTime = Rule{
 		"hint names the smallest layout change that fits and its effect.",
 	Params: []Param{scanWarnShare},
 	Check:  checkScanTime,
-	How:    "Each segment is a task of segment_overhead_ms plus its encoded bytes of the widest column at scan_mb_per_s; tasks are list-scheduled in partition order on cores cores and the estimate is the makespan. Encoded bytes come from the column profile (a per-segment dictionary plus bit-packed or run-length encoded indexes) or encoded_bytes.",
+	How:    "Each segment is a task of segment_overhead_ms plus its encoded bytes of the widest column at scan_mb_per_s; tasks are list-scheduled in partition order on cores cores and the estimate is the makespan. Encoded bytes come from the column profile (a per-segment dictionary plus bit-packed or run-length encoded indexes, or the plain values when those are smaller) or encoded_bytes.",
 	Bad: `engine: {segment_rows: 1Mi, cores: 4}
 budgets: {scan_ms: 1000}
 tables:
@@ -32,7 +32,7 @@ tables:
     rows: 2G
     partitions: {scheme: none}
     columns:
-      - {name: payload_id, type: int64}     # unique values: 8 bytes a row and more`,
+      - {name: payload_id, type: int64}     # unique values: written plain, 8 bytes a row`,
 	Good: `engine: {segment_rows: 1Mi, cores: 16}
 budgets: {scan_ms: 1000}
 tables:
@@ -40,7 +40,7 @@ tables:
     rows: 2G
     partitions: {scheme: none}
     columns:
-      - {name: payload_id, type: int64, order: sorted}`,
+      - {name: payload_kind, type: int64, distinct: 50k, order: sorted}   # sorted runs: bytes a segment`,
 }
 
 func init() { register(ScanTime) }

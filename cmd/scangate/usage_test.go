@@ -24,7 +24,7 @@ func TestCompletionShells(t *testing.T) {
 // Every embedded schema prints by name, manifest by default, and an unknown name lists
 // the ones there are.
 func TestSchemaNames(t *testing.T) {
-	for _, name := range []string{"manifest", "config", "output", "diff", "baseline"} {
+	for _, name := range []string{"manifest", "config", "output", "diff", "baseline", "calibration"} {
 		r := scangate(t, root(t), "", nil, "schema", name)
 		if r.code != 0 || !strings.Contains(r.stdout, `"$schema": "https://json-schema.org/draft/2020-12/schema"`) {
 			t.Errorf("schema %s: exit %d", name, r.code)
@@ -34,7 +34,7 @@ func TestSchemaNames(t *testing.T) {
 		t.Error("schema without a name is not the manifest schema")
 	}
 	r := scangate(t, root(t), "", nil, "schema", "nope")
-	if r.code != 2 || !strings.Contains(r.stderr, `unknown schema "nope"; use manifest, config, output, diff, baseline`) {
+	if r.code != 2 || !strings.Contains(r.stderr, `unknown schema "nope"; use manifest, config, output, diff, baseline, calibration`) {
 		t.Errorf("schema nope: exit %d, %q", r.code, r.stderr)
 	}
 }

@@ -5,10 +5,21 @@
 //
 // f is the fixed CPU per segment (engine.segment_overhead_ms), beta the CPU per encoded
 // byte (engine.scan_mb_per_s = 1 / (beta x 1000)), rho a CPU cost per row that the
-// manifest has no key for (it is reported so a team can see whether it matters). The
-// fit is non-negative least squares (Lawson and Hanson's active-set method) whose
-// steps are ordinary least-squares solves by QR, both from gonum. The package is pure:
-// it parses, fits and returns numbers; the command prints them.
+// manifest has no key for (it is reported so a team can see whether it matters).
+//
+// Before fitting, the design is checked term by term for what the measurements can
+// identify (identify.go): a term whose column the other columns, or a constant, explain
+// is dropped and the report says what absorbs it. The classic experiment (one table at
+// two segment sizes, several columns each) has the same rows in every scan, so rho x rows
+// is a constant there: rho is dropped and a per-scan constant takes its place, which
+// leaves f and beta free of it.
+//
+// The fit is non-negative least squares (Lawson and Hanson's active-set method) whose
+// steps are ordinary least-squares solves by QR, both from gonum. By default it is
+// weighted for relative noise (timing noise that grows with the scan): iteratively
+// reweighted least squares with weights 1/fitted², the quasi-likelihood fit of a
+// variance proportional to the mean squared. The package is pure: it parses, fits and
+// returns numbers; the command prints them.
 package calibrate
 
 // go generate ./... rewrites testdata/calibration/measurements.csv, the synthetic example.
@@ -26,17 +37,50 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
+// Noise says how the timing noise of a scan scales with it; it sets the fit's weights.
+type Noise string
+
+const (
+	// Relative noise grows with the scan (a 10 s scan varies by about as many percent as
+	// a 100 ms one): iteratively reweighted least squares, weights 1/fitted². The default.
+	Relative Noise = "relative"
+	// Absolute noise is the same number of milliseconds for every scan: equal weights.
+	Absolute Noise = "absolute"
+)
+
+// ParseNoise reads a --noise value.
+func ParseNoise(s string) (Noise, error) {
+	switch Noise(s) {
+	case Relative, Absolute:
+		return Noise(s), nil
+	}
+	return "", fmt.Errorf("unknown noise model %q; use relative (timing noise grows with the scan, the default) or absolute (the same ms for every scan)", s)
+}
+
 // Method names the fitting method, for output and docs.
-const Method = "non-negative least squares (Lawson–Hanson active set), each step an ordinary least-squares solve by QR decomposition (gonum)"
+func Method(n Noise) string {
+	const nnls = "non-negative least squares (Lawson–Hanson active set), each step an ordinary least-squares solve by QR decomposition (gonum)"
+	if n == Absolute {
+		return nnls + ", equal weights (absolute noise)"
+	}
+	return nnls + ", iteratively reweighted by 1/fitted² (relative noise)"
+}
+
+// Options are the choices of a fit.
+type Options struct {
+	Noise Noise // "" is Relative
+}
 
 // Constant is one fitted constant.
 type Constant struct {
-	Symbol  string // f, rho, beta
-	Column  string // the CSV column it multiplies
-	Unit    string // ms per segment, ms per row, ms per byte
+	Symbol  string // f, rho, beta, c
+	Column  string // the CSV column it multiplies ("" for the per-scan constant)
+	Unit    string // ms per segment, ms per row, ms per byte, ms per scan
 	Value   float64
-	StdErr  float64 // NaN when held at zero
+	StdErr  float64 // NaN when held at zero or dropped
 	AtBound bool    // the unconstrained fit wants it below zero; held at 0
+	Dropped bool    // the measurements cannot identify it: not fitted, Value 0
+	Why     string  // for a dropped term: why, and which fitted terms absorb it
 }
 
 // Residual is one measurement's misfit.
@@ -47,14 +91,20 @@ type Residual struct {
 
 // Result is a calibration.
 type Result struct {
-	N         int // measurements
-	Segment   Constant
-	Row       Constant
-	Byte      Constant
-	R2        float64 // uncentered: the model has no intercept
-	Sigma     float64 // residual standard deviation, ms
+	N       int // measurements
+	Noise   Noise
+	Segment Constant
+	Row     Constant
+	Byte    Constant
+	// PerScan is c, a fixed cost per scan, fitted only when a dropped term is one: when
+	// every scan read the same rows, rho x rows is c. nil otherwise.
+	PerScan *Constant
+	R2      float64 // on the ms scale; uncentered unless PerScan is fitted
+	// Sigma is the residual standard deviation in the fit's scale: ms (absolute noise)
+	// or a fraction of the fitted time (relative noise).
+	Sigma     float64
 	DF        int
-	Worst     []Residual // the largest misfits, largest first (at most 3)
+	Worst     []Residual // the largest misfits in the fit's scale, largest first (at most 3)
 	Residuals []Residual // every measurement, in file order
 
 	// The engine block, derived from the constants.
@@ -80,12 +130,20 @@ const minMeasurements = 4
 
 // Calibrate parses the CSV read from r (named file in errors) and fits it. Errors are
 // *InputError (the CSV, with its line and column) or *Refusal (the data).
-func Calibrate(file string, r io.Reader) (*Result, error) {
+func Calibrate(file string, r io.Reader, opt Options) (*Result, error) {
 	ms, hasWall, hasCores, err := Parse(file, r)
 	if err != nil {
 		return nil, err
 	}
-	res, err := Fit(ms)
+	if opt.noise() == Relative {
+		for _, m := range ms {
+			if !(m.CPUMs > 0) {
+				return nil, &InputError{File: file, Line: m.Line, Col: m.CPUCol,
+					Msg: "cpu_ms is 0: the relative-error fit weighs each scan by 1/time², so every time must be above 0; remove the row, or fit with --noise absolute"}
+			}
+		}
+	}
+	res, err := Fit(ms, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -98,86 +156,157 @@ func Calibrate(file string, r io.Reader) (*Result, error) {
 	return res, nil
 }
 
-// names of the constants, in the column order of the design.
-var constants = [3]Constant{
-	{Symbol: "f", Column: "segments", Unit: "ms per segment"},
-	{Symbol: "rho", Column: "rows", Unit: "ms per row"},
-	{Symbol: "beta", Column: "bytes", Unit: "ms per byte"},
+func (o Options) noise() Noise {
+	if o.Noise == "" {
+		return Relative
+	}
+	return o.Noise
 }
 
-// Fit fits cpu_ms = f x segments + rho x rows + beta x bytes to the measurements.
-func Fit(ms []Measurement) (*Result, error) {
+// Fit fits cpu_ms = f x segments + rho x rows + beta x bytes to the measurements,
+// dropping the terms they cannot identify.
+func Fit(ms []Measurement, opt Options) (*Result, error) {
+	noise := opt.noise()
 	if len(ms) < minMeasurements {
 		return nil, &Refusal{fmt.Sprintf("only %d %s: fitting 3 constants (f, rho, beta) and their errors needs at least %d full scans (a dozen or more, of different tables and layouts, gives useful errors)",
 			len(ms), plural(len(ms), "measurement", "measurements"), minMeasurements)}
 	}
-	cols := [3]func(Measurement) float64{
-		func(m Measurement) float64 { return m.Segments },
-		func(m Measurement) float64 { return m.Rows },
-		func(m Measurement) float64 { return m.Bytes },
-	}
-	advice := [3]string{
-		"measure scans of tables with different segment counts (other partition layouts or segment sizes)",
-		"measure scans of tables with different row counts",
-		"measure scans of columns of different encoded sizes",
-	}
-	// A column that never varies only adds a constant, which the model cannot tell
-	// apart from the other terms (or from a fixed cost per scan it does not have).
-	for j, get := range cols {
-		first := get(ms[0])
-		same := true
-		for _, m := range ms[1:] {
-			same = same && get(m) == first
-		}
-		if same {
-			return nil, &Refusal{fmt.Sprintf("every measurement has %s = %s, so the cost per %s (%s) cannot be told apart from a fixed cost per scan; %s",
-				constants[j].Column, trim(first), strings.TrimSuffix(constants[j].Column, "s"), constants[j].Symbol, advice[j])}
+	if noise == Relative {
+		for _, m := range ms {
+			if !(m.CPUMs > 0) {
+				return nil, &Refusal{fmt.Sprintf("line %d has cpu_ms 0: the relative-error fit needs every time above 0; remove the row, or fit with --noise absolute", m.Line)}
+			}
 		}
 	}
-	x := mat.NewDense(len(ms), 3, nil)
+	x := designOf(ms)
+	d, err := decide(ms, x)
+	if err != nil {
+		return nil, err
+	}
 	y := make([]float64, len(ms))
 	for i, m := range ms {
-		for j, get := range cols {
-			x.Set(i, j, get(m))
-		}
 		y[i] = m.CPUMs
 	}
-	fit, err := NonNegativeLeastSquares(x, y)
+	sub := columnsOf(x, d.fit)
+	fit, fitted, err := solve(sub, y, noise)
 	if re := (*RankError)(nil); errors.As(err, &re) {
 		var names []string
-		for _, j := range re.Columns {
-			names = append(names, fmt.Sprintf("%s (%s)", constants[j].Column, constants[j].Symbol))
+		for _, k := range re.Columns {
+			names = append(names, terms[d.fit[k]].what())
 		}
-		return nil, &Refusal{fmt.Sprintf("the measurements cannot tell apart the costs of %s: across the measurements these columns move together (condition number %.3g), so any mix of their constants fits as well; add scans where they vary independently, e.g. the same rows at another segment size (segments against rows) or columns of other widths (bytes against rows)",
-			strings.Join(names, " and "), re.Cond)}
+		return nil, &Refusal{fmt.Sprintf("the measurements cannot tell apart the costs of %s: the weighted design is singular (condition number %.3g); add scans where they vary independently", strings.Join(names, " and "), re.Cond)}
 	}
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{N: len(ms), R2: fit.R2, Sigma: fit.Sigma, DF: fit.DF}
-	cs := constants
-	for j := range cs {
-		cs[j].Value, cs[j].StdErr, cs[j].AtBound = fit.Coef[j], fit.StdErr[j], fit.AtBound[j]
+	res := &Result{N: len(ms), Noise: noise, Sigma: fit.Sigma, DF: fit.DF}
+	cs := map[int]*Constant{}
+	for k := range terms {
+		c := terms[k].constant()
+		cs[k] = &c
 	}
-	res.Segment, res.Row, res.Byte = cs[0], cs[1], cs[2]
-	for _, c := range []Constant{res.Segment, res.Byte} {
-		if c.AtBound || !(c.Value > 0) {
-			return nil, &Refusal{fmt.Sprintf("the fit wants %s, the cost per %s, at zero or below: the measurements do not show CPU growing with %s, so no engine value can be derived; check the %s column, and measure scans that differ in it more widely",
-				c.Symbol, strings.TrimSuffix(c.Column, "s"), c.Column, c.Column)}
+	for k, j := range d.fit {
+		c := cs[j]
+		c.Value, c.StdErr, c.AtBound = fit.Coef[k], fit.StdErr[k], fit.AtBound[k]
+	}
+	for j, why := range d.dropped {
+		c := cs[j]
+		c.Dropped, c.Why, c.StdErr = true, why, math.NaN()
+	}
+	res.Segment, res.Row, res.Byte = *cs[tSeg], *cs[tRows], *cs[tBytes]
+	if slices.Contains(d.fit, tConst) {
+		res.PerScan = cs[tConst]
+	}
+	// f and beta make the engine block: both must be above zero.
+	for _, j := range []int{tSeg, tBytes} {
+		if c := cs[j]; c.AtBound || !(c.Value > 0) {
+			return nil, atZero(x, d.fit, j, y, fitted, noise)
 		}
 	}
 	res.SegmentOverheadMs = res.Segment.Value
 	res.ScanMBPerS = 1 / (res.Byte.Value * 1000)
 	res.ScanMBPerSErr = res.ScanMBPerS * res.Byte.StdErr / res.Byte.Value
+	res.R2 = rSquared(y, fitted, res.PerScan != nil)
 	for i, m := range ms {
-		res.Residuals = append(res.Residuals, Residual{Line: m.Line, Measured: m.CPUMs, Fitted: m.CPUMs - fit.Residuals[i]})
+		res.Residuals = append(res.Residuals, Residual{Line: m.Line, Measured: m.CPUMs, Fitted: fitted[i]})
+	}
+	scale := func(r Residual) float64 {
+		e := r.Measured - r.Fitted
+		if noise == Relative {
+			e /= r.Fitted
+		}
+		return math.Abs(e)
 	}
 	worst := slices.Clone(res.Residuals)
-	sort.SliceStable(worst, func(a, b int) bool {
-		return math.Abs(worst[a].Measured-worst[a].Fitted) > math.Abs(worst[b].Measured-worst[b].Fitted)
-	})
+	sort.SliceStable(worst, func(a, b int) bool { return scale(worst[a]) > scale(worst[b]) })
 	res.Worst = worst[:min(3, len(worst))]
 	return res, nil
+}
+
+// atZero is the refusal for f or beta held at zero: when the term's column moves
+// almost together with another, say so, since the data then cannot split the time
+// between them; otherwise the measurements do not show the cost at all.
+func atZero(x *mat.Dense, fit []int, j int, y, fitted []float64, noise Noise) error {
+	t := terms[j]
+	w := make([]float64, len(y))
+	for i := range w {
+		w[i] = 1
+		if noise == Relative {
+			w[i] = 1 / math.Max(fitted[i], y[i]*1e-6)
+		}
+	}
+	var others []int
+	for _, k := range fit {
+		if k != j {
+			others = append(others, k)
+		}
+	}
+	share, coef := independentShare(x, w, j, others)
+	if share < collinearShare && len(others) > 0 {
+		best := 0
+		for k := range coef {
+			if math.Abs(coef[k]) > math.Abs(coef[best]) {
+				best = k
+			}
+		}
+		with := terms[others[best]]
+		tied := fmt.Sprintf("%s moved almost together with %s across the measurements", t.col, with.col)
+		if with.col == "" {
+			tied = fmt.Sprintf("%s hardly varied across the measurements", t.col)
+		}
+		return &Refusal{fmt.Sprintf("the fit puts %s, the cost per %s, at zero: %s (only %.2g%% of the %s column is independent of the other terms), so the data cannot tell the CPU per %s from the CPU per %s and gave the time to %s; %s",
+			t.sym, t.unitWord, tied, 100*share, t.col, t.unitWord, with.unitWord, with.sym, separateAdvice)}
+	}
+	return &Refusal{fmt.Sprintf("the fit wants %s, the cost per %s, at zero or below: the measurements do not show CPU growing with %s, so no engine value can be derived; check the %s column, and measure scans that differ in it more widely",
+		t.sym, t.unitWord, t.col, t.col)}
+}
+
+// separateAdvice says how to measure segments and bytes apart.
+const separateAdvice = "measure the same table at another segment size (segments change, bytes hardly) and columns of other widths (bytes change, segments do not)"
+
+// collinearShare is the independent share below which a column counts as moving
+// together with the others in a refusal's wording: its variance inflation is above 100.
+const collinearShare = 0.1
+
+// rSquared is 1 - RSS/TSS on the ms scale, about the mean when the fit has a constant
+// and about zero (uncentered, the convention of a fit through the origin) otherwise.
+func rSquared(y, fitted []float64, centered bool) float64 {
+	mean := 0.0
+	if centered {
+		for _, v := range y {
+			mean += v
+		}
+		mean /= float64(len(y))
+	}
+	var rss, tss float64
+	for i, v := range y {
+		rss += (v - fitted[i]) * (v - fitted[i])
+		tss += (v - mean) * (v - mean)
+	}
+	if !(tss > 0) {
+		return math.NaN()
+	}
+	return 1 - rss/tss
 }
 
 func sameCores(ms []Measurement) int {

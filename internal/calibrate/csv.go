@@ -19,6 +19,7 @@ type Measurement struct {
 	CPUMs    float64 // CPU milliseconds it burned, summed over cores
 	WallMs   float64 // wall-clock milliseconds; 0 without the wall_ms column
 	Cores    float64 // cores it ran on; 0 without the cores column
+	CPUCol   int     // column of the cpu_ms value in its line, for errors
 }
 
 // InputError is a problem with the CSV, at the line and column it was found.
@@ -130,7 +131,7 @@ func Parse(file string, r io.Reader) (ms []Measurement, hasWall, hasCores bool, 
 			case "bytes":
 				m.Bytes = v
 			case "cpu_ms":
-				m.CPUMs = v
+				m.CPUMs, m.CPUCol = v, col
 			case "wall_ms":
 				m.WallMs = v
 			case "cores":

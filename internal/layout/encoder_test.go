@@ -69,6 +69,36 @@ type (
 	}
 )
 
+// The same columns written plain, for the choice between the two encodings.
+type (
+	int64PlainRow struct {
+		V int64 `parquet:"v,plain"`
+	}
+	float64PlainRow struct {
+		V float64 `parquet:"v,plain"`
+	}
+	stringPlainRow struct {
+		V string `parquet:"v,plain"`
+	}
+	datePlainRow struct {
+		V int32 `parquet:"v,plain,date"`
+	}
+	datetimePlainRow struct {
+		V int64 `parquet:"v,plain,timestamp(microsecond)"`
+	}
+	boolPlainRow struct {
+		V bool `parquet:"v,plain"`
+	}
+)
+
+// choiceMargin is how far apart the encoder's two sizes (dictionary and plain) must be
+// for the estimate to be held to the encoder's choice: closer than 5%, either is fine.
+const choiceMargin = 0.05
+
+// plainShare is the share of the plain size from which a dictionary-encoded column is
+// also written plain: below it the dictionary wins by a factor of two and more.
+const plainShare = 0.5
+
 // stringLength is the length of every synthetic string value (avg_length).
 const stringLength = 12
 
@@ -114,7 +144,50 @@ type encResult struct {
 	dictEst, dictEnc float64
 	pagesWritten     int
 	overhead         int64 // page headers and the 1-byte bit width of each data page
+	// The choice: the plain estimate (layout.PlainBytes), the segments the estimate
+	// writes plain (layout.SegmentSize), and, when written plain too, the encoder's
+	// plain data pages.
+	plainEst       float64
+	plainSegs      int
+	plainWritten   bool
+	plainEnc       float64
+	plainPageBytes int64 // page headers of the plain file
+	// Segment by segment, for the first table drawn: the estimate's choice (plain or
+	// not) and the encoder's sizes of that row group, dictionary encoded and plain.
+	segPlain                []bool
+	segDictEnc, segPlainEnc []float64
 }
+
+// encoderPlainSegs counts the row groups whose plain encoding the encoder writes
+// smaller by more than choiceMargin, and those where the two are within it.
+func (r encResult) encoderPlainSegs() (plain, either int) {
+	for i, d := range r.segDictEnc {
+		p := r.segPlainEnc[i]
+		switch {
+		case math.Abs(d-p) <= choiceMargin*min(d, p):
+			either++
+		case p < d:
+			plain++
+		}
+	}
+	return plain, either
+}
+
+// choiceMisses counts the row groups where the estimate takes the encoding the encoder
+// writes larger (by more than choiceMargin).
+func (r encResult) choiceMisses() int {
+	n := 0
+	for i, d := range r.segDictEnc {
+		p := r.segPlainEnc[i]
+		if math.Abs(d-p) > choiceMargin*min(d, p) && (p < d) != r.segPlain[i] {
+			n++
+		}
+	}
+	return n
+}
+
+func (r encResult) dictEncTotal() float64 { return r.idxEnc + r.dictEnc }
+func (r encResult) dictEstTotal() float64 { return r.idxEst + r.dictEst }
 
 func (r encResult) idxErr() float64 { return r.idxEst/r.idxEnc - 1 }
 
@@ -190,6 +263,13 @@ func defaultSweep(mode string) sweep {
 		}
 	}
 	tb := tables[0]
+	if mode != "short" {
+		// Near where plain encoding overtakes the dictionary: a 65,536-row segment of a
+		// random column meets about three quarters of the values at 75,000 distinct.
+		for _, d := range []int64{30_000, 60_000, 75_000, 150_000} {
+			cs = append(cs, encCase{typ: "int64", order: schema.Random, d: d, table: tb, seg: s})
+		}
+	}
 	for _, typ := range []string{"float64", "string", "date", "datetime"} {
 		for _, d := range typeCards {
 			cs = append(cs, encCase{typ: typ, order: schema.Random, d: d, table: tb, seg: s})
@@ -259,6 +339,24 @@ func TestEncoderSweep(t *testing.T) {
 		if !r.pages && !r.idxOK() {
 			t.Errorf("%s: index stream estimated %.0f bytes, encoder %.0f (%+.1f%%, want within ±%.0f%%)",
 				name, r.idxEst, r.idxEnc, 100*r.idxErr(), 100*indexTolerance)
+		}
+		if r.pages {
+			continue
+		}
+		if !r.plainWritten {
+			if r.plainSegs > 0 {
+				t.Errorf("%s: the estimate writes %d segments plain, but the case was not written plain", name, r.plainSegs)
+			}
+			continue
+		}
+		// Plain values have one size: within a byte a row group (bit-packed booleans).
+		if math.Abs(r.plainEst-r.plainEnc) > float64(r.rowGroups) {
+			t.Errorf("%s: plain estimated %.0f bytes, encoder %.0f", name, r.plainEst, r.plainEnc)
+		}
+		if miss := r.choiceMisses(); miss > 0 {
+			p, e := r.encoderPlainSegs()
+			t.Errorf("%s: in %d row groups the estimate takes the larger encoding (estimate plain in %d of %d, encoder smaller plain in %d, within %.0f%% in %d)",
+				name, miss, r.plainSegs, r.rowGroups, p, 100*choiceMargin, e)
 		}
 	}
 	doc := accuracyDoc(results)
@@ -341,9 +439,10 @@ func runCase(c encCase, seed int64) (encResult, error) {
 	if c.pages {
 		pageBuf = parquet.DefaultPageBufferSize
 	}
+	nearPlain := false // a segment of the first table comes near its plain size
 	for r.tables < maxTables && (r.tables == 0 || (c.order != schema.Sorted && r.idxEnc < minSampleBytes)) {
 		ids, distinct := generate(c, rows, rand.New(rand.NewPCG(uint64(seed), uint64(r.tables))))
-		data, err := encode(c.typ, ids, parts, c.seg, pageBuf)
+		data, err := encodeAs(c.typ, false, ids, parts, c.seg, pageBuf)
 		if err != nil {
 			return r, err
 		}
@@ -365,9 +464,21 @@ func runCase(c encCase, seed int64) (encResult, error) {
 				return r, fmt.Errorf("a data page is not dictionary encoded")
 			}
 			got = append(got, ch.rows)
-			s := layout.SegmentSize(col, rows, ch.rows)
+			s := layout.DictionarySize(col, rows, ch.rows)
 			r.idxEst += s.Index
 			r.dictEst += s.Dictionary
+			r.plainEst += layout.PlainBytes(col, ch.rows)
+			isPlain := layout.SegmentSize(col, rows, ch.rows).Plain > 0
+			if isPlain {
+				r.plainSegs++
+			}
+			if r.tables == 1 {
+				r.segPlain = append(r.segPlain, isPlain)
+				r.segDictEnc = append(r.segDictEnc, float64(ch.dataBytes-int64(ch.pages)+ch.dictBytes))
+				if s.Bytes() >= plainShare*layout.PlainBytes(col, ch.rows) {
+					nearPlain = true
+				}
+			}
 			sum += layout.SegmentBytes(col, rows, ch.rows)
 			// The index stream proper: the data pages less their 1-byte bit-width prefix.
 			r.idxEnc += float64(ch.dataBytes - int64(ch.pages))
@@ -387,8 +498,34 @@ func runCase(c encCase, seed int64) (encResult, error) {
 	k := float64(r.tables)
 	r.distinct = int64(math.Round(float64(r.distinct) / k))
 	r.idxEst, r.idxEnc, r.dictEst, r.dictEnc = r.idxEst/k, r.idxEnc/k, r.dictEst/k, r.dictEnc/k
+	r.plainEst, r.plainSegs = r.plainEst/k, int(math.Round(float64(r.plainSegs)/k))
 	r.pagesWritten = int(math.Round(float64(r.pagesWritten) / k))
 	r.overhead = int64(math.Round(float64(r.overhead) / k))
+	// A column whose dictionary encoding comes near its plain size is written plain
+	// too (plain sizes do not depend on the draw: one table does).
+	if !c.pages && (r.plainSegs > 0 || nearPlain) {
+		ids, _ := generate(c, rows, rand.New(rand.NewPCG(uint64(seed), 0)))
+		data, err := encodeAs(c.typ, true, ids, parts, c.seg, pageBuf)
+		if err != nil {
+			return r, err
+		}
+		chunks, err := readChunks(data)
+		if err != nil {
+			return r, err
+		}
+		if len(chunks) != r.rowGroups {
+			return r, fmt.Errorf("plain: %d row groups, dictionary %d", len(chunks), r.rowGroups)
+		}
+		for _, ch := range chunks {
+			if !ch.plain || ch.dictBytes != 0 {
+				return r, fmt.Errorf("a page of the plain file is not plain encoded")
+			}
+			r.plainEnc += float64(ch.dataBytes)
+			r.plainPageBytes += ch.dataHeader
+			r.segPlainEnc = append(r.segPlainEnc, float64(ch.dataBytes))
+		}
+		r.plainWritten = true
+	}
 	return r, nil
 }
 
@@ -447,24 +584,46 @@ func generate(c encCase, rows int64, rng *rand.Rand) ([]int64, int64) {
 	return ids, distinct
 }
 
-// encode writes the ids as one column of typ: a row group per segment of seg rows, and
-// a new row group at every partition boundary (a segment never spans partitions).
-func encode(typ string, ids []int64, parts []layout.Partition, seg int64, pageBuf int) ([]byte, error) {
+// encodeAs writes the ids as one column of typ, dictionary encoded or plain: a row group
+// per segment of seg rows, and a new row group at every partition boundary (a segment
+// never spans partitions).
+func encodeAs(typ string, plain bool, ids []int64, parts []layout.Partition, seg int64, pageBuf int) ([]byte, error) {
+	// An odd multiplier is a bijection on 64-bit words: distinct ids stay distinct.
+	i64 := func(id int64) int64 { return id * -7046029254386353131 }
+	f64 := func(id int64) float64 { return float64(id)*0.25 + 0.125 }
+	str := func(id int64) string {
+		s := strconv.FormatInt(id, 10)
+		return strings.Repeat("0", stringLength-len(s)) + s
+	}
+	ts := func(id int64) int64 { return 1_700_000_000_000_000 + id*1_000_000 }
+	if plain {
+		switch typ {
+		case "int64":
+			return write(ids, parts, seg, pageBuf, func(id int64) int64PlainRow { return int64PlainRow{i64(id)} })
+		case "float64":
+			return write(ids, parts, seg, pageBuf, func(id int64) float64PlainRow { return float64PlainRow{f64(id)} })
+		case "string":
+			return write(ids, parts, seg, pageBuf, func(id int64) stringPlainRow { return stringPlainRow{str(id)} })
+		case "date":
+			return write(ids, parts, seg, pageBuf, func(id int64) datePlainRow { return datePlainRow{int32(id)} })
+		case "datetime":
+			return write(ids, parts, seg, pageBuf, func(id int64) datetimePlainRow { return datetimePlainRow{ts(id)} })
+		case "bool":
+			return write(ids, parts, seg, pageBuf, func(id int64) boolPlainRow { return boolPlainRow{id == 1} })
+		}
+		return nil, fmt.Errorf("no encoder mapping for type %q", typ)
+	}
 	switch typ {
 	case "int64":
-		// An odd multiplier is a bijection on 64-bit words: distinct ids stay distinct.
-		return write(ids, parts, seg, pageBuf, func(id int64) int64Row { return int64Row{id * -7046029254386353131} })
+		return write(ids, parts, seg, pageBuf, func(id int64) int64Row { return int64Row{i64(id)} })
 	case "float64":
-		return write(ids, parts, seg, pageBuf, func(id int64) float64Row { return float64Row{float64(id)*0.25 + 0.125} })
+		return write(ids, parts, seg, pageBuf, func(id int64) float64Row { return float64Row{f64(id)} })
 	case "string":
-		return write(ids, parts, seg, pageBuf, func(id int64) stringRow {
-			s := strconv.FormatInt(id, 10)
-			return stringRow{strings.Repeat("0", stringLength-len(s)) + s}
-		})
+		return write(ids, parts, seg, pageBuf, func(id int64) stringRow { return stringRow{str(id)} })
 	case "date":
 		return write(ids, parts, seg, pageBuf, func(id int64) dateRow { return dateRow{int32(id)} })
 	case "datetime":
-		return write(ids, parts, seg, pageBuf, func(id int64) datetimeRow { return datetimeRow{1_700_000_000_000_000 + id*1_000_000} })
+		return write(ids, parts, seg, pageBuf, func(id int64) datetimeRow { return datetimeRow{ts(id)} })
 	case "bool":
 		return write(ids, parts, seg, pageBuf, func(id int64) boolRow { return boolRow{id == 1} })
 	}
@@ -512,6 +671,7 @@ type chunk struct {
 	pages                 int   // data pages
 	dataHeader, dataBytes int64 // data page headers and payloads
 	fallback              bool  // a data page not dictionary encoded
+	plain                 bool  // every data page plain encoded
 }
 
 // readChunks reads the footer and walks every page header of every column chunk.
@@ -529,7 +689,7 @@ func readChunks(data []byte) ([]chunk, error) {
 		if md.Codec != format.Uncompressed {
 			return nil, fmt.Errorf("column chunk compressed with %v", md.Codec)
 		}
-		ch := chunk{rows: rg.NumRows}
+		ch := chunk{rows: rg.NumRows, plain: true}
 		off := md.DataPageOffset
 		if md.DictionaryPageOffset > 0 {
 			off = md.DictionaryPageOffset
@@ -564,6 +724,7 @@ func readChunks(data []byte) ([]chunk, error) {
 					enc = v.Encoding
 				}
 				ch.fallback = ch.fallback || (enc != format.RLEDictionary && enc != format.PlainDictionary)
+				ch.plain = ch.plain && enc == format.Plain
 				ch.pages++
 				ch.dataHeader += hdr
 				ch.dataBytes += size
@@ -605,8 +766,10 @@ func accuracyDoc(rs []encResult) string {
 	say("`SCANGATE_ENCODER_SWEEP=full go test ./internal/layout -run TestEncoderSweep -v` logs a larger sweep\n")
 	say("(half-decade cardinalities, more run lengths and tables) in the same form.\n\n")
 	say("The estimate is `layout.SegmentSize` for each segment (the rules sum the same numbers through\n")
-	say("`layout.ColumnBytes`). The reference encoder is the parquet-go library (%s) writing an\n", encoderVersion())
-	say("Apache Parquet file of one column: dictionary encoding, no compression, a row group per\n")
+	say("`layout.ColumnBytes`): the dictionary encoding (`layout.DictionarySize`, the index and\n")
+	say("dictionary columns below) or, when smaller, the plain values. The reference encoder is the parquet-go library (%s) writing an\n", encoderVersion())
+	say("Apache Parquet file of one column: dictionary encoding (and plain, for the choice between\n")
+	say("the two), no compression, a row group per\n")
 	say("segment of S = 65,536 rows, a new row group at every partition boundary, and a page buffer\n")
 	say("large enough that each row group is one data page (the last table shows the encoder's default\n")
 	say("pages). *Index* is the dictionary index stream: the data pages' payload less their 1-byte\n")
@@ -702,6 +865,24 @@ func accuracyDoc(rs []encResult) string {
 		}
 	}
 
+	say("\n## Dictionary or plain, segment by segment\n\n")
+	say("A segment is written plain when its values, one after the other, take fewer bytes than its\n")
+	say("dictionary and indexes (`layout.PlainBytes`: the value width, a string's 4-byte length prefix\n")
+	say("and bytes, booleans one bit). Every case whose estimate writes a segment plain, or comes\n")
+	say("within a factor of %.0f of it, is also written plain by the encoder, and each row group's two\n", 1/plainShare)
+	say("encoder sizes (without page headers) are compared. Checked: the plain estimate is the\n")
+	say("encoder's within a byte a row group, and in no row group does the estimate take the larger\n")
+	say("encoding when the encoder's two sizes are more than %.0f%% apart.\n\n", 100*choiceMargin)
+	say("| type | order | distinct | table | row groups | plain: estimate | plain smaller: encoder | within %.0f%% | dictionary encoder | plain estimate | plain encoder |\n", 100*choiceMargin)
+	say("|---|---|---:|---|---:|---:|---:|---:|---:|---:|---:|\n")
+	for _, r := range rs {
+		if r.plainWritten {
+			p, e := r.encoderPlainSegs()
+			say("| %s | %s | %s | %s | %d | %d | %d | %d | %s | %s | %s |\n", r.typ, r.orderLabel(), group(r.distinct), r.table.label, r.rowGroups,
+				r.plainSegs, p, e, group(int64(math.Round(r.dictEncTotal()))), group(int64(math.Round(r.plainEst))), group(int64(math.Round(r.plainEnc))))
+		}
+	}
+
 	say("\n## At the encoder's default page buffer (%s KiB), %s\n\n", group(parquet.DefaultPageBufferSize/1024), rs[0].table.label)
 	say("| order | distinct | data pages | index estimate | index encoder | error | page headers and bit-width bytes |\n")
 	say("|---|---:|---:|---:|---:|---:|---:|\n")
@@ -752,11 +933,13 @@ const encoderDetails = `
   segment of only true values still needs 1-bit indexes, and it bit-packs the dictionary page
   (1 byte for both values) where the estimate counts 1 byte per entry. These bytes are the
   whole difference in the bool rows above.
-- **No fallback to plain encoding.** With its default settings this encoder keeps dictionary
-  encoding however large the dictionary grows (the test checks that every data page is
-  dictionary encoded). Other writers fall back to plain encoding once a column chunk's
-  dictionary passes a size limit (about 1 MiB is common; from memory); the estimate, like a
-  column store's segment, keeps its dictionary.
+- **Plain when smaller.** With its default settings this encoder keeps dictionary encoding
+  however large the dictionary grows (the test checks that every data page of the dictionary
+  file is dictionary encoded); other writers fall back to plain encoding once a column chunk's
+  dictionary passes a size limit (about 1 MiB is common; from memory). The estimate instead
+  takes, segment by segment, whichever of the two is smaller, so a column of unique values
+  (the default when a profile gives no distinct) costs its plain width and no more; the
+  encoder is asked for both and the choice is checked against its sizes.
 `
 
 func pctErr(e float64) string {

@@ -108,25 +108,57 @@ func varintBytes(v int64) int {
 	return (bits.Len64(uint64(v)) + 6) / 7
 }
 
-// Size is the estimated encoded size of a column in one segment, in its two parts.
+// Size is the estimated encoded size of a column in one segment: dictionary encoded, in
+// its two parts, or plain encoded when that is smaller.
 type Size struct {
 	Index      float64 // the dictionary index stream: run-length / bit-packed hybrid
 	Dictionary float64 // the segment's own dictionary: distinct values x value width
+	Plain      float64 // the values written plain; when set, Index and Dictionary are 0
 }
 
-// Bytes is the whole encoded size, index stream plus dictionary.
-func (s Size) Bytes() float64 { return s.Index + s.Dictionary }
+// Bytes is the whole encoded size: index stream plus dictionary, or the plain values.
+func (s Size) Bytes() float64 { return s.Index + s.Dictionary + s.Plain }
+
+// PlainBytes is the size of n values of c written plain, one after the other, as the
+// Apache Parquet format's PLAIN encoding writes them: ValueBytes each (a string's 4-byte
+// length prefix and its bytes), booleans bit-packed, one bit each.
+func PlainBytes(c schema.Column, n int64) float64 {
+	if n <= 0 {
+		return 0
+	}
+	if c.Type == "bool" {
+		return float64((n + 7) / 8)
+	}
+	return float64(n) * ValueBytes(c)
+}
 
 // SegmentBytes estimates the encoded bytes of column c in one segment of n rows of a
-// table of tableRows rows, with a dictionary per segment: the index stream plus the
-// dictionary. The scan cost of a column is driven by this number.
+// table of tableRows rows, with a dictionary per segment (the index stream plus the
+// dictionary) or plain values, whichever is smaller. The scan cost of a column is driven
+// by this number.
 func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
 	return SegmentSize(c, tableRows, n).Bytes()
 }
 
-// SegmentSize is SegmentBytes split into the index stream and the dictionary. A
-// measured encoded_bytes is spread over the rows and counted as index stream.
+// SegmentSize is SegmentBytes in its parts: the segment's dictionary encoding
+// (DictionarySize), or its values written plain (PlainBytes) when those take fewer
+// bytes, as they do when nearly every value of the segment is distinct (the dictionary
+// then repeats the values and the indexes come on top). A measured encoded_bytes is
+// spread over the rows in proportion and counted as index stream.
 func SegmentSize(c schema.Column, tableRows, n int64) Size {
+	s := DictionarySize(c, tableRows, n)
+	if c.EncodedBytes > 0 || n <= 0 {
+		return s
+	}
+	if p := PlainBytes(c, n); p < s.Bytes() {
+		return Size{Plain: p}
+	}
+	return s
+}
+
+// DictionarySize is the estimated size of column c dictionary encoded in one segment of
+// n rows of a table of tableRows rows: the index stream and the segment's dictionary.
+func DictionarySize(c schema.Column, tableRows, n int64) Size {
 	if n <= 0 {
 		return Size{}
 	}
@@ -149,7 +181,7 @@ func SegmentSize(c schema.Column, tableRows, n int64) Size {
 	// different values with probability 1 - 1/d, independently.
 	random := func() Size {
 		ds := SampleDistinct(fd, fn, fr)
-		return Size{randomIndexBytes(fn, IndexBits(ds), 1-1/fd), float64(ds * vb)}
+		return Size{Index: randomIndexBytes(fn, IndexBits(ds), 1-1/fd), Dictionary: float64(ds * vb)}
 	}
 	switch c.Order {
 	case schema.Sorted:
@@ -160,7 +192,7 @@ func SegmentSize(c schema.Column, tableRows, n int64) Size {
 		if n > 1 && d > 1 {
 			ds = min(fn, 1+float64(fn-1)*(fd-1)/(fr-1))
 		}
-		return Size{sortedIndexBytes(fn, ds), float64(ds * vb)}
+		return Size{Index: sortedIndexBytes(fn, ds), Dictionary: float64(ds * vb)}
 	case schema.Clustered:
 		l := c.RunLength
 		if l <= 0 {
@@ -182,7 +214,7 @@ func SegmentSize(c schema.Column, tableRows, n int64) Size {
 		default:
 			idx = runIndexBytes(fn, IndexBits(ds), changes, fl, 1/fd)
 		}
-		return Size{idx, float64(ds * vb)}
+		return Size{Index: idx, Dictionary: float64(ds * vb)}
 	}
 	return random()
 }

@@ -131,8 +131,27 @@ func TestSegmentBytesWorked(t *testing.T) {
 	rle := 1.0/128 + 131071.0/128*(1-1.0/256)
 	bp := 127.0/128 + 131071*127.0/128/128
 	want := 130048 + 2*bp + 2*rle + 2
-	if got := SegmentBytes(schema.Column{Type: "bool"}, 4e9, n); math.Abs(got-want) > 1e-6 {
+	if got := DictionarySize(schema.Column{Type: "bool"}, 4e9, n).Bytes(); math.Abs(got-want) > 1e-6 {
 		t.Errorf("bool: %v, want %v", got, want)
+	}
+	// Written plain (Apache Parquet PLAIN: booleans bit-packed, one bit each) the segment
+	// is 2^20 / 8 = 131,072 bytes, less than its dictionary encoding: plain it is.
+	if got := SegmentSize(schema.Column{Type: "bool"}, 4e9, n); got != (Size{Plain: 131072}) {
+		t.Errorf("bool: %+v, want plain 131,072 bytes", got)
+	}
+	// Every value unique (int64, distinct defaults to the rows): the dictionary holds
+	// about every value of the segment, 8 bytes each, and the 20-bit indexes come on
+	// top; plain is 8 bytes a value, 8,388,608 bytes.
+	if got := SegmentSize(schema.Column{Type: "int64"}, 4e9, n); got != (Size{Plain: 8 * n}) {
+		t.Errorf("unique int64: %+v, want plain %d bytes", got, 8*n)
+	}
+	// Strings of 12 bytes with a 4-byte length prefix (PLAIN byte arrays): 16 bytes a value.
+	if got := SegmentSize(schema.Column{Type: "string", AvgLength: 12, Distinct: 3e9}, 4e9, n); got != (Size{Plain: 16 * n}) {
+		t.Errorf("unique strings: %+v, want plain %d bytes", got, 16*n)
+	}
+	// 1,000 values: 1,000 dictionary entries and 10-bit indexes are far below 8 bytes a row.
+	if got := SegmentSize(schema.Column{Type: "int64", Distinct: 1000}, 4e9, n); got.Plain != 0 || got.Bytes() > 2*n {
+		t.Errorf("1,000 values: %+v, want dictionary encoded", got)
 	}
 	// encoded_bytes overrides: 4e9 bytes over 4e9 rows is 1 byte a row.
 	if got := SegmentBytes(schema.Column{Type: "int64", EncodedBytes: 4e9}, 4e9, n); got != n {
@@ -263,7 +282,8 @@ func TestSegmentBytesBounds(t *testing.T) {
 		c.Order = schema.Sorted
 		so := SegmentSize(c, rows, n)
 		for _, v := range []Size{random, cl, so} {
-			if math.IsNaN(v.Bytes()) || math.IsInf(v.Bytes(), 0) || v.Index <= 0 || v.Dictionary <= 0 {
+			if math.IsNaN(v.Bytes()) || math.IsInf(v.Bytes(), 0) || (v.Plain <= 0 && (v.Index <= 0 || v.Dictionary <= 0)) ||
+				(v.Plain > 0 && (v.Index != 0 || v.Dictionary != 0 || v.Plain != PlainBytes(c, n))) {
 				t.Fatalf("%+v rows=%d n=%d: non-finite or non-positive estimate %+v", c, rows, n, v)
 			}
 			// No index stream is longer than bit-packing every row at 64 bits with a
@@ -306,5 +326,22 @@ func TestColumnBytesBySize(t *testing.T) {
 	c := schema.Column{Type: "float64"}
 	if got, want := ColumnBytes(c, []Partition{{Rows: 1e15}}, 1e6), 1e9*SegmentBytes(c, 1e15, 1e6); got != want {
 		t.Errorf("1e9 segments: %v, want %v", got, want)
+	}
+}
+
+// A measured encoded_bytes B is spread over the segments in proportion to their rows
+// (README, "Measured sizes"): the segments of any layout sum to B, whatever the segment
+// size, and the plain-or-dictionary choice does not touch a measured size, even one
+// above the plain width (here 20 bytes a row against 8).
+func TestEncodedBytesSpread(t *testing.T) {
+	parts := []Partition{{Rows: 2500, Open: true}, {Rows: 300}, {Rows: 3000}, {Rows: 999}}
+	c := schema.Column{Type: "int64", EncodedBytes: 20 * 6799}
+	for _, s := range []int64{7, 1000, 4096, 1 << 20} {
+		if got := ColumnBytes(c, parts, s); math.Abs(got-20*6799) > 1e-6 {
+			t.Errorf("segments of %d rows: %v bytes, want %d", s, got, 20*6799)
+		}
+	}
+	if got := SegmentSize(c, 6799, 1000); got != (Size{Index: 20 * 1000}) {
+		t.Errorf("a segment of 1,000 rows: %+v, want 20,000 bytes as measured", got)
 	}
 }

@@ -247,3 +247,24 @@ func TestPartitionNames(t *testing.T) {
 		}
 	}
 }
+
+// A period's age is taken at its midpoint (README, "How the numbers are computed"): with
+// a day and then a year at growth 99 (x100 a year), the day is 0.5 days old and the year
+// 1 + 365.25/2 days, so the year holds 365.25 x 100^-(183.125 - 0.5)/365.25 times the
+// day's rows. Ages taken at a period's newer end (0 and 1 day) would give about 10 times
+// more; at its older end, about 10 times less.
+func TestExpandTimeMidpointAge(t *testing.T) {
+	p, err := Expand(timeTable(1e15, 99, schema.Tier{Grain: schema.Day, Keep: 1}, schema.Tier{Grain: schema.Year, Keep: 1}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := 365.25 * math.Pow(100, -(1+365.25/2-0.5)/365.25)
+	if got := float64(p[1].Rows) / float64(p[0].Rows); math.Abs(got/want-1) > 1e-9 {
+		t.Errorf("year / day rows = %.12g, want %.12g (ages at the midpoints)", got, want)
+	}
+	// Weighted by period length alone, no growth: the year is 365.25 days.
+	p, err = Expand(timeTable(1e15, 0, schema.Tier{Grain: schema.Day, Keep: 1}, schema.Tier{Grain: schema.Year, Keep: 1}))
+	if got := float64(p[1].Rows) / float64(p[0].Rows); err != nil || math.Abs(got/365.25-1) > 1e-9 {
+		t.Errorf("no growth: year / day rows = %.12g, want 365.25 (%v)", got, err)
+	}
+}

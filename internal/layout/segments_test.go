@@ -64,10 +64,15 @@ func TestScanColumnWorked(t *testing.T) {
 	// TestSegmentBytesWorked); a group is one value with probability (1/2)^7 = 1/128:
 	// 0.9765625 run-length groups in 1/128 + 124/128 x 255/256 = 0.97278 runs of 2 bytes,
 	// 124.0234375 bit-packed groups of 1 byte in 127/128 + 124 x 127/128 x 1/128 = 1.95337
-	// runs with a 2-byte header; plus a 2-byte dictionary: 131.8757 bytes.
+	// runs with a 2-byte header; plus a 2-byte dictionary: 131.8757 bytes. Plain, the
+	// 1,000 values bit-packed are 125 bytes, fewer: the segment is written plain.
 	// theta = 200 MB/s = 200,000 bytes/ms; a task is 1.5 + b/theta ms. CPU 3 tasks;
 	// 2 cores: makespan 2 tasks on core 0; bound max(CPU/2, one task) (Graham 1966).
-	seg := 124.0234375 + 2*(127.0/128+124*127.0/128/128) + 2*(1.0/128+124.0/128*255/256) + 2
+	dict := 124.0234375 + 2*(127.0/128+124*127.0/128/128) + 2*(1.0/128+124.0/128*255/256) + 2
+	if got := DictionarySize(schema.Column{Type: "bool"}, 3000, 1000).Bytes(); math.Abs(got-dict) > 1e-9 {
+		t.Errorf("dictionary encoded: %v, want %v", got, dict)
+	}
+	seg := 125.0
 	task := 1.5 + seg/200000
 	e := schema.Engine{SegmentRows: 1000, Cores: 2, SegmentOverheadMs: 1.5, ScanMBPerS: 200}
 	parts := []Partition{{Rows: 1000}, {Rows: 1000}, {Rows: 1000}}
