@@ -408,7 +408,8 @@ func (d *Doc) insertFlow(c *yaml.Node, entry func(multi bool, ind int) (string, 
 	if multi {
 		entryStart := d.spans[c.Content[len(c.Content)-1-btoi(c.Kind == yaml.MappingNode)]].start
 		ind := entryStart - lineStartOf(d.src, entryStart)
-		text, err := entry(true, ind)
+		// The new entry spreads over lines when the last one does.
+		text, err := entry(d.lineOf(entryStart) != d.lineOf(end), ind)
 		if err != nil {
 			return err
 		}

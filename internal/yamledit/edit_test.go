@@ -201,3 +201,36 @@ func TestBatch(t *testing.T) {
 		t.Fatalf("overlapping edits: %v\n%s", err, d.Bytes())
 	}
 }
+
+// Upsert replaces the item a predicate picks, or appends one: "add or replace table x".
+func TestUpsert(t *testing.T) {
+	cases := []struct {
+		name, in string
+		json     bool
+		table    string
+		want     string
+	}{
+		{"replace", "tables:\n  - name: a # first\n    rows: 1\n  - name: b\n    rows: 2\nz: 1\n", false, "a",
+			"tables:\n  - name: a\n    rows: 9\n  - name: b\n    rows: 2\nz: 1\n"}, // comments inside a replaced item go with it
+		{"append", "tables:\n  - name: a\n    rows: 1\nz: 1\n", false, "c",
+			"tables:\n  - name: a\n    rows: 1\n  - name: c\n    rows: 9\nz: 1\n"},
+		{"json replace", "{\"tables\": [{\"name\": \"a\", \"rows\": 1}]}", true, "a", "{\"tables\": [{\"name\": \"a\", \"rows\": 9}]}"},
+		{"json append", "{\"tables\": [\n  {\"name\": \"a\", \"rows\": 1}\n]}", true, "c", "{\"tables\": [\n  {\"name\": \"a\", \"rows\": 1},\n  {\"name\": \"c\", \"rows\": 9}\n]}"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			d, err := Parse([]byte(c.in), c.json)
+			if err != nil {
+				t.Fatal(err)
+			}
+			v, _ := Parsed("name: " + c.table + "\nrows: 9")
+			if err := d.Upsert(v, "table "+c.table, Field("name", c.table), Key("tables")); err != nil {
+				t.Fatal(err)
+			}
+			if got := string(d.Bytes()); got != c.want {
+				t.Errorf("got\n%q\nwant\n%q", got, c.want)
+			}
+			checkOutside(t, []byte(c.in), d)
+		})
+	}
+}
