@@ -15,14 +15,13 @@ func newAdopt() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "adopt MANIFEST...",
 		Short: "Write each table's recommended layout into its manifest",
-		Long: "adopt writes each table's recommendation (the one check and plan print) into its\n" +
-			"manifest, rewriting only the keys it changes: the table's partitions, and\n" +
-			"engine.segment_rows (one setting for the whole model). Everything else stays byte for\n" +
-			"byte; files are replaced atomically, and only if every named manifest can be adopted.\n" +
-			"Exit codes: 0 written or nothing to adopt, 2 invalid input or usage.",
-		Example: "  scangate adopt --dry-run testdata/demo/meter-telemetry.yaml\n" +
-			"  scangate adopt models/ --table meter_reads",
-		Args: cobra.MinimumNArgs(1),
+		Long: "adopt writes each table's recommendation (the one check and plan print) into its manifest,\n" +
+			"rewriting only the keys it changes: the table's partitions, and engine.segment_rows (one\n" +
+			"setting for the whole model). Everything else stays byte for byte; files are replaced\n" +
+			"atomically, only if every named manifest can be adopted. Exit codes: 0 written or nothing\n" +
+			"to adopt, 2 invalid input or usage.",
+		Example: "  scangate adopt --dry-run testdata/demo/meter-telemetry.yaml\n  scangate adopt models/ --table meter_reads",
+		Args:    cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			proj, cfg, err := projectConfig(cmd, configFile, args, "")
 			if err != nil {
