@@ -3,6 +3,7 @@ module github.com/scangate/scangate
 go 1.26
 
 require (
+	github.com/aymanbagabas/go-udiff v0.4.2
 	github.com/fatih/color v1.19.0
 	github.com/mattn/go-isatty v0.0.24
 	github.com/owenrumney/go-sarif/v3 v3.3.1

@@ -10,14 +10,14 @@ const Module = "github.com/scangate/scangate"
 // Layers are scangate's packages from the bottom up, relative to Module. A new package
 // must be placed here before the architecture test passes.
 var Layers = [][]string{
-	{"schema", "internal/units", "internal/escape", "internal/arch", "internal/suggest", "bench/gen"}, // the contract and leaves
-	{"internal/layout", "internal/calibrate"},                                                         // the arithmetic; calibrate's fit
-	{"internal/advisor"},                     // candidate layouts, sweeps, forecasts
-	{"internal/analysis"},                    // one analysis per model
-	{"rules"},                                // the rule engine and one file per rule
-	{"internal/baseline", "internal/change"}, // accepted debt; diff's comparison
-	{"internal/report"},                      // the format registry and every format
-	{"internal/run"},                         // the driver
+	{"schema", "internal/units", "internal/escape", "internal/arch", "internal/suggest", "internal/yamledit", "bench/gen"}, // the contract and leaves
+	{"internal/layout", "internal/calibrate"}, // the arithmetic; calibrate's fit
+	{"internal/advisor"},                      // candidate layouts, sweeps, forecasts
+	{"internal/analysis"},                     // one analysis per model
+	{"rules"},                                 // the rule engine and one file per rule
+	{"internal/baseline", "internal/change"},  // accepted debt; diff's comparison
+	{"internal/report", "internal/adopt"},     // the format registry and every format; recommendations written into manifests
+	{"internal/run"},                          // the driver
 	{"cmd/scangate", "bench/cmd/decodeonly", "bench/cmd/gen", "bench/cmd/measure"}, // commands and tools
 }
 
