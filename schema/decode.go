@@ -172,6 +172,7 @@ type EngineSettings struct {
 	ScanMBPerS         *float64
 	Memory             *int64
 	RefreshParallelism *int
+	MaxSegmentRows     *int64
 }
 
 // over returns s with every field of top that is set replacing s's.
@@ -193,6 +194,9 @@ func (s EngineSettings) over(top EngineSettings) EngineSettings {
 	}
 	if top.RefreshParallelism != nil {
 		s.RefreshParallelism = top.RefreshParallelism
+	}
+	if top.MaxSegmentRows != nil {
+		s.MaxSegmentRows = top.MaxSegmentRows
 	}
 	return s
 }
@@ -217,6 +221,10 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 	if v, ok := e["refresh_parallelism"]; ok {
 		n := wholeUpTo(v, maxCores)
 		s.RefreshParallelism = &n
+	}
+	if v, ok := e["max_segment_rows"]; ok {
+		n := d.count(ptr+"/max_segment_rows", v, true)
+		s.MaxSegmentRows = &n
 	}
 	return s
 }
@@ -275,6 +283,18 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 	out.RefreshParallelism = out.Cores
 	if s.RefreshParallelism != nil {
 		out.RefreshParallelism = *s.RefreshParallelism
+	}
+	out.MaxSegmentRows = DefaultMaxSegmentRows
+	if s.MaxSegmentRows != nil {
+		out.MaxSegmentRows = *s.MaxSegmentRows
+	}
+	if out.SegmentRows > out.MaxSegmentRows && len(d.problems) == 0 {
+		at := ptr + "/segment_rows"
+		if own.SegmentRows == nil {
+			at = ptr + "/profile"
+		}
+		d.fail(at, fmt.Sprintf("segment_rows %s is above max_segment_rows %s, the largest capacity the engine accepts; lower segment_rows or raise max_segment_rows",
+			group(out.SegmentRows), group(out.MaxSegmentRows)))
 	}
 	return out
 }

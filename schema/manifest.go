@@ -81,7 +81,10 @@ type Engine struct {
 	ScanMBPerS         float64
 	Memory             int64 // bytes; 0 when not declared
 	RefreshParallelism int
-	Pos                Pos // the engine key
+	// MaxSegmentRows is the largest segment capacity the engine accepts: the advisor
+	// never proposes a larger one. DefaultMaxSegmentRows when not declared.
+	MaxSegmentRows int64
+	Pos            Pos // the engine key
 	SegmentRowsPos     Pos
 	MemoryPos          Pos
 }
@@ -91,6 +94,10 @@ const (
 	DefaultCores             = 8
 	DefaultSegmentOverheadMs = 1.5
 	DefaultScanMBPerS        = 200
+	// DefaultMaxSegmentRows (128Mi rows) is scangate's own default for the largest
+	// segment capacity a recommendation may propose, not a fact about any engine: set
+	// engine.max_segment_rows to the maximum the target engine documents.
+	DefaultMaxSegmentRows int64 = 1 << 27
 )
 
 // Budgets are optional limits; a nil field is not budgeted.
