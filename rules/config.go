@@ -147,5 +147,6 @@ func (c Config) Levels() advisor.Levels {
 		TruncWarnShare:    c.Value(truncatedSegmentsID, truncWarnShare),
 		PartitionLimit:    c.Value(partitionCountID, partitionLimit),
 		HorizonMonths:     units.Int(c.Value(budgetForecastID, forecastHorizon)),
+		Today:             c.today(),
 	}
 }

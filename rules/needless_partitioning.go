@@ -16,7 +16,9 @@ var NeedlessPartitioning = Rule{
 	Why: "A table whose rows fit in a single segment gains nothing from partitions: each one " +
 		"adds a segment of its own, with its own dictionaries and its fixed scan cost, and the " +
 		"refresh has more pieces to process.",
-	Fix:   "Use partitions: {scheme: none} for the table.",
+	Fix: "Use partitions: {scheme: none} for the table. The recommendation ranks a layout " +
+		"without needless partitions first, so the first hint, the table's one recommendation, " +
+		"says so with its effect unless a budget rules it out.",
 	Check: checkNeedlessPartitioning,
 	How:   "A table with two or more partitions whose rows are at most engine.segment_rows.",
 	Bad: `  - name: tariffs
@@ -36,10 +38,7 @@ func checkNeedlessPartitioning(t *analysis.Table, cfg Config) []Finding {
 	}
 	msg := fmt.Sprintf("%d partitions and %s segments hold %s rows, which fit in one segment of %s rows",
 		l.Partitions, units.Num(l.Segments), units.Count(l.Rows), units.Count(t.Engine.SegmentRows))
-	extra := float64(l.Segments-l.Ideal) * t.Engine.SegmentOverheadMs
-	hints := []string{fmt.Sprintf("use partitions: {scheme: none}: %s -> %s segments, %s ms per scan",
-		units.Num(l.Segments), units.Num(l.Ideal), units.Signed(-extra))}
-	return []Finding{finding(t, Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{advised(t, Note, t.Spec.Partitions.Pos, "partitions", msg, nil, map[string]float64{
 		"partitions": float64(l.Partitions),
 		"segments":   float64(l.Segments),
 		"rows":       float64(l.Rows),

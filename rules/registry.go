@@ -162,6 +162,24 @@ func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
 	return md, out
 }
 
+// advised is a finding whose first hint is the table's one recommendation
+// (analysis.Table.Advice), the same under every finding of the table, followed by the
+// rule's own lines (facts, or a marked alternative), never another layout to adopt.
+func advised(t *analysis.Table, sev Severity, pos schema.Pos, subject, msg string, extra []string, nums map[string]float64) Finding {
+	var hints []string
+	if a := t.Advice(); a != "" {
+		hints = append(hints, a)
+	}
+	for _, h := range extra {
+		if h != "" {
+			hints = append(hints, h)
+		}
+	}
+	f := finding(t, sev, pos, subject, msg, hints, nums)
+	f.Advice = t.Advice() != ""
+	return f
+}
+
 // finding fills in what every finding of a table shares; Check sets the rule ID.
 func finding(t *analysis.Table, sev Severity, pos schema.Pos, subject, msg string, hints []string, nums map[string]float64) Finding {
 	return Finding{

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"time"
 
 	"github.com/scangate/scangate/internal/units"
 
@@ -29,6 +30,9 @@ type Levels struct {
 	TruncWarnShare    float64
 	PartitionLimit    float64 // partition-count warns above this many partitions
 	HorizonMonths     int     // budget-forecast warns of a crossing within this many months
+	// Today is the date forecasts count from: a recommendation's "holds through" month
+	// is counted from it. The caller passes it (the advisor reads no clock).
+	Today time.Time
 }
 
 // DefaultLevels are the rules' defaults; a test in package rules keeps them equal.
@@ -40,6 +44,9 @@ const ForecastMonths = 12
 // MaxHorizonMonths bounds plan's --horizon: fifty years of months is already far past
 // any plan. The budget-forecast rule's horizon_months has a tighter bound of its own.
 const MaxHorizonMonths = 600
+
+// Horizon is the forecast window of the levels, the default when unset.
+func (l Levels) Horizon() int { return l.horizon() }
 
 // horizon is the forecast window of the levels, the default when unset.
 func (l Levels) horizon() int {
@@ -210,6 +217,9 @@ func NewModel(m *schema.Manifest) *Model {
 	}
 	return md
 }
+
+// Grows reports whether some table of the model grows or shrinks.
+func (md *Model) Grows() bool { return md.growth }
 
 // RefreshBudget is the model's refresh-memory budget in bytes, nil when none is set.
 func (md *Model) RefreshBudget() *float64 { return md.refresh }
@@ -694,8 +704,10 @@ func (md *Model) mark(sw *Sweep) {
 		}
 		// Nearer every budget at once than today; ties keep the fewer fixed ms, then the
 		// first generated: the order is part of the output.
+		// A share within a billionth of today's is today's computed another way
+		// (floating point), not a step nearer.
 		e := Excess(c.missed)
-		if !(e < nowExcess) {
+		if !(e < nowExcess-1e-9*math.Abs(nowExcess)) {
 			continue
 		}
 		if sw.Closest < 0 || e < bestExcess || (e == bestExcess && c.Layout.FixedMs < sw.Candidates[sw.Closest].Layout.FixedMs) {
