@@ -14,9 +14,10 @@ import (
 
 func init() {
 	register(writers{
-		traits: Traits{Name: "json", Kinds: CheckReport | DiffReport, NeedsTables: true},
+		traits: Traits{Name: "json", Kinds: CheckReport | DiffReport | PlanReport, NeedsTables: true},
 		check:  writeJSON,
 		diff:   writeDiffJSON,
+		plan:   writePlanJSON,
 	})
 }
 
@@ -77,6 +78,8 @@ type jsonTable struct {
 	WidestColumn         string   `json:"widest_column,omitempty"`
 	ScanWallMs           *float64 `json:"scan_wall_ms,omitempty"`
 	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
+	// Recommendation is the table's one recommendation, null when today's layout is kept.
+	Recommendation *jsonRecommendation `json:"recommendation"`
 }
 
 type jsonFinding struct {
@@ -168,6 +171,7 @@ func tableJSON(t *analysis.Table) jsonTable {
 		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
 		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
+		Recommendation: tableRecommendation(t),
 	}
 	if t.Widest != nil {
 		wall := round(t.Scan.WallMs)
