@@ -517,7 +517,7 @@ tables:
 		allowed string
 	}{
 		{at(t, src, 3, "colour"), "colour", "budgets, engine, format, model, tables"},
-		{at(t, src, 6, "spare"), "spare", "cores, memory, profile, refresh_parallelism, scan_mb_per_s, segment_overhead_ms, segment_rows"},
+		{at(t, src, 6, "spare"), "spare", "cores, max_segment_rows, memory, profile, refresh_parallelism, scan_mb_per_s, segment_overhead_ms, segment_rows"},
 		{at(t, src, 11, "sheme"), "sheme", "count, items, scheme, tiers"},
 		{at(t, src, 15, "distinc"), "distinc", "avg_length, distinct, encoded_bytes, name, order, run_length, type"},
 	}

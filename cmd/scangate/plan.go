@@ -6,7 +6,6 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/advisor"
-	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/schema"
@@ -23,16 +22,12 @@ func newPlan() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "plan [PATH...]",
 		Short: "Show each table's layout, a what-if sweep, the recommended layout and a growth forecast",
-		Long: "plan prints, for each table of the manifests (or --table), its segment layout today,\n" +
-			"a what-if sweep over segment capacities and partition layouts with the Pareto front\n" +
-			"of fixed ms per scan against refresh memory, the recommended layout with the\n" +
-			"manifest snippet that produces it, and a month-by-month forecast of when growth\n" +
-			"breaks each budget. The recommendation is the one check quotes in its hints.\n" +
-			"PATH is a file, a directory (every manifest below it, as check finds them), or -\n" +
-			"for standard input; the default is the current directory.\n\n" +
-			"Formats: " + report.NameList(report.PlanReport) + ". --format NAME writes to standard\n" +
-			"output (or to --output), --format NAME=FILE to a file; repeat it for several.\n" +
-			"Exit codes: 0 planned, 2 invalid input or usage.",
+		Long: "plan prints, for each table (or --table), its segment layout today, a what-if sweep\n" +
+			"with the Pareto front of fixed ms per scan against refresh memory, the recommended\n" +
+			"layout (the one check quotes) with its manifest snippet, and a monthly forecast.\n" +
+			"PATH is a file, a directory (its manifests, as check finds them) or - for standard\n" +
+			"input; the default is the current directory. Formats: " + report.NameList(report.PlanReport) + "\n" +
+			"(--format NAME[=FILE], repeatable). Exit codes: 0 planned, 2 invalid input or usage.",
 		Example: "  scangate plan testdata/demo/meter-telemetry.yaml --table meter_reads\n" +
 			"  scangate plan models/ --format json=plan.json\n" +
 			"  scangate plan model.yaml --segment-rows 8Mi,16Mi,32Mi --horizon 36\n" +
@@ -50,20 +45,16 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return err
 			}
-			// The project's warning levels and horizon, as check ranks layouts by; a
-			// --horizon of its own plans (and judges the recommendation) over that.
-			lv := cfg.Levels()
+			lv := cfg.Levels() // as check ranks layouts; --horizon judges them over its own
 			if cmd.Flags().Changed("horizon") {
 				lv.HorizonMonths = horizon
 			}
-			outs := append([]string(nil), formats...)
-			if len(outs) == 0 {
-				outs = []string{"text"}
+			if svg != "" && len(formats) == 0 {
+				formats = []string{"text", "svg=" + svg}
+			} else if svg != "" {
+				formats = append(formats, "svg="+svg)
 			}
-			if svg != "" {
-				outs = append(outs, "svg="+svg)
-			}
-			dests, err := run.ParseFormats(report.PlanReport, outs, output, nil)
+			dests, err := run.ParseFormats(report.PlanReport, formats, output, []string{"text"})
 			if err != nil {
 				return usageError(err)
 			}
@@ -71,26 +62,14 @@ func newPlan() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			var read []string
-			for _, l := range loaded {
-				read = append(read, l.Manifest.File)
-			}
-			if err := run.GuardOutputs(dests, append(read, proj.Files()...)); err != nil {
+			if err := run.GuardOutputs(dests, append(run.LoadedFiles(loaded), proj.Files()...)); err != nil {
 				return usageError(err)
 			}
 			picked, err := run.PickTablesIn(loaded, table)
 			if err != nil {
 				return usageError(err)
 			}
-			doc := &report.Plan{Version: run.ModuleVersion(), Today: lv.Today, Horizon: lv.Horizon()}
-			set.Levels = lv
-			for k, l := range loaded {
-				if len(picked[k]) == 0 {
-					continue
-				}
-				md := analysis.Analyze(l.Manifest, lv)
-				doc.Files = append(doc.Files, report.PlanFile{Manifest: l.Manifest, URI: l.URI, Plans: md.Plans(picked[k], set, doc.Horizon)})
-			}
+			doc := run.PlanDoc(loaded, picked, set, lv)
 			if err := run.Write(dests, doc, cmd.OutOrStdout(), false); err != nil {
 				return usageError(err)
 			}

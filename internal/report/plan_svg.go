@@ -543,7 +543,10 @@ func placeLabel(b *bytes.Buffer, text string, x, y float64, frame box, taken *[]
 	w := textWidth(text, px)
 	for _, spot := range labelSpots {
 		bx := textBox(x+spot.dx, y+spot.dy, w, px, spot.anchor)
-		if bx.x0 < frame.x0 || bx.x1 > frame.x1 || bx.y0 < frame.y0 || bx.y1 > frame.y1 || hits(bx, *taken) || hitsOther(bx, dots, x, y) {
+		// Coordinates are written to a tenth of a pixel: keep that much apart, so the
+		// rounded boxes do not touch either.
+		padded := box{bx.x0 - 0.1, bx.y0 - 0.1, bx.x1 + 0.1, bx.y1 + 0.1}
+		if bx.x0 < frame.x0 || bx.x1 > frame.x1 || bx.y0 < frame.y0 || bx.y1 > frame.y1 || hits(padded, *taken) || hitsOther(bx, dots, x, y) {
 			continue
 		}
 		*taken = append(*taken, bx)

@@ -231,7 +231,7 @@ func renderRecommendation(b *strings.Builder, p analysis.TablePlan, now *advisor
 	sw := p.Sweep
 	b.WriteString("\n")
 	if p.Rec == nil {
-		line := "Recommended: " + strings.TrimPrefix(p.Keep, "the recommendation ")
+		line := "Recommended: " + strings.Replace(p.Keep, "the recommendation keeps", "keep", 1)
 		if c, _, ok := sw.Pick(); ok && c.Today() && len(c.Warnings) > 0 {
 			line += " (still warns: " + strings.Join(c.Warnings, "; ") + ")"
 		}

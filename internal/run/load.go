@@ -6,7 +6,10 @@ import (
 	"io"
 	"strings"
 
+	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/escape"
+	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/units"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
@@ -115,4 +118,30 @@ func PickTables(m *schema.Manifest, name string) ([]int, error) {
 		return nil, fmt.Errorf("--table %q: %s has no such table; it has %s", name, m.File, strings.Join(names, ", "))
 	}
 	return idx, nil
+}
+
+// PlanDoc plans the tables picked of each loaded manifest (picked[k] for loaded[k];
+// a manifest with none is left out) with the levels' warning thresholds, date and
+// horizon, as check ranks layouts: with default settings each table's recommendation is
+// the one check quotes.
+func PlanDoc(loaded []Loaded, picked [][]int, set advisor.Settings, lv advisor.Levels) *report.Plan {
+	doc := &report.Plan{Version: ModuleVersion(), Today: lv.Today, Horizon: lv.Horizon()}
+	set.Levels = lv
+	for k, l := range loaded {
+		if len(picked[k]) == 0 {
+			continue
+		}
+		md := analysis.Analyze(l.Manifest, lv)
+		doc.Files = append(doc.Files, report.PlanFile{Manifest: l.Manifest, URI: l.URI, Plans: md.Plans(picked[k], set, doc.Horizon)})
+	}
+	return doc
+}
+
+// LoadedFiles are the paths the manifests were read from, for the output guards.
+func LoadedFiles(loaded []Loaded) []string {
+	out := make([]string, len(loaded))
+	for i, l := range loaded {
+		out[i] = l.Manifest.File
+	}
+	return out
 }

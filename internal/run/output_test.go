@@ -33,7 +33,7 @@ func TestParseFormats(t *testing.T) {
 		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, github, json, markdown`},
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
-		{report.PlanReport, []string{"json"}, "", "use one of text, svg"},
+		{report.PlanReport, []string{"markdown"}, "", "use one of text, json, svg"},
 	} {
 		if _, err := ParseFormats(c.kind, c.formats, c.output, nil); err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%v %v %q: err %v, want %q", c.kind, c.formats, c.output, err, c.want)
