@@ -49,12 +49,7 @@ func newPlan() *cobra.Command {
 			if cmd.Flags().Changed("horizon") {
 				lv.HorizonMonths = horizon
 			}
-			if svg != "" && len(formats) == 0 {
-				formats = []string{"text", "svg=" + svg}
-			} else if svg != "" {
-				formats = append(formats, "svg="+svg)
-			}
-			dests, err := run.ParseFormats(report.PlanReport, formats, output, []string{"text"})
+			dests, err := run.PlanFormats(formats, output, svg)
 			if err != nil {
 				return usageError(err)
 			}
