@@ -89,7 +89,7 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 	c, fits, ok := sw.Pick()
 	switch {
 	case !ok:
-		return Recommendation{}, fmt.Sprintf("no layout tried fits every budget or comes nearer to them than today's (segment sizes up to %s tried); raise a budget or engine.max_segment_rows",
+		return Recommendation{}, fmt.Sprintf("no layout tried fits every budget, or comes nearer to them than today's without breaking another or making one worse (segment sizes up to %s tried); raise a budget or engine.max_segment_rows",
 			units.Count(sw.MaxSegmentRows))
 	case c.Today():
 		keep := "the recommendation keeps today's layout: it fits every budget"
