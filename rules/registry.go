@@ -155,7 +155,7 @@ func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
 		out = append(out, fs[:n]...)
 		out = append(out, fs[n+len(model):]...)
 		if cfg.Advise {
-			t.Recommended()
+			t.Advise()
 		}
 		t.Settle() // no rule reads it again: drop its sweep before the next table's
 	}

@@ -64,6 +64,11 @@ type Settings struct {
 	Capacities       []int64
 	FixedSegmentRows bool   // the deployment cannot change the segment capacity
 	Levels           Levels // the zero value means DefaultLevels
+	// PickOnly sweeps only as far as the pick needs: when a layout at today's capacity
+	// fits every budget with no warning and no needless partitions, no layout at another
+	// capacity can rank above it (better), so the other capacities are left out. The
+	// pick is the full sweep's; the front and the list of candidates are not.
+	PickOnly bool
 }
 
 func (s Settings) levels() Levels {
@@ -610,8 +615,19 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 	}
 	caps := md.capacities(set)
+	if set.PickOnly {
+		try(today)
+		for k := range sw.Candidates {
+			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
+				md.mark(sw)
+				return sw
+			}
+		}
+	}
 	for _, s := range caps {
-		try(s)
+		if !set.PickOnly || s != today {
+			try(s)
+		}
 	}
 	if set.Capacities == nil && !set.FixedSegmentRows {
 		for s := caps[len(caps)-1]; !clean && s < sw.MaxSegmentRows && s <= math.MaxInt64/2; {

@@ -81,3 +81,24 @@ func TestSettleKeepsWhatReportsPrint(t *testing.T) {
 		t.Errorf("recommendation after settling %q (ok %v)", r.Hint(), ok)
 	}
 }
+
+// Advise sweeps only today's capacity when a layout there is clean, and must still give
+// the full sweep's recommendation, or its reason for keeping today's layout.
+func TestAdviseIsTheFullSweepsPick(t *testing.T) {
+	for _, src := range []string{
+		evenForty,
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 40M, partitions: {scheme: even, count: 8}}]\n",
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 5000, partitions: {scheme: even, count: 4}}]\n",
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\nbudgets: {scan_overhead_ms: 300}\ntables: [{name: t, rows: 8G, partitions: {scheme: none}}]\n",
+	} {
+		lv := advisor.DefaultLevels
+		quick, full := Analyze(load(t, src), lv), Analyze(load(t, src), lv)
+		for i, q := range quick.Tables {
+			q.Advise()
+			f := full.Tables[i]
+			if q.Advice() != f.Advice() || q.Layouts() != nil {
+				t.Errorf("%s: Advise says %q, the full sweep %q", q.Spec.Name, q.Advice(), f.Advice())
+			}
+		}
+	}
+}

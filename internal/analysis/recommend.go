@@ -80,6 +80,20 @@ func (t *Table) Recommended() (r Recommendation, ok bool) {
 	return t.rec, t.rec.Candidate != nil
 }
 
+// Advise computes the table's recommendation for a report that prints it beside every
+// table, sweeping only as far as the pick needs when no rule asked for the sweep
+// (advisor.Settings.PickOnly): the same recommendation at a fraction of the cost for a
+// table whose layout is fine today. The sweep is not kept, so Layouts stays nil.
+func (t *Table) Advise() {
+	if t.recDone || t.swept || t.model == nil {
+		t.Recommended()
+		return
+	}
+	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true})
+	t.recDone = true
+	t.rec, t.keep = recommendationOf(t, sw, t.model.levels)
+}
+
 // recommendationOf words the pick of sweep sw of table t with levels lv; keep says why
 // there is none.
 func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommendation, string) {
