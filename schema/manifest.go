@@ -85,8 +85,8 @@ type Engine struct {
 	// never proposes a larger one. DefaultMaxSegmentRows when not declared.
 	MaxSegmentRows int64
 	Pos            Pos // the engine key
-	SegmentRowsPos     Pos
-	MemoryPos          Pos
+	SegmentRowsPos Pos
+	MemoryPos      Pos
 }
 
 // Engine defaults of format 1.

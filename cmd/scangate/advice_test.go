@@ -6,9 +6,8 @@ import (
 	"testing"
 )
 
-// planRec is the recommendation of the first table of plan's JSON for a manifest, with
-// the flags given; nil when today's layout is kept.
-func planRec(t *testing.T, path string, flags ...string) *struct {
+// jsonRec is the part of a recommendation object the tests read.
+type jsonRec struct {
 	Change       string
 	Hint         string
 	Fits         bool
@@ -16,22 +15,18 @@ func planRec(t *testing.T, path string, flags ...string) *struct {
 	Segments     int64
 	HoldsThrough *string `json:"holds_through"`
 	Horizon      int     `json:"horizon_months"`
-} {
+}
+
+// planRec is the recommendation of the first table of plan's JSON for a manifest, with
+// the flags given; nil when today's layout is kept.
+func planRec(t *testing.T, path string, flags ...string) *jsonRec {
 	t.Helper()
 	r := scangate(t, root(t), "", nil, append([]string{"plan", path, "--format", "json", "--today", "2026-01-15"}, flags...)...)
 	wantCode(t, r, 0)
 	var doc struct {
 		Files []struct {
 			Tables []struct {
-				Recommendation *struct {
-					Change       string
-					Hint         string
-					Fits         bool
-					SegmentRows  int64 `json:"segment_rows"`
-					Segments     int64
-					HoldsThrough *string `json:"holds_through"`
-					Horizon      int     `json:"horizon_months"`
-				}
+				Recommendation *jsonRec
 			}
 		}
 	}
