@@ -33,7 +33,7 @@ func TestHintsQuoteTheRecommendation(t *testing.T) {
 		t.Fatalf("want scan-overhead and truncated-segments, got %+v", fs)
 	}
 	for _, f := range fs {
-		if len(f.Hints) == 0 || f.Hints[0] != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+		if len(f.Hints) == 0 || f.Hints[0] != "use count: 10: 40 -> 10 partitions, 40 -> 10 segments, -45.0 ms per scan" {
 			t.Errorf("%s: hints %q", f.Rule, f.Hints)
 		}
 	}

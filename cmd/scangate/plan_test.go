@@ -123,7 +123,8 @@ func TestPlanDemoMeterReads(t *testing.T) {
 	body := strings.Join(sec.lines, "\n")
 	before := regexp.MustCompile(`segments +730 -> (\d[\d,]*)`).FindStringSubmatch(body)
 	saved := regexp.MustCompile(`fixed CPU +1,095 -> [\d,.]+ ms per scan \((-[\d,.]+) ms\)`).FindStringSubmatch(body)
-	if before == nil || saved == nil {
+	parts := regexp.MustCompile(`partitions +730 -> (\d[\d,]*)`).FindStringSubmatch(body)
+	if before == nil || saved == nil || parts == nil {
 		t.Fatalf("no before/after numbers:\n%s", body)
 	}
 	// The forecast says until when the recommended layout holds, with its horizon (the
@@ -135,7 +136,7 @@ func TestPlanDemoMeterReads(t *testing.T) {
 	// check quotes the same recommendation, with the same numbers.
 	c := scangate(t, root(t), "", nil, "check", demoTelemetry, "--today", "2026-01-01")
 	wantCode(t, c, 1)
-	want := sec.recommended + ": 730 -> " + before[1] + " segments, " + saved[1] + " ms per scan"
+	want := sec.recommended + ": 730 -> " + parts[1] + " partitions, 730 -> " + before[1] + " segments, " + saved[1] + " ms per scan"
 	// The table's first finding carries it, with the same horizon; the next points to it.
 	if h := hintsOf(c.stdout, "meter_reads", "scan-overhead"); len(h) == 0 || h[0] != want+"; holds every budget through 2027-01 (12-month horizon)" {
 		t.Errorf("scan-overhead hint %q, plan says %q", h, want)

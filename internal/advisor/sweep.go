@@ -127,6 +127,7 @@ type Sweep struct {
 	// make no broken figure worse; -1 when none is nearer than today's.
 	Closest        int
 	MaxSegmentRows int64 // the largest capacity the sweep could try (engine.max_segment_rows)
+	Largest        int64 // the largest capacity it tried
 	Profiled       bool  // the model has column profiles: the front's memory axis is the refresh peak
 }
 
@@ -629,14 +630,28 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			try(s)
 		}
 	}
+	sw.Largest = caps[len(caps)-1]
 	if set.Capacities == nil && !set.FixedSegmentRows {
-		for s := caps[len(caps)-1]; !clean && s < sw.MaxSegmentRows && s <= math.MaxInt64/2; {
+		// Once every layout tried at the largest size holds each partition in one
+		// segment, a larger size changes nothing but the memory: stop there.
+		for s := sw.Largest; !clean && !whole(sw.Candidates, s) && s < sw.MaxSegmentRows && s <= math.MaxInt64/2; {
 			s = min(2*s, sw.MaxSegmentRows)
 			try(s)
+			sw.Largest = s
 		}
 	}
 	md.mark(sw)
 	return sw
+}
+
+// whole reports whether every candidate at capacity s holds each partition in one segment.
+func whole(cs []Candidate, s int64) bool {
+	for k := range cs {
+		if c := &cs[k]; c.SegmentRows == s && c.Layout.Segments > int64(c.Layout.Partitions) {
+			return false
+		}
+	}
+	return true
 }
 
 // words is the text of each miss.

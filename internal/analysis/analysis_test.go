@@ -43,7 +43,7 @@ func TestAnalyzeOncePerTable(t *testing.T) {
 func TestRecommendedIsTheSweepsPick(t *testing.T) {
 	tb := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[1]
 	r, ok := tb.Recommended()
-	if !ok || !r.Fits || r.Hint() != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+	if !ok || !r.Fits || r.Hint() != "use count: 10: 40 -> 10 partitions, 40 -> 10 segments, -45.0 ms per scan" {
 		t.Fatalf("recommendation %q (ok %v, fits %v)", r.Hint(), ok, r.Fits)
 	}
 	sw := tb.Sweep()
@@ -77,7 +77,7 @@ func TestSettleKeepsWhatReportsPrint(t *testing.T) {
 		t.Errorf("encoded bytes %v after settling, %v before", tb.EncodedBytes(), bytes)
 	}
 	// The recommendation stays, worded alike.
-	if r, ok := tb.Recommended(); !ok || r.Hint() != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+	if r, ok := tb.Recommended(); !ok || r.Hint() != "use count: 10: 40 -> 10 partitions, 40 -> 10 segments, -45.0 ms per scan" {
 		t.Errorf("recommendation after settling %q (ok %v)", r.Hint(), ok)
 	}
 }

@@ -20,12 +20,12 @@ func (t *Table) Sweep() *advisor.Sweep {
 }
 
 // Recommendation is the one change the analysis proposes for a table: the sweep's pick
-// when it is a layout other than today's that cuts segments. Every rule's hint, plan,
+// when it is a layout other than today's. Every rule's hint, plan,
 // diff and every report quote it.
 type Recommendation struct {
 	// Candidate is a copy of the sweep's pick, kept when the model is settled.
 	Candidate *advisor.Candidate
-	Effect    string // against today's layout: "730 -> 302 segments, -642 ms per scan"
+	Effect    string // against today's layout: "730 -> 38 partitions, 730 -> 305 segments, -638 ms per scan"
 	// Fits is false when nothing fits every budget and the pick is only the closest.
 	Fits bool
 	// Horizon is the months ahead the recommendation is judged over (the
@@ -65,8 +65,7 @@ func (r Recommendation) Holds() string {
 }
 
 // Recommended is the table's recommendation, computed once; ok is false when there is
-// none: the sweep keeps today's layout, finds nothing nearer the budgets, or its pick
-// does not cut segments.
+// none: the sweep keeps today's layout or finds nothing nearer the budgets.
 func (t *Table) Recommended() (r Recommendation, ok bool) {
 	if t.recDone {
 		return t.rec, t.rec.Candidate != nil
@@ -103,8 +102,14 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 	c, fits, ok := sw.Pick()
 	switch {
 	case !ok:
-		return Recommendation{}, fmt.Sprintf("no layout tried fits every budget, or comes nearer to them than today's without breaking another or making one worse (segment sizes up to %s tried); raise a budget or engine.max_segment_rows",
-			units.Count(sw.MaxSegmentRows))
+		raise := "a budget"
+		if sw.Largest < sw.MaxSegmentRows {
+			raise = "a budget; larger segments would not help" // the sweep stopped where they stop helping
+		} else {
+			raise += " or engine.max_segment_rows"
+		}
+		return Recommendation{}, fmt.Sprintf("no layout tried fits every budget, or comes nearer to them than today's without breaking another or making one worse (segment sizes up to %s tried); raise %s",
+			units.Count(sw.Largest), raise)
 	case c.Today():
 		keep := "the recommendation keeps today's layout: it fits every budget"
 		if len(c.Warnings) > 0 {
@@ -117,11 +122,13 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 			keep += "; it " + h.Holds()
 		}
 		return Recommendation{}, keep
-	case c.Layout.Segments >= t.Layout.Segments:
-		return Recommendation{}, "the recommendation keeps today's layout: no layout tried cuts segments"
 	}
 	pick := *c
-	r := Recommendation{Candidate: &pick, Effect: advisor.Effect(&sw.Candidates[sw.Today], c), Fits: fits, Horizon: lv.Horizon(), HoldsMonths: -1}
+	now := &sw.Candidates[sw.Today]
+	r := Recommendation{Candidate: &pick, Effect: advisor.Effect(now, c), Fits: fits, Horizon: lv.Horizon(), HoldsMonths: -1}
+	if a, b := now.Layout.Partitions, c.Layout.Partitions; a != b {
+		r.Effect = fmt.Sprintf("%s -> %s partitions, %s", units.Num(int64(a)), units.Num(int64(b)), r.Effect)
+	}
 	md := t.model.advisor
 	r.Growth = md.Grows()
 	if fits {
