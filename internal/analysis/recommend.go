@@ -202,7 +202,7 @@ func (t *Table) Alternative() string {
 // when the model is settled.
 type Layouts struct {
 	Today       LayoutFigure
-	Recommended *LayoutFigure  // nil without a recommendation or when it is today's
+	Recommended *LayoutFigure  // the recommendation (or closest layout); nil when today's is kept
 	Front       []LayoutFigure // in sweep order, without today's and the recommended one
 }
 
@@ -233,12 +233,17 @@ func layoutsOf(sw *advisor.Sweep) *Layouts {
 		return LayoutFigure{Label: c.Label, SegmentRows: c.SegmentRows, FixedMs: c.Layout.FixedMs}
 	}
 	l := &Layouts{Today: fig(sw.Today)}
-	if sw.Recommended >= 0 && sw.Recommended != sw.Today {
-		r := fig(sw.Recommended)
+	// The recommendation, the closest layout when none fits, as the hints quote it.
+	rec := sw.Recommended
+	if rec < 0 {
+		rec = sw.Closest
+	}
+	if rec >= 0 && rec != sw.Today {
+		r := fig(rec)
 		l.Recommended = &r
 	}
 	for i, c := range sw.Candidates {
-		if c.Front && i != sw.Today && i != sw.Recommended {
+		if c.Front && i != sw.Today && i != rec {
 			l.Front = append(l.Front, fig(i))
 		}
 	}
