@@ -25,9 +25,11 @@ var BudgetForecast = Rule{
 		"re-lays it out month by month from the run's date and reports the first month a " +
 		"budget (scan overhead, scan time, refresh memory, engine memory) is crossed. Budgets " +
 		"already broken today are left to the other rules.",
-	Fix: "Change the layout before that month: the hint names the layout from the sweep that " +
-		"holds every budget through the next 12 months; `scangate plan` shows the month by " +
-		"month forecast and every option. Or raise the budget if the growth is planned for.",
+	Fix: "Change the layout before that month: the first hint is the table's one " +
+		"recommendation and says until when it holds every budget within the horizon " +
+		"(horizon_months, 12 by default; `scangate plan` uses the same); `scangate plan` shows " +
+		"the month by month forecast and every option. Or raise the budget if the growth is " +
+		"planned for.",
 	Check: checkBudgetForecast,
 	How: "Month t from the run's date (--today) holds rows x (1+g)^(t/12) rows for every table of " +
 		"the model, g its growth_per_year (listed items and measured encoded_bytes alike). Each " +
@@ -105,13 +107,7 @@ func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
 			msg = fmt.Sprintf("with the model's growth, the refresh peak crosses the %s in %s: %s (today %s)",
 				budgetWords(c), advisor.Month(c.Date), c.Format(c.Value), c.Format(c.Now))
 		}
-		hint := fmt.Sprintf("no layout tried holds every budget through %s; `scangate plan --segment-rows` tries other segment sizes, or raise the budget", end)
-		if sw := t.Sweep(); sw != nil {
-			if h := md.Holds(sw, horizon); h != nil && !h.Today() {
-				hint = fmt.Sprintf("%s holds every budget through %s: %s", h.Change, end, advisor.Effect(&sw.Candidates[sw.Today], h))
-			}
-		}
-		out = append(out, finding(t, Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{hint}, map[string]float64{
+		out = append(out, advised(t, Warning, t.Spec.Pos, "forecast "+c.Budget, msg, []string{fmt.Sprintf("`scangate plan` shows the forecast month by month through %s (%d-month horizon)", end, horizon)}, map[string]float64{
 			"month":  float64(c.Month),
 			"limit":  c.Limit,
 			"value":  c.Value,

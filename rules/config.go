@@ -19,6 +19,10 @@ import (
 type Config struct {
 	Today time.Time // zero means the current date (UTC)
 	Rules map[string]RuleConfig
+	// Advise computes every table's recommendation before the analysis is settled, for
+	// reports that print it beside each table (the JSON report), not only for the tables
+	// a finding quotes it for.
+	Advise bool
 }
 
 // RuleConfig is a project's setting for one rule.
@@ -147,5 +151,6 @@ func (c Config) Levels() advisor.Levels {
 		TruncWarnShare:    c.Value(truncatedSegmentsID, truncWarnShare),
 		PartitionLimit:    c.Value(partitionCountID, partitionLimit),
 		HorizonMonths:     units.Int(c.Value(budgetForecastID, forecastHorizon)),
+		Today:             c.today(),
 	}
 }

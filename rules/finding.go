@@ -82,6 +82,9 @@ type Finding struct {
 	Subject  string // what within the table the finding is about, stable across line moves
 	Message  string // one line, with the numbers
 	Hints    []string
+	// Advice is set when Hints[0] is the table's recommendation, shared by every finding
+	// of the table: text output prints it once per table and points to it after.
+	Advice bool
 	// Numbers are the figures behind the message, for machine-readable reports.
 	Numbers map[string]float64
 	// Waiver is the manifest's waiver that accepts this finding, nil if none.

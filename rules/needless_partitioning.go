@@ -3,11 +3,8 @@ package rules
 import (
 	"fmt"
 
-	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/analysis"
-	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/internal/units"
-	"github.com/scangate/scangate/schema"
 )
 
 // NeedlessPartitioning fires when a table with several partitions would fit in one segment.
@@ -18,7 +15,9 @@ var NeedlessPartitioning = Rule{
 	Why: "A table whose rows fit in a single segment gains nothing from partitions: each one " +
 		"adds a segment of its own, with its own dictionaries and its fixed scan cost, and the " +
 		"refresh has more pieces to process.",
-	Fix:   "Use partitions: {scheme: none} for the table.",
+	Fix: "Use partitions: {scheme: none} for the table. The recommendation ranks a layout " +
+		"without needless partitions first, so the first hint, the table's one recommendation, " +
+		"says so with its effect unless a budget rules it out.",
 	Check: checkNeedlessPartitioning,
 	How: "A table with two or more partitions whose rows are at most engine.segment_rows. With " +
 		"refresh.routine, the hint adds what each routine refresh then rebuilds (the whole table).",
@@ -39,20 +38,7 @@ func checkNeedlessPartitioning(t *analysis.Table, cfg Config) []Finding {
 	}
 	msg := fmt.Sprintf("%d partitions and %s segments hold %s rows, which fit in one segment of %s rows",
 		l.Partitions, units.Num(l.Segments), units.Count(l.Rows), units.Count(t.Engine.SegmentRows))
-	extra := float64(l.Segments-l.Ideal) * t.Engine.SegmentOverheadMs
-	hint := fmt.Sprintf("use partitions: {scheme: none}: %s -> %s segments, %s ms per scan",
-		units.Num(l.Segments), units.Num(l.Ideal), units.Signed(-extra))
-	// One partition holds the days the routine refresh reloads: say what it then rebuilds.
-	one := t.Spec
-	one.Partitions = schema.Partitions{Scheme: schema.SchemeNone}
-	if parts, err := layout.Expand(one); err == nil {
-		then := layout.Window{Whole: true}.Rebuilt(one, parts, t.Engine.RefreshWorkers(), t.Engine.RefreshRowsPerS)
-		if w := advisor.RoutineWords(t.Routine, then); w != "" {
-			hint += "; " + w
-		}
-	}
-	hints := []string{hint}
-	return []Finding{finding(t, Note, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{advised(t, Note, t.Spec.Partitions.Pos, "partitions", msg, nil, map[string]float64{
 		"partitions": float64(l.Partitions),
 		"segments":   float64(l.Segments),
 		"rows":       float64(l.Rows),

@@ -5,7 +5,6 @@ import (
 	"testing"
 
 	"github.com/scangate/scangate/internal/analysis"
-	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -20,28 +19,30 @@ func load(t *testing.T, src string) *schema.Manifest {
 
 // 40M rows in 8 even partitions of 5M with 8Mi-row segments: 8 segments; 5 partitions of
 // 8M rows are 5 segments = ceil(40M / 8,388,608) = 5, the ideal (hand-computed), so
-// count 5 is the largest waste-free count below 8.
-func TestEvenOptionFindsWasteFreeCount(t *testing.T) {
+// count 5 is the largest waste-free count below 8. Three excess segments are a note:
+// today's layout fits every budget, so it is kept, and the note's second line names
+// count 5 as an alternative.
+func TestEvenAlternativeFindsWasteFreeCount(t *testing.T) {
 	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 40M, partitions: {scheme: even, count: 8}}]\n")
-	tb := analysis.Analyze(m, Config{}.Levels()).Tables[0]
-	o, ok := bestTrim(tb)
-	if !ok || o.Spec.Partitions.Count != 5 || o.Layout.Segments != 5 {
-		t.Fatalf("bestTrim = %+v (ok %v); want count 5 with 5 segments", o.Change, ok)
+	fs := Run(m, Config{})
+	if len(fs) != 1 || fs[0].Rule != TruncatedSegments.ID || len(fs[0].Hints) != 2 {
+		t.Fatalf("findings %+v", fs)
 	}
-	if e := tb.Effect(o); e != "8 -> 5 segments, -4.5 ms per scan" {
-		t.Errorf("effect = %q", e)
+	if h := fs[0].Hints; h[0] != "the recommendation keeps today's layout: it fits every budget" ||
+		h[1] != "alternative, not the recommendation, ending most of the excess: use count: 5: 8 -> 5 segments, -4.5 ms per scan" {
+		t.Errorf("hints %q", h)
 	}
 }
 
 // The fixed budget of 1,000 ms at 1.5 ms per segment allows 666 segments; 1M rows at
-// 1,000 rows per segment need 1,000; doubling the segment size gives 500 (750 ms), the
-// smallest change that fits.
-func TestBestFitPrefersSmallestChange(t *testing.T) {
+// 1,000 rows per segment need 1,000: no partition change fits, so the recommendation is
+// the smallest capacity tried that does, 1Mi rows (one segment, 1.5 ms).
+func TestRecommendationPrefersSmallestCapacity(t *testing.T) {
 	m := load(t, "format: 1\nmodel: m\nengine: {segment_rows: 1000}\nbudgets: {scan_overhead_ms: 1000}\ntables: [{name: t, rows: 1M, partitions: {scheme: none}}]\n")
 	tb := analysis.Analyze(m, Config{}.Levels()).Tables[0]
-	o, fits, ok := bestFit(tb.Options(), func(o analysis.Option) float64 { return o.Layout.FixedMs }, 1000, tb.Layout.FixedMs)
-	if !ok || !fits || o.SegmentRows != 2000 || o.Layout.FixedMs != 750 {
-		t.Fatalf("bestFit = %q fits %v ok %v, %v ms", o.Change, fits, ok, o.Layout.FixedMs)
+	r, ok := tb.Recommended()
+	if !ok || !r.Fits || r.Candidate.SegmentRows != 1<<20 || r.Candidate.Layout.FixedMs != 1.5 {
+		t.Fatalf("recommendation %q (ok %v)", r.Hint(), ok)
 	}
 }
 
@@ -77,22 +78,5 @@ tables:
 		if tb.Layout.Segments <= 0 || tb.Layout.Segments < tb.Layout.Ideal {
 			t.Errorf("%s: segments %d, ideal %d", tb.Spec.Name, tb.Layout.Segments, tb.Layout.Ideal)
 		}
-	}
-}
-
-// An option whose figure equals today's up to floating-point rounding is no
-// improvement: bestFit must not offer it as the closest change.
-func TestBestFitIgnoresRoundingNoise(t *testing.T) {
-	today := 62161.0
-	opts := []analysis.Option{
-		{Change: "noise", Scan: layout.Scan{WallMs: today * (1 - 1e-13)}},
-	}
-	wall := func(o analysis.Option) float64 { return o.Scan.WallMs }
-	if _, _, ok := bestFit(opts, wall, 1000, today); ok {
-		t.Error("a change that moves the scan time by rounding noise was offered")
-	}
-	opts = append(opts, analysis.Option{Change: "real", Scan: layout.Scan{WallMs: today - 1}})
-	if o, fits, ok := bestFit(opts, wall, 1000, today); !ok || fits || o.Change != "real" {
-		t.Errorf("got %q fits=%v ok=%v, want the real improvement as the closest", o.Change, fits, ok)
 	}
 }

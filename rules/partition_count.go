@@ -19,7 +19,8 @@ var PartitionCount = Rule{
 		"Past a few thousand partitions per table, refresh planning and metadata operations " +
 		"slow down whatever the row counts (a rule of thumb, from memory, common practice).",
 	Fix: "Use a coarser grain for older periods (tiers), fewer even partitions, or merge " +
-		"listed partitions. The hint names the coarser layout and its partition count.",
+		"listed partitions. The first hint is the table's one recommendation (a layout above the " +
+		"limit still warns, so the recommendation avoids it when any layout tried does).",
 	Params: []Param{partitionLimit},
 	Check:  checkPartitionCount,
 	How:    "The partitions the scheme expands to (sum of keep over the tiers, count, or the listed items) against limit.",
@@ -47,23 +48,7 @@ func checkPartitionCount(t *analysis.Table, cfg Config) []Finding {
 		return nil
 	}
 	msg := fmt.Sprintf("%s partitions, above the limit of %s per table", units.Num(n), units.Num(limit))
-	var hints []string
-	var best *analysis.Option
-	opts := t.Options()
-	for i := range opts {
-		o := &opts[i]
-		if o.Engine || int64(o.Layout.Partitions) > limit {
-			continue
-		}
-		// Prefer the layout that keeps the most partitions under the limit.
-		if best == nil || o.Layout.Partitions > best.Layout.Partitions {
-			best = o
-		}
-	}
-	if best != nil {
-		hints = append(hints, fmt.Sprintf("%s: %s -> %s partitions, %s", best.Change, units.Num(n), units.Num(int64(best.Layout.Partitions)), t.Effect(*best)))
-	}
-	return []Finding{finding(t, Warning, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{advised(t, Warning, t.Spec.Partitions.Pos, "partitions", msg, nil, map[string]float64{
 		"partitions": float64(n),
 		"limit":      float64(limit),
 	})}

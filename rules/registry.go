@@ -133,12 +133,33 @@ func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
 		}
 		out = append(out, fs[:n]...)
 		out = append(out, fs[n+len(model):]...)
+		if cfg.Advise {
+			t.Advise()
+		}
 		t.Settle() // no rule reads it again: drop its sweep before the next table's
 	}
 	out = append(out, model...)
 	sort.SliceStable(out, func(i, j int) bool { return Less(out[i], out[j]) })
 	md.Settle()
 	return md, out
+}
+
+// advised is a finding whose first hint is the table's one recommendation
+// (analysis.Table.Advice), the same under every finding of the table, followed by the
+// rule's own lines (facts, or a marked alternative), never another layout to adopt.
+func advised(t *analysis.Table, sev Severity, pos schema.Pos, subject, msg string, extra []string, nums map[string]float64) Finding {
+	var hints []string
+	if a := t.Advice(); a != "" {
+		hints = append(hints, a)
+	}
+	for _, h := range extra {
+		if h != "" {
+			hints = append(hints, h)
+		}
+	}
+	f := finding(t, sev, pos, subject, msg, hints, nums)
+	f.Advice = t.Advice() != ""
+	return f
 }
 
 // finding fills in what every finding of a table shares; Check sets the rule ID.

@@ -2,7 +2,6 @@ package rules
 
 import (
 	"fmt"
-	"math"
 
 	"github.com/scangate/scangate/internal/analysis"
 
@@ -20,9 +19,10 @@ var ScanOverhead = Rule{
 		"every query that scans the table, before a single byte is read. Above the budget it " +
 		"is an error; above 80% of it, a warning.",
 	Fix: "Reduce the segment count: coarser partitions, fewer even partitions, merged listed " +
-		"partitions, or a larger engine segment size where the deployment allows it. The hint " +
-		"names the layout `scangate plan` recommends (the least disruptive one that fits every " +
-		"budget) and its effect.",
+		"partitions, or a larger engine segment size where the deployment allows it. The first " +
+		"hint is the table's one recommendation, the same under every finding of the table and " +
+		"in `scangate plan`: the least disruptive layout that fits every budget, or when none " +
+		"does the one nearest all of them at once that makes no budget worse.",
 	Params: []Param{overheadWarnShare},
 	Check:  checkScanOverhead,
 	How:    "segments x engine.segment_overhead_ms, the fixed CPU of one full scan, against budgets.scan_overhead_ms (the table's own budget, else the manifest's, else the project config's). An error above the budget, a warning above warn_share of it.",
@@ -61,64 +61,14 @@ func checkScanOverhead(t *analysis.Table, cfg Config) []Finding {
 	msg := fmt.Sprintf("a full scan pays %s ms of fixed CPU for %s segments (%s ms each), %s of the %s ms budget",
 		units.Ms(f), units.Num(t.Layout.Segments), units.Ms(t.Engine.SegmentOverheadMs), units.Pct(f / *b), units.Ms(*b))
 	allowed := units.Int64(*b / t.Engine.SegmentOverheadMs) // +Inf at overhead 0: saturates
-	var hints []string
-	// The plan's recommendation first, so check and plan name the same layout.
-	if r, ok := t.Recommended(); ok {
-		hints = append(hints, r.Hint())
-	} else if o, fits, ok := bestFit(t.Options(), func(o analysis.Option) float64 { return o.Layout.FixedMs }, *b, f); ok {
-		hints = append(hints, fitHint(o, fits, t.Effect(o)))
-	}
+	var extra []string
 	if allowed < t.Layout.Ideal {
-		hints = append(hints, fmt.Sprintf("the budget allows at most %s segments, but %s rows need at least %s segments of %s rows: no partition change alone can fit",
+		extra = append(extra, fmt.Sprintf("the budget allows at most %s segments, but %s rows need at least %s segments of %s rows: no partition change alone can fit",
 			units.Num(allowed), units.Count(t.Layout.Rows), units.Num(t.Layout.Ideal), units.Count(t.Engine.SegmentRows)))
 	}
-	return []Finding{finding(t, sev, t.Spec.Pos, "scan-overhead", msg, hints, map[string]float64{
+	return []Finding{advised(t, sev, t.Spec.Pos, "scan-overhead", msg, extra, map[string]float64{
 		"fixed_ms":  f,
 		"budget_ms": *b,
 		"segments":  float64(t.Layout.Segments),
 	})}
-}
-
-// bestFit finds the least disruptive option whose figure fits the budget: a partition
-// change before an engine change, a smaller segment size before a larger one, and the
-// most partitions kept. Without one that fits, it returns the option that comes
-// closest (fits false); ok is false when no option improves on today.
-func bestFit(opts []analysis.Option, figure func(analysis.Option) float64, budget, today float64) (o analysis.Option, fits, ok bool) {
-	var best, closest *analysis.Option
-	for i := range opts {
-		o := &opts[i]
-		if closest == nil || figure(*o) < figure(*closest) {
-			closest = o
-		}
-		if figure(*o) <= budget && (best == nil || lessDisruptive(*o, *best)) {
-			best = o
-		}
-	}
-	if best != nil {
-		return *best, true, true
-	}
-	// A figure within a billionth of today's is today's computed another way (floating
-	// point), not an improvement worth a hint.
-	if closest != nil && figure(*closest) < today-1e-9*math.Abs(today) {
-		return *closest, false, true
-	}
-	return analysis.Option{}, false, false
-}
-
-func lessDisruptive(a, b analysis.Option) bool {
-	if a.Engine != b.Engine {
-		return !a.Engine
-	}
-	if a.SegmentRows != b.SegmentRows {
-		return a.SegmentRows < b.SegmentRows
-	}
-	return a.Layout.Partitions > b.Layout.Partitions
-}
-
-// fitHint words the result of bestFit.
-func fitHint(o analysis.Option, fits bool, effect string) string {
-	if fits {
-		return fmt.Sprintf("%s: %s", o.Change, effect)
-	}
-	return fmt.Sprintf("no single change tried fits the budget; the closest is to %s: %s", o.Change, effect)
 }

@@ -21,7 +21,8 @@ var ScanTime = Rule{
 		"budget it is an error; above 80% of it, a warning.",
 	Fix: "Fewer, fuller segments cut the fixed part; a better encoded column (lower " +
 		"cardinality, sorted or clustered order) cuts the byte part; more cores cut both. The " +
-		"hint names the smallest layout change that fits and its effect.",
+		"first hint is the table's one recommendation, the same under every finding of the " +
+		"table and in `scangate plan`.",
 	Params: []Param{scanWarnShare},
 	Check:  checkScanTime,
 	How:    "Each segment is a task of segment_overhead_ms plus its encoded bytes of the widest column at scan_mb_per_s; tasks are list-scheduled in partition order on cores cores and the estimate is the makespan. Encoded bytes come from the column profile (a per-segment dictionary plus bit-packed or run-length encoded indexes, or the plain values when those are smaller) or encoded_bytes.",
@@ -63,14 +64,11 @@ func checkScanTime(t *analysis.Table, cfg Config) []Finding {
 	}
 	msg := fmt.Sprintf("a full scan of column %s (%s encoded, %s segments) takes about %s ms on %d cores, %s of the %s ms budget",
 		t.Widest.Name, units.Size(t.Scan.Bytes), units.Num(t.Layout.Segments), units.Ms(w), t.Engine.Cores, units.Pct(w / *b), units.Ms(*b))
-	var hints []string
-	if o, fits, ok := bestFit(t.Options(), func(o analysis.Option) float64 { return o.Scan.WallMs }, *b, w); ok {
-		hints = append(hints, fitHint(o, fits, fmt.Sprintf("%s, scan %s -> %s ms", t.Effect(o), units.Ms(w), units.Ms(o.Scan.WallMs))))
-	}
+	var extra []string
 	if cores := coresNeeded(t.Scan.CPUMs, *b); cores > int64(t.Engine.Cores) {
-		hints = append(hints, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", units.Ms(t.Scan.CPUMs), units.Num(cores)))
+		extra = append(extra, fmt.Sprintf("the scan needs %s ms of CPU in all; at this layout it fits the budget only with %s or more cores", units.Ms(t.Scan.CPUMs), units.Num(cores)))
 	}
-	return []Finding{finding(t, sev, t.Spec.Pos, "scan-time", msg, hints, map[string]float64{
+	return []Finding{advised(t, sev, t.Spec.Pos, "scan-time", msg, extra, map[string]float64{
 		"wall_ms":   w,
 		"bound_ms":  t.Scan.BoundMs,
 		"cpu_ms":    t.Scan.CPUMs,

@@ -21,8 +21,9 @@ var TruncatedSegments = Rule{
 		"ceil(rows / segment_rows); the newest time partition is still filling and is not counted.",
 	Fix: "Use coarser partitions (a coarser grain, fewer even partitions, merged listed " +
 		"partitions), or keep a short recent window fine-grained and merge older periods. The " +
-		"hint names the layout `scangate plan` recommends and its effect, and, when that also " +
-		"changes the segment size, the partition change alone.",
+		"first hint is the table's one recommendation, the same under every finding of the " +
+		"table and in `scangate plan`; when it changes the engine's segment size, a line marked " +
+		"alternative names the best layout at today's size.",
 	Params: []Param{truncWarnMin, truncWarnShare},
 	Check:  checkTruncatedSegments,
 	How:    "For every closed partition p of r_p rows, ceil(r_p / segment_rows) segments; the ideal is ceil(sum r_p / segment_rows); the excess is their difference. A warning from max(warn_min, warn_share x segments) excess segments, else a note from 1.",
@@ -70,27 +71,7 @@ func checkTruncatedSegments(t *analysis.Table, cfg Config) []Finding {
 	msg := fmt.Sprintf("%s excess %s: partitions hold %s segments where %s would do (fill %s), %s ms of fixed CPU per scan",
 		units.Num(e), units.Plural(e, "segment", "segments"), units.Num(l.ClosedSegments), units.Num(l.ClosedIdeal), units.Pct(closedFill(t)),
 		units.Ms(float64(e)*t.Engine.SegmentOverheadMs))
-	var hints []string
-	// The plan's recommendation first, so check and plan name the same layout; when it
-	// changes the engine's segment size, the partition change alone follows.
-	rec, ok := t.Recommended()
-	if ok {
-		hints = append(hints, rec.Hint())
-	}
-	if !ok || rec.Candidate.Engine {
-		if o, ok := bestTrim(t); ok {
-			if len(hints) == 0 {
-				hints = append(hints, fmt.Sprintf("%s: %s", o.Change, t.Effect(o)))
-				// The change with the fewest segments, when it is another one, is worth a look too.
-				if f, ok := fewestSegments(t); ok && f.Change != o.Change {
-					hints = append(hints, fmt.Sprintf("or %s: %s", f.Change, t.Effect(f)))
-				}
-			} else {
-				hints = append(hints, fmt.Sprintf("or, keeping engine.segment_rows at %s, %s: %s", units.Count(t.Engine.SegmentRows), o.Change, t.Effect(o)))
-			}
-		}
-	}
-	return []Finding{finding(t, sev, t.Spec.Partitions.Pos, "partitions", msg, hints, map[string]float64{
+	return []Finding{advised(t, sev, t.Spec.Partitions.Pos, "partitions", msg, []string{t.Alternative()}, map[string]float64{
 		"segments":        float64(l.Segments),
 		"ideal_segments":  float64(l.Ideal),
 		"excess_segments": float64(e),
@@ -111,48 +92,4 @@ func closedFill(t *analysis.Table) float64 {
 		return 0
 	}
 	return float64(rows) / (float64(t.Layout.ClosedSegments) * float64(t.Engine.SegmentRows))
-}
-
-// bestTrim is the partition change (not an engine change) to suggest: among the
-// changes that remove at least half of the excess, the one that keeps the most
-// partitions (fewer segments breaks a tie); failing that, the one with fewest segments.
-func bestTrim(t *analysis.Table) (analysis.Option, bool) {
-	target := t.Layout.Segments - (t.Layout.ClosedExcess+1)/2
-	var best *analysis.Option
-	opts := t.Options()
-	for i := range opts {
-		o := &opts[i]
-		if o.Engine || o.Layout.Segments > target {
-			continue
-		}
-		if best == nil || o.Layout.Partitions > best.Layout.Partitions ||
-			(o.Layout.Partitions == best.Layout.Partitions && o.Layout.Segments < best.Layout.Segments) {
-			best = o
-		}
-	}
-	if best != nil {
-		return *best, true
-	}
-	return fewestSegments(t)
-}
-
-// fewestSegments is the partition change with the fewest segments; among equals, the
-// one that keeps the most partitions.
-func fewestSegments(t *analysis.Table) (analysis.Option, bool) {
-	var best *analysis.Option
-	opts := t.Options()
-	for i := range opts {
-		o := &opts[i]
-		if o.Engine || o.Layout.Segments >= t.Layout.Segments {
-			continue
-		}
-		if best == nil || o.Layout.Segments < best.Layout.Segments ||
-			(o.Layout.Segments == best.Layout.Segments && o.Layout.Partitions > best.Layout.Partitions) {
-			best = o
-		}
-	}
-	if best == nil {
-		return analysis.Option{}, false
-	}
-	return *best, true
 }

@@ -174,6 +174,7 @@ type EngineSettings struct {
 	RefreshParallelism *int
 
 	RefreshRowsPerS *float64
+	MaxSegmentRows  *int64
 }
 
 // over returns s with every field of top that is set replacing s's.
@@ -198,6 +199,9 @@ func (s EngineSettings) over(top EngineSettings) EngineSettings {
 	}
 	if top.RefreshRowsPerS != nil {
 		s.RefreshRowsPerS = top.RefreshRowsPerS
+	}
+	if top.MaxSegmentRows != nil {
+		s.MaxSegmentRows = top.MaxSegmentRows
 	}
 	return s
 }
@@ -224,6 +228,10 @@ func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
 		s.RefreshParallelism = &n
 	}
 	s.RefreshRowsPerS = optNumber(e, "refresh_rows_per_s")
+	if v, ok := e["max_segment_rows"]; ok {
+		n := d.count(ptr+"/max_segment_rows", v, true)
+		s.MaxSegmentRows = &n
+	}
 	return s
 }
 
@@ -285,6 +293,18 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 	out.RefreshParallelism = out.Cores
 	if s.RefreshParallelism != nil {
 		out.RefreshParallelism = *s.RefreshParallelism
+	}
+	out.MaxSegmentRows = DefaultMaxSegmentRows
+	if s.MaxSegmentRows != nil {
+		out.MaxSegmentRows = *s.MaxSegmentRows
+	}
+	if out.SegmentRows > out.MaxSegmentRows && len(d.problems) == 0 {
+		at := ptr + "/segment_rows"
+		if own.SegmentRows == nil {
+			at = ptr + "/profile"
+		}
+		d.fail(at, fmt.Sprintf("segment_rows %s is above max_segment_rows %s, the largest capacity the engine accepts; lower segment_rows or raise max_segment_rows",
+			group(out.SegmentRows), group(out.MaxSegmentRows)))
 	}
 	return out
 }

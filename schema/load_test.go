@@ -517,7 +517,7 @@ tables:
 		allowed string
 	}{
 		{at(t, src, 3, "colour"), "colour", "budgets, engine, format, model, tables"},
-		{at(t, src, 6, "spare"), "spare", "cores, memory, profile, refresh_parallelism, refresh_rows_per_s, scan_mb_per_s, segment_overhead_ms, segment_rows"},
+		{at(t, src, 6, "spare"), "spare", "cores, max_segment_rows, memory, profile, refresh_parallelism, refresh_rows_per_s, scan_mb_per_s, segment_overhead_ms, segment_rows"},
 		{at(t, src, 11, "sheme"), "sheme", "count, items, scheme, tiers"},
 		{at(t, src, 15, "distinc"), "distinc", "avg_length, distinct, encoded_bytes, name, order, run_length, type"},
 	}
@@ -630,5 +630,18 @@ func TestPositionsAcrossLineBreaks(t *testing.T) {
 				t.Errorf("%q with %q line breaks: %v, want %v", src, br, err, want)
 			}
 		}
+	}
+}
+
+// A segment capacity above the engine's largest is refused where it is written.
+func TestSegmentRowsAboveMaximum(t *testing.T) {
+	src := "format: 1\nmodel: m\nengine: {segment_rows: 64Mi, max_segment_rows: 32Mi}\ntables: [{name: t, rows: 1, partitions: {scheme: none}}]\n"
+	ps := problems(t, []byte(src), schema.DefaultLimits)
+	if len(ps) != 1 || ps[0].Pos.Line != 3 || !strings.Contains(ps[0].Message, "segment_rows 67,108,864 is above max_segment_rows 33,554,432") {
+		t.Fatalf("problems %+v", ps)
+	}
+	m, err := schema.Load("m.yaml", []byte("format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 1, partitions: {scheme: none}}]\n"), schema.DefaultLimits)
+	if err != nil || m.Engine.MaxSegmentRows != schema.DefaultMaxSegmentRows {
+		t.Fatalf("default maximum %v, err %v", m.Engine.MaxSegmentRows, err)
 	}
 }

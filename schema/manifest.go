@@ -81,11 +81,13 @@ type Engine struct {
 	ScanMBPerS         float64
 	Memory             int64 // bytes; 0 when not declared
 	RefreshParallelism int
-	Pos                Pos // the engine key
-	SegmentRowsPos     Pos
-	MemoryPos          Pos
-
+	// MaxSegmentRows is the largest segment capacity the engine accepts: the advisor
+	// never proposes a larger one. DefaultMaxSegmentRows when not declared.
+	MaxSegmentRows  int64
 	RefreshRowsPerS float64 // rows one partition's refresh loads per second
+	Pos             Pos     // the engine key
+	SegmentRowsPos  Pos
+	MemoryPos       Pos
 }
 
 // RefreshWorkers is how many partitions a refresh processes at once: refresh_parallelism,
@@ -105,6 +107,10 @@ const (
 	// DefaultRefreshRowsPerS is from memory: about a million rows a second per refresh
 	// thread for a fact table of a dozen columns.
 	DefaultRefreshRowsPerS = 1_000_000
+	// DefaultMaxSegmentRows (128Mi rows) is scangate's own default for the largest
+	// segment capacity a recommendation may propose, not a fact about any engine: set
+	// engine.max_segment_rows to the maximum the target engine documents.
+	DefaultMaxSegmentRows int64 = 1 << 27
 )
 
 // Budgets are optional limits; a nil field is not budgeted.

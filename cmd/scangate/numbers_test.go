@@ -57,7 +57,10 @@ func within(t *testing.T, dir string, args ...string) result {
 func TestHugeFigures(t *testing.T) {
 	r := within(t, root(t), "check", "--today", "2026-01-01", hugeFigures)
 	wantCode(t, r, 1)
-	for _, want := range []string{"a full scan pays 1e20 ms of fixed CPU", "1e22% of the 1.0 ms budget", "-1e20 ms per scan"} {
+	for _, want := range []string{"a full scan pays 1e20 ms of fixed CPU", "1e22% of the 1.0 ms budget",
+		// Larger segments would cut the fixed ms but add to a refresh peak already far over
+		// the engine's memory: no layout is nearer every budget at once.
+		"no layout tried fits every budget, or comes nearer to them than today's without breaking another or making one worse (segment sizes up to 128Mi tried)"} {
 		if !strings.Contains(r.stdout, want) {
 			t.Errorf("check lacks %q:\n%s", want, r.stdout)
 		}

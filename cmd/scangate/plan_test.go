@@ -123,22 +123,26 @@ func TestPlanDemoMeterReads(t *testing.T) {
 	body := strings.Join(sec.lines, "\n")
 	before := regexp.MustCompile(`segments +730 -> (\d[\d,]*)`).FindStringSubmatch(body)
 	saved := regexp.MustCompile(`fixed CPU +1,095 -> [\d,.]+ ms per scan \((-[\d,.]+) ms\)`).FindStringSubmatch(body)
-	if before == nil || saved == nil {
+	parts := regexp.MustCompile(`partitions +730 -> (\d[\d,]*)`).FindStringSubmatch(body)
+	if before == nil || saved == nil || parts == nil {
 		t.Fatalf("no before/after numbers:\n%s", body)
 	}
-	// The forecast names the month the recommended layout breaks a budget.
-	if !regexp.MustCompile(`breaks in 20\d\d-\d\d \(`).MatchString(body) {
-		t.Errorf("the forecast names no month a budget breaks:\n%s", body)
+	// The forecast says until when the recommended layout holds, with its horizon (the
+	// budget-forecast rule's 12 months, as check says it).
+	if !regexp.MustCompile(`holds every budget through 2027-01 \(12-month horizon\)`).MatchString(body) {
+		t.Errorf("the plan names no month the recommendation holds through:\n%s", body)
 	}
 
 	// check quotes the same recommendation, with the same numbers.
 	c := scangate(t, root(t), "", nil, "check", demoTelemetry, "--today", "2026-01-01")
 	wantCode(t, c, 1)
-	want := sec.recommended + ": 730 -> " + before[1] + " segments, " + saved[1] + " ms per scan"
-	for _, rule := range []string{"scan-overhead", "truncated-segments"} {
-		if h := hintsOf(c.stdout, "meter_reads", rule); len(h) == 0 || h[0] != want {
-			t.Errorf("%s hint %q, plan says %q", rule, h, want)
-		}
+	want := sec.recommended + ": 730 -> " + parts[1] + " partitions, 730 -> " + before[1] + " segments, " + saved[1] + " ms per scan"
+	// The table's first finding carries it, with the same horizon; the next points to it.
+	if h := hintsOf(c.stdout, "meter_reads", "scan-overhead"); len(h) == 0 || h[0] != want+"; holds every budget through 2027-01 (12-month horizon)" {
+		t.Errorf("scan-overhead hint %q, plan says %q", h, want)
+	}
+	if h := hintsOf(c.stdout, "meter_reads", "truncated-segments"); len(h) == 0 || h[0] != "see the recommendation for table meter_reads above" {
+		t.Errorf("truncated-segments hint %q", h)
 	}
 
 	// The snippet in the manifest: the error and the warnings of truncation go away.
@@ -193,7 +197,7 @@ func TestCheckAndPlanAgree(t *testing.T) {
 				if len(h) == 0 || sec.recommended == "" {
 					continue
 				}
-				if !strings.HasPrefix(h[0], sec.recommended+": ") {
+				if !strings.HasPrefix(h[0], sec.recommended+": ") && h[0] != "see the recommendation for table "+name+" above" {
 					t.Errorf("%s %s: check's hint %q, plan recommends %q", rel, name, h[0], sec.recommended)
 				}
 				agreed++
@@ -281,8 +285,9 @@ func TestPlanUsage(t *testing.T) {
 		args []string
 		want string
 	}{
-		{[]string{"plan"}, "accepts 1 arg"},
-		{[]string{"plan", "testdata/demo"}, "testdata/demo is a directory; plan reads one manifest file"},
+		{[]string{"plan", "testdata/bad"}, "break the manifest schema; fix the errors above and plan again"},
+		{[]string{"plan", "testdata/demo", "--table", "nope"}, `--table "nope": no manifest given has such a table`},
+		{[]string{"plan", "testdata/demo", "--svg", "a.svg", "--format", "svg=a.svg"}, "a.svg"},
 		{[]string{"plan", "missing.yaml"}, "cannot read missing.yaml"},
 		{[]string{"plan", demoTelemetry, "--table", "nope"}, `--table "nope": testdata/demo/meter-telemetry.yaml has no such table; it has meter_reads, meters, districts`},
 		{[]string{"plan", demoTelemetry, "--segment-rows", "8Mi,lots"}, `--segment-rows "8Mi,lots": "lots" is not a quantity`},

@@ -62,7 +62,7 @@ func TestSchemaNames(t *testing.T) {
 		t.Error("schema without a name is not the manifest schema")
 	}
 	r := scangate(t, root(t), "", nil, "schema", "nope")
-	if r.code != 2 || !strings.Contains(r.stderr, `unknown schema "nope"; use manifest, config, output, diff, baseline, calibration`) {
+	if r.code != 2 || !strings.Contains(r.stderr, `unknown schema "nope"; use manifest, config, output, diff, plan, baseline, calibration`) {
 		t.Errorf("schema nope: exit %d, %q", r.code, r.stderr)
 	}
 }

@@ -132,6 +132,45 @@ func (md *Model) NewlyBroken(i int, spec schema.Table, s int64, months int) bool
 	return false
 }
 
+// HoldsFor is how many months from today table i, laid out as spec with segments of s
+// rows, keeps every budget, up to months: months when it holds to the end, -1 when it
+// breaks one today. The figures only grow with the rows, so the first month it breaks
+// is found by halving, a handful of layouts whatever the horizon.
+func (md *Model) HoldsFor(i int, spec schema.Table, s int64, months int) int {
+	holds := func(t int) bool {
+		miss, err := md.Breaks(i, spec, s, t)
+		return err == nil && len(miss) == 0
+	}
+	if !holds(0) {
+		return -1
+	}
+	if !md.growth || holds(months) {
+		return months
+	}
+	lo, hi := 0, months // holds at lo, breaks at hi
+	for hi-lo > 1 {
+		if mid := (lo + hi) / 2; holds(mid) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}
+
+// BestAt is the candidate of the sweep ranked first (as the recommendation) among those
+// that fit every budget with segments of s rows, nil when none does.
+func (sw *Sweep) BestAt(s, today int64) *Candidate {
+	var best *Candidate
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		if c.SegmentRows == s && c.Fits && (best == nil || better(c, best, today, sw.routineToday())) {
+			best = c
+		}
+	}
+	return best
+}
+
 // Format writes a crossing's figure with its unit.
 func (c Crossing) Format(v float64) string {
 	if c.Unit == "bytes" {

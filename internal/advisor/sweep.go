@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"time"
 
 	"github.com/scangate/scangate/internal/units"
 
@@ -13,7 +14,10 @@ import (
 )
 
 // DefaultCapacities are the segment capacities a sweep tries without a list: 2^20 to
-// 2^24 rows (today's capacity is always added).
+// 2^24 rows (today's capacity is always added). When no layout at these fits every
+// budget without a warning, the sweep doubles the largest capacity until one does or
+// the engine's max_segment_rows is reached (Sweep), so a table pays for larger
+// capacities only when its budgets need them.
 var DefaultCapacities = []int64{1 << 20, 1 << 21, 1 << 22, 1 << 23, 1 << 24}
 
 // Levels are the thresholds the rules warn at (rules/scan_overhead.go, scan_time.go,
@@ -26,6 +30,9 @@ type Levels struct {
 	TruncWarnShare    float64
 	PartitionLimit    float64 // partition-count warns above this many partitions
 	HorizonMonths     int     // budget-forecast warns of a crossing within this many months
+	// Today is the date forecasts count from: a recommendation's "holds through" month
+	// is counted from it. The caller passes it (the advisor reads no clock).
+	Today time.Time
 }
 
 // DefaultLevels are the rules' defaults; a test in package rules keeps them equal.
@@ -38,6 +45,9 @@ const ForecastMonths = 12
 // any plan. The budget-forecast rule's horizon_months has a tighter bound of its own.
 const MaxHorizonMonths = 600
 
+// Horizon is the forecast window of the levels, the default when unset.
+func (l Levels) Horizon() int { return l.horizon() }
+
 // horizon is the forecast window of the levels, the default when unset.
 func (l Levels) horizon() int {
 	if l.HorizonMonths > 0 {
@@ -48,9 +58,17 @@ func (l Levels) horizon() int {
 
 // Settings choose what a sweep tries.
 type Settings struct {
-	Capacities       []int64 // segment capacities to try; nil: DefaultCapacities. Today's is always added.
-	FixedSegmentRows bool    // the deployment cannot change the segment capacity
-	Levels           Levels  // the zero value means DefaultLevels
+	// Capacities are the segment capacities to try; nil: DefaultCapacities, extended up
+	// to the engine's max_segment_rows when the budgets need it. Today's is always
+	// added; a capacity above max_segment_rows is never tried.
+	Capacities       []int64
+	FixedSegmentRows bool   // the deployment cannot change the segment capacity
+	Levels           Levels // the zero value means DefaultLevels
+	// PickOnly sweeps only as far as the pick needs: when a layout at today's capacity
+	// fits every budget with no warning and no needless partitions, no layout at another
+	// capacity can rank above it (better), so the other capacities are left out. The
+	// pick is the full sweep's; the front and the list of candidates are not.
+	PickOnly bool
 }
 
 func (s Settings) levels() Levels {
@@ -84,10 +102,17 @@ type Candidate struct {
 	Fits     bool     // within every budget and the engine's memory
 	Misses   []string // the budgets it breaks, in words
 	Warnings []string // what check would still warn about, crossings within ForecastMonths included
+	missed   []Miss   // Misses with their figures, for Closest
 	order    int
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
+}
+
+// Needless reports whether the layout keeps several partitions of a table whose rows fit
+// in one segment (what the needless-partitioning rule notes).
+func (c *Candidate) Needless() bool {
+	return c.Layout.Partitions >= 2 && c.Rows <= c.SegmentRows
 }
 
 // Today reports whether the candidate is the table's layout as it is.
@@ -98,10 +123,15 @@ type Sweep struct {
 	Table       string
 	Index       int // of the table in the manifest
 	Candidates  []Candidate
-	Today       int  // index of today's layout in Candidates
-	Recommended int  // index of the recommended layout; -1 when no candidate fits
-	Closest     int  // when none fits: the candidate that misses least, if better than today; else -1
-	Profiled    bool // the model has column profiles: the front's memory axis is the refresh peak
+	Today       int // index of today's layout in Candidates
+	Recommended int // index of the recommended layout; -1 when no candidate fits
+	// Closest, when none fits, is the candidate nearest every budget at once (the least
+	// summed excess, Excess) among those that break no budget today's layout keeps and
+	// make no broken figure worse; -1 when none is nearer than today's.
+	Closest        int
+	MaxSegmentRows int64 // the largest capacity the sweep could try (engine.max_segment_rows)
+	Largest        int64 // the largest capacity it tried
+	Profiled       bool  // the model has column profiles: the front's memory axis is the refresh peak
 
 	Window layout.Window // the table's routine refresh, read from today's policy (routine.go)
 }
@@ -200,6 +230,9 @@ func NewModel(m *schema.Manifest) *Model {
 	}
 	return md
 }
+
+// Grows reports whether some table of the model grows or shrinks.
+func (md *Model) Grows() bool { return md.growth }
 
 // RefreshBudget is the model's refresh-memory budget in bytes, nil when none is set.
 func (md *Model) RefreshBudget() *float64 { return md.refresh }
@@ -378,7 +411,7 @@ func (md *Model) judgeOver(v, now *view, s, today int64, month, j int) {
 	}
 	name := md.M.Tables[j].Name
 	at, _ := slices.BinarySearchFunc(v.over, j, func(o tableMiss, j int) int { return cmp.Compare(o.j, j) })
-	v.over = slices.Insert(v.over, at, tableMiss{j, Miss{"table " + name, fmt.Sprintf("table %s over its scan budgets", name)}})
+	v.over = slices.Insert(v.over, at, tableMiss{j, Miss{Key: "table " + name, Text: fmt.Sprintf("table %s over its scan budgets", name)}})
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
@@ -397,17 +430,30 @@ func (md *Model) Budgets(i int) schema.Budgets {
 
 // Miss is one budget a layout breaks: the budget's key (scan_overhead_ms, scan_ms,
 // engine.memory, refresh_memory, or "table NAME" for another table of the model a new
-// segment size pushes over its scan budgets) and the words a plan prints.
-type Miss struct{ Key, Text string }
+// segment size pushes over its scan budgets) and the words a plan prints, with the
+// figure and its limit (both 0 for another table's budgets).
+type Miss struct {
+	Key, Text    string
+	Value, Limit float64
+}
+
+// Excess is how far a layout is from every budget at once: the sum, over the budgets
+// it breaks, of the share by which it passes each (value / limit - 1). Budgets of other
+// units add up as shares, so no one figure decides alone.
+func Excess(ms []Miss) float64 {
+	var sum float64
+	for _, m := range ms {
+		if m.Limit > 0 {
+			sum += m.Value/m.Limit - 1
+		}
+	}
+	return sum
+}
 
 // misses lists, as words, the budgets table i breaks when laid out as f with segments
 // of s rows in month months and the model's refresh peaks at peak.
 func (md *Model) misses(i int, f Figures, s int64, month int, peak float64) []string {
-	var out []string
-	for _, m := range md.missed(i, f, s, month, peak) {
-		out = append(out, m.Text)
-	}
-	return out
+	return words(md.missed(i, f, s, month, peak))
 }
 
 // missed lists the budgets table i breaks. With another segment capacity than today's,
@@ -416,16 +462,16 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 	var out []Miss
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
-		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", units.Ms(f.Layout.FixedMs), units.Ms(*b.ScanOverheadMs))})
+		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", units.Ms(f.Layout.FixedMs), units.Ms(*b.ScanOverheadMs)), f.Layout.FixedMs, *b.ScanOverheadMs})
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
-		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", units.Ms(f.WallMs), units.Ms(*b.ScanMs))})
+		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", units.Ms(f.WallMs), units.Ms(*b.ScanMs)), f.WallMs, *b.ScanMs})
 	}
 	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
-		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", units.Size(peak), units.Size(float64(mem)))})
+		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", units.Size(peak), units.Size(float64(mem))), peak, float64(mem)})
 	}
 	if md.refresh != nil && md.profiled && peak > *md.refresh {
-		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", units.Size(peak), units.Size(*md.refresh))})
+		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", units.Size(peak), units.Size(*md.refresh)), peak, *md.refresh})
 	}
 	if s != md.M.Engine.SegmentRows {
 		for _, o := range md.outgrown(i, s, month) {
@@ -464,25 +510,46 @@ func (md *Model) warnings(i int, f Figures, lv Levels) []string {
 	return out
 }
 
-// capacities is the sorted, de-duplicated list a sweep tries, today's included.
+// MaxSegmentRows is the largest capacity a sweep of the model may try: the engine's
+// max_segment_rows, never below today's capacity.
+func (md *Model) MaxSegmentRows() int64 {
+	top := md.M.Engine.MaxSegmentRows
+	if top <= 0 {
+		top = schema.DefaultMaxSegmentRows
+	}
+	return max(top, md.M.Engine.SegmentRows)
+}
+
+// capacities is the sorted, de-duplicated list a sweep starts with, today's included,
+// none above MaxSegmentRows.
 func (md *Model) capacities(s Settings) []int64 {
 	list := s.Capacities
 	if list == nil {
 		list = DefaultCapacities
 	}
-	out := append([]int64{md.M.Engine.SegmentRows}, list...)
+	top := md.MaxSegmentRows()
+	out := []int64{md.M.Engine.SegmentRows}
+	for _, c := range list {
+		if c <= top {
+			out = append(out, c)
+		}
+	}
 	slices.Sort(out)
 	return slices.Compact(out)
 }
 
 // Sweep evaluates every candidate layout of table i: today's policy and each variant,
-// at every capacity; marks the front; and picks the recommendation.
+// at every capacity; marks the front; and picks the recommendation. Without a list of
+// capacities (Settings.Capacities) and with the capacity free to change, a table for
+// which no layout fits every budget without a warning is tried at twice the largest
+// capacity, again and again up to MaxSegmentRows: a table pays for a larger capacity
+// only when its budgets need it, and every rule and plan sees the same list.
 func (md *Model) Sweep(i int, set Settings) *Sweep {
 	spec := md.M.Tables[i]
 	today := md.M.Engine.SegmentRows
 	lv := set.levels()
 	horizon := lv.horizon()
-	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled}
+	sw := &Sweep{Table: spec.Name, Index: i, Today: -1, Recommended: -1, Closest: -1, Profiled: md.profiled, MaxSegmentRows: md.MaxSegmentRows()}
 	order := 0
 	policies := map[string]*policy{} // by the variant's change; a cache only
 	// A time policy's variants are the same at every capacity but one: worded once.
@@ -491,8 +558,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	if isTime {
 		timed = timeVariants(spec)
 	}
-	caps := md.capacities(set)
-	for _, s := range caps {
+	clean := false // some candidate fits every budget with no warning left
+	windowRead := false
+	try := func(s int64) {
 		raise := ""
 		if s != today {
 			verb := "raise"
@@ -507,10 +575,6 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		} else {
 			vs = append(vs, Variants(spec, s)...)
 		}
-		if sw.Candidates == nil {
-			// About as many candidates at every capacity: grow the large structs once.
-			sw.Candidates = make([]Candidate, 0, len(caps)*(len(vs)+1))
-		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
@@ -523,8 +587,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			if p.parts == nil {
 				continue // more partitions than the format allows
 			}
-			if v.Change == "" && s == caps[0] {
+			if v.Change == "" && !windowRead {
 				sw.Window = layout.WindowOf(spec, p.parts) // today's policy comes first
+				windowRead = true
 			}
 			c := Candidate{Change: v.Change, Label: p.label, Spec: v.Spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
@@ -541,7 +606,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			c.Figures = f
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
-			c.Misses = md.misses(i, f, s, 0, c.Peak)
+			c.missed = md.missed(i, f, s, 0, c.Peak)
+			c.Misses = words(c.missed)
 			c.Fits = len(c.Misses) == 0
 			if c.Fits {
 				c.Warnings = md.warnings(i, f, lv)
@@ -554,6 +620,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 						}
 					}
 				}
+				clean = clean || (len(c.Warnings) == 0 && !c.Locked)
 			}
 			if !c.Engine && c.Change == "" {
 				sw.Today = len(sw.Candidates)
@@ -561,8 +628,52 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			sw.Candidates = append(sw.Candidates, c)
 		}
 	}
+	caps := md.capacities(set)
+	if set.PickOnly {
+		try(today)
+		for k := range sw.Candidates {
+			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
+				md.mark(sw)
+				return sw
+			}
+		}
+	}
+	for _, s := range caps {
+		if !set.PickOnly || s != today {
+			try(s)
+		}
+	}
+	sw.Largest = caps[len(caps)-1]
+	if set.Capacities == nil && !set.FixedSegmentRows {
+		// Once every layout tried at the largest size holds each partition in one
+		// segment, a larger size changes nothing but the memory: stop there.
+		for s := sw.Largest; !clean && !whole(sw.Candidates, s) && s < sw.MaxSegmentRows && s <= math.MaxInt64/2; {
+			s = min(2*s, sw.MaxSegmentRows)
+			try(s)
+			sw.Largest = s
+		}
+	}
 	md.mark(sw)
 	return sw
+}
+
+// whole reports whether every candidate at capacity s holds each partition in one segment.
+func whole(cs []Candidate, s int64) bool {
+	for k := range cs {
+		if c := &cs[k]; c.SegmentRows == s && c.Layout.Segments > int64(c.Layout.Partitions) {
+			return false
+		}
+	}
+	return true
+}
+
+// words is the text of each miss.
+func words(ms []Miss) []string {
+	var out []string
+	for _, m := range ms {
+		out = append(out, m.Text)
+	}
+	return out
 }
 
 // policy is one partition policy of a sweep: it expands to the same partitions at every
@@ -629,26 +740,54 @@ func (md *Model) mark(sw *Sweep) {
 		return
 	}
 	now := &sw.Candidates[sw.Today]
+	nowExcess := Excess(now.missed)
+	bestExcess := 0.0
 	for _, k := range idx {
 		c := &sw.Candidates[k]
-		// Ties keep the first generated: the order is part of the output.
-		if closer(c, now) && (sw.Closest < 0 || closer(c, &sw.Candidates[sw.Closest])) {
-			sw.Closest = k
+		if !noWorse(c.missed, now.missed) {
+			continue
+		}
+		// Nearer every budget at once than today; ties keep the fewer fixed ms, then the
+		// first generated: the order is part of the output.
+		// A share within a billionth of today's is today's computed another way
+		// (floating point), not a step nearer.
+		e := Excess(c.missed)
+		if !(e < nowExcess-1e-9*math.Abs(nowExcess)) {
+			continue
+		}
+		if sw.Closest < 0 || e < bestExcess || (e == bestExcess && c.Layout.FixedMs < sw.Candidates[sw.Closest].Layout.FixedMs) {
+			sw.Closest, bestExcess = k, e
 		}
 	}
 }
 
+// noWorse reports whether a layout that breaks the budgets ms keeps every budget that
+// today's layout (breaking now) keeps, and is no further over any budget both break.
+func noWorse(ms, now []Miss) bool {
+	for _, m := range ms {
+		k := slices.IndexFunc(now, func(n Miss) bool { return n.Key == m.Key })
+		if k < 0 || m.Limit == 0 || m.Value > now[k].Value {
+			return false
+		}
+	}
+	return true
+}
+
 // better ranks candidates that fit: fewer warnings left; then one that leaves the
 // partitions the routine refresh rewrites as they are (RoutineExtra against routine,
-// today's layout; nil when unknown); today's segment capacity (an engine change moves
-// every table); then the smaller capacity (less refresh memory); then the most partitions kept (the least disruptive change, finer refreshes); then
-// the fewest fixed ms; then the order generated.
+// today's layout; nil when unknown); no needless partitions (what needless-partitioning
+// notes); today's segment capacity (an engine change moves every table); then the
+// smaller capacity (less refresh memory); then the most partitions kept (the least
+// disruptive change, finer refreshes); then the fewest fixed ms; then the order generated.
 func better(a, b *Candidate, today int64, routine *Candidate) bool {
 	if len(a.Warnings) != len(b.Warnings) {
 		return len(a.Warnings) < len(b.Warnings)
 	}
 	if routine != nil && (a.RoutineExtra(routine) > 0) != (b.RoutineExtra(routine) > 0) {
 		return a.RoutineExtra(routine) == 0
+	}
+	if a.Needless() != b.Needless() {
+		return !a.Needless()
 	}
 	if (a.SegmentRows == today) != (b.SegmentRows == today) {
 		return a.SegmentRows == today
@@ -663,14 +802,6 @@ func better(a, b *Candidate, today int64, routine *Candidate) bool {
 		return a.Layout.FixedMs < b.Layout.FixedMs
 	}
 	return a.order < b.order
-}
-
-// closer reports whether a misses fewer budgets than b, or as many with fewer fixed ms.
-func closer(a, b *Candidate) bool {
-	if len(a.Misses) != len(b.Misses) {
-		return len(a.Misses) < len(b.Misses)
-	}
-	return a.Layout.FixedMs < b.Layout.FixedMs
 }
 
 // Effect words a candidate's result against today's layout, as the hints do:

@@ -94,11 +94,12 @@ type Table struct {
 	encodedDone bool  // encoded is computed
 	peaks       Peaks // the model's, kept when the table settles
 
-	options []Option // candidate changes, computed when first asked for
-	optDone bool
 	sweep   *advisor.Sweep // the advisor's sweep, computed when first asked for
 	swept   bool
 	kept    *Layouts // the sweep's layouts as reports compare them, kept by Settle
+	rec     Recommendation
+	recDone bool
+	keep    string // why there is no recommendation, worded as a hint
 }
 
 // Analyze lays out every table of m. lv are the rules' warning levels, so the advisor
@@ -222,5 +223,5 @@ func (t *Table) Settle() {
 		t.kept = layoutsOf(t.sweep)
 	}
 	t.settled = true
-	t.Parts, t.options, t.sweep, t.model = nil, nil, nil, nil
+	t.Parts, t.sweep, t.model = nil, nil, nil
 }

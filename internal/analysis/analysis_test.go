@@ -43,11 +43,11 @@ func TestAnalyzeOncePerTable(t *testing.T) {
 func TestRecommendedIsTheSweepsPick(t *testing.T) {
 	tb := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[1]
 	r, ok := tb.Recommended()
-	if !ok || !r.Fits || r.Hint() != "use count: 10: 40 -> 10 segments, -45.0 ms per scan" {
+	if !ok || !r.Fits || r.Hint() != "use count: 10: 40 -> 10 partitions, 40 -> 10 segments, -45.0 ms per scan" {
 		t.Fatalf("recommendation %q (ok %v, fits %v)", r.Hint(), ok, r.Fits)
 	}
 	sw := tb.Sweep()
-	if c, _, _ := sw.Pick(); c != r.Candidate || tb.Sweep() != sw {
+	if c, _, _ := sw.Pick(); c.Change != r.Candidate.Change || c.SegmentRows != r.Candidate.SegmentRows || tb.Sweep() != sw {
 		t.Error("the recommendation is not the one sweep's pick")
 	}
 	if q := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[0]; func() bool { _, ok := q.Recommended(); return ok }() {
@@ -76,28 +76,29 @@ func TestSettleKeepsWhatReportsPrint(t *testing.T) {
 	if tb.EncodedBytes() != bytes || bytes <= 0 {
 		t.Errorf("encoded bytes %v after settling, %v before", tb.EncodedBytes(), bytes)
 	}
-	// Options still work after settling: the partitions are expanded again.
-	if len(tb.Options()) == 0 {
-		t.Error("no options after settling")
+	// The recommendation stays, worded alike.
+	if r, ok := tb.Recommended(); !ok || r.Hint() != "use count: 10: 40 -> 10 partitions, 40 -> 10 segments, -45.0 ms per scan" {
+		t.Errorf("recommendation after settling %q (ok %v)", r.Hint(), ok)
 	}
 }
 
-// Options price each candidate change; the even layout's waste-free count is among them.
-func TestOptionsPriceEveryChange(t *testing.T) {
-	tb := Analyze(load(t, evenForty), advisor.DefaultLevels).Tables[1]
-	found := false
-	for _, o := range tb.Options() {
-		if o.Change == "use count: 10" && o.Layout.Segments == 10 && !o.Engine {
-			found = true
-			if e := tb.Effect(o); e != "40 -> 10 segments, -45.0 ms per scan" {
-				t.Errorf("effect %q", e)
+// Advise sweeps only today's capacity when a layout there is clean, and must still give
+// the full sweep's recommendation, or its reason for keeping today's layout.
+func TestAdviseIsTheFullSweepsPick(t *testing.T) {
+	for _, src := range []string{
+		evenForty,
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 40M, partitions: {scheme: even, count: 8}}]\n",
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\ntables: [{name: t, rows: 5000, partitions: {scheme: even, count: 4}}]\n",
+		"format: 1\nmodel: m\nengine: {segment_rows: 8Mi}\nbudgets: {scan_overhead_ms: 300}\ntables: [{name: t, rows: 8G, partitions: {scheme: none}}]\n",
+	} {
+		lv := advisor.DefaultLevels
+		quick, full := Analyze(load(t, src), lv), Analyze(load(t, src), lv)
+		for i, q := range quick.Tables {
+			q.Advise()
+			f := full.Tables[i]
+			if q.Advice() != f.Advice() || q.Layouts() != nil {
+				t.Errorf("%s: Advise says %q, the full sweep %q", q.Spec.Name, q.Advice(), f.Advice())
 			}
 		}
-		if o.Layout.Segments <= 0 {
-			t.Errorf("%s: %d segments", o.Change, o.Layout.Segments)
-		}
-	}
-	if !found {
-		t.Error("count 10 is not among the options")
 	}
 }

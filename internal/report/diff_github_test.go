@@ -15,7 +15,7 @@ import (
 // line with segments and ms before -> after, and both breaches as errors; the base
 // path is the repository path (the file's key), not the reported REV:path.
 func TestDiffGitHubFixture(t *testing.T) {
-	want := "::warning file=m.yaml,line=14,col=5,title=scangate truncated-segments::quiet: 15 excess segments: partitions hold 20 segments where 5 would do (fill 25%25), 22.5 ms of fixed CPU per scan%0Ahint: use count: 5: 20 -> 5 segments, -22.5 ms per scan\n" +
+	want := "::warning file=m.yaml,line=14,col=5,title=scangate truncated-segments::quiet: 15 excess segments: partitions hold 20 segments where 5 would do (fill 25%25), 22.5 ms of fixed CPU per scan%0Ahint: use count: 5: 20 -> 5 partitions, 20 -> 5 segments, -22.5 ms per scan\n" +
 		"::notice file=m.yaml,line=12,col=5,title=scangate diff::quiet changed: segments 5 -> 20 (+15), fixed ms per scan 7.5 -> 30.0 (+22.5)\n" +
 		"::error file=m.yaml,line=12,col=5,title=scangate gate::quiet adds 22.5 ms per scan, more than the 1 ms allowed (--max-added-ms)\n" +
 		"::error file=m.yaml,line=14,col=5,title=scangate gate::new warning truncated-segments on quiet at head:m.yaml:14:5 (--fail-on-new warning)\n"

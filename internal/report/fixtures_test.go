@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
@@ -107,7 +108,7 @@ func planDoc(t *testing.T, name, src string) *Plan {
 	for i := range idx {
 		idx[i] = i
 	}
-	return &Plan{Manifest: m, Plans: advisor.Plans(m, idx, advisor.Settings{}, fixtureToday, 24), Today: fixtureToday, Horizon: 24}
+	return planFixture(m, idx)
 }
 
 // diffDoc compares fixtureManifest with a head that splits quiet into 20 partitions,
@@ -142,4 +143,13 @@ func render(t *testing.T, name string, doc Doc, color bool) string {
 		t.Fatalf("%s: %v", name, err)
 	}
 	return b.String()
+}
+
+// planFixture plans the tables idx of m as `scangate plan --horizon 24 --today` the
+// fixture's date does.
+func planFixture(m *schema.Manifest, idx []int) *Plan {
+	lv := advisor.DefaultLevels
+	lv.Today, lv.HorizonMonths = fixtureToday, 24
+	plans := analysis.Analyze(m, lv).Plans(idx, advisor.Settings{Levels: lv}, 24)
+	return &Plan{Files: []PlanFile{{Manifest: m, URI: m.File, Plans: plans}}, Today: fixtureToday, Horizon: 24}
 }

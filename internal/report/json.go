@@ -15,9 +15,10 @@ import (
 
 func init() {
 	register(writers{
-		traits: Traits{Name: "json", Kinds: CheckReport | DiffReport, NeedsTables: true},
+		traits: Traits{Name: "json", Kinds: CheckReport | DiffReport | PlanReport, NeedsTables: true},
 		check:  writeJSON,
 		diff:   writeDiffJSON,
+		plan:   writePlanJSON,
 	})
 }
 
@@ -80,6 +81,8 @@ type jsonTable struct {
 	ScanBudgetMs         *float64 `json:"scan_budget_ms,omitempty"`
 
 	Refresh jsonRefresh `json:"refresh"`
+	// Recommendation is the table's one recommendation, null when today's layout is kept.
+	Recommendation *jsonRecommendation `json:"recommendation"`
 }
 
 // jsonRefresh is what a full and the routine refresh of a table rebuild; Routine is
@@ -199,6 +202,7 @@ func tableJSON(t *analysis.Table) jsonTable {
 		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
 		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
+		Recommendation: tableRecommendation(t),
 	}
 	if t.Widest != nil {
 		wall := round(t.Scan.WallMs)

@@ -12,6 +12,7 @@ import (
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
@@ -20,7 +21,7 @@ func init() {
 	register(writers{
 		traits: Traits{Name: "svg", Kinds: PlanReport},
 		plan: func(w io.Writer, p *Plan, _ bool) error {
-			_, err := w.Write(planSVG(p.Manifest, p.Plans))
+			_, err := w.Write(planSVG(p))
 			return err
 		},
 	})
@@ -46,14 +47,27 @@ const (
 // planSVG draws, per table, the fill of each partition's segments and the sweep's
 // fixed-ms-against-refresh-memory chart with the front and the recommendation, every
 // number as text so it can be read without a viewer.
-func planSVG(m *schema.Manifest, plans []advisor.TablePlan) []byte {
+func planSVG(doc *Plan) []byte {
 	var b bytes.Buffer
+	type band struct {
+		m *schema.Manifest
+		p analysis.TablePlan
+	}
+	var plans []band
+	var names []string
+	for _, f := range doc.Files {
+		names = append(names, f.Manifest.File)
+		for _, p := range f.Plans {
+			plans = append(plans, band{f.Manifest, p})
+		}
+	}
 	h := bandH * max(len(plans), 1)
 	fmt.Fprintf(&b, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")
 	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" viewBox="0 0 %d %d" font-family="sans-serif" font-size="11">`+"\n", svgWidth, h, svgWidth, h)
-	fmt.Fprintf(&b, "<title>scangate plan: %s</title>\n", esc(m.File))
+	fmt.Fprintf(&b, "<title>scangate plan: %s</title>\n", esc(strings.Join(names, ", ")))
 	fmt.Fprintf(&b, `<rect width="%d" height="%d" fill="#ffffff"/>`+"\n", svgWidth, h)
-	for n, p := range plans {
+	for n, bd := range plans {
+		m, p := bd.m, bd.p
 		fmt.Fprintf(&b, `<g transform="translate(0,%d)">`+"\n", n*bandH)
 		fmt.Fprintf(&b, `<text x="10" y="18" font-size="14" font-weight="bold">%s</text>`+"\n", fitEsc(p.Spec.Name, 14, (svgWidth-20)/1.15)) // bold runs wider
 		if p.Problems == "" {
@@ -180,7 +194,7 @@ func orderCaption(scheme schema.Scheme, n int) string {
 // fillChart draws one bar per partition: how full its segments are,
 // rows / (segments x segment_rows), with its name and fill where they fit, else the
 // names at both ends and the lowest and highest fill.
-func fillChart(b *bytes.Buffer, m *schema.Manifest, p advisor.TablePlan) {
+func fillChart(b *bytes.Buffer, m *schema.Manifest, p analysis.TablePlan) {
 	s := m.Engine.SegmentRows
 	parts, err := layout.Expand(p.Spec)
 	if err != nil || len(parts) == 0 {
@@ -529,7 +543,10 @@ func placeLabel(b *bytes.Buffer, text string, x, y float64, frame box, taken *[]
 	w := textWidth(text, px)
 	for _, spot := range labelSpots {
 		bx := textBox(x+spot.dx, y+spot.dy, w, px, spot.anchor)
-		if bx.x0 < frame.x0 || bx.x1 > frame.x1 || bx.y0 < frame.y0 || bx.y1 > frame.y1 || hits(bx, *taken) || hitsOther(bx, dots, x, y) {
+		// Coordinates are written to a tenth of a pixel: keep that much apart, so the
+		// rounded boxes do not touch either.
+		padded := box{bx.x0 - 0.1, bx.y0 - 0.1, bx.x1 + 0.1, bx.y1 + 0.1}
+		if bx.x0 < frame.x0 || bx.x1 > frame.x1 || bx.y0 < frame.y0 || bx.y1 > frame.y1 || hits(padded, *taken) || hitsOther(bx, dots, x, y) {
 			continue
 		}
 		*taken = append(*taken, bx)

@@ -9,6 +9,7 @@ import (
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
@@ -22,17 +23,20 @@ const planWidth = 80
 // (grid) and the snippet; each of those escapes what it writes (escape.Text).
 func planText(doc *Plan) string {
 	var b strings.Builder
-	for n, p := range doc.Plans {
-		if n > 0 {
-			b.WriteString("\n")
+	n := 0
+	for _, f := range doc.Files {
+		for _, p := range f.Plans {
+			if n > 0 {
+				b.WriteString("\n")
+			}
+			n++
+			renderPlan(&b, doc, f.Manifest, p)
 		}
-		renderPlan(&b, doc, p)
 	}
 	return b.String()
 }
 
-func renderPlan(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
-	m := doc.Manifest
+func renderPlan(b *strings.Builder, doc *Plan, m *schema.Manifest, p analysis.TablePlan) {
 	e := m.Engine
 	t := p.Spec
 	fmt.Fprintf(b, "== %s (%s:%d:%d)\n", escape.Text(t.Name), escape.Text(m.File), t.Pos.Line, t.Pos.Col)
@@ -82,7 +86,7 @@ func renderPlan(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
 		}
 	}
 	grid(b, "   ", []column{{head: "figure", clip: true}, {head: "today", right: true}, {head: "limit"}, {head: "share", right: true}}, rows)
-	renderRefresh(b, p, now, e)
+	renderRefresh(b, p.TablePlan, now, e)
 
 	renderSweep(b, sw, e.SegmentRows)
 	renderRecommendation(b, p, now)
@@ -116,6 +120,11 @@ func renderRefresh(b *strings.Builder, p advisor.TablePlan, now *advisor.Candida
 // rebuildWords is what one refresh rebuilds: "3 partitions, 12.3M rows, 4.11 s".
 func rebuildWords(r layout.Rebuild) string {
 	return fmt.Sprintf("%s %s, %s rows, %s", units.Num(int64(r.Partitions)), units.Plural(int64(r.Partitions), "partition", "partitions"), units.Count(r.Rows), units.Seconds(r.Seconds))
+}
+
+// horizonWords is the end of a forecast with its length: "2027-03 (12-month horizon)".
+func horizonWords(doc *Plan) string {
+	return fmt.Sprintf("%s (%d-month horizon)", advisor.Month(advisor.AddMonths(doc.Today, doc.Horizon)), doc.Horizon)
 }
 
 // msText writes a scan figure or budget with its unit. Each limit is written in its own
@@ -246,26 +255,26 @@ func renderSweep(b *strings.Builder, sw *advisor.Sweep, today int64) {
 		{head: "segs", right: true}, {head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
 }
 
-func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.Candidate) {
+// renderRecommendation prints the table's one recommendation, the same check quotes in
+// its hints (analysis.Recommendation), with its figures and the snippet that makes it.
+func renderRecommendation(b *strings.Builder, p analysis.TablePlan, now *advisor.Candidate) {
 	sw := p.Sweep
-	c, fits, ok := sw.Pick()
 	b.WriteString("\n")
-	switch {
-	case !ok:
-		para(b, "", "Recommended: no layout in the sweep fits every budget or comes closer than today's; try other capacities with --segment-rows.")
-		return
-	case c.Today():
-		line := "Recommended: keep today's layout; it fits every budget"
-		if len(c.Warnings) > 0 {
+	if p.Rec == nil {
+		line := "Recommended: " + strings.Replace(p.Keep, "the recommendation keeps", "keep", 1)
+		if c, _, ok := sw.Pick(); ok && c.Today() && len(c.Warnings) > 0 {
 			line += " (still warns: " + strings.Join(c.Warnings, "; ") + ")"
 		}
 		para(b, "", line+".")
 		return
-	case fits:
+	}
+	c := p.Rec.Candidate
+	if p.Rec.Fits {
 		para(b, "", "Recommended: "+c.Change+".")
 		para(b, "   ", "(the layout that fits every budget with the fewest warnings left, at today's segment size if any fits, else the smallest, keeping the most partitions)")
-	default:
+	} else {
 		para(b, "", "No layout in the sweep fits every budget. Closest: "+c.Change+".")
+		para(b, "   ", "(the layout nearest every budget at once, by the sum of the shares by which it passes each, among those that break no budget today's layout keeps and make none worse)")
 	}
 	fmt.Fprintf(b, "   %-15s %s -> %s\n", "segments", units.Num(now.Layout.Segments), units.Num(c.Layout.Segments))
 	fmt.Fprintf(b, "   %-15s %s -> %s ms per scan (%s ms)\n", "fixed CPU", units.Ms(now.Layout.FixedMs), units.Ms(c.Layout.FixedMs), units.Signed(c.Layout.FixedMs-now.Layout.FixedMs))
@@ -289,6 +298,9 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	for _, w := range c.Warnings {
 		para(b, "   ", "still warns: "+w)
 	}
+	if p.Rec.Growth && p.Rec.HoldsThrough != "" {
+		para(b, "   ", "It "+p.Rec.Holds()+".")
+	}
 	if c.Engine {
 		para(b, "   ", "segment_rows is an engine setting: every table of the model moves with it (the sweep checked that none breaks its scan budgets).")
 	}
@@ -298,7 +310,7 @@ func renderRecommendation(b *strings.Builder, p advisor.TablePlan, now *advisor.
 	}
 }
 
-func renderForecast(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
+func renderForecast(b *strings.Builder, doc *Plan, p analysis.TablePlan) {
 	fc := p.Now
 	if fc == nil {
 		return
@@ -354,21 +366,24 @@ func renderForecast(b *strings.Builder, doc *Plan, p advisor.TablePlan) {
 	}
 	grid(b, "   ", []column{{head: "month"}, {head: "rows", right: true}, {head: "segs", right: true},
 		{head: "fixed ms", right: true}, {head: "wall ms", right: true}, {head: "refresh", right: true}}, rows)
-	if p.Rec != nil {
+	if fc := p.TablePlan.Rec; fc != nil && p.Rec != nil {
 		what := "The recommended layout"
-		if p.Sweep.Recommended < 0 {
+		if !p.Rec.Fits {
 			what = "The closest layout"
 		}
-		para(b, "", what+" "+holdsText(p.Rec, end)+".")
+		para(b, "", what+" "+holdsText(fc, horizonWords(doc))+".")
 	}
-	if h := p.Holds; h != nil {
-		if h.Today() {
-			para(b, "", fmt.Sprintf("Today's layout holds every budget through %s.", end))
-		} else {
-			para(b, "", fmt.Sprintf("Holds every budget through %s: %s (%s segments, %s ms per scan today).", end, h.Change, units.Num(h.Layout.Segments), units.Ms(h.Layout.FixedMs)))
-		}
-	} else {
-		para(b, "", fmt.Sprintf("No layout in the sweep holds every budget through %s; try larger capacities with --segment-rows or a shorter --horizon.", end))
+	// Another layout that holds to the end is a second choice, never a rival: it is
+	// named only when the recommendation itself does not hold that long.
+	holds := p.Rec != nil && p.Rec.HoldsMonths >= doc.Horizon
+	switch h := p.Holds; {
+	case holds:
+	case h == nil:
+		para(b, "", fmt.Sprintf("No layout in the sweep holds every budget through %s; try larger capacities with --segment-rows or a shorter --horizon.", horizonWords(doc)))
+	case h.Today():
+		para(b, "", fmt.Sprintf("Today's layout holds every budget through %s.", horizonWords(doc)))
+	case p.Rec == nil || h.Change != p.Rec.Candidate.Change:
+		para(b, "", fmt.Sprintf("Alternative, not the recommendation, that holds every budget through %s: %s (%s segments, %s ms per scan today).", horizonWords(doc), h.Change, units.Num(h.Layout.Segments), units.Ms(h.Layout.FixedMs)))
 	}
 }
 

@@ -16,16 +16,16 @@ func TestPlanTextNamesTablesAndRecommendations(t *testing.T) {
 	p := planDoc(t, "m.yaml", fixtureManifest)
 	out := render(t, "text", p, false)
 	sections := strings.Split(out, "\n\n== ")
-	if len(sections) != len(p.Plans) {
-		t.Fatalf("%d sections for %d plans:\n%s", len(sections), len(p.Plans), out)
+	if len(sections) != len(p.Files[0].Plans) {
+		t.Fatalf("%d sections for %d plans:\n%s", len(sections), len(p.Files[0].Plans), out)
 	}
 	want := map[string]string{
 		"events":   "Recommended: raise engine.segment_rows from 1k to 1Mi.",
 		"readings": "Recommended: use count: 10.",
-		"quiet":    "Recommended: keep today's layout; it fits every budget.",
+		"quiet":    "Recommended: keep today's layout: it fits every budget.",
 		"waived":   "Recommended: raise engine.segment_rows from 1k to 1Mi.",
 	}
-	for i, plan := range p.Plans {
+	for i, plan := range p.Files[0].Plans {
 		sec := strings.TrimPrefix(sections[i], "== ")
 		spec := plan.Spec
 		if head := fmt.Sprintf("%s (m.yaml:%d:%d)\n", spec.Name, spec.Pos.Line, spec.Pos.Col); !strings.HasPrefix(sec, head) {
@@ -67,7 +67,7 @@ func TestPlanTextWidth(t *testing.T) {
 // Only the planned tables are named (plan --table).
 func TestPlanTextSubset(t *testing.T) {
 	p := planDoc(t, "m.yaml", fixtureManifest)
-	p.Plans = p.Plans[1:2]
+	p.Files[0].Plans = p.Files[0].Plans[1:2]
 	out := render(t, "text", p, false)
 	if !strings.HasPrefix(out, "== readings (m.yaml:9:5)\n") || strings.Count(out, "\n== ") != 0 {
 		t.Errorf("want only readings:\n%s", out)
@@ -83,7 +83,7 @@ func TestPlanTextSubset(t *testing.T) {
 func TestPlanTextForecast(t *testing.T) {
 	src := strings.Replace(fixtureManifest, "rows: 5000\n", "rows: 5000\n    growth_per_year: 1.0\n", 1)
 	p := planDoc(t, "m.yaml", src)
-	p.Plans = p.Plans[2:3] // quiet, now doubling every year
+	p.Files[0].Plans = p.Files[0].Plans[2:3] // quiet, now doubling every year
 	text := unwrap(render(t, "text", p, false))
 	if !strings.Contains(text, "Forecast from 2026-01-01 for 24 months at 100% growth a year") || !strings.Contains(text, "through 2028-01") {
 		t.Errorf("forecast:\n%s", text)

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -40,12 +40,20 @@ func (*Result) Kind() Kind     { return CheckReport }
 func (*DiffResult) Kind() Kind { return DiffReport }
 func (*Plan) Kind() Kind       { return PlanReport }
 
-// Plan is everything one run of scangate plan produced.
+// Plan is everything one run of scangate plan produced: the plans of each manifest,
+// in the order the files were given or found.
 type Plan struct {
+	Version string // scangate's version, as `scangate version` prints it
+	Files   []PlanFile
+	Today   time.Time // the date the forecast counts from
+	Horizon int       // months forecast, the same the recommendations are judged over
+}
+
+// PlanFile is the plans of the tables of one manifest.
+type PlanFile struct {
 	Manifest *schema.Manifest
-	Plans    []advisor.TablePlan
-	Today    time.Time // the date the forecast counts from
-	Horizon  int       // months forecast
+	URI      string // path relative to the repository root, with forward slashes
+	Plans    []analysis.TablePlan
 }
 
 // Traits say what a format renders and what it needs. Help text, flag validation and

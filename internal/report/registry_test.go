@@ -26,7 +26,7 @@ func docsByKind(t *testing.T) map[Kind]Doc {
 func TestRegisteredFormats(t *testing.T) {
 	want := map[string]Kind{
 		"text":     CheckReport | DiffReport | PlanReport,
-		"json":     CheckReport | DiffReport,
+		"json":     CheckReport | DiffReport | PlanReport,
 		"markdown": CheckReport | DiffReport,
 		"sarif":    CheckReport,
 		"github":   CheckReport | DiffReport,

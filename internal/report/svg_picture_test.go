@@ -12,7 +12,6 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -56,7 +55,7 @@ func planOf(m *schema.Manifest) *Plan {
 	for i := range idx {
 		idx[i] = i
 	}
-	return &Plan{Manifest: m, Plans: advisor.Plans(m, idx, advisor.Settings{}, fixtureToday, 24), Today: fixtureToday, Horizon: 24}
+	return planFixture(m, idx)
 }
 
 // num reads a numeric attribute; a missing one is 0.
@@ -311,8 +310,8 @@ func TestSVGRendersToPNG(t *testing.T) {
 			continue
 		}
 		w, h := pngSize(t, out)
-		if w != svgWidth || h != bandH*len(p.Plans) {
-			t.Errorf("%s: PNG %dx%d, want %dx%d", f, w, h, svgWidth, bandH*len(p.Plans))
+		if w != svgWidth || h != bandH*len(p.Files[0].Plans) {
+			t.Errorf("%s: PNG %dx%d, want %dx%d", f, w, h, svgWidth, bandH*len(p.Files[0].Plans))
 		}
 	}
 }

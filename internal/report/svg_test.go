@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/analysis"
 )
 
 // svgNode is an element of the drawing with its attributes, text and children.
@@ -70,16 +71,16 @@ func bands(root svgNode) []svgNode {
 func TestSVGOneBandPerTable(t *testing.T) {
 	p := planDoc(t, "m.yaml", fixtureManifest)
 	root := decodeSVG(t, render(t, "svg", p, false))
-	if h := root.attr("height"); h != fmt.Sprint(bandH*len(p.Plans)) {
-		t.Errorf("height %s for %d bands", h, len(p.Plans))
+	if h := root.attr("height"); h != fmt.Sprint(bandH*len(p.Files[0].Plans)) {
+		t.Errorf("height %s for %d bands", h, len(p.Files[0].Plans))
 	}
 	bs := bands(root)
-	if len(bs) != len(p.Plans) || len(p.Plans) != 4 {
-		t.Fatalf("%d bands for %d plans", len(bs), len(p.Plans))
+	if len(bs) != len(p.Files[0].Plans) || len(p.Files[0].Plans) != 4 {
+		t.Fatalf("%d bands for %d plans", len(bs), len(p.Files[0].Plans))
 	}
 	partitions := map[string]int{"events": 1, "readings": 40, "quiet": 1, "waived": 1}
 	for i, b := range bs {
-		plan := p.Plans[i]
+		plan := p.Files[0].Plans[i]
 		name := plan.Spec.Name
 		if tr := b.attr("transform"); tr != fmt.Sprintf("translate(0,%d)", i*bandH) {
 			t.Errorf("band %d: transform %q", i, tr)
@@ -114,7 +115,7 @@ func TestSVGOneBandPerTable(t *testing.T) {
 // its band, saying why.
 func TestSVGSubsetAndProblems(t *testing.T) {
 	p := planDoc(t, "m.yaml", fixtureManifest)
-	p.Plans = []advisor.TablePlan{p.Plans[1], {Index: 2, Spec: p.Plans[2].Spec, Problems: "its partitions cannot be laid out"}}
+	p.Files[0].Plans = []analysis.TablePlan{p.Files[0].Plans[1], {TablePlan: advisor.TablePlan{Index: 2, Spec: p.Files[0].Plans[2].Spec, Problems: "its partitions cannot be laid out"}}}
 	root := decodeSVG(t, render(t, "svg", p, false))
 	bs := bands(root)
 	if len(bs) != 2 || root.attr("height") != fmt.Sprint(2*bandH) {

@@ -35,13 +35,23 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	faint := paint(color.New(color.Faint))
 	sev := severityPaint(paint)
 	var b strings.Builder
+	advised := map[[2]string]bool{} // tables whose recommendation is printed already, by file and name
 	line := func(f rules.Finding, note string) {
 		loc := escape.Text(f.File)
 		if f.Pos.Line > 0 {
 			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
 		}
 		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
-		for _, h := range f.Hints {
+		for i, h := range f.Hints {
+			// A table's findings share one fix: its first finding carries it, the
+			// others point to it.
+			if i == 0 && f.Advice {
+				k := [2]string{f.File, f.Table}
+				if advised[k] {
+					h = SeeAbove(f.Table)
+				}
+				advised[k] = true
+			}
 			fmt.Fprintf(&b, "    hint: %s\n", escape.Text(h))
 		}
 	}
@@ -71,6 +81,12 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	b.WriteByte('\n')
 	_, err := io.WriteString(w, escape.Log(b.String()))
 	return err
+}
+
+// SeeAbove is the hint a table's later findings print in place of its recommendation,
+// which its first finding carries.
+func SeeAbove(table string) string {
+	return "see the recommendation for table " + table + " above"
 }
 
 // painter returns a function that turns a colour into a formatter, or into plain text

@@ -48,6 +48,8 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 			}}
 		}
 		if m != nil {
+			cfg := cfg
+			cfg.Advise = keepTables // the reports that print tables print their recommendations
 			md, own := rules.Check(m, cfg)
 			fs = own
 			f.Analysed = len(md.Tables)

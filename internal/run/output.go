@@ -62,6 +62,22 @@ func ParseFormats(k report.Kind, formats []string, output string, defaults []str
 	return outs, nil
 }
 
+// PlanFormats are plan's reports: --format (text when none is given) and --svg FILE,
+// which is --format svg=FILE under a name of its own.
+func PlanFormats(formats []string, output, svg string) ([]Destination, error) {
+	if len(formats) == 0 {
+		formats = []string{"text"}
+	}
+	if svg != "" {
+		formats = append(formats, "svg="+svg)
+	}
+	outs, err := ParseFormats(report.PlanReport, formats, output, nil)
+	if err == nil && svg != "" {
+		outs[len(outs)-1].Flag = "--svg " + svg
+	}
+	return outs, err
+}
+
 // DefaultFormats are check's and diff's reports without --format: text, plus annotations
 // when running in a GitHub Actions job (not with --output, which takes exactly one
 // report).

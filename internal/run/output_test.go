@@ -33,7 +33,7 @@ func TestParseFormats(t *testing.T) {
 		{report.DiffReport, []string{"sarif"}, "", `--format "sarif": unknown format; use one of text, github, json, markdown`},
 		{report.CheckReport, []string{"json="}, "", "give a file after ="},
 		{report.CheckReport, []string{"json", "text"}, "r", "name exactly one --format without =FILE"},
-		{report.PlanReport, []string{"json"}, "", "use one of text, svg"},
+		{report.PlanReport, []string{"markdown"}, "", "use one of text, json, svg"},
 		// A typo one or two letters off names the format meant (internal/suggest).
 		{report.CheckReport, []string{"jsn"}, "", `--format "jsn": unknown format; did you mean json? Use one of text, github, json, junit, markdown, sarif`},
 		{report.CheckReport, []string{"makdown=r.md"}, "", `--format "makdown=r.md": unknown format; did you mean markdown?`},
