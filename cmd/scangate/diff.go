@@ -17,7 +17,7 @@ func newDiff() *cobra.Command {
 	var base, output, today, configFile, failOnNew string
 	var formats []string
 	var noColor bool
-	var maxMs float64
+	var maxMs, threshold float64
 	var maxSegments int64
 	cmd := &cobra.Command{
 		Use:   "diff (--base REV [PATH...] | OLD NEW)",
@@ -25,14 +25,17 @@ func newDiff() *cobra.Command {
 		Long: "diff checks the manifests on both sides of a change and compares them: each\n" +
 			"table's partitions, segments, fill, fixed ms per scan and scan wall ms before,\n" +
 			"after and the delta, the totals per model, and the findings the change\n" +
-			"introduces, resolves and keeps.\n\n" +
+			"introduces, resolves, worsens, improves and keeps.\n\n" +
 			"With --base REV it compares the manifests at git revision REV (read from git,\n" +
 			"nothing is checked out) with the working tree; PATH selects them as check does.\n" +
 			"Without --base it compares two files, or two directories, OLD and NEW.\n\n" +
 			"Tables are matched by model and table name. A file whose path exists on one\n" +
 			"side only is a rename when a file holding the same model exists at a path found\n" +
 			"on the other side only. Findings are matched by fingerprint (rule, path, table,\n" +
-			"subject; never the line), so moving lines changes nothing.\n\n" +
+			"subject; never the line), so moving lines changes nothing. A finding on both\n" +
+			"sides is worsened when its severity rose, or at the same severity its graded\n" +
+			"figure (excess segments, fixed ms, wall ms, refresh peak, ...) rose by more than\n" +
+			"--figure-threshold percent; improved the other way round; else unchanged.\n\n" +
 			"Exit codes: 1 when the change crosses --max-added-ms, --max-added-segments or\n" +
 			"--fail-on-new; 2 when a file on either side breaks the schema, or on wrong usage;\n" +
 			"0 otherwise. Formats: " + report.NameList(report.DiffReport) + " (NAME or NAME=FILE, as for check).\n" +
@@ -54,6 +57,9 @@ func newDiff() *cobra.Command {
 					return usageError(fmt.Errorf("--max-added-segments %d: give a number of segments, 0 or more", maxSegments))
 				}
 				gate.MaxAddedSegments = &maxSegments
+			}
+			if math.IsNaN(threshold) || math.IsInf(threshold, 0) || threshold < 0 {
+				return usageError(fmt.Errorf("--figure-threshold %v: give a percentage, 0 or more", threshold))
 			}
 			var err error
 			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
@@ -92,7 +98,8 @@ func newDiff() *cobra.Command {
 			}
 			// Both sides are checked with the same config and date, so the diff shows
 			// what the manifests change and nothing else.
-			d := change.Compare(run.CheckSide(sides[0], cfg, proj, limits), run.CheckSide(sides[1], cfg, proj, limits))
+			checked := run.CheckSides(sides, cfg, proj, limits)
+			d := change.CompareWith(checked[0], checked[1], change.Options{FigureThreshold: threshold / 100})
 			res := report.NewDiffResult(run.ModuleVersion(), d, gate)
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {
@@ -112,6 +119,7 @@ func newDiff() *cobra.Command {
 	f.Float64Var(&maxMs, "max-added-ms", 0, "fail when the change adds more than this many fixed ms per scan to any one table")
 	f.Int64Var(&maxSegments, "max-added-segments", 0, "fail when the change adds more than this many segments to any one table")
 	f.StringVar(&failOnNew, "fail-on-new", "never", "fail on a new finding at or above this severity (error, warning, note or never); a finding that became this severe counts as new")
+	f.Float64Var(&threshold, "figure-threshold", 100*change.DefaultFigureThreshold, "percent a finding's graded figure must move, at the same severity, to count as worsened or improved")
 	f.BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
 	f.StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE ("+report.NameList(report.DiffReport)+"); repeatable")
 	f.StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
