@@ -709,3 +709,54 @@ func TestFollowsInOrder(t *testing.T) {
 		}
 	}
 }
+
+// diff reads the project config as check does: the nearest .scangate.yaml from the new
+// side up to the repository root, or --config. salesEven4 raises a truncated-segments
+// note on both sides; a config that turns the rule off leaves no finding to match.
+func TestDiffReadsProjectConfig(t *testing.T) {
+	off := "rules:\n  truncated-segments: {severity: off}\n"
+	dir := repo(t, map[string]string{"before/m.yaml": salesEven4, "after/m.yaml": salesEven4, "other.yaml": off})
+	summary := func(r result) string {
+		t.Helper()
+		var d struct{ Summary map[string]any }
+		if err := json.Unmarshal([]byte(r.stdout), &d); err != nil {
+			t.Fatalf("%v\n%s%s", err, r.stdout, r.stderr)
+		}
+		return fmt.Sprint(d.Summary["unchanged"])
+	}
+	args := []string{"diff", "--format", "json", "before", "after"}
+	if got := summary(scangate(t, dir, "", nil, args...)); got != "1" {
+		t.Errorf("without a config: %s unchanged findings, want 1", got)
+	}
+	if got := summary(scangate(t, dir, "", nil, append(args, "--config", "other.yaml")...)); got != "0" {
+		t.Errorf("with --config other.yaml: %s unchanged findings, want 0", got)
+	}
+	if err := os.WriteFile(filepath.Join(dir, ".scangate.yaml"), []byte(off), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if got := summary(scangate(t, dir, "", nil, args...)); got != "0" {
+		t.Errorf("with the nearest .scangate.yaml: %s unchanged findings, want 0", got)
+	}
+	// A broken config stops the diff as it stops check: exit 2, the problem at its line.
+	if err := os.WriteFile(filepath.Join(dir, ".scangate.yaml"), []byte("rules:\n  truncated-segments: {severity: loud}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := scangate(t, dir, "", nil, args...)
+	wantCode(t, r, 2)
+	if !strings.Contains(r.stderr, ".scangate.yaml:2:") {
+		t.Errorf("stderr lacks the config problem:\n%s", r.stderr)
+	}
+}
+
+// Two directories: the rename line names the file where it was and where it is, each
+// on its own side (the old directory's path, not the new one's twice).
+func TestDiffRenameLinePaths(t *testing.T) {
+	dir := repo(t, map[string]string{"old/a.yaml": salesBase, "new/b.yaml": salesBase, "old/gone.yaml": stock})
+	r := scangate(t, dir, "", nil, "diff", "old", "new")
+	wantCode(t, r, 0)
+	for _, want := range []string{"file renamed: old/a.yaml -> new/b.yaml (model sales)\n", "file removed: old/gone.yaml (model stock)\n"} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+}
