@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 
 	"github.com/spf13/cobra"
@@ -23,13 +22,10 @@ func newBaseline() *cobra.Command {
 		Use:   "write [PATH...]",
 		Short: "Check the paths and record every finding in a baseline file",
 		Long: "write checks the paths as check does and records every finding by its stable\n" +
-			"fingerprint (rule, repository path, table, subject; never the line). Commit the\n" +
-			"file; `check --baseline FILE` then fails only on findings it does not hold, and\n" +
-			"on a held finding that became more severe or whose entry expired (--expires).\n" +
-			"The file records the date (--today), and on every entry its severity and the\n" +
-			"optional --reason and --expires. Invalid manifests are not recorded, nor,\n" +
-			"without --absorb-expired, findings of an expired waiver or of an expired entry\n" +
-			"of the file written over: fix them first (exit 2).",
+			"fingerprint (never the line), its severity, the date (--today), --reason and --expires.\n" +
+			"`check --baseline FILE` then fails only on findings it does not hold, grew more severe\n" +
+			"or whose entry expired. Invalid manifests, and without --absorb-expired findings of\n" +
+			"an expired waiver or entry, are not recorded: fix them first (exit 2).",
 		Example: "  scangate baseline write models/ -o " + baseline.DefaultFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			proj, cfg, err := projectConfig(cmd, configFile, args, today)
@@ -50,13 +46,7 @@ func newBaseline() *cobra.Command {
 				text.Render(cmd.ErrOrStderr(), res, false)
 				return &exitError{code: exitInvalid, msg: "some manifests are invalid; fix them before writing a baseline"}
 			}
-			data, n, err := run.NewBaseline(out, findings, res.Key, run.BaselineStamp{Today: cfg.Today, Reason: reason, Expires: expires, OverExpired: overExpired}, limits)
-			var lapsed *run.LapsedError
-			if errors.As(err, &lapsed) {
-				for _, l := range lapsed.Lines() {
-					fmt.Fprintln(cmd.ErrOrStderr(), say(l))
-				}
-			}
+			data, n, err := run.NewBaseline(out, findings, res.Key, run.BaselineStamp{Today: cfg.Today, Reason: reason, Expires: expires, OverExpired: overExpired}, limits, cmd.ErrOrStderr())
 			if err != nil {
 				return usageError(err)
 			}

@@ -35,9 +35,6 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return usageError(err)
 			}
-			if hideBaselined && baselineFile == "" {
-				return usageError(errors.New("--hide-baselined needs --baseline FILE"))
-			}
 			proj, cfg, err := projectConfig(cmd, configFile, args, today)
 			if err != nil {
 				return err
@@ -65,10 +62,8 @@ func newCheck() *cobra.Command {
 				Findings: findings,
 				Summary:  report.Summarize(files),
 			}
-			if baselineFile != "" {
-				if res.Baseline, err = run.ApplyBaseline(baselineFile, res, limits, cfg.Today, hideBaselined); err != nil {
-					return baselineError(cmd, err)
-				}
+			if res.Baseline, err = run.ApplyBaseline(baselineFile, res, limits, cfg.Today, hideBaselined); err != nil {
+				return baselineError(cmd, err)
 			}
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {

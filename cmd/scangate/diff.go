@@ -32,10 +32,8 @@ func newDiff() *cobra.Command {
 			"Tables are matched by model and table name. A file whose path exists on one\n" +
 			"side only is a rename when a file holding the same model exists at a path found\n" +
 			"on the other side only. Findings are matched by fingerprint (rule, path, table,\n" +
-			"subject; never the line), so moving lines changes nothing. A finding on both\n" +
-			"sides is worsened when its severity rose, or at the same severity its graded\n" +
-			"figure (excess segments, fixed ms, wall ms, refresh peak, ...) rose by more than\n" +
-			"--figure-threshold percent; improved the other way round; else unchanged.\n\n" +
+			"subject; never the line). One on both sides is worsened when its severity or\n" +
+			"graded figure rose (by more than --figure-threshold percent), improved the other way.\n\n" +
 			"Exit codes: 1 when the change crosses --max-added-ms, --max-added-segments or\n" +
 			"--fail-on-new; 2 when a file on either side breaks the schema, or on wrong usage;\n" +
 			"0 otherwise. Formats: " + report.NameList(report.DiffReport) + " (NAME or NAME=FILE, as for check).\n" +
@@ -58,10 +56,10 @@ func newDiff() *cobra.Command {
 				}
 				gate.MaxAddedSegments = &maxSegments
 			}
-			if math.IsNaN(threshold) || math.IsInf(threshold, 0) || threshold < 0 {
-				return usageError(fmt.Errorf("--figure-threshold %v: give a percentage, 0 or more", threshold))
+			opts, err := change.PercentOptions(threshold)
+			if err != nil {
+				return usageError(err)
 			}
-			var err error
 			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
 				return usageError(err)
 			}
@@ -96,10 +94,7 @@ func newDiff() *cobra.Command {
 			if err := run.GuardOutputs(outs, read); err != nil {
 				return usageError(err)
 			}
-			// Both sides are checked with the same config and date, so the diff shows
-			// what the manifests change and nothing else.
-			checked := run.CheckSides(sides, cfg, proj, limits)
-			d := change.CompareWith(checked[0], checked[1], change.Options{FigureThreshold: threshold / 100})
+			d := run.CompareSides(sides, cfg, proj, limits, opts)
 			res := report.NewDiffResult(run.ModuleVersion(), d, gate)
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {

@@ -1,6 +1,7 @@
 package change
 
 import (
+	"fmt"
 	"math"
 	"strings"
 
@@ -50,6 +51,15 @@ func figureWords(key string, v float64) string {
 		return units.Num(int64(v))
 	}
 	return units.Short(v)
+}
+
+// PercentOptions are the options of diff's --figure-threshold PCT: a percentage, 0 or
+// more.
+func PercentOptions(pct float64) (Options, error) {
+	if math.IsNaN(pct) || math.IsInf(pct, 0) || pct < 0 {
+		return Options{}, fmt.Errorf("--figure-threshold %v: give a percentage, 0 or more", pct)
+	}
+	return Options{FigureThreshold: pct / 100}, nil
 }
 
 // pairFinding is the head finding h matched with the base finding b of the same

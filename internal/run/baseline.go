@@ -3,12 +3,14 @@ package run
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"strings"
 	"syscall"
 	"time"
 
 	"github.com/scangate/scangate/internal/baseline"
+	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/units"
 	"github.com/scangate/scangate/rules"
@@ -18,9 +20,15 @@ import (
 // ApplyBaseline marks the findings of r recorded in the baseline file, read with the
 // manifests' size limit, judged on today (zero: the current date, UTC): escalated
 // findings and those of expired entries count again. hide asks the text log to count
-// the baselined findings rather than list them. An invalid baseline returns a
-// *schema.Error.
+// the baselined findings rather than list them. Without a file it does nothing (hide
+// is then a usage error). An invalid baseline returns a *schema.Error.
 func ApplyBaseline(file string, r *report.Result, limits schema.Limits, today time.Time, hide bool) (*report.BaselineUse, error) {
+	switch {
+	case file == "" && hide:
+		return nil, errors.New("--hide-baselined needs --baseline FILE")
+	case file == "":
+		return nil, nil
+	}
 	data, err := readRegular(file, limits.MaxFileBytes)
 	if err != nil {
 		return nil, fmt.Errorf("--baseline: cannot read %s: %v", file, err)
@@ -52,9 +60,10 @@ type BaselineStamp struct {
 
 // NewBaseline is the baseline file of findings, stamped, ready to write to out. It
 // refuses (an error that lists them) to record findings of an expired manifest waiver
-// or of an expired entry of the baseline at out, unless s.OverExpired, and never
-// returns a file check --baseline would refuse. Findings are fingerprinted with key.
-func NewBaseline(out string, findings []rules.Finding, key func(string) string, s BaselineStamp, limits schema.Limits) ([]byte, int, error) {
+// or of an expired entry of the baseline at out, unless s.OverExpired (a *LapsedError,
+// its findings listed on stderr), and never returns a file check --baseline would
+// refuse. Findings are fingerprinted with key.
+func NewBaseline(out string, findings []rules.Finding, key func(string) string, s BaselineStamp, limits schema.Limits, stderr io.Writer) ([]byte, int, error) {
 	today := dateOr(s.Today)
 	var expires time.Time
 	if s.Expires != "" {
@@ -74,7 +83,11 @@ func NewBaseline(out string, findings []rules.Finding, key func(string) string, 
 		prior, _ = baseline.Parse(out, data, limits) // an unreadable old file is simply replaced
 	}
 	if lapsed := baseline.Lapsed(findings, key, prior, today); len(lapsed) > 0 && !s.OverExpired {
-		return nil, 0, &LapsedError{Out: out, Findings: lapsed}
+		e := &LapsedError{Out: out, Findings: lapsed}
+		for _, l := range e.Lines() {
+			io.WriteString(stderr, escape.Log(escape.Text(l))+"\n")
+		}
+		return nil, 0, e
 	}
 	b := baseline.Build(findings, key)
 	b.Stamp(today, s.Reason, expires)

@@ -2,6 +2,7 @@ package run
 
 import (
 	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -139,11 +140,11 @@ func TestNewBaseline(t *testing.T) {
 		{BaselineStamp{Today: today, Expires: "next year"}, `--expires "next year": write the date as YYYY-MM-DD`},
 		{BaselineStamp{Today: today, Reason: "  "}, "--reason is blank"},
 	} {
-		if _, _, err := NewBaseline(out, []rules.Finding{f}, key, c.stamp, schema.DefaultLimits); err == nil || !strings.Contains(err.Error(), c.want) {
+		if _, _, err := NewBaseline(out, []rules.Finding{f}, key, c.stamp, schema.DefaultLimits, io.Discard); err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%+v: %v, want %q", c.stamp, err, c.want)
 		}
 	}
-	data, n, err := NewBaseline(out, []rules.Finding{f}, key, BaselineStamp{Today: today, Expires: "2026-12-02", Reason: "why"}, schema.DefaultLimits)
+	data, n, err := NewBaseline(out, []rules.Finding{f}, key, BaselineStamp{Today: today, Expires: "2026-12-02", Reason: "why"}, schema.DefaultLimits, io.Discard)
 	if err != nil || n != 1 || !strings.Contains(string(data), `"written": "2026-12-02"`) || !strings.Contains(string(data), `"expires": "2026-12-02"`) {
 		t.Fatalf("%v, %d entries:\n%s", err, n, data)
 	}
@@ -152,14 +153,15 @@ func TestNewBaseline(t *testing.T) {
 	}
 	// The next day the entry has expired: writing over it would absorb its finding again.
 	next := BaselineStamp{Today: today.AddDate(0, 0, 1)}
-	_, _, err = NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits)
+	var stderr strings.Builder
+	_, _, err = NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits, &stderr)
 	var lapsed *LapsedError
 	if !errors.As(err, &lapsed) || len(lapsed.Lines()) != 1 || lapsed.Lines()[0] != "m.yaml: warning: m [scan-time]" ||
-		!strings.Contains(err.Error(), "1 finding of an expired waiver or baseline entry would be absorbed again") {
+		!strings.Contains(err.Error(), "1 finding of an expired waiver or baseline entry would be absorbed again") || stderr.String() != "m.yaml: warning: m [scan-time]\n" {
 		t.Errorf("over an expired entry: %v", err)
 	}
 	next.OverExpired = true
-	if _, n, err := NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits); err != nil || n != 1 {
+	if _, n, err := NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits, io.Discard); err != nil || n != 1 {
 		t.Errorf("with OverExpired: %v, %d entries", err, n)
 	}
 }

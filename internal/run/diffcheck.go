@@ -9,6 +9,13 @@ import (
 	"github.com/scangate/scangate/schema"
 )
 
+// CompareSides checks both sides (CheckSides) and compares them. Both are checked with
+// the same config and date, so the diff shows what the manifests change and nothing else.
+func CompareSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Limits, o change.Options) *change.Diff {
+	checked := CheckSides(sides, cfg, proj, limits)
+	return change.CompareWith(checked[0], checked[1], o)
+}
+
 // CheckSides loads and checks both sides of a diff as check does, with one config and
 // date, and keys their files. A file of one key on both sides is read once per side
 // by one worker; when the two hold the same bytes it is analysed once and the base
