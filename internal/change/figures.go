@@ -1,6 +1,7 @@
 package change
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"strings"
@@ -91,20 +92,10 @@ func judge(f FindingChange, threshold float64) int {
 	}
 	moved := Round(f.After - f.Before)
 	if f.Before == 0 {
-		return sign(moved)
+		return cmp.Compare(moved, 0)
 	}
 	if share := moved / math.Abs(f.Before); math.Abs(share) > threshold {
-		return sign(share)
-	}
-	return 0
-}
-
-func sign(x float64) int {
-	switch {
-	case x > 0:
-		return 1
-	case x < 0:
-		return -1
+		return cmp.Compare(share, 0)
 	}
 	return 0
 }
