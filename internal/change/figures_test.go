@@ -6,9 +6,10 @@ import (
 	"github.com/scangate/scangate/rules"
 )
 
-// truncated excess segments of orders at even partitions of 10,000 rows over segments
-// of 1,000 rows: n partitions of 10,000/n rows each take ceil(10/n x ...) segments.
-// The cases below are worked out beside each manifest.
+// orders holds 10,000 rows in n even partitions over segments of 1,000 rows (see
+// manifest): each partition takes ceil(10,000/n / 1,000) segments, where one partition
+// would take 10; the excess is what truncated-segments counts. Each case is worked out
+// beside it.
 func TestFindingStates(t *testing.T) {
 	even := func(n string) string {
 		return "  - name: orders\n    rows: 10k\n    partitions: {scheme: even, count: " + n + "}\n"

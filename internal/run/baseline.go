@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"github.com/scangate/scangate/internal/baseline"
+	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/units"
@@ -117,17 +118,9 @@ func (e *LapsedError) Error() string {
 func (e *LapsedError) Lines() []string {
 	out := make([]string, len(e.Findings))
 	for i, f := range e.Findings {
-		out[i] = fmt.Sprintf("%s: %s: %s [%s]", location(f), f.Severity, f.Message, f.Rule)
+		out[i] = fmt.Sprintf("%s: %s: %s [%s]", change.Location(f), f.Severity, f.Message, f.Rule)
 	}
 	return out
-}
-
-// location is file:line:col of a finding, or the file alone.
-func location(f rules.Finding) string {
-	if f.Pos.Line > 0 {
-		return fmt.Sprintf("%s:%d:%d", f.File, f.Pos.Line, f.Pos.Col)
-	}
-	return f.File
 }
 
 // readRegular reads at most maxBytes+1 bytes of a regular file. A device, FIFO or socket

@@ -61,6 +61,10 @@ func CheckSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Lim
 		}
 		// Every job spends on both budgets, base first, so each budget sees every job once.
 		spent := [2]bool{}
+		if ins[0] == nil {
+			budgets[0].spend(k, 0)
+			spent[0] = true
+		}
 		spend := func(s int) func(int64) bool {
 			return func(n int64) bool { spent[s] = true; return budgets[s].spend(k, n) }
 		}
@@ -75,8 +79,8 @@ func CheckSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Lim
 			files[1][at[1]], found[1][at[1]] = hf, hfs
 			bf, bfs := quote(hf, hfs, ins[0].name, root)
 			if !fits {
-				bf, bfs = hf, []rules.Finding{refusal(ins[0].name, n, limits)}
-				bf.Name, bf.URI, bf.Invalid, bf.Tables = ins[0].name, RepositoryPath(root, ins[0].name), true, nil
+				bf.Invalid, bf.Analysed, bf.Tables = true, 0, nil
+				bfs = []rules.Finding{refusal(ins[0].name, n, limits)}
 			}
 			files[0][at[0]], found[0][at[0]] = bf, bfs
 		} else {
