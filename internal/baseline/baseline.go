@@ -141,7 +141,8 @@ func Parse(file string, data []byte, lim schema.Limits) (File, error) {
 func decode(v any) File {
 	root, _ := v.(map[string]any)
 	list, _ := root["entries"].([]any)
-	version, _ := root["schema_version"].(json.Number).Int64()
+	number, _ := root["schema_version"].(json.Number)
+	version, _ := number.Int64()
 	written, _ := root["written"].(string)
 	b := File{SchemaVersion: int(version), Written: written, Entries: make([]Entry, 0, len(list))}
 	for _, raw := range list {
