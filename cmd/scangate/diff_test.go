@@ -760,3 +760,31 @@ func TestDiffRenameLinePaths(t *testing.T) {
 		}
 	}
 }
+
+// The case the states were made for: 100,000 rows over segments of 1,000 need 100
+// segments; 49 even partitions of about 2,041 rows take 3 segments each (147, 47 excess)
+// and 297 partitions of about 337 rows one each (297, 197 excess). Both are warnings
+// (47 >= max(8, 14.7) and 197 >= max(8, 29.7)): the same severity, four times the
+// excess, so worsened; the other way round improved.
+func TestDiffExcessSegmentsWorsened(t *testing.T) {
+	m := func(n string) string {
+		return "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables:\n  - name: orders\n    rows: 100k\n    partitions: {scheme: even, count: " + n + "}\n"
+	}
+	dir := repo(t, map[string]string{"old/m.yaml": m("49"), "new/m.yaml": m("297")})
+	r := scangate(t, dir, "", nil, "diff", "old", "new")
+	wantCode(t, r, 0)
+	if !strings.Contains(r.stdout, "\nworsened findings (1):\nnew/m.yaml:7:5: warning: orders: 197 excess segments") ||
+		!strings.Contains(r.stdout, "[truncated-segments] (excess segments 47 -> 197)\n") ||
+		!strings.Contains(r.stdout, "findings: 0 new, 0 resolved, 1 worsened, 0 improved, 0 unchanged") {
+		t.Errorf("47 -> 197 excess segments:\n%s", r.stdout)
+	}
+	r = scangate(t, dir, "", nil, "diff", "new", "old")
+	if !strings.Contains(r.stdout, "\nimproved findings (1):\n") || !strings.Contains(r.stdout, "(excess segments 197 -> 47)") {
+		t.Errorf("197 -> 47 excess segments:\n%s", r.stdout)
+	}
+	// A threshold above the move (+319%) keeps it unchanged.
+	r = scangate(t, dir, "", nil, "diff", "--figure-threshold", "320", "old", "new")
+	if !strings.Contains(r.stdout, "findings: 0 new, 0 resolved, 0 worsened, 0 improved, 1 unchanged") {
+		t.Errorf("--figure-threshold 320:\n%s", r.stdout)
+	}
+}
