@@ -73,7 +73,7 @@ func NewBaseline(out string, findings []rules.Finding, key func(string) string, 
 			return nil, 0, fmt.Errorf("--expires %q: write the date as YYYY-MM-DD", s.Expires)
 		}
 		if expires.Before(today) {
-			return nil, 0, fmt.Errorf("--expires %s is before %s (--today): the entries would have expired already; give a later date", s.Expires, today.Format("2006-01-02"))
+			return nil, 0, fmt.Errorf("--expires %s is before the date written, %s (--today, else the current date): the entries would have expired already; give a later date", s.Expires, today.Format("2006-01-02"))
 		}
 	}
 	if strings.TrimSpace(s.Reason) == "" && s.Reason != "" {

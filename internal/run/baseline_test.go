@@ -136,7 +136,7 @@ func TestNewBaseline(t *testing.T) {
 		stamp BaselineStamp
 		want  string
 	}{
-		{BaselineStamp{Today: today, Expires: "2026-12-01"}, "--expires 2026-12-01 is before 2026-12-02 (--today)"},
+		{BaselineStamp{Today: today, Expires: "2026-12-01"}, "--expires 2026-12-01 is before the date written, 2026-12-02 (--today, else the current date)"},
 		{BaselineStamp{Today: today, Expires: "next year"}, `--expires "next year": write the date as YYYY-MM-DD`},
 		{BaselineStamp{Today: today, Reason: "  "}, "--reason is blank"},
 	} {
