@@ -262,6 +262,13 @@ func TestBaselineDatesAndSeverity(t *testing.T) {
 		!strings.Contains(r.stdout, fmt.Sprintf("%d findings of .scangate-baseline.json no longer absorbed: 0 escalated past the severity recorded, %d of expired entries", n, n)) {
 		t.Errorf("after the expiry:\n%s", r.stdout)
 	}
+	// The JSON report counts them, and stays valid against its schema.
+	r = check("2027-02-01", "--format", "json")
+	validateJSONReport(t, []byte(r.stdout))
+	var doc struct{ Summary map[string]int }
+	if err := json.Unmarshal([]byte(r.stdout), &doc); err != nil || doc.Summary["baseline_expired"] != n || doc.Summary["baseline_escalated"] != 0 || doc.Summary["baselined"] != 0 {
+		t.Errorf("JSON summary %v (%v)", doc.Summary, err)
+	}
 	// Writing over the expired entries needs --absorb-expired.
 	r = scangate(t, dir, "", nil, "baseline", "write", "--today", "2027-02-01", "models")
 	wantCode(t, r, 2)
