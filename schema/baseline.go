@@ -36,7 +36,7 @@ func (d *Document) Pos(ptr string) Pos {
 // listing every problem with its line and column.
 func LoadBaseline(file string, data []byte, lim Limits) (*Document, error) {
 	// A baseline is JSON whatever its name.
-	t, ps := parseAs(true, data, lim, `a baseline starts with {"schema_version": 1`)
+	t, ps := parseAs(true, data, lim, `a baseline starts with {"schema_version": 2`)
 	if t != nil {
 		more, _ := t.check(baselineDoc)
 		ps = append(ps, more...)

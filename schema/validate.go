@@ -391,7 +391,7 @@ func patternWords(got, schemaURL string) string {
 	case strings.HasSuffix(schemaURL, "/$defs/path"):
 		return fmt.Sprintf("%q is not a repository path; write it relative to the repository root with forward slashes, without . or .. segments, a leading slash, a backslash or control characters", got)
 	}
-	if strings.HasSuffix(schemaURL, "/expires") {
+	if strings.HasSuffix(schemaURL, "/expires") || strings.HasSuffix(schemaURL, "/$defs/date") {
 		return fmt.Sprintf("%q is not a date; write it as YYYY-MM-DD (ISO 8601)", got)
 	}
 	if !strings.Contains(schemaURL, "/$defs/count") && !strings.Contains(schemaURL, "/$defs/bytes") {

@@ -16,14 +16,16 @@ func newBaseline() *cobra.Command {
 		Use:   "baseline",
 		Short: "Record today's findings so only new ones fail the build",
 	}
-	var out, configFile, today string
+	var out, configFile, today, reason, expires string
+	var overExpired bool
 	write := &cobra.Command{
 		Use:   "write [PATH...]",
 		Short: "Check the paths and record every finding in a baseline file",
 		Long: "write checks the paths as check does and records every finding by its stable\n" +
-			"fingerprint (rule, repository path, table, subject; never the line). Commit the\n" +
-			"file; `check --baseline FILE` then fails only on findings it does not hold.\n" +
-			"Invalid manifests are not recorded: fix them first (exit 2).",
+			"fingerprint (never the line), its severity, the date (--today), --reason and --expires.\n" +
+			"`check --baseline FILE` then fails only on findings it does not hold, grew more severe\n" +
+			"or whose entry expired. Invalid manifests, and without --absorb-expired findings of\n" +
+			"an expired waiver or entry, are not recorded: fix them first (exit 2).",
 		Example: "  scangate baseline write models/ -o " + baseline.DefaultFile,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			proj, cfg, err := projectConfig(cmd, configFile, args, today)
@@ -44,23 +46,23 @@ func newBaseline() *cobra.Command {
 				text.Render(cmd.ErrOrStderr(), res, false)
 				return &exitError{code: exitInvalid, msg: "some manifests are invalid; fix them before writing a baseline"}
 			}
-			b := baseline.Build(findings, res.Key)
-			data := b.Marshal()
-			// Never write a file check --baseline would refuse (a path it cannot record, a
-			// file above --max-file-size).
-			if _, err := baseline.Parse(out, data, limits); err != nil {
-				return usageError(fmt.Errorf("not writing %s: check --baseline would refuse it:\n%v", out, err))
+			data, n, err := run.NewBaseline(out, findings, res.Key, run.BaselineStamp{Today: cfg.Today, Reason: reason, Expires: expires, OverExpired: overExpired}, limits, cmd.ErrOrStderr())
+			if err != nil {
+				return usageError(err)
 			}
 			if err := run.WriteFileAtomic(out, data); err != nil {
 				return usageError(err)
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", len(b.Entries), len(files), say(out))
+			fmt.Fprintf(cmd.OutOrStdout(), "wrote %d findings of %d files to %s\n", n, len(files), say(out))
 			return nil
 		},
 	}
 	write.Flags().StringVarP(&out, "output", "o", baseline.DefaultFile, "baseline file to write (atomically)")
 	write.Flags().StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+")")
-	write.Flags().StringVar(&today, "today", "", "the date waivers are judged on, YYYY-MM-DD")
+	write.Flags().StringVar(&today, "today", "", "the date waivers are judged on and the file records, YYYY-MM-DD (default: today, UTC)")
+	write.Flags().StringVar(&reason, "reason", "", "why the findings are accepted, recorded on every entry")
+	write.Flags().StringVar(&expires, "expires", "", "last day the entries absorb their findings, YYYY-MM-DD; after it they count again")
+	write.Flags().BoolVar(&overExpired, "absorb-expired", false, "record findings of an expired waiver or baseline entry too (otherwise refused, exit 2)")
 	group.AddCommand(write)
 	return group
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"sort"
@@ -203,5 +204,126 @@ func TestBaselineInvalid(t *testing.T) {
 	var v map[string]any
 	if err := json.Unmarshal([]byte(r.stdout), &v); err != nil || v["$id"] != "https://github.com/scangate/scangate/schema/baseline.schema.json" {
 		t.Errorf("schema baseline: %v %v", err, v["$id"])
+	}
+}
+
+// The baseline's dates and severities as a user meets them: write with --today,
+// --reason and --expires; check absorbs the findings until the expiry day, then they
+// fail again saying which entry expired; a finding that became more severe fails and
+// says it escalated; --hide-baselined counts instead of listing.
+func TestBaselineDatesAndSeverity(t *testing.T) {
+	dir := repo(t, map[string]string{"models/m.yaml": demoManifest(t)})
+	r := scangate(t, dir, "", nil, "baseline", "write", "--today", "2026-12-02", "--reason", "known since the move", "--expires", "2027-01-31", "models")
+	wantCode(t, r, 0)
+	data, err := os.ReadFile(filepath.Join(dir, ".scangate-baseline.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b struct {
+		SchemaVersion int `json:"schema_version"`
+		Written       string
+		Entries       []struct{ Severity, Reason, Expires string }
+	}
+	if err := json.Unmarshal(data, &b); err != nil || b.SchemaVersion != 2 || b.Written != "2026-12-02" || len(b.Entries) == 0 {
+		t.Fatalf("%v: %s", err, data)
+	}
+	for _, e := range b.Entries {
+		if e.Severity == "" || e.Reason != "known since the move" || e.Expires != "2027-01-31" {
+			t.Errorf("entry %+v", e)
+		}
+	}
+	// The same input, the same bytes: the date comes from --today.
+	again := scangate(t, dir, "", nil, "baseline", "write", "--today", "2026-12-02", "--reason", "known since the move", "--expires", "2027-01-31", "-o", "again.json", "models")
+	wantCode(t, again, 0)
+	if other, _ := os.ReadFile(filepath.Join(dir, "again.json")); string(other) != string(data) {
+		t.Error("two writes on one --today differ")
+	}
+	check := func(today string, extra ...string) result {
+		return scangate(t, dir, "", nil, append([]string{"check", "--today", today, "--baseline", ".scangate-baseline.json"}, append(extra, "models")...)...)
+	}
+	n := len(b.Entries)
+	for _, today := range []string{"2026-12-10", "2027-01-31"} {
+		r := check(today)
+		wantCode(t, r, 0)
+		if !strings.Contains(r.stdout, "baselined in .scangate-baseline.json, not failing the run:\n") || !strings.Contains(r.stdout, " baselined)\n") {
+			t.Errorf("%s:\n%s", today, r.stdout)
+		}
+	}
+	r = check("2026-12-10", "--hide-baselined")
+	wantCode(t, r, 0)
+	if want := fmt.Sprintf("%d baselined findings of .scangate-baseline.json not listed (--hide-baselined); they do not fail the run\n", n); !strings.Contains(r.stdout, want) ||
+		strings.Contains(r.stdout, "hint:") || !strings.Contains(r.stdout, fmt.Sprintf("(0 waived, %d baselined)", n)) {
+		t.Errorf("--hide-baselined:\n%s", r.stdout)
+	}
+	r = check("2027-02-01")
+	wantCode(t, r, 1)
+	// The first entry starts on line 5: {, "schema_version", "written", "entries": [, {.
+	if !strings.Contains(r.stdout, "(baseline entry .scangate-baseline.json:5 expired on 2027-01-31, 1 day ago; it counts again)") ||
+		!strings.Contains(r.stdout, fmt.Sprintf("%d findings of .scangate-baseline.json no longer absorbed: 0 escalated past the severity recorded, %d of expired entries", n, n)) {
+		t.Errorf("after the expiry:\n%s", r.stdout)
+	}
+	// The JSON report counts them, and stays valid against its schema.
+	r = check("2027-02-01", "--format", "json")
+	validateJSONReport(t, []byte(r.stdout))
+	var doc struct{ Summary map[string]int }
+	if err := json.Unmarshal([]byte(r.stdout), &doc); err != nil || doc.Summary["baseline_expired"] != n || doc.Summary["baseline_escalated"] != 0 || doc.Summary["baselined"] != 0 {
+		t.Errorf("JSON summary %v (%v)", doc.Summary, err)
+	}
+	// Writing over the expired entries needs --absorb-expired.
+	r = scangate(t, dir, "", nil, "baseline", "write", "--today", "2027-02-01", "models")
+	wantCode(t, r, 2)
+	if !strings.Contains(r.stderr, "would be absorbed again") || !strings.Contains(r.stderr, "--absorb-expired") {
+		t.Errorf("write over expired entries:\n%s", r.stderr)
+	}
+	if now, _ := os.ReadFile(filepath.Join(dir, ".scangate-baseline.json")); string(now) != string(data) {
+		t.Error("the refused write changed the file")
+	}
+	wantCode(t, scangate(t, dir, "", nil, "baseline", "write", "--today", "2027-02-01", "--absorb-expired", "models"), 0)
+
+	// Escalation: record every entry one step less severe than found (an error as a
+	// warning, a warning as a note); the errors and warnings then fail again.
+	data, _ = os.ReadFile(filepath.Join(dir, ".scangate-baseline.json"))
+	lowered := strings.ReplaceAll(strings.ReplaceAll(string(data), `"severity": "warning"`, `"severity": "note"`), `"severity": "error"`, `"severity": "warning"`)
+	os.WriteFile(filepath.Join(dir, "lowered.json"), []byte(lowered), 0o644)
+	r = scangate(t, dir, "", nil, "check", "--today", "2027-02-01", "--baseline", "lowered.json", "models")
+	wantCode(t, r, 1)
+	if !strings.Contains(r.stdout, "(escalated: baselined as a warning in lowered.json:") || !strings.Contains(r.stdout, "(escalated: baselined as a note in lowered.json:") {
+		t.Errorf("escalated:\n%s", r.stdout)
+	}
+	r = scangate(t, dir, "", nil, "check", "--hide-baselined", "models")
+	if r.code != 2 || !strings.Contains(r.stderr, "--hide-baselined needs --baseline FILE") {
+		t.Errorf("--hide-baselined alone: exit %d %s", r.code, r.stderr)
+	}
+}
+
+// A manifest waiver that expired: its findings count again, and baseline write refuses
+// to absorb them unless told to (testdata/rules/expired-waiver/expired.yaml, judged on
+// 2026-01-01: the waiver's last day was 2025-12-31).
+func TestBaselineOverExpiredWaiver(t *testing.T) {
+	src, err := os.ReadFile(filepath.Join(root(t), "testdata/rules/expired-waiver/expired.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := repo(t, map[string]string{"m.yaml": string(src)})
+	r := scangate(t, dir, "", nil, "baseline", "write", "--today", "2026-01-01", ".")
+	wantCode(t, r, 2)
+	for _, want := range []string{
+		"m.yaml:9:5: error: events: a full scan pays 1,500 ms of fixed CPU", "[scan-overhead]",
+		"warning: events: waiver for scan-overhead expired on 2025-12-31", "[expired-waiver]",
+		"scangate: not writing .scangate-baseline.json: 2 findings of an expired waiver or baseline entry would be absorbed again",
+	} {
+		if !strings.Contains(r.stderr, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, r.stderr)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, ".scangate-baseline.json")); err == nil {
+		t.Error("written anyway")
+	}
+	// On the waiver's last day nothing has lapsed.
+	wantCode(t, scangate(t, dir, "", nil, "baseline", "write", "--today", "2025-12-31", "-o", "before.json", "."), 0)
+	r = scangate(t, dir, "", nil, "baseline", "write", "--today", "2026-01-01", "--absorb-expired", ".")
+	wantCode(t, r, 0)
+	if !strings.Contains(r.stdout, "wrote 2 findings of 1 files") {
+		t.Errorf("stdout: %s", r.stdout)
 	}
 }

@@ -15,7 +15,7 @@ import (
 func newCheck() *cobra.Command {
 	var failOn, output, today, configFile, baselineFile string
 	var formats []string
-	var noColor, manifestsOnly bool
+	var noColor, manifestsOnly, hideBaselined bool
 	cmd := &cobra.Command{
 		Use:   "check [PATH...]",
 		Short: "Validate manifests and report segment-layout findings",
@@ -62,10 +62,8 @@ func newCheck() *cobra.Command {
 				Findings: findings,
 				Summary:  report.Summarize(files),
 			}
-			if baselineFile != "" {
-				if res.Baseline, err = run.ApplyBaseline(baselineFile, res, limits); err != nil {
-					return baselineError(cmd, err)
-				}
+			if res.Baseline, err = run.ApplyBaseline(baselineFile, res, limits, cfg.Today, hideBaselined); err != nil {
+				return baselineError(cmd, err)
 			}
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {
@@ -81,7 +79,8 @@ func newCheck() *cobra.Command {
 	cmd.Flags().StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
 	cmd.Flags().StringVar(&today, "today", "", "the date waivers and forecasts are judged on, YYYY-MM-DD (default: today, UTC)")
 	cmd.Flags().StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
-	cmd.Flags().StringVar(&baselineFile, "baseline", "", "baseline file: findings recorded there are listed but do not fail the run")
+	cmd.Flags().StringVar(&baselineFile, "baseline", "", "baseline file: findings recorded there are listed but do not fail the run (unless more severe than recorded or expired)")
+	cmd.Flags().BoolVar(&hideBaselined, "hide-baselined", false, "with --baseline: count the baselined findings in the text log instead of listing them")
 	return cmd
 }
 

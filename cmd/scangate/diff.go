@@ -17,7 +17,7 @@ func newDiff() *cobra.Command {
 	var base, output, today, configFile, failOnNew string
 	var formats []string
 	var noColor bool
-	var maxMs float64
+	var maxMs, threshold float64
 	var maxSegments int64
 	cmd := &cobra.Command{
 		Use:   "diff (--base REV [PATH...] | OLD NEW)",
@@ -25,14 +25,15 @@ func newDiff() *cobra.Command {
 		Long: "diff checks the manifests on both sides of a change and compares them: each\n" +
 			"table's partitions, segments, fill, fixed ms per scan and scan wall ms before,\n" +
 			"after and the delta, the totals per model, and the findings the change\n" +
-			"introduces, resolves and keeps.\n\n" +
+			"introduces, resolves, worsens, improves and keeps.\n\n" +
 			"With --base REV it compares the manifests at git revision REV (read from git,\n" +
 			"nothing is checked out) with the working tree; PATH selects them as check does.\n" +
 			"Without --base it compares two files, or two directories, OLD and NEW.\n\n" +
 			"Tables are matched by model and table name. A file whose path exists on one\n" +
 			"side only is a rename when a file holding the same model exists at a path found\n" +
 			"on the other side only. Findings are matched by fingerprint (rule, path, table,\n" +
-			"subject; never the line), so moving lines changes nothing.\n\n" +
+			"subject; never the line). One on both sides is worsened when its severity or\n" +
+			"graded figure rose (by more than --figure-threshold percent), improved the other way.\n\n" +
 			"Exit codes: 1 when the change crosses --max-added-ms, --max-added-segments or\n" +
 			"--fail-on-new; 2 when a file on either side breaks the schema, or on wrong usage;\n" +
 			"0 otherwise. Formats: " + report.NameList(report.DiffReport) + " (NAME or NAME=FILE, as for check).\n" +
@@ -55,7 +56,10 @@ func newDiff() *cobra.Command {
 				}
 				gate.MaxAddedSegments = &maxSegments
 			}
-			var err error
+			opts, err := change.PercentOptions(threshold)
+			if err != nil {
+				return usageError(err)
+			}
 			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
 				return usageError(err)
 			}
@@ -90,9 +94,7 @@ func newDiff() *cobra.Command {
 			if err := run.GuardOutputs(outs, read); err != nil {
 				return usageError(err)
 			}
-			// Both sides are checked with the same config and date, so the diff shows
-			// what the manifests change and nothing else.
-			d := change.Compare(run.CheckSide(sides[0], cfg, proj, limits), run.CheckSide(sides[1], cfg, proj, limits))
+			d := run.CompareSides(sides, cfg, proj, limits, opts)
 			res := report.NewDiffResult(run.ModuleVersion(), d, gate)
 			stdout := cmd.OutOrStdout()
 			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {
@@ -112,6 +114,7 @@ func newDiff() *cobra.Command {
 	f.Float64Var(&maxMs, "max-added-ms", 0, "fail when the change adds more than this many fixed ms per scan to any one table")
 	f.Int64Var(&maxSegments, "max-added-segments", 0, "fail when the change adds more than this many segments to any one table")
 	f.StringVar(&failOnNew, "fail-on-new", "never", "fail on a new finding at or above this severity (error, warning, note or never); a finding that became this severe counts as new")
+	f.Float64Var(&threshold, "figure-threshold", 100*change.DefaultFigureThreshold, "percent a finding's graded figure must move, at the same severity, to count as worsened or improved")
 	f.BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
 	f.StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE ("+report.NameList(report.DiffReport)+"); repeatable")
 	f.StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")

@@ -3,9 +3,11 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -263,7 +265,7 @@ func TestDiffRevision(t *testing.T) {
 		// budgets, tables, - name, rows, partitions), column 5.
 		"\nnew findings (1):\nsales.yaml:8:5: note: orders: 2 excess segments",
 		"gate failed: --max-added-ms 2.999\n  orders adds 3.0 ms per scan, more than the 2.999 ms allowed (--max-added-ms)\n",
-		"adds 3.0 ms per scan to orders and 1.5 ms to bins\n2 models, 3 tables: 2 changed; findings: 1 new, 0 resolved, 0 unchanged\n",
+		"adds 3.0 ms per scan to orders and 1.5 ms to bins\n2 models, 3 tables: 2 changed; findings: 1 new, 0 resolved, 0 worsened, 0 improved, 0 unchanged\n",
 	} {
 		if !strings.Contains(r.stdout, s) {
 			t.Errorf("text from a subdirectory lacks %q:\n%s", s, r.stdout)
@@ -510,8 +512,11 @@ func TestDiffOutputs(t *testing.T) {
 	}
 }
 
-// The README's "Gate a change" examples are lines the commands print today, and the
-// published schema is the one diff validates against.
+// The README's "Gate a change" excerpts reproduce with the commands they show: every
+// fenced block of the section whose first line is "$ scangate ..." is run as written
+// (from the repository root), and its other lines must be the output's, in order;
+// a "..." line stands for lines left out. The published schema is the one diff
+// validates against.
 func TestDiffREADMEAndSchema(t *testing.T) {
 	readme, err := os.ReadFile(filepath.Join(root(t), "README.md"))
 	if err != nil {
@@ -522,22 +527,22 @@ func TestDiffREADMEAndSchema(t *testing.T) {
 		t.Fatal("README.md lacks the section \"Gate a change\"")
 	}
 	sec, _, _ = strings.Cut(sec, "\n## ")
-	runs := map[string]string{
-		"text":     scangate(t, root(t), "", nil, "diff", "--max-added-ms", "200", "testdata/diff/before", "testdata/diff/after").stdout,
-		"markdown": scangate(t, root(t), "", nil, "diff", "--format", "markdown", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
-		"github":   scangate(t, root(t), "", nil, "diff", "--format", "github", "--max-added-ms", "200", "--fail-on-new", "error", "testdata/diff/before", "testdata/diff/after").stdout,
+	excerpts := 0
+	for _, block := range strings.Split(sec, "```")[1:] {
+		lang, body, _ := strings.Cut(block, "\n")
+		cmd, body, _ := strings.Cut(body, "\n")
+		command, ok := strings.CutPrefix(cmd, "$ scangate ")
+		if !ok || lang == "" {
+			continue
+		}
+		excerpts++
+		r := scangate(t, root(t), "", nil, strings.Fields(command)...)
+		if msg := followsInOrder(strings.TrimSuffix(body, "\n"), r.stdout); msg != "" {
+			t.Errorf("README %s excerpt of `scangate %s`: %s\noutput:\n%s", lang, command, msg, r.stdout)
+		}
 	}
-	for lang, out := range runs {
-		_, block, ok := strings.Cut(sec, "```"+lang+"\n")
-		if !ok {
-			t.Fatalf("the section lacks a %s example", lang)
-		}
-		block, _, _ = strings.Cut(block, "```")
-		for _, line := range strings.Split(strings.TrimSuffix(block, "\n"), "\n") {
-			if line != "..." && !strings.Contains(out, line+"\n") {
-				t.Errorf("README %s example line not in the output: %q\n%s", lang, line, out)
-			}
-		}
+	if excerpts < 3 {
+		t.Errorf("the section shows %d excerpts with their command, want the text, markdown and github ones", excerpts)
 	}
 	file, err := os.ReadFile(filepath.Join(root(t), "schema", "diff.schema.json"))
 	if err != nil {
@@ -546,6 +551,42 @@ func TestDiffREADMEAndSchema(t *testing.T) {
 	if r := scangate(t, root(t), "", nil, "schema", "diff"); r.code != 0 || r.stdout != string(file) {
 		t.Errorf("scangate schema diff: exit %d, %d bytes, want schema/diff.schema.json", r.code, len(r.stdout))
 	}
+}
+
+// followsInOrder says why excerpt is not out with some lines left out: every run of
+// lines between "..." lines must be consecutive lines of out, the runs in order; the
+// first run starts out and the last ends it unless a "..." stands before or after
+// them. "" when it is.
+func followsInOrder(excerpt, out string) string {
+	lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
+	parts := strings.Split(excerpt, "\n...\n")
+	at := 0
+	for i, part := range parts {
+		free := i > 0 || strings.HasPrefix(part, "...\n")
+		part = strings.TrimPrefix(part, "...\n")
+		last := i == len(parts)-1
+		openEnd := last && strings.HasSuffix(part, "\n...")
+		part = strings.TrimSuffix(part, "\n...")
+		want := strings.Split(part, "\n")
+		found := -1
+		for j := at; j+len(want) <= len(lines); j++ {
+			if slices.Equal(lines[j:j+len(want)], want) {
+				found = j
+				break
+			}
+			if !free {
+				break
+			}
+		}
+		if found < 0 {
+			return fmt.Sprintf("lines %q are not next in the output", want)
+		}
+		at = found + len(want)
+		if last && !openEnd && at != len(lines) {
+			return fmt.Sprintf("the output goes on after %q", want[len(want)-1])
+		}
+	}
+	return ""
 }
 
 // The demo pair as workflow commands; run with -update after a deliberate change.
@@ -569,7 +610,8 @@ func TestDiffGitHubGolden(t *testing.T) {
 			t.Errorf("line %d: want it to start %q\n%s", i+1, want, r.stdout)
 		}
 	}
-	if len(lines) != 6 || !strings.Contains(lines[1], "(was note)%0Ahint: ") {
+	// 24 partitions of 274 segments held 11 excess, 377 of 496 hold 233.
+	if len(lines) != 6 || !strings.Contains(lines[1], "(was note; excess segments 11 -> 233)%0Ahint: ") {
 		t.Errorf("%d lines, want 6, the escalated one saying what it was:\n%s", len(lines), r.stdout)
 	}
 }
@@ -649,5 +691,100 @@ func TestReportsAppendToTheStepSummary(t *testing.T) {
 		if info, err := os.Lstat(filepath.Join(dir, "link.md")); err != nil || info.Mode()&os.ModeSymlink == 0 {
 			t.Errorf("the link to the summary was replaced: %v", err)
 		}
+	}
+}
+
+// The excerpt matcher itself: gaps only where "..." stands.
+func TestFollowsInOrder(t *testing.T) {
+	out := "a\nb\nc\nd\n"
+	for _, c := range []struct {
+		excerpt string
+		ok      bool
+	}{
+		{"a\nb\nc\nd", true}, {"a\n...\nd", true}, {"...\nc\nd", true}, {"a\nb\n...", true},
+		{"b\nc\nd", false}, {"a\nb", false}, {"a\nc\n...", false}, {"...\nd\nc", false}, {"a\n...\nb\nd", false},
+	} {
+		if got := followsInOrder(c.excerpt, out) == ""; got != c.ok {
+			t.Errorf("%q in %q: %v, want %v", c.excerpt, out, got, c.ok)
+		}
+	}
+}
+
+// diff reads the project config as check does: the nearest .scangate.yaml from the new
+// side up to the repository root, or --config. salesEven4 raises a truncated-segments
+// note on both sides; a config that turns the rule off leaves no finding to match.
+func TestDiffReadsProjectConfig(t *testing.T) {
+	off := "rules:\n  truncated-segments: {severity: off}\n"
+	dir := repo(t, map[string]string{"before/m.yaml": salesEven4, "after/m.yaml": salesEven4, "other.yaml": off})
+	summary := func(r result) string {
+		t.Helper()
+		var d struct{ Summary map[string]any }
+		if err := json.Unmarshal([]byte(r.stdout), &d); err != nil {
+			t.Fatalf("%v\n%s%s", err, r.stdout, r.stderr)
+		}
+		return fmt.Sprint(d.Summary["unchanged"])
+	}
+	args := []string{"diff", "--format", "json", "before", "after"}
+	if got := summary(scangate(t, dir, "", nil, args...)); got != "1" {
+		t.Errorf("without a config: %s unchanged findings, want 1", got)
+	}
+	if got := summary(scangate(t, dir, "", nil, append(args, "--config", "other.yaml")...)); got != "0" {
+		t.Errorf("with --config other.yaml: %s unchanged findings, want 0", got)
+	}
+	if err := os.WriteFile(filepath.Join(dir, ".scangate.yaml"), []byte(off), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if got := summary(scangate(t, dir, "", nil, args...)); got != "0" {
+		t.Errorf("with the nearest .scangate.yaml: %s unchanged findings, want 0", got)
+	}
+	// A broken config stops the diff as it stops check: exit 2, the problem at its line.
+	if err := os.WriteFile(filepath.Join(dir, ".scangate.yaml"), []byte("rules:\n  truncated-segments: {severity: loud}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := scangate(t, dir, "", nil, args...)
+	wantCode(t, r, 2)
+	if !strings.Contains(r.stderr, ".scangate.yaml:2:") {
+		t.Errorf("stderr lacks the config problem:\n%s", r.stderr)
+	}
+}
+
+// Two directories: the rename line names the file where it was and where it is, each
+// on its own side (the old directory's path, not the new one's twice).
+func TestDiffRenameLinePaths(t *testing.T) {
+	dir := repo(t, map[string]string{"old/a.yaml": salesBase, "new/b.yaml": salesBase, "old/gone.yaml": stock})
+	r := scangate(t, dir, "", nil, "diff", "old", "new")
+	wantCode(t, r, 0)
+	for _, want := range []string{"file renamed: old/a.yaml -> new/b.yaml (model sales)\n", "file removed: old/gone.yaml (model stock)\n"} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+}
+
+// The case the states were made for: 100,000 rows over segments of 1,000 need 100
+// segments; 49 even partitions of about 2,041 rows take 3 segments each (147, 47 excess)
+// and 297 partitions of about 337 rows one each (297, 197 excess). Both are warnings
+// (47 >= max(8, 14.7) and 197 >= max(8, 29.7)): the same severity, four times the
+// excess, so worsened; the other way round improved.
+func TestDiffExcessSegmentsWorsened(t *testing.T) {
+	m := func(n string) string {
+		return "format: 1\nmodel: m\nengine: {segment_rows: 1000}\ntables:\n  - name: orders\n    rows: 100k\n    partitions: {scheme: even, count: " + n + "}\n"
+	}
+	dir := repo(t, map[string]string{"old/m.yaml": m("49"), "new/m.yaml": m("297")})
+	r := scangate(t, dir, "", nil, "diff", "old", "new")
+	wantCode(t, r, 0)
+	if !strings.Contains(r.stdout, "\nworsened findings (1):\nnew/m.yaml:7:5: warning: orders: 197 excess segments") ||
+		!strings.Contains(r.stdout, "[truncated-segments] (excess segments 47 -> 197)\n") ||
+		!strings.Contains(r.stdout, "findings: 0 new, 0 resolved, 1 worsened, 0 improved, 0 unchanged") {
+		t.Errorf("47 -> 197 excess segments:\n%s", r.stdout)
+	}
+	r = scangate(t, dir, "", nil, "diff", "new", "old")
+	if !strings.Contains(r.stdout, "\nimproved findings (1):\n") || !strings.Contains(r.stdout, "(excess segments 197 -> 47)") {
+		t.Errorf("197 -> 47 excess segments:\n%s", r.stdout)
+	}
+	// A threshold above the move (+319%) keeps it unchanged.
+	r = scangate(t, dir, "", nil, "diff", "--figure-threshold", "320", "old", "new")
+	if !strings.Contains(r.stdout, "findings: 0 new, 0 resolved, 0 worsened, 0 improved, 1 unchanged") {
+		t.Errorf("--figure-threshold 320:\n%s", r.stdout)
 	}
 }

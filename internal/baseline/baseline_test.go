@@ -9,6 +9,7 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
@@ -35,10 +36,21 @@ func finding(rule, file, table, subject, msg string, line int) rules.Finding {
 	}
 }
 
+func day(y int, m time.Month, d int) time.Time { return time.Date(y, m, d, 0, 0, 0, 0, time.UTC) }
+
+// bare is a parsed file without what Parse adds for messages (its name, entry lines).
+func bare(f File) File {
+	f.name = ""
+	for i := range f.Entries {
+		f.Entries[i].line = 0
+	}
+	return f
+}
+
 func TestConstants(t *testing.T) {
 	// Both are on disk in adopting repositories; changing either breaks them.
-	if SchemaVersion != 1 {
-		t.Errorf("SchemaVersion = %d, want 1", SchemaVersion)
+	if SchemaVersion != 2 {
+		t.Errorf("SchemaVersion = %d, want 2", SchemaVersion)
 	}
 	if DefaultFile != ".scangate-baseline.json" {
 		t.Errorf("DefaultFile = %q", DefaultFile)
@@ -155,6 +167,7 @@ func TestBuildUsesURI(t *testing.T) {
 	want := Entry{
 		Fingerprint: rules.Fingerprint(f, "models/a.yaml"),
 		Rule:        "scan-time",
+		Severity:    "warning",
 		File:        "models/a.yaml",
 		Table:       "orders",
 		Message:     "scan takes 40 s",
@@ -196,7 +209,7 @@ func TestMarshalBytes(t *testing.T) {
 	if got := string(b.Marshal()); got != want {
 		t.Errorf("Marshal:\n%s\nwant:\n%s", got, want)
 	}
-	if got := string(Build(nil, identity).Marshal()); got != "{\n  \"schema_version\": 1,\n  \"entries\": []\n}\n" {
+	if got := string(Build(nil, identity).Marshal()); got != "{\n  \"schema_version\": 2,\n  \"entries\": []\n}\n" {
 		t.Errorf("empty baseline marshals as %q", got)
 	}
 }
@@ -230,7 +243,7 @@ func TestMarshalParseRoundTrip(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: Parse(Marshal) = %v", name, err)
 		}
-		if !reflect.DeepEqual(got, b) {
+		if !reflect.DeepEqual(bare(got), b) {
 			t.Errorf("%s: round trip:\n got %#v\nwant %#v", name, got, b)
 		}
 		if again := got.Marshal(); string(again) != string(data) {
@@ -257,7 +270,7 @@ func TestParseReadsWhatBuildWrites(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(got, b) {
+	if !reflect.DeepEqual(bare(got), b) {
 		t.Error("the parsed baseline differs from the built one")
 	}
 }
@@ -270,7 +283,7 @@ func TestParseAccepts(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := File{SchemaVersion: 1, Entries: []Entry{{Fingerprint: fp1, Rule: "scan-time", File: "m.yaml", Message: "x"}}}
-	if !reflect.DeepEqual(got, want) {
+	if !reflect.DeepEqual(bare(got), want) {
 		t.Errorf("Parse = %#v, want %#v", got, want)
 	}
 }
@@ -288,7 +301,7 @@ func TestParseAcceptsTestdata(t *testing.T) {
 			t.Errorf("%s: %v", name, err)
 			continue
 		}
-		if !reflect.DeepEqual(got.Entries, want) {
+		if !reflect.DeepEqual(bare(got).Entries, want) {
 			t.Errorf("%s: entries %+v, want %+v", name, got.Entries, want)
 		}
 	}
@@ -312,7 +325,11 @@ var badBaselines = map[string]string{
 	"bad-duplicate-entry-key.json":    `7:7: /entries/0: key "rule" is already defined at line 6; remove one of them`,
 	"bad-duplicate-fingerprint.json":  "12:22: /entries/1/fingerprint: fingerprint " + fp1 + " is already recorded at line 5; remove one of the entries",
 	"bad-duplicate-key.json":          `3:3: key "schema_version" is already defined at line 2; remove one of them`,
-	"bad-empty.json":                  `1:1: file is empty; a baseline starts with {"schema_version": 1`,
+	"bad-expires-date.json":           `11:18: /entries/0/expires: "2027-02-30" is not a calendar date; write it as YYYY-MM-DD`,
+	"bad-expires-form.json":           `11:18: /entries/0/expires: "31/03/2027" is not a date; write it as YYYY-MM-DD (ISO 8601)`,
+	"bad-severity.json":               `8:19: /entries/0/severity: fatal is not one of error, warning, note`,
+	"bad-v2-no-severity.json":         `5:5: /entries/0: missing required key "severity"`,
+	"bad-empty.json":                  `1:1: file is empty; a baseline starts with {"schema_version": 2`,
 	"bad-entries-null.json":           "3:14: /entries: must be an array, not null",
 	"bad-entries-object.json":         "3:14: /entries: must be an array, not an object",
 	"bad-entry-empty.json":            `4:5: /entries/0: missing required key "fingerprint", "rule", "file", "message"`,
@@ -326,16 +343,16 @@ var badBaselines = map[string]string{
 	"bad-lone-cr.json":                "4:128: /entries/0/table: must be a string, not a number",
 	"bad-merge-conflict.json":         "1:1: merge conflict marker <<<<<<<; resolve the conflict, then run again",
 	"bad-schema-rule.json":            "6:15: /entries/0/rule: schema findings are never baselined (a broken manifest always fails); remove the entry",
-	"bad-schema-version-2.json":       "2:21: /schema_version: must be 1, not 2",
+	"bad-schema-version-3.json":       "2:21: /schema_version: 3 is not one of 1, 2",
 	"bad-schema-version-missing.json": `1:1: missing required key "schema_version"`,
-	"bad-schema-version-string.json":  `2:21: /schema_version: must be 1, not "1"`,
+	"bad-schema-version-string.json":  `2:21: /schema_version: must be a number, not a string`,
 	"bad-syntax.json":                 "3:15: invalid JSON: unexpected \"}\"; a value is an object, a list, a \"string\", a number, true, false or null",
 	"bad-top-array.json":              "1:1: must be an object, not an array",
 	"bad-trailing-text.json":          "4:3: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document",
 	"bad-truncated.json":              "6:1: invalid JSON: expected a key in double quotes; write \"key\": value",
 	"bad-two-objects.json":            "5:1: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document",
-	"bad-unknown-entry-field.json":    `10:7: /entries/0/line: unknown key "line"; allowed here: file, fingerprint, message, rule, table`,
-	"bad-unknown-field.json":          `4:3: /extra: unknown key "extra"; allowed here: entries, schema_version`,
+	"bad-unknown-entry-field.json":    `10:7: /entries/0/line: unknown key "line"; allowed here: expires, file, fingerprint, message, reason, rule, severity, table`,
+	"bad-unknown-field.json":          `4:3: /extra: unknown key "extra"; allowed here: entries, schema_version, written`,
 	"bad-unknown-rule.json":           `6:15: /entries/0/rule: unknown rule "scan-tme"; use one of ` + strings.Join(recordable(), ", "),
 }
 
@@ -382,7 +399,7 @@ func TestParseRefusals(t *testing.T) {
 		// The decoder's offset counts the bad byte, so the first byte comes out as column 1.
 		{"syntax at first byte", `x`, "1:1: invalid JSON: unexpected \"x\"; write a string in double quotes, a number, true, false or null"},
 		{"syntax on a later line", "{\n  \"schema_version\": 1,\n  x\n}", "3:3: invalid JSON: expected a key in double quotes; write \"key\": value"},
-		{"only white space", " \n\t", `1:1: file is empty; a baseline starts with {"schema_version": 1`},
+		{"only white space", " \n\t", `1:1: file is empty; a baseline starts with {"schema_version": 2`},
 		{"cut off after a comma", `{"schema_version":1,`, "1:21: invalid JSON: expected a key in double quotes; write \"key\": value"},
 		{"trailing comma after the object", `{"schema_version":1,"entries":[]},`, "1:34: invalid JSON: the file holds more than one value; remove what follows the first: a file holds one document"},
 		{"conflict marker between entries", "{\"schema_version\":1,\"entries\":[\n=======\n]}", "2:1: merge conflict marker =======; resolve the conflict, then run again"},
@@ -406,8 +423,8 @@ func TestParseRefusals(t *testing.T) {
 // without the program's type names.
 func TestParseTypeErrors(t *testing.T) {
 	for _, c := range []struct{ name, in, want string }{
-		{"schema_version as a string", `{"schema_version":"1","entries":[]}`, `1:19: /schema_version: must be 1, not "1"`},
-		{"schema_version not whole", `{"schema_version":1.5,"entries":[]}`, "1:19: /schema_version: must be 1, not 1.5"},
+		{"schema_version as a string", `{"schema_version":"1","entries":[]}`, `1:19: /schema_version: must be a number, not a string`},
+		{"schema_version not whole", `{"schema_version":1.5,"entries":[]}`, "1:19: /schema_version: 1.5 is not one of 1, 2"},
 		{"top level an array", `[]`, "1:1: must be an object, not an array"},
 		{"entries an object", `{"schema_version":1,"entries":{}}`, "1:31: /entries: must be an array, not an object"},
 		{"fingerprint as a number", "{\n \"schema_version\": 1,\n \"entries\": [{\"fingerprint\": 5, \"rule\": \"scan-time\", \"file\": \"m.yaml\", \"message\": \"\"}]\n}", "3:30: /entries/0/fingerprint: must be a string, not a number"},
@@ -485,7 +502,7 @@ func TestApply(t *testing.T) {
 	moved := finding("scan-time", "/home/dev/repo/models/a.yaml", "orders", "scan", "scan takes 44 s", 31)
 	fresh := finding("scan-time", "/home/dev/repo/models/a.yaml", "orders", "scan-overhead", "new", 40)
 	now := []rules.Finding{moved, fresh}
-	fixed := b.Apply(now, repoURI)
+	fixed := b.Apply(now, repoURI, day(2026, 1, 1)).Fixed
 	if !now[0].Baselined {
 		t.Error("recorded finding not marked Baselined")
 	}
@@ -502,12 +519,12 @@ func TestApplyUsesURI(t *testing.T) {
 	b := File{SchemaVersion: 1, Entries: []Entry{{Fingerprint: rules.Fingerprint(f, "models/a.yaml")}}}
 
 	now := []rules.Finding{f}
-	if fixed := b.Apply(now, repoURI); fixed != 0 || !now[0].Baselined {
+	if fixed := b.Apply(now, repoURI, day(2026, 1, 1)).Fixed; fixed != 0 || !now[0].Baselined {
 		t.Errorf("with the repository path: fixed = %d, Baselined = %v; want 0, true", fixed, now[0].Baselined)
 	}
 	// Without the mapping the local path is hashed and nothing matches.
 	now = []rules.Finding{f}
-	if fixed := b.Apply(now, identity); fixed != 1 || now[0].Baselined {
+	if fixed := b.Apply(now, identity, day(2026, 1, 1)).Fixed; fixed != 1 || now[0].Baselined {
 		t.Errorf("with the local path: fixed = %d, Baselined = %v; want 1, false", fixed, now[0].Baselined)
 	}
 }
@@ -517,7 +534,7 @@ func TestApplyNeverAcceptsSchemaFindings(t *testing.T) {
 	// A hand-edited file may hold a schema fingerprint; a broken manifest must still fail.
 	b := File{SchemaVersion: 1, Entries: []Entry{{Fingerprint: rules.Fingerprint(bad, "m.yaml"), Rule: rules.Schema.ID}}}
 	now := []rules.Finding{bad}
-	fixed := b.Apply(now, identity)
+	fixed := b.Apply(now, identity, day(2026, 1, 1)).Fixed
 	if now[0].Baselined {
 		t.Error("schema finding marked Baselined")
 	}
@@ -532,13 +549,13 @@ func TestApplyFixedCount(t *testing.T) {
 	d := finding("scan-time", "m.yaml", "t3", "scan", "m", 3)
 	b := Build([]rules.Finding{a, c, d}, identity)
 
-	if fixed := b.Apply(nil, identity); fixed != 3 {
+	if fixed := b.Apply(nil, identity, day(2026, 1, 1)).Fixed; fixed != 3 {
 		t.Errorf("no findings: fixed = %d, want 3", fixed)
 	}
 	// One entry matched by two findings (same fingerprint, two lines) counts once.
 	now := []rules.Finding{a, a, c}
 	now[1].Pos.Line = 50
-	if fixed := b.Apply(now, identity); fixed != 1 {
+	if fixed := b.Apply(now, identity, day(2026, 1, 1)).Fixed; fixed != 1 {
 		t.Errorf("fixed = %d, want 1 (only t3 is gone)", fixed)
 	}
 	for i, f := range now {
@@ -546,7 +563,7 @@ func TestApplyFixedCount(t *testing.T) {
 			t.Errorf("finding %d not marked Baselined", i)
 		}
 	}
-	if fixed := (File{SchemaVersion: 1, Entries: []Entry{}}).Apply([]rules.Finding{a}, identity); fixed != 0 {
+	if fixed := (File{SchemaVersion: 1, Entries: []Entry{}}).Apply([]rules.Finding{a}, identity, day(2026, 1, 1)).Fixed; fixed != 0 {
 		t.Errorf("empty baseline: fixed = %d, want 0", fixed)
 	}
 }
@@ -558,10 +575,144 @@ func TestApplyCountsEveryEntry(t *testing.T) {
 	c := finding("scan-time", "m.yaml", "t2", "scan", "m", 2)
 	e := Entry{Fingerprint: rules.Fingerprint(a, "m.yaml"), Rule: "scan-time", File: "m.yaml"}
 	b := File{SchemaVersion: 1, Entries: []Entry{e, e}}
-	if fixed := b.Apply([]rules.Finding{c}, identity); fixed != 2 {
+	if fixed := b.Apply([]rules.Finding{c}, identity, day(2026, 1, 1)).Fixed; fixed != 2 {
 		t.Errorf("fixed = %d, want 2", fixed)
 	}
-	if fixed := b.Apply([]rules.Finding{a}, identity); fixed != 0 {
+	if fixed := b.Apply([]rules.Finding{a}, identity, day(2026, 1, 1)).Fixed; fixed != 0 {
 		t.Errorf("both entries matched: fixed = %d, want 0", fixed)
+	}
+}
+
+// Build keeps the highest severity of a fingerprint, whatever the order.
+func TestBuildKeepsHighestSeverity(t *testing.T) {
+	a := finding("scan-time", "m.yaml", "orders", "scan", "scan takes 41 s", 9)
+	b := a
+	b.Severity = rules.Error
+	for _, in := range [][]rules.Finding{{a, b}, {b, a}} {
+		if got := Build(in, identity).Entries[0].Severity; got != "error" {
+			t.Errorf("severity %q, want error", got)
+		}
+	}
+}
+
+// Stamp writes the date on the file and the reason and expiry on every entry; the
+// stamped file reads back as written.
+func TestStampRoundTrip(t *testing.T) {
+	b := Build([]rules.Finding{finding("scan-time", "m.yaml", "orders", "scan", "m", 9), finding("scan-time", "m.yaml", "lines", "scan", "m", 12)}, identity)
+	b.Stamp(day(2026, 12, 2), "moves next quarter", day(2027, 3, 31))
+	data := b.Marshal()
+	for _, want := range []string{"\"schema_version\": 2,\n  \"written\": \"2026-12-02\",", "\"severity\": \"warning\",", "\"reason\": \"moves next quarter\",\n      \"expires\": \"2027-03-31\"\n"} {
+		if !strings.Contains(string(data), want) {
+			t.Errorf("stamped file lacks %q:\n%s", want, data)
+		}
+	}
+	got, err := Parse("b.json", data, schema.DefaultLimits)
+	if err != nil || !reflect.DeepEqual(bare(got), b) {
+		t.Errorf("round trip: %v\n%+v\n%+v", err, got, b)
+	}
+	// Without a reason or expiry neither key is written.
+	c := Build([]rules.Finding{finding("scan-time", "m.yaml", "orders", "scan", "m", 9)}, identity)
+	c.Stamp(day(2026, 12, 2), "", time.Time{})
+	if data := string(c.Marshal()); strings.Contains(data, "reason") || strings.Contains(data, "expires") {
+		t.Errorf("unstamped keys written:\n%s", data)
+	}
+}
+
+// A version 1 file (no date, no severity, no expiry) is still read, and absorbs its
+// findings at any severity: it recorded none to compare with.
+func TestVersion1StillRead(t *testing.T) {
+	b, err := Parse("good-crlf.json", readTestdata(t, "good-crlf.json"), schema.DefaultLimits)
+	if err != nil || b.SchemaVersion != 1 || b.Written != "" || b.Entries[0].Severity != "" {
+		t.Fatalf("Parse = %+v, %v", b, err)
+	}
+	f := rules.Finding{Rule: "scan-time", Severity: rules.Error, File: "models/a.yaml", Table: "orders", Subject: "x"}
+	b.Entries[0].Fingerprint = rules.Fingerprint(f, "models/a.yaml")
+	now := []rules.Finding{f}
+	if o := b.Apply(now, identity, day(2030, 1, 1)); !now[0].Baselined || o.Escalated+o.Expired != 0 {
+		t.Errorf("version 1 entry: baselined %v, outcome %+v", now[0].Baselined, o)
+	}
+	// Version 2 reads its reason and expiry.
+	v2, err := Parse("good-v2.json", readTestdata(t, "good-v2.json"), schema.DefaultLimits)
+	if err != nil || v2.Written != "2026-12-02" || v2.Entries[0].Reason != "the nightly job moves next quarter" || v2.Entries[0].Expires != "2027-03-31" || v2.Entries[1].Severity != "error" {
+		t.Errorf("Parse(good-v2.json) = %+v, %v", v2, err)
+	}
+}
+
+// A finding more severe than its entry recorded counts again and says so, with the
+// entry's line; one as severe or less stays absorbed.
+func TestApplyEscalated(t *testing.T) {
+	warn := finding("scan-time", "models/a.yaml", "orders", "scan", "scan takes 40 s", 9)
+	data := Build([]rules.Finding{warn}, identity).Marshal()
+	b, err := Parse(".scangate-baseline.json", data, schema.DefaultLimits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	worse := warn
+	worse.Severity = rules.Error
+	better := warn
+	better.Severity = rules.Note
+	now := []rules.Finding{worse}
+	o := b.Apply(now, identity, day(2026, 1, 1))
+	// The entry's object starts on line 4: {, "schema_version", "entries": [, {.
+	if now[0].Baselined || o.Escalated != 1 || o.Fixed != 0 ||
+		now[0].Message != "scan takes 40 s (escalated: baselined as a warning in .scangate-baseline.json:4; it counts again)" {
+		t.Errorf("escalated: baselined %v, outcome %+v, message %q", now[0].Baselined, o, now[0].Message)
+	}
+	for _, f := range []rules.Finding{warn, better} {
+		now := []rules.Finding{f}
+		if o := b.Apply(now, identity, day(2026, 1, 1)); !now[0].Baselined || o.Escalated != 0 {
+			t.Errorf("%s: baselined %v, outcome %+v", f.Severity, now[0].Baselined, o)
+		}
+	}
+}
+
+// An entry absorbs its finding up to and including its expiry day, then the finding
+// counts again and names the entry and the day it expired.
+func TestApplyExpired(t *testing.T) {
+	f := finding("scan-time", "models/a.yaml", "orders", "scan", "scan takes 40 s", 9)
+	built := Build([]rules.Finding{f}, identity)
+	built.Stamp(day(2026, 12, 2), "", day(2027, 1, 31))
+	b, err := Parse("bl.json", built.Marshal(), schema.DefaultLimits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		today   time.Time
+		absorbs bool
+		note    string
+	}{
+		{day(2027, 1, 30), true, ""},
+		{day(2027, 1, 31), true, ""}, // the expiry day itself still counts
+		{day(2027, 2, 1), false, " (baseline entry bl.json:5 expired on 2027-01-31, 1 day ago; it counts again)"},
+		{day(2027, 3, 2), false, " (baseline entry bl.json:5 expired on 2027-01-31, 30 days ago; it counts again)"},
+	} {
+		now := []rules.Finding{f}
+		o := b.Apply(now, identity, c.today)
+		if now[0].Baselined != c.absorbs || now[0].Message != f.Message+c.note || o.Expired != map[bool]int{true: 0, false: 1}[c.absorbs] || o.Fixed != 0 {
+			t.Errorf("%s: baselined %v, outcome %+v, message %q", c.today.Format(dateLayout), now[0].Baselined, o, now[0].Message)
+		}
+	}
+}
+
+// Lapsed: the findings of an expired manifest waiver (the reminder and the findings of
+// its rule on its table, not other rules or tables) and those of expired entries of the
+// baseline written over.
+func TestLapsed(t *testing.T) {
+	reminder := rules.Finding{Rule: rules.ExpiredWaiver.ID, Severity: rules.Warning, File: "m.yaml", Table: "orders", Subject: "waiver:scan-time", Message: "waiver for scan-time expired"}
+	waived := finding("scan-time", "m.yaml", "orders", "scan", "scan takes 40 s", 9)
+	otherRule := finding("scan-overhead", "m.yaml", "orders", "scan-overhead", "overhead", 9)
+	otherTable := finding("scan-time", "m.yaml", "lines", "scan", "scan takes 40 s", 20)
+	all := []rules.Finding{reminder, waived, otherRule, otherTable}
+	got := Lapsed(all, identity, File{}, day(2027, 1, 1))
+	if len(got) != 2 || got[0].Rule != rules.ExpiredWaiver.ID || got[1].Table != "orders" || got[1].Rule != "scan-time" {
+		t.Errorf("lapsed %+v", got)
+	}
+	prior := Build([]rules.Finding{otherTable}, identity)
+	prior.Stamp(day(2026, 1, 1), "", day(2026, 6, 30))
+	if got := Lapsed(all[2:], identity, prior, day(2026, 6, 30)); len(got) != 0 {
+		t.Errorf("on the expiry day nothing has lapsed: %+v", got)
+	}
+	if got := Lapsed(all[2:], identity, prior, day(2026, 7, 1)); len(got) != 1 || got[0].Table != "lines" {
+		t.Errorf("after it: %+v", got)
 	}
 }

@@ -21,10 +21,22 @@ type File struct {
 	Name string // as reported: the path, or REV:path for a file read from a revision
 	// Key identifies the file on both sides: its repository path. Findings are
 	// fingerprinted with it, so a file keeps its findings' identity across the change.
-	Key     string
+	Key string
+	// Path is the file's own repository path on its side, for people: the same as Key,
+	// except for a base file of a two-directory diff, whose Key is the place it takes
+	// in the new directory. "" means Key.
+	Path    string
 	Model   string
 	Invalid bool // could not be read or broke the schema; its findings say why
 	Tables  []*analysis.Table
+}
+
+// RepoPath is where the file is on its own side: Path, or Key when Path is unset.
+func (f *File) RepoPath() string {
+	if f.Path != "" {
+		return f.Path
+	}
+	return f.Key
 }
 
 // Side is everything checked on one side of the change.
@@ -155,16 +167,23 @@ type ModelChange struct {
 	Before, After *Totals
 }
 
-// FindingChange is one finding of the change. For an introduced or unchanged finding
-// it is the head's, for a resolved one the base's.
+// FindingChange is one finding of the change. For a finding of the head (new,
+// worsened, improved, unchanged) it is the head's, for a resolved one the base's.
 type FindingChange struct {
 	Finding     rules.Finding
 	Fingerprint string
-	Was         rules.Severity // unchanged findings: the severity on the base side
+	Was         rules.Severity // a finding on both sides: its severity on the base side
+	// Figure is the finding's graded figure (see GradedFigures), "" when the finding is
+	// not on both sides or carries none; Before and After are its values.
+	Figure        string
+	Before, After float64
 }
 
-// Escalated reports whether an unchanged finding got more severe.
+// Escalated reports whether a finding on both sides got more severe.
 func (f FindingChange) Escalated() bool { return f.Was != 0 && f.Finding.Severity > f.Was }
+
+// Eased reports whether a finding on both sides got less severe.
+func (f FindingChange) Eased() bool { return f.Was != 0 && f.Finding.Severity < f.Was }
 
 // Invalid is a file that could not be checked, on either side, with the schema
 // findings that say why.
@@ -179,8 +198,11 @@ type Diff struct {
 	Base, Head string // the sides' labels
 	Files      []FileChange
 	Models     []ModelChange // sorted by name
+	// Findings by state (see Compare): each in the head's order, Resolved in the base's.
 	Introduced []FindingChange
 	Resolved   []FindingChange
+	Worsened   []FindingChange
+	Improved   []FindingChange
 	Unchanged  []FindingChange
 	// Invalid lists the files that broke the schema. When it is not empty nothing was
 	// compared: the numbers of a file that cannot be read are unknown.
@@ -196,10 +218,29 @@ func (d *Diff) Tables() []TableChange {
 	return out
 }
 
-// Compare works out what changes from base to head. Tables are matched by model and
-// table name (first within the same file, then across files, so a table keeps its
-// identity when its file is renamed or the model is split); findings by fingerprint.
+// Options tune Compare.
+type Options struct {
+	// FigureThreshold is how far, as a share of its base value, a finding's graded
+	// figure must move at the same severity to count as worsened or improved: 0.1 is
+	// 10%. A move of exactly the threshold is unchanged.
+	FigureThreshold float64
+}
+
+// DefaultFigureThreshold is diff's --figure-threshold unless told otherwise: 10%.
+const DefaultFigureThreshold = 0.1
+
+// Compare is CompareWith at the default options.
 func Compare(base, head Side) *Diff {
+	return CompareWith(base, head, Options{FigureThreshold: DefaultFigureThreshold})
+}
+
+// CompareWith works out what changes from base to head. Tables are matched by model
+// and table name (first within the same file, then across files, so a table keeps its
+// identity when its file is renamed or the model is split); findings by fingerprint,
+// and a finding on both sides is worsened when its severity rose or, at the same
+// severity, its graded figure rose by more than o.FigureThreshold, improved the other
+// way round, else unchanged.
+func CompareWith(base, head Side, o Options) *Diff {
 	d := &Diff{Base: base.Label, Head: head.Label}
 	d.Invalid = append(invalid("base", base), invalid("head", head)...)
 	if len(d.Invalid) > 0 {
@@ -208,7 +249,18 @@ func Compare(base, head Side) *Diff {
 	var rename map[string]string // base key -> head key of renamed files
 	d.Files, rename = matchFiles(base.Files, head.Files)
 	d.Models = matchTables(base.Files, head.Files, rename)
-	d.Introduced, d.Resolved, d.Unchanged = matchFindings(base, head, rename)
+	var kept []FindingChange
+	d.Introduced, d.Resolved, kept = matchFindings(base, head, rename)
+	for _, f := range kept {
+		switch judge(f, o.FigureThreshold) {
+		case 1:
+			d.Worsened = append(d.Worsened, f)
+		case -1:
+			d.Improved = append(d.Improved, f)
+		default:
+			d.Unchanged = append(d.Unchanged, f)
+		}
+	}
 	return d
 }
 
@@ -500,11 +552,11 @@ func sortedNames[V any](m map[string]V) []string {
 	return keys
 }
 
-// matchFindings sorts the findings into introduced, resolved and unchanged by their
+// matchFindings sorts the findings into introduced, resolved and kept by their
 // fingerprint (rule, repository path, table, subject; never the line). A base finding
 // of a renamed file is fingerprinted with the file's new path, so a rename alone
 // introduces and resolves nothing. Equal fingerprints pair up in order.
-func matchFindings(base, head Side, rename map[string]string) (introduced, resolved, unchanged []FindingChange) {
+func matchFindings(base, head Side, rename map[string]string) (introduced, resolved, kept []FindingChange) {
 	keyOf := func(files []File) map[string]string {
 		m := map[string]string{}
 		for _, f := range files {
@@ -529,7 +581,7 @@ func matchFindings(base, head Side, rename map[string]string) (introduced, resol
 		if q := pending[fp]; len(q) > 0 {
 			pending[fp] = q[1:]
 			matched[q[0]] = true
-			unchanged = append(unchanged, FindingChange{Finding: f, Fingerprint: fp, Was: base.Findings[q[0]].Severity})
+			kept = append(kept, pairFinding(base.Findings[q[0]], f, fp))
 			continue
 		}
 		introduced = append(introduced, FindingChange{Finding: f, Fingerprint: fp})
@@ -539,5 +591,5 @@ func matchFindings(base, head Side, rename map[string]string) (introduced, resol
 			resolved = append(resolved, FindingChange{Finding: f, Fingerprint: baseFP[i]})
 		}
 	}
-	return introduced, resolved, unchanged
+	return introduced, resolved, kept
 }

@@ -246,11 +246,11 @@ func TestGateNewFindings(t *testing.T) {
 		}
 	}
 	// 4 -> 20 even partitions turns the truncated-segments note into a warning: the same
-	// fingerprint, so unchanged, but it counts as new at the warning level.
+	// fingerprint, so worsened, not new, but it counts as new at the warning level.
 	worse := Compare(side(t, "base", []string{"m.yaml"}, manifest("sales", "1.5", ordersEven4)),
 		side(t, "head", []string{"m.yaml"}, manifest("sales", "1.5", ordersEven20)))
-	if len(worse.Introduced) != 0 || len(worse.Unchanged) != 1 || !worse.Unchanged[0].Escalated() || worse.Unchanged[0].Was != rules.Note {
-		t.Fatalf("introduced %q unchanged %q", rulesOf(worse.Introduced), rulesOf(worse.Unchanged))
+	if len(worse.Introduced) != 0 || len(worse.Worsened) != 1 || !worse.Worsened[0].Escalated() || worse.Worsened[0].Was != rules.Note {
+		t.Fatalf("introduced %q worsened %q", rulesOf(worse.Introduced), rulesOf(worse.Worsened))
 	}
 	b := Gate{FailOnNew: rules.Warning}.Check(worse)
 	if len(b) != 1 || b[0].Kind != "new-finding" || !strings.Contains(b[0].Message, "truncated-segments on orders at head:m.yaml:") || !strings.HasSuffix(b[0].Message, "rose from note to warning (--fail-on-new warning)") {

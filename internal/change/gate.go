@@ -62,21 +62,22 @@ func (g Gate) Check(d *Diff) []Breach {
 		return out
 	}
 	flag := fmt.Sprintf("(--fail-on-new %s)", g.FailOnNew)
+	modelOf := d.modelOf()
 	for i := range d.Introduced {
 		f := &d.Introduced[i]
 		// A finding the manifest waives or the baseline records is accepted debt.
 		if f.Finding.Severity >= g.FailOnNew && !f.Finding.Accepted() {
 			out = append(out, Breach{
-				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
+				Kind: "new-finding", Model: modelOf(f.Finding), Table: f.Finding.Table, Finding: f,
 				Message: fmt.Sprintf("new %s %s%s at %s %s", f.Finding.Severity, f.Finding.Rule, on(f.Finding), Location(f.Finding), flag),
 			})
 		}
 	}
-	for i := range d.Unchanged {
-		f := &d.Unchanged[i]
+	for i := range d.Worsened { // a severity that rose is always worsened
+		f := &d.Worsened[i]
 		if f.Escalated() && f.Was < g.FailOnNew && f.Finding.Severity >= g.FailOnNew && !f.Finding.Accepted() {
 			out = append(out, Breach{
-				Kind: "new-finding", Model: modelOf(d, f.Finding), Table: f.Finding.Table, Finding: f,
+				Kind: "new-finding", Model: modelOf(f.Finding), Table: f.Finding.Table, Finding: f,
 				Message: fmt.Sprintf("%s%s at %s rose from %s to %s %s", f.Finding.Rule, on(f.Finding), Location(f.Finding), f.Was, f.Finding.Severity, flag),
 			})
 		}
@@ -92,14 +93,18 @@ func on(f rules.Finding) string {
 	return " on " + f.Table
 }
 
-// modelOf is the model of the table a head finding is about.
-func modelOf(d *Diff, f rules.Finding) string {
+// modelOf returns the model of the table a head finding is about, looked up in an
+// index of the head's tables built once (a change of thousands of findings and tables).
+func (d *Diff) modelOf() func(rules.Finding) string {
+	models := map[[2]string]string{}
 	for _, t := range d.Tables() {
-		if t.HeadFile == f.File && t.Name == f.Table {
-			return t.Model
+		if k := [2]string{t.HeadFile, t.Name}; t.HeadFile != "" {
+			if _, seen := models[k]; !seen {
+				models[k] = t.Model
+			}
 		}
 	}
-	return ""
+	return func(f rules.Finding) string { return models[[2]string{f.File, f.Table}] }
 }
 
 // Location is file:line:col of a finding, or the file alone for one about the whole file.
@@ -203,17 +208,18 @@ func (d *Diff) Verdict() string {
 	byMagnitude(up)
 	byMagnitude(down)
 	var parts []string
+	label := d.Labeler()
 	if len(up) > 0 {
-		parts = append(parts, d.clause("adds", "to", up))
+		parts = append(parts, clause("adds", "to", up, label))
 	}
 	if len(down) > 0 {
-		parts = append(parts, d.clause("saves", "on", down))
+		parts = append(parts, clause("saves", "on", down, label))
 	}
 	return strings.Join(parts, "; ")
 }
 
 // clause words one direction: "adds 1,240 ms per scan to a, 30.0 ms to b and 3 more tables".
-func (d *Diff) clause(verb, prep string, ts []TableChange) string {
+func clause(verb, prep string, ts []TableChange, label func(TableChange) string) string {
 	var items []string
 	for i, t := range ts {
 		if i == 3 {
@@ -229,7 +235,7 @@ func (d *Diff) clause(verb, prep string, ts []TableChange) string {
 		} else if i == 0 {
 			unit = "ms per scan"
 		}
-		items = append(items, fmt.Sprintf("%s %s %s %s", amount, unit, prep, d.Label(t)))
+		items = append(items, fmt.Sprintf("%s %s %s %s", amount, unit, prep, label(t)))
 	}
 	s := verb + " "
 	for i, it := range items {

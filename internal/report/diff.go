@@ -25,14 +25,16 @@ func NewDiffResult(version string, d *change.Diff, g change.Gate) *DiffResult {
 // Failed reports whether the change fails the gate or could not be compared.
 func (r *DiffResult) Failed() bool { return len(r.Diff.Invalid) > 0 || len(r.Breaches) > 0 }
 
-// breaks reports whether f (an element of the Diff's finding lists) fails the gate.
-func (r *DiffResult) breaks(f *change.FindingChange) bool {
+// breaking is the set of findings (elements of the Diff's finding lists) that fail the
+// gate, built once: a change of thousands of findings asks for each.
+func (r *DiffResult) breaking() map[*change.FindingChange]bool {
+	out := map[*change.FindingChange]bool{}
 	for _, b := range r.Breaches {
-		if b.Finding == f {
-			return true
+		if b.Finding != nil {
+			out[b.Finding] = true
 		}
 	}
-	return false
+	return out
 }
 
 // changedTables are the tables whose figures differ, with added and removed ones.
@@ -72,7 +74,29 @@ func (r *DiffResult) diffSummary() string {
 	}
 	return plural(len(d.Models), "model") + ", " + plural(tables, "table") + ": " +
 		units.Num(int64(changed)) + " changed; findings: " + units.Num(int64(len(d.Introduced))) + " new, " +
-		units.Num(int64(len(d.Resolved))) + " resolved, " + units.Num(int64(len(d.Unchanged))) + " unchanged"
+		units.Num(int64(len(d.Resolved))) + " resolved, " + units.Num(int64(len(d.Worsened))) + " worsened, " +
+		units.Num(int64(len(d.Improved))) + " improved, " + units.Num(int64(len(d.Unchanged))) + " unchanged"
+}
+
+// crossed lists the limits the change crosses as flags, in gateFlags' order: only
+// those with a breach.
+func (r *DiffResult) crossed() []string {
+	kinds := map[string]bool{}
+	for _, b := range r.Breaches {
+		kinds[b.Kind] = true
+	}
+	g := r.Gate
+	var parts []string
+	if g.MaxAddedMs != nil && kinds["added-ms"] {
+		parts = append(parts, "--max-added-ms "+change.Limit(*g.MaxAddedMs))
+	}
+	if g.MaxAddedSegments != nil && kinds["added-segments"] {
+		parts = append(parts, "--max-added-segments "+change.Limit(float64(*g.MaxAddedSegments)))
+	}
+	if g.FailOnNew != 0 && kinds["new-finding"] {
+		parts = append(parts, "--fail-on-new "+g.FailOnNew.String())
+	}
+	return parts
 }
 
 // gateFlags lists the limits the gate checks as flags: "--max-added-ms 500"; empty

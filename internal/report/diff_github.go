@@ -11,8 +11,8 @@ import (
 )
 
 // writeDiffGitHub writes workflow commands for what the change does, so the runner
-// annotates the head's lines: each new finding at its severity, each finding that got
-// more severe at its new one, a notice per changed table with its segments and fixed ms
+// annotates the head's lines: each new finding at its severity, each worsened finding
+// at its new one with what moved (improved ones are not annotated), a notice per changed table with its segments and fixed ms
 // per scan before -> after, and an error per gate breach. A file that cannot be compared
 // gets its schema errors instead. Escaping is check's (command).
 func writeDiffGitHub(w io.Writer, r *DiffResult, _ bool) error {
@@ -41,8 +41,8 @@ func writeDiffGitHub(w io.Writer, r *DiffResult, _ bool) error {
 	for _, f := range d.Introduced {
 		finding(f.Finding, "")
 	}
-	for _, f := range worsened(d) {
-		finding(f.Finding, " (was "+f.Was.String()+")")
+	for _, f := range d.Worsened {
+		finding(f.Finding, " ("+f.Moved()+")")
 	}
 	label := d.Labeler()
 	heads := map[[2]string]change.TableChange{} // the head's tables, for the breaches

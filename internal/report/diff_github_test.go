@@ -54,9 +54,11 @@ func hostileDiff() *DiffResult {
 			{Finding: rules.Finding{Rule: "scan-overhead", Severity: rules.Error, File: head.Name, Pos: schema.Pos{Line: 9, Col: 5}, Table: "fresh",
 				Message: "fresh: waived", Waiver: waiver}},
 		},
-		Unchanged: []change.FindingChange{
+		Worsened: []change.FindingChange{
 			{Finding: rules.Finding{Rule: "truncated-segments", Severity: rules.Warning, File: head.Name, Pos: schema.Pos{Line: 7, Col: 5}, Table: odd,
 				Message: "2 excess segments"}, Was: rules.Note},
+		},
+		Unchanged: []change.FindingChange{
 			{Finding: rules.Finding{Rule: "needless-partitioning", Severity: rules.Note, File: head.Name, Pos: schema.Pos{Line: 10, Col: 5}, Table: "fresh",
 				Message: "still there"}, Was: rules.Note},
 		},

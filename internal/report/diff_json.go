@@ -7,8 +7,10 @@ import (
 )
 
 // DiffJSONSchemaVersion is the version of the JSON diff's shape (schema/diff.schema.json).
-// It changes only when a field is removed or changes meaning.
-const DiffJSONSchemaVersion = 1
+// It changes only when a field is removed or changes meaning. Version 2 split the
+// findings on both sides into worsened, improved and unchanged (version 1 had them all
+// under unchanged).
+const DiffJSONSchemaVersion = 2
 
 type jsonDiff struct {
 	SchemaVersion int                `json:"schema_version"`
@@ -51,6 +53,8 @@ type jsonDiffSummary struct {
 	AddedMs       float64 `json:"added_fixed_overhead_ms"`
 	Introduced    int     `json:"introduced"`
 	Resolved      int     `json:"resolved"`
+	Worsened      int     `json:"worsened"`
+	Improved      int     `json:"improved"`
 	Unchanged     int     `json:"unchanged"`
 }
 
@@ -131,7 +135,16 @@ type jsonDelta struct {
 type jsonFindingChanges struct {
 	Introduced []jsonDiffFinding `json:"introduced"`
 	Resolved   []jsonDiffFinding `json:"resolved"`
+	Worsened   []jsonDiffFinding `json:"worsened"`
+	Improved   []jsonDiffFinding `json:"improved"`
 	Unchanged  []jsonDiffFinding `json:"unchanged"`
+}
+
+// jsonFigure is a finding's graded figure on both sides.
+type jsonFigure struct {
+	Name   string  `json:"name"`
+	Before float64 `json:"before"`
+	After  float64 `json:"after"`
 }
 
 type jsonDiffFinding struct {
@@ -147,12 +160,14 @@ type jsonDiffFinding struct {
 	Hints        []string           `json:"hints"`
 	Fingerprint  string             `json:"fingerprint"`
 	Numbers      map[string]float64 `json:"numbers"`
+	Figure       *jsonFigure        `json:"figure,omitempty"`
 }
 
 // writeDiffJSON writes the versioned machine-readable diff (schema/diff.schema.json).
 func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 	d := r.Diff
 	tables, changed := r.counts()
+	breaking := r.breaking()
 	doc := jsonDiff{
 		SchemaVersion: DiffJSONSchemaVersion,
 		Tool:          jsonTool{Name: "scangate", Version: r.Version},
@@ -166,11 +181,14 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 		},
 		Summary: jsonDiffSummary{
 			Models: len(d.Models), Tables: tables, ChangedTables: changed,
-			Introduced: len(d.Introduced), Resolved: len(d.Resolved), Unchanged: len(d.Unchanged),
+			Introduced: len(d.Introduced), Resolved: len(d.Resolved), Worsened: len(d.Worsened),
+			Improved: len(d.Improved), Unchanged: len(d.Unchanged),
 		},
 		Invalid: []jsonInvalid{}, Files: []jsonFileChange{}, Models: []jsonModelChange{},
 		Findings: jsonFindingChanges{
-			Introduced: findingsJSON(r, d.Introduced), Resolved: findingsJSON(r, d.Resolved), Unchanged: findingsJSON(r, d.Unchanged),
+			Introduced: findingsJSON(d.Introduced, breaking), Resolved: findingsJSON(d.Resolved, breaking),
+			Worsened: findingsJSON(d.Worsened, breaking), Improved: findingsJSON(d.Improved, breaking),
+			Unchanged: findingsJSON(d.Unchanged, breaking),
 		},
 	}
 	for _, b := range r.Breaches {
@@ -303,19 +321,22 @@ func wallPair(t change.TableChange) (before, after float64, ok bool) {
 	return before, after, true
 }
 
-func findingsJSON(r *DiffResult, fs []change.FindingChange) []jsonDiffFinding {
+func findingsJSON(fs []change.FindingChange, breaking map[*change.FindingChange]bool) []jsonDiffFinding {
 	out := []jsonDiffFinding{}
 	for i := range fs {
 		fc := &fs[i]
 		f := fc.Finding
 		nums, hints := numbersJSON(f), hintsJSON(f)
 		jf := jsonDiffFinding{
-			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.breaks(fc),
+			Rule: f.Rule, Severity: f.Severity.String(), Fails: breaking[fc],
 			File: f.File, Line: f.Pos.Line, Column: f.Pos.Col, Table: f.Table,
 			Message: f.Message, Hints: hints, Fingerprint: fc.Fingerprint, Numbers: nums,
 		}
 		if fc.Was != 0 {
 			jf.BaseSeverity = fc.Was.String()
+		}
+		if fc.Figure != "" {
+			jf.Figure = &jsonFigure{Name: fc.Figure, Before: round(fc.Before), After: round(fc.After)}
 		}
 		out = append(out, jf)
 	}

@@ -11,7 +11,9 @@ import (
 
 // writeDiffMarkdown writes the change for a pull-request comment: a verdict line, the gate,
 // a table of the changed tables and model totals (before → after, delta), the new
-// findings with their hints, findings that got more severe, and the resolved ones.
+// findings with their hints, the worsened ones (with their hints) and the improved
+// ones with what moved, and the resolved ones. A failed gate names only the limits
+// crossed.
 func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 	d := r.Diff
 	var b strings.Builder
@@ -40,7 +42,11 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 		b.WriteString("\n")
 	}
 	if len(r.Breaches) > 0 {
-		fmt.Fprintf(&b, "The gate failed (%s):\n\n", r.gateWords(code))
+		crossed := r.crossed()
+		for i := range crossed {
+			crossed[i] = code(crossed[i])
+		}
+		fmt.Fprintf(&b, "The gate failed (%s):\n\n", strings.Join(crossed, ", "))
 		for _, br := range r.Breaches {
 			fmt.Fprintf(&b, "- %s\n", mdEscape(br.Message))
 		}
@@ -95,7 +101,9 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 	}
 	nothing := func(change.FindingChange) string { return "" }
 	section("New findings", d.Introduced, true, nothing)
-	section("Findings that got more severe", worsened(d), true, func(f change.FindingChange) string { return ", was " + f.Was.String() })
+	moved := func(f change.FindingChange) string { return ", " + mdEscape(f.Moved()) }
+	section("Worsened findings", d.Worsened, true, moved)
+	section("Improved findings", d.Improved, false, moved)
 	section("Resolved findings", d.Resolved, false, nothing)
 	_, err := io.WriteString(w, b.String())
 	return err

@@ -177,7 +177,8 @@ func points(t change.TableChange) string {
 
 // writeDiffText writes the change for a terminal: one block per changed table with its
 // figures before, after and the delta in aligned columns, the model totals, the new,
-// worsened and resolved findings in the GNU style, the gate, the verdict and one
+// worsened, improved and resolved findings in the GNU style, the gate (the limits
+// crossed, each breach), the verdict and one
 // summary line. Every string from the input is escaped (escape.Text) and the page is
 // guarded for the CI runner that reads it (escape.Log).
 func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
@@ -257,17 +258,22 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 		}
 	}
 
-	worse := worsened(d)
 	if len(d.Introduced) > 0 {
 		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("new findings (%d):", len(d.Introduced))))
 		for _, f := range d.Introduced {
 			finding(f.Finding, "")
 		}
 	}
-	if len(worse) > 0 {
-		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("findings that got more severe (%d):", len(worse))))
-		for _, f := range worse {
-			finding(f.Finding, faint(" (was "+f.Was.String()+")"))
+	for _, sec := range []struct {
+		title string
+		list  []change.FindingChange
+	}{{"worsened findings", d.Worsened}, {"improved findings", d.Improved}} {
+		if len(sec.list) == 0 {
+			continue
+		}
+		fmt.Fprintf(&b, "\n%s\n", bold(fmt.Sprintf("%s (%d):", sec.title, len(sec.list))))
+		for _, f := range sec.list {
+			finding(f.Finding, faint(" ("+escape.Text(f.Moved())+")"))
 		}
 	}
 	if len(d.Resolved) > 0 {
@@ -279,7 +285,7 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 
 	b.WriteByte('\n')
 	if r.Failed() {
-		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), r.gateWords(func(s string) string { return s }))
+		fmt.Fprintf(&b, "%s %s\n", red("gate failed:"), strings.Join(r.crossed(), ", "))
 		for _, br := range r.Breaches {
 			fmt.Fprintf(&b, "  %s\n", escape.Text(br.Message))
 		}
@@ -317,20 +323,9 @@ func fileLines(d *change.Diff) []string {
 		case change.FileAdded:
 			out = append(out, fmt.Sprintf("file added: %s (model %s)", escape.Text(f.Head.Key), model))
 		case change.FileRemoved:
-			out = append(out, fmt.Sprintf("file removed: %s (model %s)", escape.Text(f.Base.Key), model))
+			out = append(out, fmt.Sprintf("file removed: %s (model %s)", escape.Text(f.Base.RepoPath()), model))
 		case change.FileRenamed:
-			out = append(out, fmt.Sprintf("file renamed: %s -> %s (model %s)", escape.Text(f.Base.Key), escape.Text(f.Head.Key), model))
-		}
-	}
-	return out
-}
-
-// worsened are the unchanged findings whose severity rose.
-func worsened(d *change.Diff) []change.FindingChange {
-	var out []change.FindingChange
-	for _, f := range d.Unchanged {
-		if f.Escalated() {
-			out = append(out, f)
+			out = append(out, fmt.Sprintf("file renamed: %s -> %s (model %s)", escape.Text(f.Base.RepoPath()), escape.Text(f.Head.Key), model))
 		}
 	}
 	return out

@@ -52,6 +52,10 @@ type jsonSummary struct {
 	Baselined    int `json:"baselined"`
 	// BaselineFixed counts baseline entries no finding matched; present with --baseline.
 	BaselineFixed *int `json:"baseline_fixed,omitempty"`
+	// BaselineEscalated and BaselineExpired count the findings the baseline no longer
+	// absorbs (more severe than recorded; entry expired); present with --baseline.
+	BaselineEscalated *int `json:"baseline_escalated,omitempty"`
+	BaselineExpired   *int `json:"baseline_expired,omitempty"`
 }
 
 type jsonFile struct {
@@ -154,8 +158,8 @@ func writeJSON(w io.Writer, r *Result, _ bool) error {
 		Findings: []jsonFinding{},
 	}
 	if r.Baseline != nil {
-		fixed := r.Baseline.Fixed
-		doc.Summary.BaselineFixed = &fixed
+		u := *r.Baseline
+		doc.Summary.BaselineFixed, doc.Summary.BaselineEscalated, doc.Summary.BaselineExpired = &u.Fixed, &u.Escalated, &u.Expired
 	}
 	for _, f := range r.Files {
 		jf := jsonFile{Path: f.Name, URI: f.URI, Model: f.Model, Valid: !f.Invalid, Tables: []jsonTable{}}

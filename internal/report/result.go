@@ -19,11 +19,15 @@ type Result struct {
 	byNameFiles int            // len(Files) when byName was built
 }
 
-// BaselineUse says which baseline a run was compared with and how many of its entries
-// no longer match a finding (fixed since it was written).
+// BaselineUse says which baseline a run was compared with, how many of its entries no
+// longer match a finding (fixed since it was written), how many findings it no longer
+// absorbs (escalated past their recorded severity, or their entry expired), and whether
+// the text log counts the baselined findings instead of listing them.
 type BaselineUse struct {
-	File  string
-	Fixed int
+	File               string
+	Fixed              int
+	Escalated, Expired int
+	Hide               bool // --hide-baselined
 }
 
 // File is one input and what was computed for it.

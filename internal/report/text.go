@@ -66,12 +66,20 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 		line(f, note)
 	}
 	if _, baselined := r.Accepted(); baselined > 0 {
-		fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
-		for _, f := range r.Findings {
-			if f.Baselined {
-				line(f, "")
+		if r.Baseline.Hide {
+			fmt.Fprintf(&b, "%s of %s not listed (--hide-baselined); they do not fail the run\n", plural(baselined, "baselined finding"), escape.Text(r.Baseline.File))
+		} else {
+			fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
+			for _, f := range r.Findings {
+				if f.Baselined {
+					line(f, "")
+				}
 			}
 		}
+	}
+	if u := r.Baseline; u != nil && u.Escalated+u.Expired > 0 {
+		fmt.Fprintf(&b, "%s of %s no longer absorbed: %d escalated past the severity recorded, %d of expired entries; they count again (listed above)\n",
+			plural(u.Escalated+u.Expired, "finding"), escape.Text(u.File), u.Escalated, u.Expired)
 	}
 	if r.Baseline != nil && r.Baseline.Fixed > 0 {
 		fmt.Fprintf(&b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",

@@ -2,13 +2,16 @@ package run
 
 import (
 	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 
 	"github.com/scangate/scangate/internal/report"
+	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -45,19 +48,19 @@ func TestReadRegular(t *testing.T) {
 func TestApplyBaselineErrors(t *testing.T) {
 	dir := t.TempDir()
 	r := &report.Result{}
-	if _, err := ApplyBaseline("/dev/zero", r, schema.DefaultLimits); err == nil || !strings.Contains(err.Error(), "--baseline: cannot read /dev/zero: it is a device") {
+	if _, err := ApplyBaseline("/dev/zero", r, schema.DefaultLimits, time.Time{}, false); err == nil || !strings.Contains(err.Error(), "--baseline: cannot read /dev/zero: it is a device") {
 		t.Errorf("/dev/zero: %v", err)
 	}
 	bad := filepath.Join(dir, "b.json")
 	os.WriteFile(bad, []byte("{\"schema_version\": 1,\n \"entries\": [}\n"), 0o644)
-	_, err := ApplyBaseline(bad, r, schema.DefaultLimits)
+	_, err := ApplyBaseline(bad, r, schema.DefaultLimits, time.Time{}, false)
 	var se *schema.Error
 	if !errors.As(err, &se) || len(se.Problems) != 1 || se.Problems[0].Pos != (schema.Pos{Line: 2, Col: 14}) {
 		t.Errorf("invalid baseline: %v", err)
 	}
 	lim := schema.DefaultLimits
 	lim.MaxFileBytes = 10
-	if _, err := ApplyBaseline(bad, r, lim); err == nil || !strings.Contains(err.Error(), "above the limit of 10") {
+	if _, err := ApplyBaseline(bad, r, lim, time.Time{}, false); err == nil || !strings.Contains(err.Error(), "above the limit of 10") {
 		t.Errorf("above the bound: %v", err)
 	}
 }
@@ -119,5 +122,46 @@ func TestRepositoryAboveMemo(t *testing.T) {
 		if seen[d] != root {
 			t.Errorf("seen[%s] = %q", d, seen[d])
 		}
+	}
+}
+
+// baseline write's stamp: --expires is a date not before --today, --reason not blank,
+// and findings an expiry says must count again are refused unless OverExpired.
+func TestNewBaseline(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "bl.json")
+	key := func(f string) string { return f }
+	f := rules.Finding{Rule: "scan-time", Severity: rules.Warning, File: "m.yaml", Table: "orders", Subject: "scan", Message: "m"}
+	today := time.Date(2026, 12, 2, 0, 0, 0, 0, time.UTC)
+	for _, c := range []struct {
+		stamp BaselineStamp
+		want  string
+	}{
+		{BaselineStamp{Today: today, Expires: "2026-12-01"}, "--expires 2026-12-01 is before the date written, 2026-12-02 (--today, else the current date)"},
+		{BaselineStamp{Today: today, Expires: "next year"}, `--expires "next year": write the date as YYYY-MM-DD`},
+		{BaselineStamp{Today: today, Reason: "  "}, "--reason is blank"},
+	} {
+		if _, _, err := NewBaseline(out, []rules.Finding{f}, key, c.stamp, schema.DefaultLimits, io.Discard); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%+v: %v, want %q", c.stamp, err, c.want)
+		}
+	}
+	data, n, err := NewBaseline(out, []rules.Finding{f}, key, BaselineStamp{Today: today, Expires: "2026-12-02", Reason: "why"}, schema.DefaultLimits, io.Discard)
+	if err != nil || n != 1 || !strings.Contains(string(data), `"written": "2026-12-02"`) || !strings.Contains(string(data), `"expires": "2026-12-02"`) {
+		t.Fatalf("%v, %d entries:\n%s", err, n, data)
+	}
+	if err := os.WriteFile(out, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	// The next day the entry has expired: writing over it would absorb its finding again.
+	next := BaselineStamp{Today: today.AddDate(0, 0, 1)}
+	var stderr strings.Builder
+	_, _, err = NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits, &stderr)
+	var lapsed *LapsedError
+	if !errors.As(err, &lapsed) || len(lapsed.Lines()) != 1 || lapsed.Lines()[0] != "m.yaml: warning: m [scan-time]" ||
+		!strings.Contains(err.Error(), "1 finding of an expired waiver or baseline entry would be absorbed again") || stderr.String() != "m.yaml: warning: m [scan-time]\n" {
+		t.Errorf("over an expired entry: %v", err)
+	}
+	next.OverExpired = true
+	if _, n, err := NewBaseline(out, []rules.Finding{f}, key, next, schema.DefaultLimits, io.Discard); err != nil || n != 1 {
+		t.Errorf("with OverExpired: %v, %d entries", err, n)
 	}
 }

@@ -1,7 +1,9 @@
 package run
 
 import (
+	"bytes"
 	"fmt"
+	"maps"
 	"os"
 	"path/filepath"
 	"slices"
@@ -11,6 +13,7 @@ import (
 	"go.yaml.in/yaml/v3"
 
 	"github.com/scangate/scangate/bench/gen"
+	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -123,5 +126,77 @@ func BenchmarkDecodeTables(b *testing.B) {
 	for _, n := range []int{10_000, 100_000} {
 		in := benchInputs(map[string][]byte{"tables.yaml": gen.ManyTables(n, 1)})
 		b.Run(fmt.Sprint(n), func(b *testing.B) { benchDecode(b, in) })
+	}
+}
+
+// diffPair is a monorepo of files manifests of about 40 tables and a copy of it where
+// one file in twenty has a table of one partition split into three: what a pull request
+// that touches 5% of the files looks like to diff.
+func diffPair(files int) (base, head map[string][]byte) {
+	base = gen.Monorepo(files, 40, 0.05, 1)
+	head = make(map[string][]byte, len(base))
+	i := 0
+	for _, name := range slices.Sorted(maps.Keys(base)) {
+		head[name] = base[name]
+		if i%20 == 0 {
+			head[name] = bytes.Replace(base[name], []byte("{scheme: none}"), []byte("{scheme: even, count: 3}"), 1)
+		}
+		i++
+	}
+	return base, head
+}
+
+// diffSides keys the pair as PathSides keys two directories.
+func diffSides(base, head map[string][]byte) [2]Side {
+	var s [2]Side
+	for i, files := range []map[string][]byte{base, head} {
+		s[i].label = fmt.Sprint(i)
+		for _, in := range benchInputs(files) {
+			s[i].add(in, in.name, "")
+		}
+	}
+	return s
+}
+
+// Cost of a whole diff (both sides checked, byte-identical files once, tables and
+// findings matched, the gate) against tables: about 1,000 and 10,000 tables with 5% of
+// the files changed, each beside one check of the head side (head-check). Linear growth
+// means ns/table stays put from one size to the next; compare in one run.
+func BenchmarkDiff(b *testing.B) {
+	cfg, _ := PlainConfig("2026-01-01")
+	for _, files := range []int{25, 250} {
+		base, head := diffPair(files)
+		b.Run(fmt.Sprintf("tables=%d/head-check", files*40), func(b *testing.B) { benchCheck(b, benchInputs(head)) })
+		b.Run(fmt.Sprintf("tables=%d/diff", files*40), func(b *testing.B) {
+			b.ReportAllocs()
+			tables := 0
+			for b.Loop() {
+				sides := CheckSides(diffSides(base, head), cfg, Project{}, schema.DefaultLimits)
+				d := change.Compare(sides[0], sides[1])
+				change.Gate{FailOnNew: rules.Warning}.Check(d)
+				tables = len(d.Tables())
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(tables), "ns/table")
+		})
+	}
+}
+
+// The comparison alone (matching tables by model and name, findings by fingerprint,
+// the gate) on sides checked beforehand: 1,000, 10,000 and 100,000 tables of one model,
+// every table changed. ns/table must stay put: no step walks every table per table.
+func BenchmarkCompare(b *testing.B) {
+	cfg, _ := PlainConfig("2026-01-01")
+	for _, n := range []int{1_000, 10_000, 100_000} {
+		base := map[string][]byte{"m.yaml": gen.ManyTables(n, 1)}
+		head := map[string][]byte{"m.yaml": gen.ManyTables(n, 2)}
+		sides := CheckSides(diffSides(base, head), cfg, Project{}, schema.DefaultLimits)
+		b.Run(fmt.Sprintf("tables=%d", n), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				d := change.Compare(sides[0], sides[1])
+				change.Gate{FailOnNew: rules.Warning}.Check(d)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(n), "ns/table")
+		})
 	}
 }

@@ -33,32 +33,15 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 	// hold their bytes and parse trees. A run of thousands of files keeps no more than
 	// their findings, and their tables when a report prints them.
 	parallel(len(inputs), func(i int) {
-		f, m, fs := loadInput(inputs[i], root, keys[i], proj, limits)
+		files[i], found[i] = checkInput(inputs[i], root, keys[i], cfg, proj, limits, keepTables, func(n int64) bool { return budget.spend(i, n) })
 		inputs[i].data = nil
-		var n int64
-		if m != nil {
-			n = m.Partitions()
-		}
-		if !budget.spend(i, n) {
-			f.Invalid, m = true, nil
-			fs = []rules.Finding{{
-				Rule: rules.Schema.ID, Severity: rules.Error, File: f.Name, Subject: "run budget",
-				Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
-					units.Num(n), units.Num(limits.MaxRunPartitions)),
-			}}
-		}
-		if m != nil {
-			cfg := cfg
-			cfg.Advise = keepTables // the reports that print tables print their recommendations
-			md, own := rules.Check(m, cfg)
-			fs = own
-			f.Analysed = len(md.Tables)
-			if keepTables {
-				f.Tables = md.Tables
-			}
-		}
-		files[i], found[i] = f, fs
 	})
+	return sortChecked(files, found)
+}
+
+// sortChecked sorts the files by name and flattens and sorts their findings, as every
+// report lists them.
+func sortChecked(files []report.File, found [][]rules.Finding) ([]report.File, []rules.Finding) {
 	sort.SliceStable(files, func(i, j int) bool { return files[i].Name < files[j].Name })
 	var findings []rules.Finding
 	for _, fs := range found {
@@ -66,6 +49,40 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 	}
 	sort.SliceStable(findings, func(i, j int) bool { return rules.Less(findings[i], findings[j]) })
 	return files, findings
+}
+
+// checkInput loads and checks one input. spend is called exactly once, with the
+// partitions the manifest expands to (0 when it did not load), and says whether they
+// fit the run's budget; a manifest that does not fit is refused with a schema finding.
+func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.ProjectConfig, limits schema.Limits, keepTables bool, spend func(int64) bool) (report.File, []rules.Finding) {
+	f, m, fs := loadInput(in, root, key, proj, limits)
+	var n int64
+	if m != nil {
+		n = m.Partitions()
+	}
+	if !spend(n) {
+		f.Invalid = true
+		return f, []rules.Finding{refusal(f.Name, n, limits)}
+	}
+	if m != nil {
+		cfg.Advise = keepTables // the reports that print tables print their recommendations
+		md, own := rules.Check(m, cfg)
+		fs = own
+		f.Analysed = len(md.Tables)
+		if keepTables {
+			f.Tables = md.Tables
+		}
+	}
+	return f, fs
+}
+
+// refusal is the finding that says why a file was not checked.
+func refusal(file string, n int64, limits schema.Limits) rules.Finding {
+	return rules.Finding{
+		Rule: rules.Schema.ID, Severity: rules.Error, File: file, Subject: "run budget",
+		Message: fmt.Sprintf("not checked: its %s partitions would take the run past %s partitions; check fewer files at once or raise --max-run-partitions",
+			units.Num(n), units.Num(limits.MaxRunPartitions)),
+	}
 }
 
 // runBudget is the run's partition budget, spent in input order whatever order the

@@ -13,10 +13,6 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
-
-	"github.com/scangate/scangate/internal/change"
-	"github.com/scangate/scangate/rules"
-	"github.com/scangate/scangate/schema"
 )
 
 // gitTimeout bounds every git command diff runs; reading a tree or a blob is quick, so
@@ -27,7 +23,8 @@ const gitTimeout = 60 * time.Second
 // identifies it on both sides.
 type keyedInput struct {
 	Input
-	key string
+	key      string
+	repoPath string // its own repository path, when that is not key (a base file of two directories)
 }
 
 // Side is the manifests of one side of a diff, each keyed by its repository path.
@@ -38,34 +35,15 @@ type Side struct {
 }
 
 // add appends in unless a file with its key is already there (overlapping PATHs).
-func (s *Side) add(in Input, key string) {
+// path is the file's own repository path when it differs from key, else "".
+func (s *Side) add(in Input, key, path string) {
 	if s.seen == nil {
 		s.seen = map[string]bool{}
 	}
 	if !s.seen[key] {
 		s.seen[key] = true
-		s.inputs = append(s.inputs, keyedInput{in, key})
+		s.inputs = append(s.inputs, keyedInput{in, key, path})
 	}
-}
-
-// CheckSide loads and checks one side as check does and keys its files.
-func CheckSide(s Side, cfg rules.Config, proj Project, limits schema.Limits) change.Side {
-	inputs := make([]Input, len(s.inputs))
-	for i, in := range s.inputs {
-		inputs[i] = in.Input
-	}
-	keys := make(map[string]string, len(s.inputs)) // file name -> key; names are unique on a side
-	for _, in := range s.inputs {
-		keys[in.name] = in.key
-	}
-	files, findings := Check(inputs, cfg, proj.Config, limits, true)
-	side := change.Side{Label: s.label, Findings: findings}
-	for _, f := range files {
-		side.Files = append(side.Files, change.File{
-			Name: f.Name, Key: keys[f.Name], Model: f.Model, Invalid: f.Invalid, Tables: f.Tables,
-		})
-	}
-	return side
 }
 
 // PathSides reads two files, or the manifests of two directories, for a diff without
@@ -110,7 +88,7 @@ func PathSides(oldPath, newPath string, stdin io.Reader, maxBytes int, keep func
 			} else {
 				in = readFile(p, maxBytes)
 			}
-			sides[i].add(in, key)
+			sides[i].add(in, key, "")
 		}
 		return sides, nil
 	}
@@ -124,7 +102,11 @@ func PathSides(oldPath, newPath string, stdin io.Reader, maxBytes int, keep func
 			if err != nil {
 				return sides, err
 			}
-			sides[i].add(in, RepositoryPath(root, filepath.Join(newPath, rel)))
+			key, own := RepositoryPath(root, filepath.Join(newPath, rel)), RepositoryPath(root, in.name)
+			if own == key {
+				own = ""
+			}
+			sides[i].add(in, key, own)
 		}
 	}
 	if len(sides[0].inputs) == 0 && len(sides[1].inputs) == 0 {
@@ -187,10 +169,10 @@ func RevisionSides(ctx context.Context, rev string, paths []string, maxBytes int
 			return sides, fmt.Errorf("no manifest found under %s in the working tree or in %s (looked for *.yaml, *.yml and *.json files that hold \"format:\")", p, rev)
 		}
 		for _, in := range baseFound {
-			sides[0].add(in.Input, in.key)
+			sides[0].add(in.Input, in.key, "")
 		}
 		for _, in := range headFound {
-			sides[1].add(in, RepositoryPath(root, in.name))
+			sides[1].add(in, RepositoryPath(root, in.name), "")
 		}
 	}
 	return sides, nil
@@ -319,7 +301,7 @@ func (g gitRunner) manifests(rev, rel string, maxBytes int, keep func(string) bo
 		if err == nil && !named && !manifestMarker.Match(data) {
 			continue
 		}
-		found = append(found, keyedInput{in, p})
+		found = append(found, keyedInput{in, p, ""})
 	}
 	return found, nil
 }
