@@ -24,7 +24,7 @@ var embedded = []struct {
 	get  func() []byte
 }{
 	{"manifest", ManifestSchema}, {"config", ConfigSchema}, {"output", OutputSchema},
-	{"diff", DiffSchema}, {"baseline", BaselineSchema},
+	{"diff", DiffSchema}, {"baseline", BaselineSchema}, {"survey", SurveySchema},
 }
 
 // Names lists the embedded schemas, manifest first.

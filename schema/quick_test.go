@@ -15,7 +15,7 @@ import (
 // is always allowed; it only costs time.
 
 func TestQuickCompilesEmbeddedSchemas(t *testing.T) {
-	for _, d := range []*document{manifestDoc, configDoc, baselineDoc} {
+	for _, d := range []*document{manifestDoc, configDoc, baselineDoc, surveyDoc} {
 		if _, err := d.quick(); err != nil {
 			t.Errorf("%s: %v", d.url, err)
 		}
