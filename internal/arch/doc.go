@@ -11,13 +11,13 @@ const Module = "github.com/scangate/scangate"
 // must be placed here before the architecture test passes.
 var Layers = [][]string{
 	{"schema", "internal/units", "internal/escape", "internal/calibrate", "internal/arch", "bench/gen"}, // the contract and leaves
-	{"internal/layout"},                      // the arithmetic
-	{"internal/advisor"},                     // candidate layouts, sweeps, forecasts
-	{"internal/analysis"},                    // one analysis per model
-	{"rules"},                                // the rule engine and one file per rule
-	{"internal/baseline", "internal/change"}, // accepted debt; diff's comparison
-	{"internal/report"},                      // the format registry and every format
-	{"internal/run"},                         // the driver
+	{"internal/layout", "internal/survey"},    // the arithmetic; measuring a table from its values
+	{"internal/advisor", "internal/datafile"}, // candidate layouts, sweeps, forecasts; reading data files
+	{"internal/analysis"},                     // one analysis per model
+	{"rules"},                                 // the rule engine and one file per rule
+	{"internal/baseline", "internal/change"},  // accepted debt; diff's comparison
+	{"internal/report"},                       // the format registry and every format
+	{"internal/run"},                          // the driver
 	{"cmd/scangate", "bench/cmd/decodeonly", "bench/cmd/gen", "bench/cmd/measure"}, // commands and tools
 }
 
