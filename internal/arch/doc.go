@@ -10,7 +10,7 @@ const Module = "github.com/scangate/scangate"
 // Layers are scangate's packages from the bottom up, relative to Module. A new package
 // must be placed here before the architecture test passes.
 var Layers = [][]string{
-	{"schema", "internal/units", "internal/escape", "internal/calibrate", "internal/arch", "bench/gen"}, // the contract and leaves
+	{"schema", "internal/units", "internal/escape", "internal/calibrate", "internal/arch", "internal/yamledit", "bench/gen"}, // the contract and leaves
 	{"internal/layout", "internal/survey"},    // the arithmetic; measuring a table from its values
 	{"internal/advisor", "internal/datafile"}, // candidate layouts, sweeps, forecasts; reading data files
 	{"internal/analysis"},                     // one analysis per model
