@@ -21,6 +21,11 @@ type Table struct {
 	limit int
 	// ExactLimit overrides the package's ExactLimit (tests).
 	ExactLimit int
+	// Grain, when set, folds each key into its period as it is counted, so a timestamp
+	// key holds one entry per period rather than one per instant.
+	Grain string
+
+	lastRaw, lastFolded string // the last key folded: rows come in runs of one key
 }
 
 // NewTable starts an empty table.
@@ -69,6 +74,14 @@ func (t *Table) add(name string, c column) {
 
 // Count adds n rows to the partition key (any string; "" when unpartitioned).
 func (t *Table) Count(key string, n int64) error {
+	if t.Grain != "" {
+		if key == t.lastRaw && t.lastFolded != "" {
+			key = t.lastFolded
+		} else if at, prec, ok := parseKey(key); ok && foldable(prec, t.Grain) {
+			t.lastRaw, t.lastFolded = key, periodOf(at, t.Grain).label(t.Grain)
+			key = t.lastFolded
+		}
+	}
 	if _, ok := t.parts[key]; !ok && len(t.parts) >= PartitionLimit {
 		return fmt.Errorf("more than %d partition keys; that column is not a partition key, or give a coarser --grain", PartitionLimit)
 	}
