@@ -45,7 +45,8 @@ var DefaultLimits = Limits{MaxFileBytes: 1 << 40, MaxFooterBytes: 64 << 20, MaxR
 
 // Find lists the data files named by args: files as given, folders walked for *.parquet
 // and *.csv (names starting with . or _ are skipped, as writers leave markers so),
-// sorted by path within each argument. Every file must be of one format, and every
+// sorted by path within each argument. Folders named key=value anywhere in a file's path
+// are its partition keys. Every file must be of one format, and every
 // file's folder keys must be the same keys in the same order.
 func Find(args []string, lim Limits) ([]File, error) {
 	var out []File
@@ -55,7 +56,7 @@ func Find(args []string, lim Limits) ([]File, error) {
 			return nil, fmt.Errorf("cannot read %s: %v", filepath.ToSlash(arg), unwrap(err))
 		}
 		if !info.IsDir() {
-			f, err := fileAt(arg, arg, info)
+			f, err := fileAt(arg, info)
 			if err != nil {
 				return nil, err
 			}
@@ -81,7 +82,7 @@ func Find(args []string, lim Limits) ([]File, error) {
 			if err != nil {
 				return fmt.Errorf("cannot read %s: %v", filepath.ToSlash(p), unwrap(err))
 			}
-			f, err := fileAt(arg, p, info)
+			f, err := fileAt(p, info)
 			if err != nil {
 				return err
 			}
@@ -120,7 +121,7 @@ func Find(args []string, lim Limits) ([]File, error) {
 	return out, nil
 }
 
-func fileAt(root, p string, info os.FileInfo) (File, error) {
+func fileAt(p string, info os.FileInfo) (File, error) {
 	name := filepath.ToSlash(p)
 	if !info.Mode().IsRegular() {
 		return File{}, fmt.Errorf("cannot read %s: not a regular file", name)
@@ -129,13 +130,12 @@ func fileAt(root, p string, info os.FileInfo) (File, error) {
 	if f.Format == "" {
 		return File{}, fmt.Errorf("%s: survey reads *.parquet and *.csv files; rename it or name its folder", name)
 	}
-	rel, err := filepath.Rel(root, filepath.Dir(p))
-	if err == nil && rel != "." {
-		for _, part := range strings.Split(filepath.ToSlash(rel), "/") {
-			if k, v, ok := strings.Cut(part, "="); ok && k != "" {
-				f.Keys = append(f.Keys, k)
-				f.Values = append(f.Values, unescapeFolder(v))
-			}
+	// Every key=value folder of the path counts, so files named one by one keep the keys
+	// of the folders they lie in.
+	for _, part := range strings.Split(filepath.ToSlash(filepath.Dir(p)), "/") {
+		if k, v, ok := strings.Cut(part, "="); ok && k != "" {
+			f.Keys = append(f.Keys, k)
+			f.Values = append(f.Values, unescapeFolder(v))
 		}
 	}
 	return f, nil

@@ -125,7 +125,7 @@ func surveyData(o SurveyOptions) (schema.SurveyTable, error) {
 	}
 	name := o.Name
 	if name == "" {
-		name = strings.TrimSuffix(filepath.Base(filepath.Clean(o.Data[0])), filepath.Ext(o.Data[0]))
+		name = defaultName(o.Data[0])
 	}
 	p := newProgress(o, files)
 	tb := survey.NewTable()
@@ -136,6 +136,21 @@ func surveyData(o SurveyOptions) (schema.SurveyTable, error) {
 		return schema.SurveyTable{}, err
 	}
 	return tb.Result(name, key, o.Grain)
+}
+
+// defaultName is the table's name from its first data argument: the file or folder's
+// name without extension, skipping key=value partition folders (data/meter_reads/month=1
+// is meter_reads).
+func defaultName(arg string) string {
+	p := filepath.Clean(arg)
+	for strings.Contains(filepath.Base(p), "=") && filepath.Dir(p) != p {
+		p = filepath.Dir(p)
+	}
+	base := filepath.Base(p)
+	if n := strings.TrimSuffix(base, filepath.Ext(base)); n != "" && n != "." && n != string(filepath.Separator) {
+		return n
+	}
+	return "table"
 }
 
 // writeInto adds the table to the manifest, or replaces the table of the same name,

@@ -19,7 +19,10 @@ const MinGrowthPeriods = 6
 // consecutive (one tier of that grain keeping them all) or listed periods when some are
 // missing. A single key without a grain is no partitioning at all.
 func Partition(rows map[string]int64, key, grain string) (schema.SurveyPartitions, *float64, error) {
-	if len(rows) == 0 || (grain == "" && key == "") {
+	if grain != "" && key == "" {
+		return schema.SurveyPartitions{}, nil, fmt.Errorf("--grain %s needs a partition key: --partition-by COLUMN, or data in key=value folders", grain)
+	}
+	if len(rows) == 0 || key == "" {
 		return schema.SurveyPartitions{Scheme: "none"}, nil, nil
 	}
 	if grain == "" {
