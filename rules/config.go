@@ -14,11 +14,13 @@ import (
 )
 
 // Config is what a run knows beyond the manifest: the date waivers and forecasts are
-// judged on and the rule settings of the project. The zero value is the documented
+// judged on, the rule settings of the project and the tables as surveyed. The zero value is the documented
 // default.
 type Config struct {
 	Today time.Time // zero means the current date (UTC)
 	Rules map[string]RuleConfig
+	// Observed is what `scangate survey` measured (check --observed); nil without it.
+	Observed *schema.Survey
 }
 
 // RuleConfig is a project's setting for one rule.

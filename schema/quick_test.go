@@ -77,6 +77,7 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 		n[agree(t, path, manifestDoc, tr.root)]++
 		agree(t, path+" (as a config)", configDoc, tr.root)
 		agree(t, path+" (as a baseline)", baselineDoc, tr.root)
+		agree(t, path+" (as a survey)", surveyDoc, tr.root)
 		// Every manifest meant to be valid must take the quick path, or the quick check
 		// has quietly stopped saving time.
 		if strings.Contains(path, filepath.Join("testdata", "baselines", "good-")) {

@@ -1,19 +1,14 @@
 package main
 
 import (
-	"fmt"
-
 	"github.com/spf13/cobra"
 
-	"github.com/scangate/scangate/internal/datafile"
 	"github.com/scangate/scangate/internal/run"
 	"github.com/scangate/scangate/internal/survey"
-	"github.com/scangate/scangate/schema"
 )
 
 func newSurvey() *cobra.Command {
-	o := run.SurveyOptions{Format: "yaml", Dialect: "ansi"}
-	maxData := "1TiB"
+	o := run.SurveyOptions{Format: "yaml", Dialect: "ansi", MaxDataSize: "1TiB"}
 	cmd := &cobra.Command{
 		Use:   "survey DATA... | --sql TABLE | --from-result FILE.csv",
 		Short: "Measure a table from its data and print its manifest entry",
@@ -33,15 +28,7 @@ func newSurvey() *cobra.Command {
 			"  scangate survey --sql sales.orders --columns id:int64,site:string --partition-by day --grain month\n" +
 			"  scangate survey --from-result orders.csv",
 		RunE: func(cmd *cobra.Command, args []string) error {
-			n, err := schema.ParseBytes(maxData)
-			if err != nil || n < 1 {
-				return usageError(fmt.Errorf("--max-data-size %q: give a size such as 100GiB", maxData))
-			}
-			if o.Format != "yaml" && o.Format != "json" {
-				return usageError(fmt.Errorf("--format %q: use yaml (the manifest fragment) or json (for check --observed)", o.Format))
-			}
-			o.Data, o.DataLimits, o.Manifest = args, datafile.DefaultLimits, limits
-			o.DataLimits.MaxFileBytes = n
+			o.Data, o.Manifest = args, limits
 			o.Stdin, o.Stdout, o.Stderr = cmd.InOrStdin(), cmd.OutOrStdout(), cmd.ErrOrStderr()
 			o.Progress, o.Lines = run.SurveyProgress(o.Stderr)
 			if err := run.Survey(o); err != nil {
@@ -60,6 +47,6 @@ func newSurvey() *cobra.Command {
 	f.StringVar(&o.Dialect, "dialect", o.Dialect, "the query's dialect: "+survey.DialectNames())
 	f.StringVar(&o.Columns, "columns", "", "with --sql: the columns to measure, NAME:TYPE,... (manifest types)")
 	f.StringVar(&o.FromResult, "from-result", "", "read the survey query's result (CSV with its header row) instead of data")
-	f.StringVar(&maxData, "max-data-size", maxData, "refuse data files larger than this")
+	f.StringVar(&o.MaxDataSize, "max-data-size", o.MaxDataSize, "refuse data files larger than this")
 	return cmd
 }

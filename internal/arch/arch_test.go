@@ -144,7 +144,7 @@ func TestViolationsCatchPlantedImports(t *testing.T) {
 // The command layer parses flags and wires packages: it stays small, and logic that
 // grows there belongs in the driver or below.
 func TestCommandStaysThin(t *testing.T) {
-	const most = 700
+	const most = 760 // 700, plus survey: a command of its own whose help and flags are all it holds
 	paths, _ := filepath.Glob(filepath.Join("..", "..", "cmd", "scangate", "*.go"))
 	lines := 0
 	for _, p := range paths {

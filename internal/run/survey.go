@@ -28,10 +28,11 @@ type SurveyOptions struct {
 	Into        string // a manifest to add the table to or replace it in
 	SQL         string // print the survey query of this table instead of reading data
 	Dialect     string
-	Columns     string // NAME:TYPE,... for --sql
-	FromResult  string // the query's result as CSV
-	DataLimits  datafile.Limits
-	Manifest    schema.Limits // bounds the manifest (--into) and the result file
+	Columns     string          // NAME:TYPE,... for --sql
+	FromResult  string          // the query's result as CSV
+	MaxDataSize string          // --max-data-size, a byte size
+	DataLimits  datafile.Limits // MaxDataSize sets MaxFileBytes
+	Manifest    schema.Limits   // bounds the manifest (--into) and the result file
 	Stdin       io.Reader
 	Stdout      io.Writer
 	Stderr      io.Writer
@@ -43,6 +44,17 @@ type SurveyOptions struct {
 // Survey runs `scangate survey`: it prints the SQL query, or measures the data (or the
 // query's result) and prints the fragment, or with Into writes it into the manifest.
 func Survey(o SurveyOptions) error {
+	if o.MaxDataSize != "" {
+		n, err := schema.ParseBytes(o.MaxDataSize)
+		if err != nil || n < 1 {
+			return fmt.Errorf("--max-data-size %q: give a size such as 100GiB", o.MaxDataSize)
+		}
+		o.DataLimits = datafile.DefaultLimits
+		o.DataLimits.MaxFileBytes = n
+	}
+	if o.Format != "yaml" && o.Format != "json" {
+		return fmt.Errorf("--format %q: use yaml (the manifest fragment) or json (for check --observed)", o.Format)
+	}
 	if o.Grain != "" && !validGrain(o.Grain) {
 		return fmt.Errorf("--grain %q: use one of %s", o.Grain, strings.Join(survey.Grains, ", "))
 	}
@@ -136,6 +148,15 @@ func surveyData(o SurveyOptions) (schema.SurveyTable, error) {
 		return schema.SurveyTable{}, err
 	}
 	return tb.Result(name, key, o.Grain)
+}
+
+// LoadObserved reads check --observed: survey's JSON output, bounded like a manifest.
+func LoadObserved(path string, stdin io.Reader, lim schema.Limits) (*schema.Survey, error) {
+	name, data, err := ReadInput(path, stdin, lim.MaxFileBytes)
+	if err != nil {
+		return nil, err
+	}
+	return schema.LoadSurvey(name, data, lim)
 }
 
 // defaultName is the table's name from its first data argument: the file or folder's
