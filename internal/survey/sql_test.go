@@ -19,8 +19,8 @@ import (
 	"github.com/scangate/scangate/schema"
 )
 
-// The SQL path is tested end to end on an embedded SQL engine (modernc.org/sqlite, a
-// pure-Go build of an open-source engine; test-only): seeded rows go into a table, the
+// The SQL path is tested end to end on the embedded pure-Go SQL engine imported above
+// (a test-only dependency, never linked into the binary): seeded rows go into a table, the
 // generated query runs on it, its result is written as CSV the way an engine's export
 // would, and --from-result's reading of it must match what the generator knows.
 
