@@ -15,8 +15,9 @@ func newSurvey() *cobra.Command {
 		Long: "survey reads a table's Parquet or CSV files (folders are walked; key=value folders\n" +
 			"name partitions) and prints a manifest fragment: exact rows, the partitions with their\n" +
 			"rows (or time tiers when --grain periods are consecutive, with growth_per_year fitted\n" +
-			"from six or more), and per column its type, distinct values (exact up to 65,536, then a\n" +
-			"HyperLogLog estimate within about 2.4%), average string length and row order.\n" +
+			"from six or more spanning a year), and per column its type, distinct values (exact\n" +
+			"up to 65,536, then a HyperLogLog estimate within about 2.4%), average string length\n" +
+			"and row order.\n" +
 			"--into MANIFEST adds the table to the manifest or replaces it there, keeping every\n" +
 			"other byte; nothing is written without it. --format json prints the measurements\n" +
 			"for check --observed (schema: scangate schema survey).\n\n" +

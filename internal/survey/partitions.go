@@ -10,8 +10,13 @@ import (
 
 // MinGrowthPeriods is the fewest consecutive periods growth_per_year is fitted from. The
 // newest period may still be filling and the oldest may start part-way, so both are
-// left out of the fit; the four or more between them give a slope with a residual.
-const MinGrowthPeriods = 6
+// left out of the fit; the four or more between them give a slope with a residual. They
+// must also span MinGrowthDays: a yearly rate read off a few weeks would mostly be noise
+// (months of 28 to 31 days alone move rows per day by 10%).
+const (
+	MinGrowthPeriods = 6
+	MinGrowthDays    = 365
+)
 
 // Partition turns rows per partition key into the table's partitions. Without a grain the
 // keys are listed by name; with one each key is read as a time (see parseKey), folded
@@ -74,7 +79,7 @@ func Partition(rows map[string]int64, key, grain string) (schema.SurveyPartition
 		return out, nil, nil // periods are missing: a list of periods
 	}
 	out.Scheme = "time"
-	if len(ps) < MinGrowthPeriods {
+	if len(ps) < MinGrowthPeriods || ps[len(ps)-1].p.start.Sub(ps[1].p.start).Hours()/24 < MinGrowthDays {
 		return out, nil, nil
 	}
 	xs := make([]float64, 0, len(ps)-2)
