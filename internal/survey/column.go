@@ -41,6 +41,15 @@ func (c *counts) hash(h uint64) {
 
 func (c *counts) base(typ string, sorted bool) schema.SurveyColumn {
 	d, exact := c.distinct.count()
+	switch {
+	case sorted:
+		// In sorted order equal values are neighbours: the runs are the distinct values,
+		// counted exactly however many there are.
+		d, exact = c.runs.n, true
+	case !exact:
+		// The sketch took over past the limit and can never see more values than rows.
+		d = min(max(d, int64(c.distinct.limit)+1), c.nonNull)
+	}
 	out := schema.SurveyColumn{Name: c.name, Type: typ, Distinct: d, DistinctExact: exact, Nulls: c.nulls}
 	if !exact {
 		out.DistinctError = roundTo(SketchError, 4)
