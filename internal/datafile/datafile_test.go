@@ -103,7 +103,8 @@ func generate(seed uint64, months, firstMonthRows int, write func(month string, 
 	return tr
 }
 
-func writeParquet(t *testing.T, path string, rows []reading) {
+// create makes path and its folders.
+func create(t *testing.T, path string) *os.File {
 	t.Helper()
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		t.Fatal(err)
@@ -112,6 +113,12 @@ func writeParquet(t *testing.T, path string, rows []reading) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return f
+}
+
+func writeParquet(t *testing.T, path string, rows []reading) {
+	t.Helper()
+	f := create(t, path)
 	w := parquet.NewGenericWriter[reading](f, parquet.MaxRowsPerRowGroup(3000))
 	if _, err := w.Write(rows); err != nil {
 		t.Fatal(err)
@@ -126,13 +133,7 @@ func writeParquet(t *testing.T, path string, rows []reading) {
 
 func writeCSV(t *testing.T, path string, rows []reading) {
 	t.Helper()
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		t.Fatal(err)
-	}
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	f := create(t, path)
 	w := csv.NewWriter(f)
 	_ = w.Write([]string{"id", "site", "code", "litres", "flag", "read_on", "read_at", "comment"})
 	for _, r := range rows {

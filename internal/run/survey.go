@@ -177,12 +177,12 @@ func defaultName(arg string) string {
 // writeInto adds the table to the manifest, or replaces the table of the same name,
 // keeping every other byte, and writes it atomically once it loads as a manifest.
 func writeInto(o SurveyOptions, t schema.SurveyTable) error {
+	if o.Into == "-" {
+		return errors.New("--into names a manifest file to write; it cannot be standard input")
+	}
 	name, data, err := ReadInput(o.Into, nil, o.Manifest.MaxFileBytes)
 	if err != nil {
 		return err
-	}
-	if o.Into == "-" {
-		return errors.New("--into names a manifest file to write; it cannot be standard input")
 	}
 	if err := GuardTargets([]string{o.Into}, []string{"--into"}, append(append([]string{}, o.Data...), o.FromResult)); err != nil {
 		return err
@@ -217,12 +217,16 @@ type progress struct {
 	total int64
 	base  int64 // bytes of the files before the current one
 	cur   int
+	start time.Time
 	last  time.Time
 	drawn bool
 }
 
+// barAfter is how long a survey runs before its bar appears: a short one draws nothing.
+const barAfter = 500 * time.Millisecond
+
 func newProgress(o SurveyOptions, files []datafile.File) *progress {
-	p := &progress{o: o, files: files, cur: -1}
+	p := &progress{o: o, files: files, cur: -1, start: time.Now()}
 	for _, f := range files {
 		p.total += f.Size
 	}
@@ -239,7 +243,7 @@ func (p *progress) advance(file int, done int64) {
 		}
 		p.cur = file
 	}
-	if !p.o.Progress || time.Since(p.last) < 100*time.Millisecond {
+	if !p.o.Progress || time.Since(p.start) < barAfter || time.Since(p.last) < 100*time.Millisecond {
 		return
 	}
 	p.last = time.Now()

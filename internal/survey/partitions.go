@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"time"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -49,12 +50,9 @@ func Partition(rows map[string]int64, key, grain string) (schema.SurveyPartition
 	}
 	byIndex := map[int64]*acc{}
 	for _, k := range sortedKeys(rows) {
-		t, prec, ok := parseKey(k)
-		if !ok {
-			return schema.SurveyPartitions{}, nil, fmt.Errorf("partition key %s=%q is not a date or period (YYYY-MM-DD, YYYY-Www, YYYY-MM, YYYY-Qn, YYYY); drop --grain to list the partitions by name", key, k)
-		}
-		if !foldable(prec, grain) {
-			return schema.SurveyPartitions{}, nil, fmt.Errorf("partition key %s=%q does not fold into %s periods; give --grain %s or coarser", key, k, grain, Grains[prec])
+		t, err := keyTime(k, grain)
+		if err != nil {
+			return schema.SurveyPartitions{}, nil, fmt.Errorf("%s: %v", key, err)
 		}
 		p := periodOf(t, grain)
 		a := byIndex[p.index]
@@ -92,6 +90,27 @@ func Partition(rows map[string]int64, key, grain string) (schema.SurveyPartition
 	}
 	g := GrowthFit(xs, ys)
 	return out, &g, nil
+}
+
+// keyTime reads a partition key as a time that folds into periods of grain.
+func keyTime(k, grain string) (time.Time, error) {
+	t, prec, ok := parseKey(k)
+	if !ok {
+		return t, fmt.Errorf("partition key %q is not a date or period (YYYY-MM-DD, YYYY-Www, YYYY-MM, YYYY-Qn, YYYY); drop --grain to list the partitions by name", k)
+	}
+	if !foldable(prec, grain) {
+		return t, fmt.Errorf("partition key %q does not fold into %s periods; give --grain %s or coarser", k, grain, Grains[prec])
+	}
+	return t, nil
+}
+
+// foldKey is the label of the period of grain that key falls in.
+func foldKey(k, grain string) (string, error) {
+	t, err := keyTime(k, grain)
+	if err != nil {
+		return "", err
+	}
+	return periodOf(t, grain).label(grain), nil
 }
 
 // GrowthFit is the growth per year whose logarithm is the least-squares slope of ys

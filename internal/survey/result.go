@@ -124,6 +124,11 @@ func FromResult(file string, data []byte) (schema.SurveyTable, error) {
 			if _, dup := parts[p]; dup && grain == "" {
 				return out, fmt.Errorf("%s: partition %q appears twice", pos("partition"), p)
 			}
+			if grain != "" && grainIndex(grain) >= 0 {
+				if p, err = foldKey(p, grain); err != nil {
+					return out, fmt.Errorf("%s: %v", pos("partition"), err)
+				}
+			}
 			parts[p] += rows
 			if len(parts) > PartitionLimit {
 				return out, fmt.Errorf("%s: more than %d partitions; that column is not a partition key, or give a coarser --grain", pos("partition"), PartitionLimit)

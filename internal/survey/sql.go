@@ -9,7 +9,6 @@ import (
 // values with or the one it reads a date with.
 type Dialect struct {
 	Name     string
-	Doc      string
 	distinct string // the distinct count of %s
 	day      string // the date of %s, written YYYY-MM-DD
 	Exact    bool   // the distinct count is exact
@@ -17,10 +16,10 @@ type Dialect struct {
 
 // Dialects are the query flavours survey writes.
 var Dialects = []Dialect{
-	{Name: "ansi", Doc: "standard SQL: exact COUNT(DISTINCT c), CAST(c AS DATE)", distinct: "COUNT(DISTINCT %s)", day: "CAST(%s AS DATE)", Exact: true},
-	{Name: "approx_count_distinct", Doc: "APPROX_COUNT_DISTINCT(c), an engine's sketch; CAST(c AS DATE)", distinct: "APPROX_COUNT_DISTINCT(%s)", day: "CAST(%s AS DATE)"},
-	{Name: "approx_distinct", Doc: "APPROX_DISTINCT(c), an engine's sketch; CAST(c AS DATE)", distinct: "APPROX_DISTINCT(%s)", day: "CAST(%s AS DATE)"},
-	{Name: "strftime", Doc: "exact COUNT(DISTINCT c), strftime('%Y-%m-%d', c) for engines that read dates that way", distinct: "COUNT(DISTINCT %s)", day: "strftime('%%Y-%%m-%%d', %s)", Exact: true},
+	{Name: "ansi", distinct: "COUNT(DISTINCT %s)", day: "CAST(%s AS DATE)", Exact: true},
+	{Name: "approx_count_distinct", distinct: "APPROX_COUNT_DISTINCT(%s)", day: "CAST(%s AS DATE)"},
+	{Name: "approx_distinct", distinct: "APPROX_DISTINCT(%s)", day: "CAST(%s AS DATE)"},
+	{Name: "strftime", distinct: "COUNT(DISTINCT %s)", day: "strftime('%%Y-%%m-%%d', %s)", Exact: true},
 }
 
 // DialectNames lists the dialects for help text and errors.

@@ -283,7 +283,7 @@ func TestFromResultErrors(t *testing.T) {
 		{head + "t,ansi,,,table,,5,1,1\nt,ansi,,,table,,5,1,1\n", "r.csv:3:10: a second row of scope table"},
 		{head + "t,nope,,,table,,5,1,1\n", `dialect "nope"`},
 		{head + "t,ansi,,k,table,,5,1,1\nt,ansi,,k,partition,a,4,,\n", "the partitions hold 4 rows and the table row 5"},
-		{head + "t,ansi,month,k,table,,5,1,1\nt,ansi,month,k,partition,soon,5,,\n", `partition key k="soon" is not a date`},
+		{head + "t,ansi,month,k,table,,5,1,1\nt,ansi,month,k,partition,soon,5,,\n", `r.csv:3:26: partition key "soon" is not a date`},
 		{"table,dialect,grain,key,scope,partition,rows,id:blob:distinct\n", `header "id:blob:distinct" is not one`},
 	} {
 		_, err := survey.FromResult("r.csv", []byte(c.body))

@@ -77,9 +77,13 @@ func (t *Table) Count(key string, n int64) error {
 	if t.Grain != "" {
 		if key == t.lastRaw && t.lastFolded != "" {
 			key = t.lastFolded
-		} else if at, prec, ok := parseKey(key); ok && foldable(prec, t.Grain) {
-			t.lastRaw, t.lastFolded = key, periodOf(at, t.Grain).label(t.Grain)
-			key = t.lastFolded
+		} else {
+			folded, err := foldKey(key, t.Grain)
+			if err != nil {
+				return err
+			}
+			t.lastRaw, t.lastFolded = key, folded
+			key = folded
 		}
 	}
 	if _, ok := t.parts[key]; !ok && len(t.parts) >= PartitionLimit {
