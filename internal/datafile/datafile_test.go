@@ -104,7 +104,7 @@ func generate(seed uint64, months, firstMonthRows int, write func(month string, 
 }
 
 // create makes path and its folders.
-func create(t *testing.T, path string) *os.File {
+func create(t testing.TB, path string) *os.File {
 	t.Helper()
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		t.Fatal(err)
@@ -116,7 +116,7 @@ func create(t *testing.T, path string) *os.File {
 	return f
 }
 
-func writeParquet(t *testing.T, path string, rows []reading) {
+func writeParquet(t testing.TB, path string, rows []reading) {
 	t.Helper()
 	f := create(t, path)
 	w := parquet.NewGenericWriter[reading](f, parquet.MaxRowsPerRowGroup(3000))
@@ -131,7 +131,7 @@ func writeParquet(t *testing.T, path string, rows []reading) {
 	}
 }
 
-func writeCSV(t *testing.T, path string, rows []reading) {
+func writeCSV(t testing.TB, path string, rows []reading) {
 	t.Helper()
 	f := create(t, path)
 	w := csv.NewWriter(f)
@@ -360,4 +360,35 @@ func indexOf(s, sub string) int {
 		}
 	}
 	return -1
+}
+
+// BenchmarkSurveyParquet measures reading one generated month (about 12,000 rows, eight
+// columns) of Parquet into a survey: b.N files' worth, rows per second in the report.
+func BenchmarkSurveyParquet(b *testing.B) {
+	benchmarkSurvey(b, func(t testing.TB, p string, rows []reading) { writeParquet(t, p+".parquet", rows) }, ".parquet")
+}
+
+// BenchmarkSurveyCSV is BenchmarkSurveyParquet for the same rows as CSV.
+func BenchmarkSurveyCSV(b *testing.B) {
+	benchmarkSurvey(b, func(t testing.TB, p string, rows []reading) { writeCSV(t, p+".csv", rows) }, ".csv")
+}
+
+func benchmarkSurvey(b *testing.B, write func(testing.TB, string, []reading), ext string) {
+	dir := b.TempDir()
+	var n int
+	generate(1, 1, 12_000, func(_ string, rows []reading) {
+		n = len(rows)
+		write(b, filepath.Join(dir, "m"), rows)
+	})
+	files, err := datafile.Find([]string{filepath.Join(dir, "m"+ext)}, datafile.DefaultLimits)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := datafile.Read(files, survey.NewTable(), datafile.Options{Limits: datafile.DefaultLimits}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
