@@ -9,8 +9,6 @@ import (
 	"strings"
 	"time"
 
-	"github.com/mattn/go-isatty"
-
 	"github.com/scangate/scangate/internal/datafile"
 	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/survey"
@@ -134,6 +132,9 @@ func surveyData(o SurveyOptions) (schema.SurveyTable, error) {
 	files, err := datafile.Find(o.Data, o.DataLimits)
 	if err != nil {
 		return schema.SurveyTable{}, err
+	}
+	if o.Grain != "" && o.PartitionBy == "" && len(files[0].Keys) == 0 {
+		return schema.SurveyTable{}, fmt.Errorf("--grain %s needs a partition key: --partition-by COLUMN, or data in key=value folders", o.Grain)
 	}
 	name := o.Name
 	if name == "" {
@@ -272,6 +273,5 @@ func SurveyProgress(stderr io.Writer) (bar, lines bool) {
 	if os.Getenv("CI") == "true" {
 		return false, true
 	}
-	f, ok := stderr.(interface{ Fd() uintptr })
-	return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())), false
+	return isTerminal(stderr), false
 }

@@ -3,6 +3,7 @@ package survey
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"strconv"
 
 	"go.yaml.in/yaml/v3"
@@ -106,7 +107,12 @@ func num(v int64) *yaml.Node {
 	return &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!int", Value: strconv.FormatInt(v, 10)}
 }
 
+// flt is a number scalar: whole numbers are written as integers (8, not 8.0), so no
+// encoder needs a tag to keep them numbers.
 func flt(v float64) *yaml.Node {
+	if v == math.Trunc(v) && math.Abs(v) < 1e15 {
+		return num(int64(v))
+	}
 	s := strconv.FormatFloat(v, 'f', -1, 64)
 	return &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!float", Value: s}
 }

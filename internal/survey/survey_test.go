@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"strconv"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat"
@@ -192,6 +193,16 @@ func TestFragmentLoads(t *testing.T) {
 		Partitions: schema.SurveyPartitions{Scheme: "list", Items: []schema.SurveyItem{{Name: "2026-01-01", Rows: 4}, {Name: "true", Rows: 6}}},
 		Columns:    []schema.SurveyColumn{{Name: "null", Type: "string", Distinct: 3, AvgLength: &avg, Order: "clustered", RunLength: 2}}}
 	loads(t, tb)
+	// Names that read as other types are quoted; whole numbers need no tag.
+	got := string(survey.Fragment([]schema.SurveyTable{tb}))
+	for _, want := range []string{`{name: "2026-01-01", rows: 4}`, `{name: "true", rows: 6}`, `{name: "null", type: string, distinct: 3, avg_length: 7, order: clustered, run_length: 2}`} {
+		if !strings.Contains(got, want) {
+			t.Errorf("fragment lacks %s:\n%s", want, got)
+		}
+	}
+	if strings.Contains(got, "!!") {
+		t.Errorf("fragment holds a tag:\n%s", got)
+	}
 }
 
 func equal(a, b []string) bool {
