@@ -392,3 +392,85 @@ func benchmarkSurvey(b *testing.B, write func(testing.TB, string, []reading), ex
 	}
 	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
+
+// odd holds the Parquet shapes a data set from elsewhere may have: a nested group and a
+// repeated column (skipped: not one value a row), a decimal, unsigned and 32-bit
+// numbers, raw bytes, a nanosecond timestamp, compressed pages.
+type odd struct {
+	N     int32     `parquet:"n"`
+	U     uint32    `parquet:"u"`
+	F     float32   `parquet:"f"`
+	Price int64     `parquet:"price,decimal(2:12)"`
+	Raw   []byte    `parquet:"raw"`
+	At    time.Time `parquet:"at,timestamp(nanosecond)"`
+	Tags  []string  `parquet:"tags,list"`
+	Where struct {
+		Lat, Lon float64
+	} `parquet:"where"`
+	Maybe *int64 `parquet:"maybe,optional"`
+}
+
+func TestParquetShapes(t *testing.T) {
+	dir := t.TempDir()
+	rows := make([]odd, 5000)
+	for i := range rows {
+		rows[i] = odd{N: int32(i % 70), U: uint32(i), F: float32(i%9) / 2, Price: int64(i % 300), Raw: []byte{byte(i), byte(i >> 8)},
+			At: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC).Add(time.Duration(i) * time.Hour), Tags: []string{"a", "b"}}
+		if i%2 == 0 {
+			v := int64(i % 11)
+			rows[i].Maybe = &v
+		}
+	}
+	f := create(t, filepath.Join(dir, "odd.parquet"))
+	w := parquet.NewGenericWriter[odd](f, parquet.Compression(&parquet.Zstd), parquet.MaxRowsPerRowGroup(1000))
+	if _, err := w.Write(rows); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	// An empty file of the same schema adds no rows.
+	e := create(t, filepath.Join(dir, "zz-empty.parquet"))
+	ew := parquet.NewGenericWriter[odd](e)
+	if err := ew.Close(); err != nil {
+		t.Fatal(err)
+	}
+	e.Close()
+	got := surveyed(t, []string{dir}, "at", "week")
+	want := map[string]string{"n": "int64", "u": "int64", "f": "float64", "price": "decimal", "raw": "string", "at": "datetime", "maybe": "int64"}
+	if len(got.Columns) != len(want) {
+		t.Errorf("columns %+v, want %d (tags and where skipped)", got.Columns, len(want))
+	}
+	for _, c := range got.Columns {
+		if c.Type != want[c.Name] {
+			t.Errorf("%s: type %s, want %s", c.Name, c.Type, want[c.Name])
+		}
+	}
+	d := map[string]int64{}
+	for _, c := range got.Columns {
+		d[c.Name] = c.Distinct
+	}
+	// 5000 hours from 2026-01-01 (a Thursday, ISO week 1) reach 2026-07-28: weeks 1 to 31.
+	if got.Rows != 5000 || got.Partitions.Scheme != "time" || len(got.Partitions.Items) != 31 || d["n"] != 70 || d["f"] != 9 || d["price"] != 300 ||
+		d["raw"] != 5000 || d["maybe"] != 11 || got.Columns[len(got.Columns)-1].Nulls != 2500 {
+		t.Errorf("survey %+v", got)
+	}
+}
+
+// Files of one table may order their columns differently or lack one: columns match by
+// name, and a file without a column holds nulls for it.
+func TestCSVHeadersDiffer(t *testing.T) {
+	dir := t.TempDir()
+	_ = os.WriteFile(filepath.Join(dir, "a.csv"), []byte("id,name,score\n1,ann,3\n2,bob,4\n"), 0o644)
+	_ = os.WriteFile(filepath.Join(dir, "b.csv"), []byte("\uFEFFname,id\ncy,3\n"), 0o644)
+	got := surveyed(t, []string{dir}, "", "")
+	byName := map[string]schema.SurveyColumn{}
+	for _, c := range got.Columns {
+		byName[c.Name] = c
+	}
+	if got.Rows != 3 || len(got.Columns) != 3 || byName["id"].Distinct != 3 || byName["name"].Distinct != 3 ||
+		byName["score"].Nulls != 1 || byName["score"].Distinct != 2 || byName["id"].Order != "sorted" {
+		t.Errorf("survey %+v", got)
+	}
+}

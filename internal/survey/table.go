@@ -107,7 +107,20 @@ func (t *Table) Result(name, key, grain string) (schema.SurveyTable, error) {
 	}
 	out.Partitions, out.GrowthPerYear = parts, growth
 	for _, c := range t.cols {
-		out.Columns = append(out.Columns, c.profile())
+		p := c.profile()
+		// A file without the column holds nulls for it: every row not counted is one.
+		p.Nulls = max(p.Nulls, t.rows-nonNull(c))
+		out.Columns = append(out.Columns, p)
 	}
 	return out, nil
+}
+
+func nonNull(c column) int64 {
+	switch c := c.(type) {
+	case *Typed:
+		return c.nonNull
+	case *Text:
+		return c.nonNull
+	}
+	return 0
 }
