@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -322,7 +323,7 @@ func TestBadInput(t *testing.T) {
 		if err == nil {
 			_, err = datafile.Read(files, survey.NewTable(), datafile.Options{Limits: datafile.DefaultLimits})
 		}
-		if err == nil || !contains(err.Error(), want[name]) {
+		if err == nil || !strings.Contains(err.Error(), want[name]) {
 			t.Errorf("%s: error %v, want one containing %q", name, err, want[name])
 		}
 	}
@@ -333,11 +334,11 @@ func TestBadInput(t *testing.T) {
 	lim := datafile.DefaultLimits
 	lim.MaxRecordBytes = 1000
 	files, _ := datafile.Find([]string{long}, lim)
-	if _, err := datafile.Read(files, survey.NewTable(), datafile.Options{Limits: lim}); err == nil || !contains(err.Error(), "long.csv:2:1: a line is longer than 1000 bytes") {
+	if _, err := datafile.Read(files, survey.NewTable(), datafile.Options{Limits: lim}); err == nil || !strings.Contains(err.Error(), "long.csv:2:1: a line is longer than 1000 bytes") {
 		t.Errorf("long line: %v", err)
 	}
 	lim.MaxFileBytes = 10
-	if _, err := datafile.Find([]string{long}, lim); err == nil || !contains(err.Error(), "--max-data-size") {
+	if _, err := datafile.Find([]string{long}, lim); err == nil || !strings.Contains(err.Error(), "--max-data-size") {
 		t.Errorf("large file: %v", err)
 	}
 }
@@ -349,18 +350,6 @@ func deref(p *float64) any {
 	return *p
 }
 
-func contains(s, sub string) bool {
-	return len(sub) > 0 && len(s) >= len(sub) && (s == sub || indexOf(s, sub) >= 0)
-}
-
-func indexOf(s, sub string) int {
-	for i := 0; i+len(sub) <= len(s); i++ {
-		if s[i:i+len(sub)] == sub {
-			return i
-		}
-	}
-	return -1
-}
 
 // BenchmarkSurveyParquet measures reading one generated month (about 12,000 rows, eight
 // columns) of Parquet into a survey: b.N files' worth, rows per second in the report.
@@ -438,6 +427,13 @@ func TestParquetShapes(t *testing.T) {
 	}
 	e.Close()
 	got := surveyed(t, []string{dir}, "at", "week")
+	files, _ := datafile.Find([]string{filepath.Join(dir, "odd.parquet")}, datafile.DefaultLimits)
+	var skipped []string
+	_, _ = datafile.Read(files, survey.NewTable(), datafile.Options{Limits: datafile.DefaultLimits,
+		Skipped: func(_ datafile.File, col string) { skipped = append(skipped, col) }})
+	if strings.Join(skipped, ",") != "tags,where" {
+		t.Errorf("skipped %v, want tags and where", skipped)
+	}
 	want := map[string]string{"n": "int64", "u": "int64", "f": "float64", "price": "decimal", "raw": "string", "at": "datetime", "maybe": "int64"}
 	if len(got.Columns) != len(want) {
 		t.Errorf("columns %+v, want %d (tags and where skipped)", got.Columns, len(want))

@@ -32,7 +32,8 @@ type leaf struct {
 // readParquet reads one Parquet file row group by row group. Top-level columns that are
 // not repeated are measured; nested and repeated columns are skipped, since their values
 // are not one a row.
-func readParquet(f File, t *survey.Table, column, fileKey string, lim Limits, progress func(int64)) error {
+func readParquet(f File, t *survey.Table, column, fileKey string, o Options, progress func(int64)) error {
+	lim := o.Limits
 	h, err := open(f)
 	if err != nil {
 		return err
@@ -50,6 +51,9 @@ func readParquet(f File, t *survey.Table, column, fileKey string, lim Limits, pr
 	keyAt := -1
 	for _, field := range sch.Fields() {
 		if !field.Leaf() || field.Repeated() {
+			if o.Skipped != nil {
+				o.Skipped(f, field.Name())
+			}
 			continue
 		}
 		lc, ok := sch.Lookup(field.Name())

@@ -15,6 +15,8 @@ type Options struct {
 	Limits      Limits
 	// Progress, when set, is told the bytes read so far of each file.
 	Progress func(file int, done int64)
+	// Skipped, when set, is told each column that is not measured (nested or repeated).
+	Skipped func(file File, column string)
 }
 
 // Read streams every file into t, in order, and returns the name of the partition key
@@ -34,7 +36,7 @@ func Read(files []File, t *survey.Table, o Options) (string, error) {
 		var err error
 		switch f.Format {
 		case Parquet:
-			err = readParquet(f, t, column, fileKey, o.Limits, progress)
+			err = readParquet(f, t, column, fileKey, o, progress)
 		case CSV:
 			err = readCSV(f, t, column, fileKey, o.Limits, progress)
 		}

@@ -143,7 +143,14 @@ func surveyData(o SurveyOptions) (schema.SurveyTable, error) {
 	p := newProgress(o, files)
 	tb := survey.NewTable()
 	tb.Grain = o.Grain
-	key, err := datafile.Read(files, tb, datafile.Options{PartitionBy: o.PartitionBy, Limits: o.DataLimits, Progress: p.advance})
+	skipped := map[string]bool{}
+	skip := func(f datafile.File, col string) {
+		if !skipped[col] {
+			skipped[col] = true
+			p.note(fmt.Sprintf("survey: %s: column %s is nested or repeated, not one value a row; it is not measured", f.Path, col))
+		}
+	}
+	key, err := datafile.Read(files, tb, datafile.Options{PartitionBy: o.PartitionBy, Limits: o.DataLimits, Progress: p.advance, Skipped: skip})
 	p.finish(err == nil)
 	if err != nil {
 		return schema.SurveyTable{}, err
@@ -256,6 +263,14 @@ func (p *progress) advance(file int, done int64) {
 	n := int(share * width)
 	fmt.Fprintf(p.o.Stderr, "\rsurvey [%s%s] %3.0f%%  file %d of %d", strings.Repeat("#", n), strings.Repeat(".", width-n), 100*share, file+1, len(p.files))
 	p.drawn = true
+}
+
+// note prints a line on stderr, clearing the bar first.
+func (p *progress) note(line string) {
+	if p.drawn {
+		fmt.Fprint(p.o.Stderr, "\r\033[K")
+	}
+	fmt.Fprintln(p.o.Stderr, escape.Log(escape.Text(line)))
 }
 
 func (p *progress) finish(ok bool) {
