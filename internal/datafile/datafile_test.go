@@ -350,7 +350,6 @@ func deref(p *float64) any {
 	return *p
 }
 
-
 // BenchmarkSurveyParquet measures reading one generated month (about 12,000 rows, eight
 // columns) of Parquet into a survey: b.N files' worth, rows per second in the report.
 func BenchmarkSurveyParquet(b *testing.B) {
