@@ -69,7 +69,7 @@ func (d *distinct) collision(n int64) float64 {
 		c, _ := d.count()
 		return 1 / math.Max(1, float64(c))
 	}
-	// Summed in sorted-free order is fine here: integer sums are exact.
+	// Map order does not matter: integer sums are exact.
 	var sq int64
 	for _, c := range d.counts {
 		sq += c * c

@@ -94,9 +94,6 @@ func (t *Table) Count(key string, n int64) error {
 	return nil
 }
 
-// Rows is the rows counted so far.
-func (t *Table) Rows() int64 { return t.rows }
-
 // Result is the measured table called name; key names the partition key (a column or a
 // folder key, "" for none) and grain folds its values into periods ("" lists them).
 func (t *Table) Result(name, key, grain string) (schema.SurveyTable, error) {
