@@ -92,7 +92,7 @@ func runCase(t *testing.T, path string) {
 		}
 		got = rules.SchemaFindings(se)
 	} else {
-		got = rules.Run(m, rules.Config{Today: caseToday})
+		got = rules.Run(m, rules.Config{Today: caseToday, Observed: observedBeside(t, path)})
 	}
 	matched := make([]bool, len(got))
 	for _, w := range wants {
@@ -122,6 +122,21 @@ func runCase(t *testing.T, path string) {
 			t.Errorf("%s:%d: %s finding has no hint: %s", path, f.Pos.Line, f.Rule, f.Message)
 		}
 	}
+}
+
+// observedBeside loads CASE.observed.json, the survey a case is checked with
+// (check --observed), when it lies beside the case.
+func observedBeside(t *testing.T, path string) *schema.Survey {
+	p := strings.TrimSuffix(path, filepath.Ext(path)) + ".observed.json"
+	data, err := os.ReadFile(p)
+	if err != nil {
+		return nil
+	}
+	s, err := schema.LoadSurvey(p, data, schema.DefaultLimits)
+	if err != nil {
+		t.Fatalf("%s: %v", p, err)
+	}
+	return s
 }
 
 func ifSet(prefix, s string) string {

@@ -14,7 +14,7 @@ import (
 )
 
 // Config is what a run knows beyond the manifest: the date waivers and forecasts are
-// judged on and the rule settings of the project. The zero value is the documented
+// judged on, the rule settings of the project and the tables as surveyed. The zero value is the documented
 // default.
 type Config struct {
 	Today time.Time // zero means the current date (UTC)
@@ -23,6 +23,8 @@ type Config struct {
 	// reports that print it beside each table (the JSON report), not only for the tables
 	// a finding quotes it for.
 	Advise bool
+	// Observed is what `scangate survey` measured (check --observed); nil without it.
+	Observed *schema.Survey
 }
 
 // RuleConfig is a project's setting for one rule.

@@ -24,7 +24,7 @@ var embedded = []struct {
 	get  func() []byte
 }{
 	{"manifest", ManifestSchema}, {"config", ConfigSchema}, {"output", OutputSchema},
-	{"diff", DiffSchema}, {"plan", PlanSchema}, {"baseline", BaselineSchema}, {"calibration", CalibrationSchema},
+	{"diff", DiffSchema}, {"plan", PlanSchema}, {"baseline", BaselineSchema}, {"calibration", CalibrationSchema}, {"survey", SurveySchema},
 }
 
 // Names lists the embedded schemas, manifest first.

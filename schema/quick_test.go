@@ -15,7 +15,7 @@ import (
 // is always allowed; it only costs time.
 
 func TestQuickCompilesEmbeddedSchemas(t *testing.T) {
-	for _, d := range []*document{manifestDoc, configDoc, baselineDoc} {
+	for _, d := range []*document{manifestDoc, configDoc, baselineDoc, surveyDoc} {
 		if _, err := d.quick(); err != nil {
 			t.Errorf("%s: %v", d.url, err)
 		}
@@ -77,6 +77,7 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 		n[agree(t, path, manifestDoc, tr.root)]++
 		agree(t, path+" (as a config)", configDoc, tr.root)
 		agree(t, path+" (as a baseline)", baselineDoc, tr.root)
+		agree(t, path+" (as a survey)", surveyDoc, tr.root)
 		// Every manifest meant to be valid must take the quick path, or the quick check
 		// has quietly stopped saving time.
 		if strings.Contains(path, filepath.Join("testdata", "baselines", "good-")) {

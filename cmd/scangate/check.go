@@ -13,7 +13,7 @@ import (
 )
 
 func newCheck() *cobra.Command {
-	var failOn, output, today, configFile, baselineFile string
+	var failOn, output, today, configFile, baselineFile, observed string
 	var formats []string
 	var noColor, manifestsOnly, hideBaselined bool
 	cmd := &cobra.Command{
@@ -39,6 +39,11 @@ func newCheck() *cobra.Command {
 			if err != nil {
 				return err
 			}
+			if observed != "" {
+				if cfg.Observed, err = run.LoadObserved(observed, cmd.InOrStdin(), limits); err != nil {
+					return problemsError(cmd, err, "observed", "the observed file is invalid; write it again with `scangate survey --format json`")
+				}
+			}
 			outs, err := run.ParseFormats(report.CheckReport, formats, output, run.DefaultFormats(output))
 			if err != nil {
 				return usageError(err)
@@ -50,7 +55,7 @@ func newCheck() *cobra.Command {
 			if manifestsOnly {
 				inputs = run.OnlyManifests(inputs)
 			}
-			read := append(append(run.Paths(inputs), proj.Files()...), baselineFile)
+			read := append(append(run.Paths(inputs), proj.Files()...), baselineFile, observed)
 			if err := run.GuardOutputs(outs, read); err != nil {
 				return usageError(err)
 			}
@@ -81,6 +86,7 @@ func newCheck() *cobra.Command {
 	cmd.Flags().StringVar(&configFile, "config", "", "project config to use (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
 	cmd.Flags().StringVar(&baselineFile, "baseline", "", "baseline file: findings recorded there are listed but do not fail the run (unless more severe than recorded or expired)")
 	cmd.Flags().BoolVar(&hideBaselined, "hide-baselined", false, "with --baseline: count the baselined findings in the text log instead of listing them")
+	cmd.Flags().StringVar(&observed, "observed", "", "survey --format json output: raise observed-drift where declared rows or distinct counts differ from it")
 	return cmd
 }
 

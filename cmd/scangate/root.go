@@ -47,6 +47,7 @@ func newRoot(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
 	root.AddCommand(newDiff())
 	root.AddCommand(newCalibrate())
 	root.AddCommand(newAdopt())
+	root.AddCommand(newSurvey())
 	// Cobra's completion command prints its help, exit 0, for a shell it does not know;
 	// runnable, it refuses the argument (exit 2) like any unknown command.
 	root.InitDefaultCompletionCmd()

@@ -52,7 +52,7 @@ func TestCompletionShells(t *testing.T) {
 // Every embedded schema prints by name, manifest by default, and an unknown name lists
 // the ones there are.
 func TestSchemaNames(t *testing.T) {
-	for _, name := range []string{"manifest", "config", "output", "diff", "baseline", "calibration"} {
+	for _, name := range []string{"manifest", "config", "output", "diff", "plan", "baseline", "calibration", "survey"} {
 		r := scangate(t, root(t), "", nil, "schema", name)
 		if r.code != 0 || !strings.Contains(r.stdout, `"$schema": "https://json-schema.org/draft/2020-12/schema"`) {
 			t.Errorf("schema %s: exit %d", name, r.code)

@@ -144,7 +144,7 @@ func TestViolationsCatchPlantedImports(t *testing.T) {
 // The command layer parses flags and wires packages: it stays small, and logic that
 // grows there belongs in the driver or below.
 func TestCommandStaysThin(t *testing.T) {
-	const most = 745 // 700, and the adopt command's flags and help (cmd/scangate/adopt.go)
+	const most = 700 // DESIGN.md: cobra wiring only: flags, help text, exit code
 	paths, _ := filepath.Glob(filepath.Join("..", "..", "cmd", "scangate", "*.go"))
 	lines := 0
 	for _, p := range paths {

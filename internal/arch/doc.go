@@ -11,13 +11,13 @@ const Module = "github.com/scangate/scangate"
 // must be placed here before the architecture test passes.
 var Layers = [][]string{
 	{"schema", "internal/units", "internal/escape", "internal/arch", "internal/suggest", "internal/yamledit", "bench/gen"}, // the contract and leaves
-	{"internal/layout", "internal/calibrate"}, // the arithmetic; calibrate's fit
-	{"internal/advisor"},                      // candidate layouts, sweeps, forecasts
-	{"internal/analysis"},                     // one analysis per model
-	{"rules"},                                 // the rule engine and one file per rule
-	{"internal/baseline", "internal/change"},  // accepted debt; diff's comparison
-	{"internal/report", "internal/adopt"},     // the format registry and every format; recommendations written into manifests
-	{"internal/run"},                          // the driver
+	{"internal/layout", "internal/calibrate", "internal/survey"},                                                           // the arithmetic; calibrate's fit; measuring a table from its values
+	{"internal/advisor", "internal/datafile"},                                                                              // candidate layouts, sweeps, forecasts; reading data files
+	{"internal/analysis"},                    // one analysis per model
+	{"rules"},                                // the rule engine and one file per rule
+	{"internal/baseline", "internal/change"}, // accepted debt; diff's comparison
+	{"internal/report", "internal/adopt"},    // the format registry and every format; recommendations written into manifests
+	{"internal/run"},                         // the driver
 	{"cmd/scangate", "bench/cmd/decodeonly", "bench/cmd/gen", "bench/cmd/measure"}, // commands and tools
 }
 

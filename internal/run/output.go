@@ -202,6 +202,11 @@ func UseColor(w any, noColor bool) bool {
 	if v := os.Getenv("CLICOLOR_FORCE"); v != "" && v != "0" {
 		return true
 	}
+	return isTerminal(w)
+}
+
+// isTerminal reports whether w is a terminal.
+func isTerminal(w any) bool {
 	f, ok := w.(interface{ Fd() uintptr })
 	return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd()))
 }
