@@ -169,6 +169,7 @@ func TestAdoptEndsPromisedFindings(t *testing.T) {
 					}
 				}
 			}
+			noWorse(t, mf, tb, analysis.Analyze(m2, mf.cfg.Levels()), r.Hint())
 			// The table reads as the candidate.
 			for _, t2 := range m2.Tables {
 				if t2.Name == name && advisor.Label(t2.Partitions) != r.Candidate.Label {
@@ -183,6 +184,50 @@ func TestAdoptEndsPromisedFindings(t *testing.T) {
 	t.Logf("%d recommendations adopted, %d findings they promised to end ended", adopted, ended)
 	if adopted < 10 || ended < adopted*3/4 {
 		t.Fatalf("%d recommendations and %d promised findings in testdata: the test has lost its reach", adopted, ended)
+	}
+}
+
+// noWorse holds the recommendation to its rule: a budget the table (or the model's refresh)
+// kept before the change is kept after it, and one it broke is broken by no more.
+func noWorse(t *testing.T, mf manifest, before *analysis.Table, after *analysis.Model, hint string) {
+	t.Helper()
+	var tb *analysis.Table
+	for _, a := range after.Tables {
+		if a.Spec.Name == before.Spec.Name {
+			tb = a
+		}
+	}
+	if tb == nil {
+		t.Fatalf("%s %s: the table is gone after adopting", mf.file, before.Spec.Name)
+	}
+	type figure struct {
+		name          string
+		limit         *float64
+		before, after float64
+	}
+	figs := []figure{
+		{"fixed ms per scan", before.Budgets.ScanOverheadMs, before.Layout.FixedMs, tb.Layout.FixedMs},
+		{"scan wall ms", before.Budgets.ScanMs, before.Scan.WallMs, tb.Scan.WallMs},
+	}
+	if lim := before.Budgets.RefreshMemory; lim != nil {
+		pb, pa := before.Model().RefreshPeaks().Full, after.RefreshPeaks().Full
+		if pb != nil && pa != nil {
+			l := float64(*lim)
+			figs = append(figs, figure{"refresh peak", &l, *pb, *pa})
+		}
+	}
+	for _, f := range figs {
+		if f.limit == nil {
+			continue
+		}
+		const slack = 1e-9 // rounding of the same sum in another order
+		kept := f.before <= *f.limit*(1+slack)
+		if kept && f.after > *f.limit*(1+slack) {
+			t.Errorf("%s %s: adopting %q breaks the %s budget it kept: %g -> %g, limit %g", mf.file, before.Spec.Name, hint, f.name, f.before, f.after, *f.limit)
+		}
+		if !kept && f.after > f.before*(1+slack) {
+			t.Errorf("%s %s: adopting %q makes the broken %s budget worse: %g -> %g, limit %g", mf.file, before.Spec.Name, hint, f.name, f.before, f.after, *f.limit)
+		}
 	}
 }
 
