@@ -46,12 +46,18 @@ type located struct {
 	value *yaml.Node
 }
 
-// tree is a YAML document turned into JSON-like values (map[string]any, []any,
-// string, bool, nil, json.Number), with the node tree kept to find positions. Positions
-// are looked up when asked for rather than recorded for every node: a manifest with
-// 100,000 listed partitions would otherwise build as many pointer strings.
+// tree is a YAML document as the schema and the decoder read it: the node tree, checked
+// once by the conversion (limits, duplicate keys, tags, number forms), read through
+// views (view.go) that see it as the JSON-like values the conversion defines; the values
+// themselves (map[string]any, []any, string, bool, nil, json.Number) are built only when
+// asked for: for the JSON Schema library, which reads no other form, and for the project
+// config and the baseline, which are small. A manifest is read from its nodes alone, so
+// a large one is never held twice. Positions are looked up when asked for rather than
+// recorded for every node: a manifest with 100,000 listed partitions would otherwise
+// build as many pointer strings.
 type tree struct {
-	root       any
+	root       any  // the values, once built
+	built      bool // root holds the values
 	doc        *yaml.Node
 	path       []step // where the conversion is, for error messages
 	nodes      int
@@ -225,6 +231,19 @@ func child(ptr, token string) string {
 	return ptr + pointer([]string{token})
 }
 
+// values builds the JSON-like values of a tree checked without them. The conversion
+// runs again over the same nodes: it cannot fail where it passed, and every problem it
+// finds was recorded the first time.
+func (t *tree) values() any {
+	if !t.built {
+		t.built, t.nodes, t.aliasNodes = true, 0, 0
+		t.root, _ = t.convert(t.doc, 0)
+	}
+	return t.root
+}
+
+// convert checks the node n and everything below it and, once the tree is built, returns
+// its value.
 func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	if p := t.count(n); p != nil {
 		return nil, p
@@ -249,7 +268,10 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	case yaml.MappingNode:
 		return t.mapping(n, depth)
 	case yaml.SequenceNode:
-		out := make([]any, 0, len(n.Content))
+		var out []any
+		if t.built {
+			out = make([]any, 0, len(n.Content))
+		}
 		for i, e := range n.Content {
 			t.path = append(t.path, step{index: i})
 			cv, p := t.convert(e, depth+1)
@@ -257,7 +279,12 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 			if p != nil {
 				return nil, p
 			}
-			out = append(out, cv)
+			if t.built {
+				out = append(out, cv)
+			}
+		}
+		if !t.built {
+			return nil, nil
 		}
 		return out, nil
 	case yaml.ScalarNode:
@@ -275,8 +302,34 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 // manifest key comes near it, and a longer one would be quoted whole in messages.
 const maxKeyLength = 1024
 
+// filled are the keys a mapping has set so far: the map itself once the tree is built,
+// else just the names.
+type filled struct {
+	out  map[string]any
+	keys keySet
+}
+
+func (f *filled) has(k string) bool {
+	if f.out != nil {
+		_, ok := f.out[k]
+		return ok
+	}
+	return f.keys.has(k)
+}
+
+func (f *filled) put(k string, v any) {
+	if f.out != nil {
+		f.out[k] = v
+	} else {
+		f.keys.add(k)
+	}
+}
+
 func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
-	out := make(map[string]any, len(n.Content)/2)
+	out := &filled{}
+	if t.built {
+		out.out = make(map[string]any, len(n.Content)/2)
+	}
 	var merges []*yaml.Node
 	var firstMerge *yaml.Node
 	for i := 0; i+1 < len(n.Content); i += 2 {
@@ -302,7 +355,7 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 			t.refuse(k, t.here(), fmt.Sprintf("key is %s characters long, above the limit of %s; shorten it (manifest keys are short names)", group(int64(l)), group(maxKeyLength)), false)
 			continue
 		}
-		if _, dup := out[k.Value]; dup {
+		if out.has(k.Value) {
 			t.refuse(k, t.here(), fmt.Sprintf("key %s is already defined at line %d; remove one of them", quoteShort(k.Value), firstKey(n, k.Value).Line), false)
 			continue
 		}
@@ -312,7 +365,7 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 		if p != nil {
 			return nil, p
 		}
-		out[k.Value] = cv
+		out.put(k.Value, cv)
 	}
 	// Merge keys (<<) fill in only the keys the mapping does not set itself.
 	for _, m := range merges {
@@ -320,7 +373,10 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 			return nil, p
 		}
 	}
-	return out, nil
+	if out.out == nil {
+		return nil, nil
+	}
+	return out.out, nil
 }
 
 // explicitTags are the tags a manifest may write: YAML's core types. A plain date
@@ -351,7 +407,7 @@ func firstKey(n *yaml.Node, key string) *yaml.Node {
 
 // merge fills out with the keys of a merged mapping that out does not hold yet: keys
 // the mapping sets itself come first, then earlier merges win over later ones.
-func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
+func (t *tree) merge(out *filled, m *yaml.Node, depth int) *Problem {
 	// Each merge counts as a node and a level: a merge key that refers to its own mapping
 	// would otherwise recurse until the stack overflows, and merges of merges of merges
 	// would take exponential time without ever converting a node.
@@ -406,7 +462,7 @@ func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 			continue
 		}
 		own[k.Value] = true
-		if _, set := out[k.Value]; set {
+		if out.has(k.Value) {
 			continue
 		}
 		t.path = append(t.path, step{key: k.Value, isKey: true})
@@ -415,7 +471,7 @@ func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 		if p != nil {
 			return p
 		}
-		out[k.Value] = cv
+		out.put(k.Value, cv)
 	}
 	return nil
 }

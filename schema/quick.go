@@ -333,8 +333,8 @@ func truth(b bool) verdict {
 	return fails
 }
 
-// check is the quick verdict for v, a value of the tree (map[string]any, []any, string,
-// bool, nil, json.Number).
+// check is the quick verdict for v, a value of the tree in either form: built
+// (map[string]any, []any) or viewed (obj, list), with string, bool, nil, json.Number.
 func (q *quick) check(v any) verdict {
 	if q == nil {
 		return passes
@@ -343,7 +343,7 @@ func (q *quick) check(v any) verdict {
 		return fails
 	}
 	switch v.(type) {
-	case map[string]any, []any, string, bool, nil, json.Number:
+	case map[string]any, []any, obj, list, string, bool, nil, json.Number:
 	default:
 		return unsure // not a value the tree holds
 	}
@@ -371,8 +371,12 @@ func (q *quick) check(v any) verdict {
 	case string:
 		r = r.and(q.text(v))
 	case map[string]any:
+		r = r.and(q.object(builtObject(v)))
+	case obj:
 		r = r.and(q.object(v))
 	case []any:
+		r = r.and(q.array(builtList(v)))
+	case list:
 		r = r.and(q.array(v))
 	}
 	if r == fails {
@@ -428,9 +432,9 @@ func (q *quick) typeOK(v any) verdict {
 	}
 	var bit typeSet
 	switch v := v.(type) {
-	case map[string]any:
+	case map[string]any, obj:
 		bit = tObject
-	case []any:
+	case []any, list:
 		bit = tArray
 	case string:
 		bit = tString
@@ -473,57 +477,94 @@ func (q *quick) text(s string) verdict {
 	return truth(q.pattern == nil || q.pattern.MatchString(s))
 }
 
-func (q *quick) object(m map[string]any) verdict {
+// object is a mapping in either form.
+type object interface {
+	get(key string) (any, bool)
+	size() int
+	each(yield func(key string, v any) bool)
+}
+
+// builtObject and builtList are the built tree's forms of object and array.
+type (
+	builtObject map[string]any
+	builtList   []any
+)
+
+func (m builtObject) get(key string) (any, bool) { v, ok := m[key]; return v, ok }
+func (m builtObject) size() int                  { return len(m) }
+func (m builtObject) each(yield func(string, any) bool) {
+	for k, v := range m {
+		if !yield(k, v) {
+			return
+		}
+	}
+}
+
+func (o obj) each(yield func(string, any) bool) {
+	for k, n := range o.members() {
+		if !yield(k, nodeValue(n)) {
+			return
+		}
+	}
+}
+
+func (a builtList) size() int    { return len(a) }
+func (a builtList) at(i int) any { return a[i] }
+
+func (q *quick) object(m object) verdict {
 	for _, k := range q.required {
-		if _, ok := m[k]; !ok {
+		if _, ok := m.get(k); !ok {
 			return fails
 		}
 	}
 	// The schema's properties are few: look each up rather than range over the value.
 	r, known := passes, 0
 	for _, p := range q.props {
-		if v, ok := m[p.name]; ok {
+		if v, ok := m.get(p.name); ok {
 			known++
 			if r = r.and(p.q.check(v)); r == fails {
 				return fails
 			}
 		}
 	}
-	if q.names == nil && (known == len(m) || (q.extra == nil && !q.noExtra)) {
-		return r // no other keys, or nothing said about them
+	if q.names == nil && (q.extra == nil && !q.noExtra || known == m.size()) {
+		return r // nothing said about other keys, or no other keys
 	}
 	if q.noExtra && q.names == nil {
 		return fails // a key the schema does not name
 	}
-	for k, v := range m {
+	m.each(func(k string, v any) bool {
 		if q.names != nil {
 			if r = r.and(q.names.check(k)); r == fails {
-				return fails
+				return false
 			}
 		}
 		if _, named := q.properties[k]; named {
-			continue
+			return true
 		}
 		if q.noExtra {
-			return fails
+			r = fails
+			return false
 		}
-		if r = r.and(q.extra.check(v)); r == fails {
-			return fails
-		}
-	}
+		r = r.and(q.extra.check(v))
+		return r != fails
+	})
 	return r
 }
 
-func (q *quick) array(a []any) verdict {
-	if len(a) < q.minItems {
+func (q *quick) array(a interface {
+	size() int
+	at(int) any
+}) verdict {
+	if a.size() < q.minItems {
 		return fails
 	}
 	r := passes
 	if q.items == nil {
 		return r
 	}
-	for _, v := range a {
-		if r = r.and(q.items.check(v)); r == fails {
+	for i := range a.size() {
+		if r = r.and(q.items.check(a.at(i))); r == fails {
 			return fails
 		}
 	}
