@@ -7,6 +7,7 @@ import (
 	"io"
 	"path/filepath"
 	"regexp"
+	"runtime"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -53,7 +54,23 @@ func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
 		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
 	m.File = file
+	release(t, len(data))
 	return m, nil
+}
+
+// releaseBytes is the input size from which a load hands its node tree back at once.
+const releaseBytes = 1 << 20
+
+// release drops a large document's node tree as soon as the manifest is typed. The
+// tree is about 25 bytes per input byte, all garbage now, and the collector would
+// otherwise reclaim it only once the analysis had allocated as much again: the run's
+// peak would be the tree and the analysis together. One collection, while little else
+// is live, costs far less than the parse did.
+func release(t *tree, size int) {
+	t.doc, t.root = nil, nil
+	if size >= releaseBytes {
+		runtime.GC()
+	}
 }
 
 // isJSON is a file named *.json: it is read as strict JSON, not as YAML.
