@@ -34,16 +34,18 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))
 	sev := severityPaint(paint)
-	var b strings.Builder
+	out := &flusher{w: w, guard: escape.Log}
+	b := &out.b
 	line := func(f rules.Finding, note string) {
 		loc := escape.Text(f.File)
 		if f.Pos.Line > 0 {
 			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
 		}
-		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
+		fmt.Fprintf(b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
 		for _, h := range f.Hints {
-			fmt.Fprintf(&b, "    hint: %s\n", escape.Text(h))
+			fmt.Fprintf(b, "    hint: %s\n", escape.Text(h))
 		}
+		out.flush()
 	}
 	for _, f := range r.Findings {
 		if f.Baselined {
@@ -56,7 +58,7 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 		line(f, note)
 	}
 	if _, baselined := r.Accepted(); baselined > 0 {
-		fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
+		fmt.Fprintf(b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
 		for _, f := range r.Findings {
 			if f.Baselined {
 				line(f, "")
@@ -64,13 +66,13 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 		}
 	}
 	if r.Baseline != nil && r.Baseline.Fixed > 0 {
-		fmt.Fprintf(&b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
+		fmt.Fprintf(b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
 			plural(r.Baseline.Fixed, "baseline entry"), escape.Text(r.Baseline.File))
 	}
 	b.WriteString(SummaryLine(r))
 	b.WriteByte('\n')
-	_, err := io.WriteString(w, escape.Log(b.String()))
-	return err
+	out.flush()
+	return out.err
 }
 
 // painter returns a function that turns a colour into a formatter, or into plain text
@@ -123,4 +125,25 @@ func plural(n int, word string) string {
 		return fmt.Sprintf("%d %sies", n, strings.TrimSuffix(word, "y"))
 	}
 	return fmt.Sprintf("%d %ss", n, word)
+}
+
+// flusher hands a builder's text to w whenever asked, so a report is written as it is
+// built rather than held whole; guard, when set, escapes each piece (pieces are whole
+// lines, so a line-wise guard reads them as it would the page). The first error stops it.
+type flusher struct {
+	w     io.Writer
+	b     strings.Builder
+	guard func(string) string
+	err   error
+}
+
+func (f *flusher) flush() {
+	if f.err == nil && f.b.Len() > 0 {
+		s := f.b.String()
+		if f.guard != nil {
+			s = f.guard(s)
+		}
+		_, f.err = io.WriteString(f.w, s)
+	}
+	f.b.Reset()
 }
