@@ -29,7 +29,7 @@ func (d *decoder) ok(ptr string) bool { return !d.bad.covers(ptr) }
 func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
 	d := &decoder{t: t, bad: bad}
 	m := &Manifest{Format: 1, Pos: d.pos("")}
-	m.Model, _ = root.field("model").(string)
+	m.Model, _ = root.str("model")
 	engine, _ := root.field("engine").(obj)
 	m.Engine = d.engine("/engine", engine, project)
 	if project != nil {
@@ -51,7 +51,7 @@ func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifes
 			continue
 		}
 		tb := d.table(ptr, tm)
-		if _, named := tm.field("name").(string); named && d.ok(ptr+"/name") {
+		if _, named := tm.str("name"); named && d.ok(ptr+"/name") {
 			if first, dup := names[tb.Name]; dup {
 				d.fail(ptr+"/name", fmt.Sprintf("table %s is already declared at line %d; table names must be unique", quoteShort(tb.Name), first.Line))
 			} else {
@@ -235,7 +235,7 @@ func (d *decoder) engine(ptr string, e obj, project *ProjectConfig) Engine {
 		MemoryPos:         d.pos(ptr + "/memory"),
 	}
 	var s EngineSettings
-	if name, ok := e.field("profile").(string); ok {
+	if name, ok := e.str("profile"); ok {
 		out.Profile = name
 		prof, found := project.profile(name)
 		switch {
@@ -296,7 +296,7 @@ func (d *decoder) budgets(ptr string, b fields) Budgets {
 
 func (d *decoder) table(ptr string, raw obj) Table {
 	t := Table{Pos: d.pos(ptr), RowsPos: d.pos(ptr)}
-	t.Name, _ = raw.field("name").(string)
+	t.Name, _ = raw.str("name")
 	if v, ok := raw.get("rows"); ok {
 		t.Rows = d.count(ptr+"/rows", v, false)
 		t.RowsDeclared = true
@@ -338,7 +338,7 @@ func (d *decoder) table(ptr string, raw obj) Table {
 			continue
 		}
 		col := d.column(cp, cm)
-		if _, named := cm.field("name").(string); named && d.ok(cp+"/name") {
+		if _, named := cm.str("name"); named && d.ok(cp+"/name") {
 			if line, dup := seen[col.Name]; dup {
 				d.fail(cp+"/name", fmt.Sprintf("column %s is already profiled at line %d; column names must be unique", quoteShort(col.Name), line))
 			} else {
@@ -353,7 +353,7 @@ func (d *decoder) table(ptr string, raw obj) Table {
 // partitions decodes a policy; itemsOK says a list policy's items are all well-formed.
 func (d *decoder) partitions(ptr string, raw obj) (p Partitions, itemsOK bool) {
 	p = Partitions{Pos: d.keyPos(ptr)}
-	s, _ := raw.field("scheme").(string)
+	s, _ := raw.str("scheme")
 	if !d.ok(ptr + "/scheme") {
 		s = ""
 	}
@@ -391,7 +391,7 @@ func (d *decoder) tiers(ptr string, v any) []Tier {
 	for i, raw := range tiers.items() {
 		tp := ptr + "/" + strconv.Itoa(i)
 		tm, isMap := raw.(obj)
-		g, _ := tm.field("grain").(string)
+		g, _ := tm.str("grain")
 		keep := 0.0
 		if d.ok(tp + "/keep") {
 			keep = number(tm.field("keep"))
@@ -436,7 +436,7 @@ func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
 		}
 		at := items.n.Content[i]
 		it := Item{Pos: Pos{at.Line, at.Column}}
-		name, named := im.field("name").(string)
+		name, named := im.str("name")
 		it.Name = name
 		if allOK || d.ok(ip()+"/rows") {
 			rows, err := count(im.field("rows"), false)
@@ -460,15 +460,15 @@ func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
 
 func (d *decoder) column(ptr string, raw obj) Column {
 	c := Column{Pos: d.pos(ptr), Order: Random}
-	c.Name, _ = raw.field("name").(string)
-	c.Type, _ = raw.field("type").(string)
+	c.Name, _ = raw.str("name")
+	c.Type, _ = raw.str("type")
 	if v, ok := raw.get("distinct"); ok {
 		c.Distinct = d.count(ptr+"/distinct", v, true)
 	}
 	if v, ok := raw.get("avg_length"); ok {
 		c.AvgLength = number(v)
 	}
-	if v, ok := raw.field("order").(string); ok {
+	if v, ok := raw.str("order"); ok {
 		c.Order = Order(v)
 	}
 	if v, ok := raw.get("run_length"); ok {
@@ -482,9 +482,9 @@ func (d *decoder) column(ptr string, raw obj) Column {
 
 func (d *decoder) waiver(ptr string, raw obj) Waiver {
 	w := Waiver{Pos: d.pos(ptr)}
-	w.Rule, _ = raw.field("rule").(string)
-	w.Reason, _ = raw.field("reason").(string)
-	date, ok := raw.field("expires").(string)
+	w.Rule, _ = raw.str("rule")
+	w.Reason, _ = raw.str("reason")
+	date, ok := raw.str("expires")
 	if !ok || !d.ok(ptr+"/expires") {
 		return w
 	}

@@ -288,6 +288,12 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 		}
 		return out, nil
 	case yaml.ScalarNode:
+		if !t.built {
+			if msg := scalarProblem(n); msg != "" {
+				t.refuse(n, t.here(), msg, true)
+			}
+			return nil, nil
+		}
 		v, msg := scalar(n)
 		if msg != "" {
 			t.refuse(n, t.here(), msg, true)
@@ -495,42 +501,86 @@ var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9
 // scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number. A
 // value it refuses comes back as written, with the reason.
 func scalar(n *yaml.Node) (any, string) {
+	sc, msg := scalarOf(n)
+	return sc.value(), msg
+}
+
+// scal is a scalar's JSON value unboxed: its type (one of tNull, tBoolean, tNumber,
+// tString) and its text or truth. The quick check reads node scalars through it, so
+// checking a value allocates nothing.
+type scal struct {
+	kind typeSet
+	text string
+	b    bool
+}
+
+func (s scal) value() any {
+	switch s.kind {
+	case tNull:
+		return nil
+	case tBoolean:
+		return s.b
+	case tNumber:
+		return json.Number(s.text)
+	}
+	return s.text
+}
+
+// scalarOf is scalar unboxed.
+func scalarOf(n *yaml.Node) (scal, string) {
+	if msg := scalarProblem(n); msg != "" {
+		return scal{kind: tString, text: n.Value}, msg
+	}
 	switch n.ShortTag() {
 	case "!!null":
-		return nil, ""
+		return scal{kind: tNull}, ""
 	case "!!bool":
 		var b bool
-		if err := n.Decode(&b); err != nil {
-			return n.Value, "not a valid true/false value"
-		}
-		return b, ""
+		n.Decode(&b) // scalarProblem decoded it already
+		return scal{kind: tBoolean, b: b}, ""
 	case "!!int":
 		if canonicalInt(n.Value) {
-			return json.Number(n.Value), "" // already as big.Int would print it
-		}
-		if !jsonInt.MatchString(n.Value) {
-			if msg := numberFormProblem(n.Value); msg != "" {
-				return n.Value, msg
-			}
-			return n.Value, fmt.Sprintf("%s is not a valid integer", quoteShort(n.Value))
+			return scal{kind: tNumber, text: n.Value}, "" // already as big.Int would print it
 		}
 		var i big.Int
 		i.SetString(n.Value, 10)
-		return json.Number(i.String()), ""
+		return scal{kind: tNumber, text: i.String()}, ""
+	case "!!float":
+		// Kept as written, so messages quote the user.
+		return scal{kind: tNumber, text: n.Value}, ""
+	default:
+		// Strings and plain dates (!!timestamp) are kept as written.
+		return scal{kind: tString, text: n.Value}, ""
+	}
+}
+
+// scalarProblem is why scalar refuses n, "" when it takes it; the conversion's check,
+// which needs no value.
+func scalarProblem(n *yaml.Node) string {
+	switch n.ShortTag() {
+	case "!!bool":
+		var b bool
+		if err := n.Decode(&b); err != nil {
+			return "not a valid true/false value"
+		}
+	case "!!int":
+		if canonicalInt(n.Value) || jsonInt.MatchString(n.Value) {
+			return ""
+		}
+		if msg := numberFormProblem(n.Value); msg != "" {
+			return msg
+		}
+		return fmt.Sprintf("%s is not a valid integer", quoteShort(n.Value))
 	case "!!float":
 		if !jsonNumber.MatchString(n.Value) {
 			if msg := numberFormProblem(n.Value); msg != "" {
-				return n.Value, msg
+				return msg
 			}
-			return n.Value, fmt.Sprintf("%s is not a valid number", quoteShort(n.Value))
+			return fmt.Sprintf("%s is not a valid number", quoteShort(n.Value))
 		}
 		if f, err := strconv.ParseFloat(n.Value, 64); err != nil && !errors.Is(err, strconv.ErrRange) || math.IsInf(f, 0) {
-			return n.Value, fmt.Sprintf("%s is not a finite number; write a plain number", quoteShort(n.Value))
+			return fmt.Sprintf("%s is not a finite number; write a plain number", quoteShort(n.Value))
 		}
-		// Kept as written, so messages quote the user.
-		return json.Number(n.Value), ""
-	default:
-		// Strings and plain dates (!!timestamp) are kept as written.
-		return n.Value, ""
 	}
+	return ""
 }

@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"go.yaml.in/yaml/v3"
 )
 
 // The quick check answers one question about a document, "does it match the schema?",
@@ -293,22 +295,39 @@ func isInteger(n json.Number) verdict {
 	return passes
 }
 
+// unboxed is a scalar value of either form as a scal; ok is false for a mapping or a
+// sequence.
+func unboxed(v any) (scal, bool) {
+	switch v := v.(type) {
+	case *yaml.Node:
+		return nodeScalar(v), true
+	case string:
+		return scal{kind: tString, text: v}, true
+	case json.Number:
+		return scal{kind: tNumber, text: string(v)}, true
+	case bool:
+		return scal{kind: tBoolean, b: v}, true
+	case nil:
+		return scal{kind: tNull}, true
+	}
+	return scal{}, false
+}
+
 // equal compares a document value with a const or enum value of the schema.
 func equal(v, want any) verdict {
+	sc, isScalar := unboxed(v)
 	switch w := want.(type) {
 	case string:
-		s, ok := v.(string)
-		return truth(ok && s == w)
+		return truth(isScalar && sc.kind == tString && sc.text == w)
 	case bool:
-		b, ok := v.(bool)
-		return truth(ok && b == w)
+		return truth(isScalar && sc.kind == tBoolean && sc.b == w)
 	case nil:
-		return truth(v == nil)
+		return truth(isScalar && sc.kind == tNull)
 	case json.Number:
-		n, ok := v.(json.Number)
-		if !ok {
+		if !isScalar || sc.kind != tNumber {
 			return truth(false)
 		}
+		n := json.Number(sc.text)
 		if n == w {
 			return passes
 		}
@@ -343,7 +362,7 @@ func (q *quick) check(v any) verdict {
 		return fails
 	}
 	switch v.(type) {
-	case map[string]any, []any, obj, list, string, bool, nil, json.Number:
+	case map[string]any, []any, obj, list, *yaml.Node, string, bool, nil, json.Number:
 	default:
 		return unsure // not a value the tree holds
 	}
@@ -370,6 +389,13 @@ func (q *quick) check(v any) verdict {
 		r = r.and(q.number(v))
 	case string:
 		r = r.and(q.text(v))
+	case *yaml.Node:
+		switch sc := nodeScalar(v); sc.kind {
+		case tNumber:
+			r = r.and(q.number(json.Number(sc.text)))
+		case tString:
+			r = r.and(q.text(sc.text))
+		}
 	case map[string]any:
 		r = r.and(q.object(builtObject(v)))
 	case obj:
@@ -436,20 +462,18 @@ func (q *quick) typeOK(v any) verdict {
 		bit = tObject
 	case []any, list:
 		bit = tArray
-	case string:
-		bit = tString
-	case bool:
-		bit = tBoolean
-	case nil:
-		bit = tNull
-	case json.Number:
-		if q.types&tNumber != 0 {
-			return passes
+	default:
+		sc, _ := unboxed(v)
+		if sc.kind == tNumber {
+			if q.types&tNumber != 0 {
+				return passes
+			}
+			if q.types&tInteger != 0 {
+				return isInteger(json.Number(sc.text)) // passes or unsure, never a definite no
+			}
+			return fails
 		}
-		if q.types&tInteger != 0 {
-			return isInteger(v) // passes or unsure, never a definite no
-		}
-		return fails
+		bit = sc.kind
 	}
 	return truth(q.types&bit != 0)
 }
@@ -479,7 +503,7 @@ func (q *quick) text(s string) verdict {
 
 // object is a mapping in either form.
 type object interface {
-	get(key string) (any, bool)
+	member(key string) (any, bool)
 	size() int
 	each(yield func(key string, v any) bool)
 }
@@ -490,8 +514,9 @@ type (
 	builtList   []any
 )
 
-func (m builtObject) get(key string) (any, bool) { v, ok := m[key]; return v, ok }
-func (m builtObject) size() int                  { return len(m) }
+func (m builtObject) member(key string) (any, bool) { v, ok := m[key]; return v, ok }
+func (m builtObject) get(key string) (any, bool)    { return m.member(key) }
+func (m builtObject) size() int                     { return len(m) }
 func (m builtObject) each(yield func(string, any) bool) {
 	for k, v := range m {
 		if !yield(k, v) {
@@ -502,25 +527,25 @@ func (m builtObject) each(yield func(string, any) bool) {
 
 func (o obj) each(yield func(string, any) bool) {
 	for k, n := range o.members() {
-		if !yield(k, nodeValue(n)) {
+		if !yield(k, rawValue(n)) {
 			return
 		}
 	}
 }
 
-func (a builtList) size() int    { return len(a) }
-func (a builtList) at(i int) any { return a[i] }
+func (a builtList) size() int      { return len(a) }
+func (a builtList) elem(i int) any { return a[i] }
 
 func (q *quick) object(m object) verdict {
 	for _, k := range q.required {
-		if _, ok := m.get(k); !ok {
+		if _, ok := m.member(k); !ok {
 			return fails
 		}
 	}
 	// The schema's properties are few: look each up rather than range over the value.
 	r, known := passes, 0
 	for _, p := range q.props {
-		if v, ok := m.get(p.name); ok {
+		if v, ok := m.member(p.name); ok {
 			known++
 			if r = r.and(p.q.check(v)); r == fails {
 				return fails
@@ -554,7 +579,7 @@ func (q *quick) object(m object) verdict {
 
 func (q *quick) array(a interface {
 	size() int
-	at(int) any
+	elem(int) any
 }) verdict {
 	if a.size() < q.minItems {
 		return fails
@@ -564,7 +589,7 @@ func (q *quick) array(a interface {
 		return r
 	}
 	for i := range a.size() {
-		if r = r.and(q.items.check(a.at(i))); r == fails {
+		if r = r.and(q.items.check(a.elem(i))); r == fails {
 			return fails
 		}
 	}

@@ -24,6 +24,16 @@ type list struct{ n *yaml.Node }
 
 // nodeValue is the value of n, as convert builds it.
 func nodeValue(n *yaml.Node) any {
+	v := rawValue(n)
+	if sn, ok := v.(*yaml.Node); ok {
+		return nodeScalar(sn).value()
+	}
+	return v
+}
+
+// rawValue is nodeValue with a scalar left as its (dereferenced) node, which boxes
+// without allocating: the quick check reads it through nodeScalar.
+func rawValue(n *yaml.Node) any {
 	if n == nil {
 		return nil
 	}
@@ -34,13 +44,18 @@ func nodeValue(n *yaml.Node) any {
 	case yaml.SequenceNode:
 		return list{n}
 	case yaml.ScalarNode:
-		if tagProblem(n) != "" {
-			return n.Value
-		}
-		v, _ := scalar(n)
-		return v
+		return n
 	}
 	return nil
+}
+
+// nodeScalar is a scalar node's value as convert builds it.
+func nodeScalar(n *yaml.Node) scal {
+	if tagProblem(n) != "" {
+		return scal{kind: tString, text: n.Value}
+	}
+	sc, _ := scalarOf(n)
+	return sc
 }
 
 // ownKey is a key the conversion keeps in its mapping (a duplicate aside): a scalar
@@ -116,12 +131,30 @@ func mergedLookup(m *yaml.Node, key string) *yaml.Node {
 	return nil
 }
 
+// member is get with a scalar left as its node (rawValue), for the quick check.
+func (o obj) member(key string) (any, bool) {
+	if v := o.lookup(key); v != nil {
+		return rawValue(v), true
+	}
+	return nil, false
+}
+
 // get is the value of key and whether the mapping has it.
 func (o obj) get(key string) (any, bool) {
 	if v := o.lookup(key); v != nil {
 		return nodeValue(v), true
 	}
 	return nil, false
+}
+
+// str is the value of key when it is a string; it allocates nothing.
+func (o obj) str(key string) (string, bool) {
+	n, ok := rawValue(o.lookup(key)).(*yaml.Node)
+	if !ok {
+		return "", false
+	}
+	sc := nodeScalar(n)
+	return sc.text, sc.kind == tString
 }
 
 // field is the value of key, nil when absent.
@@ -216,6 +249,9 @@ func (l list) size() int {
 
 func (l list) at(i int) any { return nodeValue(l.n.Content[i]) }
 
+// elem is at with a scalar left as its node (rawValue), for the quick check.
+func (l list) elem(i int) any { return rawValue(l.n.Content[i]) }
+
 // items visits the elements with their indexes.
 func (l list) items() iter.Seq2[int, any] {
 	return func(yield func(int, any) bool) {
@@ -246,9 +282,10 @@ func built(v any) any {
 	return v
 }
 
-// keySet is a small set of names: a slice while it is short, a map beyond.
+// keySet is a small set of names: an array while it is short, a map beyond.
 type keySet struct {
-	few  []string
+	few  [8]string
+	n    int
 	many map[string]bool
 }
 
@@ -256,7 +293,7 @@ func (s *keySet) has(k string) bool {
 	if s.many != nil {
 		return s.many[k]
 	}
-	for _, x := range s.few {
+	for _, x := range s.few[:s.n] {
 		if x == k {
 			return true
 		}
@@ -265,16 +302,17 @@ func (s *keySet) has(k string) bool {
 }
 
 func (s *keySet) add(k string) {
-	if s.many != nil {
+	switch {
+	case s.many != nil:
 		s.many[k] = true
-		return
-	}
-	s.few = append(s.few, k)
-	if len(s.few) > 16 {
-		s.many = make(map[string]bool, 2*len(s.few))
+	case s.n < len(s.few):
+		s.few[s.n] = k
+		s.n++
+	default:
+		s.many = make(map[string]bool, 4*len(s.few))
 		for _, x := range s.few {
 			s.many[x] = true
 		}
-		s.few = nil
+		s.many[k] = true
 	}
 }
