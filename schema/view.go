@@ -96,39 +96,17 @@ func (o obj) lookup(key string) *yaml.Node {
 }
 
 // mergedLookup finds key in what a merge key refers to, as merge fills a mapping: the
-// sources in order, and in each its keys in order with its own merge key where written,
-// the first found winning.
+// first the merge brings in.
 func mergedLookup(m *yaml.Node, key string) *yaml.Node {
-	target := m
-	for target.Kind == yaml.AliasNode {
-		target = target.Alias
-	}
-	switch target.Kind {
-	case yaml.SequenceNode:
-		for _, e := range target.Content {
-			if v := mergedLookup(e, key); v != nil {
-				return v
-			}
+	var found *yaml.Node
+	var seen keySet
+	mergedMembers(m, &seen, func(k string, v *yaml.Node) bool {
+		if k == key {
+			found = v
 		}
-	case yaml.MappingNode:
-		merged := false
-		c := target.Content
-		for i := 0; i+1 < len(c); i += 2 {
-			k := c[i]
-			switch {
-			case isMergeKey(k):
-				if !merged {
-					merged = true
-					if v := mergedLookup(c[i+1], key); v != nil {
-						return v
-					}
-				}
-			case k.Kind == yaml.ScalarNode && k.Value == key:
-				return c[i+1]
-			}
-		}
-	}
-	return nil
+		return found == nil
+	})
+	return found
 }
 
 // member is get with a scalar left as its node (rawValue), for the quick check.
@@ -185,7 +163,9 @@ func (o obj) members() iter.Seq2[string, *yaml.Node] {
 	}
 }
 
-// mergedMembers visits the keys a merge brings in that are not set yet.
+// mergedMembers visits the keys a merge brings in that are not set yet, as merge fills
+// a mapping: the sources in order, and in each its keys in order with its own first
+// merge key where it is written.
 func mergedMembers(m *yaml.Node, seen *keySet, yield func(string, *yaml.Node) bool) bool {
 	target := m
 	for target.Kind == yaml.AliasNode {

@@ -93,25 +93,35 @@ func (jw *jsonWriter) value(v reflect.Value, depth int) {
 	}
 }
 
-func (jw *jsonWriter) list(s streamed, depth int) {
-	n := 0
-	s.each(func(e any) bool {
-		if n > 0 {
-			jw.raw(",")
-		} else {
-			jw.raw("[")
-		}
-		n++
-		jw.newline(depth + 1)
-		jw.value(reflect.ValueOf(e), depth+1)
-		return jw.err == nil
-	})
+// member starts the n-th member of an array or object opened by open ("[" or "{").
+func (jw *jsonWriter) member(n *int, open string, depth int) {
+	if *n > 0 {
+		jw.raw(",")
+	} else {
+		jw.raw(open)
+	}
+	*n++
+	jw.newline(depth + 1)
+}
+
+// end closes an array or object of n members: "[]" or "{}" when it has none.
+func (jw *jsonWriter) end(n int, open, close string, depth int) {
 	if n == 0 {
-		jw.raw("[]")
+		jw.raw(open + close)
 		return
 	}
 	jw.newline(depth)
-	jw.raw("]")
+	jw.raw(close)
+}
+
+func (jw *jsonWriter) list(s streamed, depth int) {
+	n := 0
+	s.each(func(e any) bool {
+		jw.member(&n, "[", depth)
+		jw.value(reflect.ValueOf(e), depth+1)
+		return jw.err == nil
+	})
+	jw.end(n, "[", "]", depth)
 }
 
 func (jw *jsonWriter) object(v reflect.Value, depth int) {
@@ -121,22 +131,11 @@ func (jw *jsonWriter) object(v reflect.Value, depth int) {
 		if f.omitEmpty && isEmptyJSON(fv) {
 			continue
 		}
-		if n > 0 {
-			jw.raw(",")
-		} else {
-			jw.raw("{")
-		}
-		n++
-		jw.newline(depth + 1)
+		jw.member(&n, "{", depth)
 		jw.raw(f.key)
 		jw.value(fv, depth+1)
 	}
-	if n == 0 {
-		jw.raw("{}")
-		return
-	}
-	jw.newline(depth)
-	jw.raw("}")
+	jw.end(n, "{", "}", depth)
 }
 
 // encoded writes v as encoding/json indents it at depth.
