@@ -330,6 +330,9 @@ func (d *decoder) table(ptr string, raw obj) Table {
 		}
 	}
 	cols, _ := raw.field("columns").(list)
+	if cols.size() > 0 {
+		t.Columns = make([]Column, 0, cols.size()) // kept with the table to the end of a run
+	}
 	seen := map[string]int{}
 	for i, c := range cols.items() {
 		cp := ptr + "/columns/" + strconv.Itoa(i)
