@@ -1,10 +1,13 @@
 #!/usr/bin/env bash
 # Benchmarks scangate against a decode-only baseline on generated inputs (seeded, so the
 # same on every machine): (a) one manifest with 100,000 listed partitions, (b) a
-# monorepo of 2,000 manifests of about 40 tables (5% of them messy), a stress set where
-# every table is messy, (c) the demo, (d) one manifest of 100,000 small tables; then
-# growth with 10k/100k/1M partitions and with 10k/100k tables, and the startup time.
-# Prints medians of RUNS runs and the ratios against the targets.
+# monorepo of 2,000 manifests of about 40 tables (5% of them messy), a dense-findings
+# monorepo of 800 such manifests (about half the tables flagged), a stress set where
+# every table is messy, (c) the demo, (d) one manifest of 100,000 small tables; then the
+# monorepo as --format json (against its text run) and diffed against a copy with 5% of
+# its files changed (against one check of the copy); growth with 10k/100k/1M partitions
+# and with 1k/10k/100k tables, and the startup time. Prints medians of RUNS runs, the
+# ratios against the targets, and the Markdown table README.md's Speed section shows.
 #
 #   bench/run.sh            RUNS=3 bench/run.sh
 set -euo pipefail

@@ -93,11 +93,11 @@ func LoadConfig(file string, data []byte, lim Limits) (*ProjectConfig, error) {
 	engines, _ := root["engines"].(map[string]any)
 	for _, name := range sortedNames(engines) {
 		if e, ok := engines[name].(map[string]any); ok {
-			c.Engines[name] = d.engineSettings("/engines/"+escapeToken(name), e)
+			c.Engines[name] = d.engineSettings("/engines/"+escapeToken(name), builtObject(e))
 		}
 	}
 	if b, ok := root["budgets"].(map[string]any); ok {
-		c.Budgets = d.budgets("/budgets", b)
+		c.Budgets = d.budgets("/budgets", builtObject(b))
 	}
 	rules, _ := root["rules"].(map[string]any)
 	for _, id := range sortedNames(rules) {

@@ -5,8 +5,6 @@ import (
 	"fmt"
 	"strconv"
 	"time"
-
-	"go.yaml.in/yaml/v3"
 )
 
 // MaxPartitions bounds the partitions one table may generate, so a policy such as
@@ -28,32 +26,32 @@ type decoder struct {
 // was found wrong.
 func (d *decoder) ok(ptr string) bool { return !d.bad.covers(ptr) }
 
-func (t *tree) decode(root map[string]any, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
+func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
 	d := &decoder{t: t, bad: bad}
 	m := &Manifest{Format: 1, Pos: d.pos("")}
-	m.Model, _ = root["model"].(string)
-	engine, _ := root["engine"].(map[string]any)
+	m.Model, _ = root.str("model")
+	engine, _ := root.field("engine").(obj)
 	m.Engine = d.engine("/engine", engine, project)
 	if project != nil {
 		m.Budgets = project.Budgets
 	}
-	if b, ok := root["budgets"].(map[string]any); ok {
+	if b, ok := root.field("budgets").(obj); ok {
 		m.Budgets = m.Budgets.Override(d.budgets("/budgets", b))
 	}
-	tables, _ := root["tables"].([]any)
+	tables, _ := root.field("tables").(list)
 	if !d.ok("/tables") {
-		tables = nil
+		tables = list{}
 	}
-	names := make(map[string]Pos, len(tables))
-	m.Tables = make([]Table, 0, len(tables))
-	for i, raw := range tables {
+	names := make(map[string]Pos, tables.size())
+	m.Tables = make([]Table, 0, tables.size())
+	for i, raw := range tables.items() {
 		ptr := "/tables/" + strconv.Itoa(i)
-		tm, isMap := raw.(map[string]any)
+		tm, isMap := raw.(obj)
 		if !isMap || !d.ok(ptr) {
 			continue
 		}
 		tb := d.table(ptr, tm)
-		if _, named := tm["name"].(string); named && d.ok(ptr+"/name") {
+		if _, named := tm.str("name"); named && d.ok(ptr+"/name") {
 			if first, dup := names[tb.Name]; dup {
 				d.fail(ptr+"/name", fmt.Sprintf("table %s is already declared at line %d; table names must be unique", quoteShort(tb.Name), first.Line))
 			} else {
@@ -115,9 +113,15 @@ func count(v any, positive bool) (int64, error) {
 	return n, err
 }
 
+// fields is a mapping as decoding reads it: a view (obj) for a manifest, the built map
+// (builtObject) for the project config.
+type fields interface {
+	get(key string) (any, bool)
+}
+
 // optNumber is m[key] as a number, nil when the key is absent.
-func optNumber(m map[string]any, key string) *float64 {
-	v, ok := m[key]
+func optNumber(m fields, key string) *float64 {
+	v, ok := m.get(key)
 	if !ok {
 		return nil
 	}
@@ -207,35 +211,35 @@ func (s EngineSettings) over(top EngineSettings) EngineSettings {
 }
 
 // engineSettings decodes the engine fields of a manifest's engine block or a profile.
-func (d *decoder) engineSettings(ptr string, e map[string]any) EngineSettings {
+func (d *decoder) engineSettings(ptr string, e fields) EngineSettings {
 	var s EngineSettings
-	if v, ok := e["segment_rows"]; ok {
+	if v, ok := e.get("segment_rows"); ok {
 		n := d.count(ptr+"/segment_rows", v, true)
 		s.SegmentRows = &n
 	}
-	if v, ok := e["cores"]; ok {
+	if v, ok := e.get("cores"); ok {
 		n := wholeUpTo(v, maxCores)
 		s.Cores = &n
 	}
 	s.SegmentOverheadMs = optNumber(e, "segment_overhead_ms")
 	s.ScanMBPerS = optNumber(e, "scan_mb_per_s")
-	if v, ok := e["memory"]; ok {
+	if v, ok := e.get("memory"); ok {
 		n := d.bytes(ptr+"/memory", v)
 		s.Memory = &n
 	}
-	if v, ok := e["refresh_parallelism"]; ok {
+	if v, ok := e.get("refresh_parallelism"); ok {
 		n := wholeUpTo(v, maxCores)
 		s.RefreshParallelism = &n
 	}
 	s.RefreshRowsPerS = optNumber(e, "refresh_rows_per_s")
-	if v, ok := e["max_segment_rows"]; ok {
+	if v, ok := e.get("max_segment_rows"); ok {
 		n := d.count(ptr+"/max_segment_rows", v, true)
 		s.MaxSegmentRows = &n
 	}
 	return s
 }
 
-func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) Engine {
+func (d *decoder) engine(ptr string, e obj, project *ProjectConfig) Engine {
 	out := Engine{
 		Cores:             DefaultCores,
 		SegmentOverheadMs: DefaultSegmentOverheadMs,
@@ -246,7 +250,7 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 		MemoryPos:         d.pos(ptr + "/memory"),
 	}
 	var s EngineSettings
-	if name, ok := e["profile"].(string); ok {
+	if name, ok := e.str("profile"); ok {
 		out.Profile = name
 		prof, found := project.profile(name)
 		switch {
@@ -309,41 +313,41 @@ func (d *decoder) engine(ptr string, e map[string]any, project *ProjectConfig) E
 	return out
 }
 
-func (d *decoder) budgets(ptr string, b map[string]any) Budgets {
+func (d *decoder) budgets(ptr string, b fields) Budgets {
 	out := Budgets{Pos: d.keyPos(ptr)}
 	out.ScanOverheadMs = optNumber(b, "scan_overhead_ms")
 	out.ScanMs = optNumber(b, "scan_ms")
-	if v, ok := b["refresh_memory"]; ok {
+	if v, ok := b.get("refresh_memory"); ok {
 		n := d.bytes(ptr+"/refresh_memory", v)
 		out.RefreshMemory = &n
 	}
 	return out
 }
 
-func (d *decoder) table(ptr string, raw map[string]any) Table {
+func (d *decoder) table(ptr string, raw obj) Table {
 	t := Table{Pos: d.pos(ptr), RowsPos: d.pos(ptr)}
-	t.Name, _ = raw["name"].(string)
-	if v, ok := raw["rows"]; ok {
+	t.Name, _ = raw.str("name")
+	if v, ok := raw.get("rows"); ok {
 		t.Rows = d.count(ptr+"/rows", v, false)
 		t.RowsDeclared = true
 		t.RowsPos = d.pos(ptr + "/rows")
 	}
 	t.GrowthPos = t.Pos
-	if v, ok := raw["growth_per_year"]; ok {
+	if v, ok := raw.get("growth_per_year"); ok {
 		t.GrowthPerYear = number(v)
 		t.GrowthPos = d.pos(ptr + "/growth_per_year")
 	}
-	if b, ok := raw["budgets"].(map[string]any); ok {
+	if b, ok := raw.field("budgets").(obj); ok {
 		t.Budgets = d.budgets(ptr+"/budgets", b)
 	}
 	itemsOK := false
-	if pm, ok := raw["partitions"].(map[string]any); ok && d.ok(ptr+"/partitions") {
+	if pm, ok := raw.field("partitions").(obj); ok && d.ok(ptr+"/partitions") {
 		t.Partitions, itemsOK = d.partitions(ptr+"/partitions", pm)
 	}
-	ws, _ := raw["waivers"].([]any)
-	for i, w := range ws {
+	ws, _ := raw.field("waivers").(list)
+	for i, w := range ws.items() {
 		wp := ptr + "/waivers/" + strconv.Itoa(i)
-		if wm, ok := w.(map[string]any); ok && d.ok(wp) {
+		if wm, ok := w.(obj); ok && d.ok(wp) {
 			t.Waivers = append(t.Waivers, d.waiver(wp, wm))
 		}
 	}
@@ -357,19 +361,22 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 			d.fail(ptr+"/partitions", fmt.Sprintf("the listed partitions sum to %s rows, above the limit of %s", group(t.Rows), group(MaxCount)))
 		}
 	}
-	if r, ok := raw["refresh"].(map[string]any); ok && d.ok(ptr+"/refresh") {
+	if r, ok := raw.field("refresh").(obj); ok && d.ok(ptr+"/refresh") {
 		t.Routine = d.routine(ptr+"/refresh/routine", r, t.Partitions.Scheme)
 	}
-	cols, _ := raw["columns"].([]any)
+	cols, _ := raw.field("columns").(list)
+	if cols.size() > 0 {
+		t.Columns = make([]Column, 0, cols.size()) // kept with the table to the end of a run
+	}
 	seen := map[string]int{}
-	for i, c := range cols {
+	for i, c := range cols.items() {
 		cp := ptr + "/columns/" + strconv.Itoa(i)
-		cm, ok := c.(map[string]any)
+		cm, ok := c.(obj)
 		if !ok || !d.ok(cp) {
 			continue
 		}
 		col := d.column(cp, cm)
-		if _, named := cm["name"].(string); named && d.ok(cp+"/name") {
+		if _, named := cm.str("name"); named && d.ok(cp+"/name") {
 			if line, dup := seen[col.Name]; dup {
 				d.fail(cp+"/name", fmt.Sprintf("column %s is already profiled at line %d; column names must be unique", quoteShort(col.Name), line))
 			} else {
@@ -382,9 +389,9 @@ func (d *decoder) table(ptr string, raw map[string]any) Table {
 }
 
 // partitions decodes a policy; itemsOK says a list policy's items are all well-formed.
-func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, itemsOK bool) {
+func (d *decoder) partitions(ptr string, raw obj) (p Partitions, itemsOK bool) {
 	p = Partitions{Pos: d.keyPos(ptr)}
-	s, _ := raw["scheme"].(string)
+	s, _ := raw.str("scheme")
 	if !d.ok(ptr + "/scheme") {
 		s = ""
 	}
@@ -393,7 +400,7 @@ func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, item
 	case SchemeEven:
 		count := 0.0
 		if d.ok(ptr + "/count") {
-			count = number(raw["count"])
+			count = number(raw.field("count"))
 		}
 		// Capped before the conversion: beyond int64 it wraps (count: 1e19 once became
 		// a negative count and the table was silently left out).
@@ -402,9 +409,9 @@ func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, item
 			d.fail(ptr+"/count", fmt.Sprintf("%s partitions is above the limit of %s per table; use fewer, larger partitions", figure(count), group(MaxPartitions)))
 		}
 	case SchemeTime:
-		p.Tiers = d.tiers(ptr+"/tiers", raw["tiers"])
+		p.Tiers = d.tiers(ptr+"/tiers", raw.field("tiers"))
 	case SchemeList:
-		p.Items, itemsOK = d.items(ptr+"/items", raw["items"])
+		p.Items, itemsOK = d.items(ptr+"/items", raw.field("items"))
 	}
 	return p, itemsOK
 }
@@ -412,20 +419,20 @@ func (d *decoder) partitions(ptr string, raw map[string]any) (p Partitions, item
 // tiers decodes a time policy's tiers and checks their order and total. Only two
 // well-formed neighbours are compared.
 func (d *decoder) tiers(ptr string, v any) []Tier {
-	list, _ := v.([]any)
+	tiers, _ := v.(list)
 	if !d.ok(ptr) {
 		return nil
 	}
 	var out []Tier
 	var prev *Tier
 	total := 0.0
-	for i, raw := range list {
+	for i, raw := range tiers.items() {
 		tp := ptr + "/" + strconv.Itoa(i)
-		tm, isMap := raw.(map[string]any)
-		g, _ := tm["grain"].(string)
+		tm, isMap := raw.(obj)
+		g, _ := tm.str("grain")
 		keep := 0.0
 		if d.ok(tp + "/keep") {
-			keep = number(tm["keep"])
+			keep = number(tm.field("keep"))
 		}
 		tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: d.pos(tp)}
 		if !isMap || !d.ok(tp) || !d.ok(tp+"/grain") || tier.Grain.Rank() < 0 {
@@ -449,34 +456,28 @@ func (d *decoder) tiers(ptr string, v any) []Tier {
 // items decodes a list policy's items and checks their names are unique; allOK is false
 // when any item is wrong, so its rows are not summed.
 func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
-	items, _ := v.([]any)
+	items, _ := v.(list)
 	if !d.ok(ptr) {
 		return nil, false
 	}
 	allOK = !d.bad.touches(ptr)
-	names := make(map[string]int, len(items))
-	out = make([]Item, 0, len(items))
-	// A list may hold 100,000 items: find the sequence once and take each item's
-	// position from it, and build an item's pointer only to report a problem there.
-	seq := deref(d.t.locate(ptr).value)
-	bySeq := seq != nil && seq.Kind == yaml.SequenceNode && len(seq.Content) == len(items)
-	for i, raw := range items {
+	names := make(map[string]int, items.size())
+	out = make([]Item, 0, items.size())
+	// A list may hold 100,000 items: take each item's position from its node, and build
+	// an item's pointer only to report a problem there.
+	for i, raw := range items.items() {
 		ip := func() string { return ptr + "/" + strconv.Itoa(i) }
-		im, isMap := raw.(map[string]any)
+		im, isMap := raw.(obj)
 		// Pointers are built only when something in the list is wrong.
 		if !isMap || (!allOK && !d.ok(ip())) {
 			continue
 		}
-		it := Item{}
-		if bySeq {
-			it.Pos = Pos{seq.Content[i].Line, seq.Content[i].Column}
-		} else {
-			it.Pos = d.pos(ip())
-		}
-		name, named := im["name"].(string)
+		at := items.n.Content[i]
+		it := Item{Pos: Pos{at.Line, at.Column}}
+		name, named := im.str("name")
 		it.Name = name
 		if allOK || d.ok(ip()+"/rows") {
-			rows, err := count(im["rows"], false)
+			rows, err := count(im.field("rows"), false)
 			if err != nil {
 				allOK = false
 				d.fail(ip()+"/rows", err.Error())
@@ -497,14 +498,14 @@ func (d *decoder) items(ptr string, v any) (out []Item, allOK bool) {
 
 // routine decodes refresh.routine and checks its key suits the scheme: days for time,
 // partitions for the others.
-func (d *decoder) routine(ptr string, refresh map[string]any, scheme Scheme) Routine {
-	raw, ok := refresh["routine"].(map[string]any)
+func (d *decoder) routine(ptr string, refresh obj, scheme Scheme) Routine {
+	raw, ok := refresh.field("routine").(obj)
 	if !ok || !d.ok(ptr) {
 		return Routine{}
 	}
 	r := Routine{Pos: d.keyPos(ptr)}
-	_, days := raw["recent_days"]
-	_, parts := raw["recent_partitions"]
+	_, days := raw.get("recent_days")
+	_, parts := raw.get("recent_partitions")
 	if days == parts {
 		word := "recent_days (scheme time) or recent_partitions (even, list)"
 		if scheme == SchemeTime {
@@ -519,13 +520,13 @@ func (d *decoder) routine(ptr string, refresh map[string]any, scheme Scheme) Rou
 		d.fail(ptr, fmt.Sprintf("the routine refresh needs exactly one of recent_days and recent_partitions; %s %s", verb, word))
 		return r
 	}
-	if v, ok := raw["recent_days"]; ok && d.ok(ptr+"/recent_days") {
+	if v, ok := raw.get("recent_days"); ok && d.ok(ptr+"/recent_days") {
 		r.RecentDays = wholeUpTo(v, maxRecentDays)
 		if scheme != SchemeTime && scheme != "" {
 			d.fail(ptr+"/recent_days", fmt.Sprintf("recent_days needs scheme time; this table's scheme is %s: write recent_partitions (the last partitions the routine refresh rebuilds)", scheme))
 		}
 	}
-	if v, ok := raw["recent_partitions"]; ok && d.ok(ptr+"/recent_partitions") {
+	if v, ok := raw.get("recent_partitions"); ok && d.ok(ptr+"/recent_partitions") {
 		r.RecentPartitions = wholeUpTo(v, MaxPartitions)
 		if scheme == SchemeTime {
 			d.fail(ptr+"/recent_partitions", "a time table's routine refresh is written as recent_days (the newest days it reloads), which stays true when the partition grain changes")
@@ -537,33 +538,33 @@ func (d *decoder) routine(ptr string, refresh map[string]any, scheme Scheme) Rou
 // maxRecentDays is the manifest schema's maximum of refresh.routine.recent_days.
 const maxRecentDays = 36525
 
-func (d *decoder) column(ptr string, raw map[string]any) Column {
+func (d *decoder) column(ptr string, raw obj) Column {
 	c := Column{Pos: d.pos(ptr), Order: Random}
-	c.Name, _ = raw["name"].(string)
-	c.Type, _ = raw["type"].(string)
-	if v, ok := raw["distinct"]; ok {
+	c.Name, _ = raw.str("name")
+	c.Type, _ = raw.str("type")
+	if v, ok := raw.get("distinct"); ok {
 		c.Distinct = d.count(ptr+"/distinct", v, true)
 	}
-	if v, ok := raw["avg_length"]; ok {
+	if v, ok := raw.get("avg_length"); ok {
 		c.AvgLength = number(v)
 	}
-	if v, ok := raw["order"].(string); ok {
+	if v, ok := raw.str("order"); ok {
 		c.Order = Order(v)
 	}
-	if v, ok := raw["run_length"]; ok {
+	if v, ok := raw.get("run_length"); ok {
 		c.RunLength = d.count(ptr+"/run_length", v, true)
 	}
-	if v, ok := raw["encoded_bytes"]; ok {
+	if v, ok := raw.get("encoded_bytes"); ok {
 		c.EncodedBytes = d.bytes(ptr+"/encoded_bytes", v)
 	}
 	return c
 }
 
-func (d *decoder) waiver(ptr string, raw map[string]any) Waiver {
+func (d *decoder) waiver(ptr string, raw obj) Waiver {
 	w := Waiver{Pos: d.pos(ptr)}
-	w.Rule, _ = raw["rule"].(string)
-	w.Reason, _ = raw["reason"].(string)
-	date, ok := raw["expires"].(string)
+	w.Rule, _ = raw.str("rule")
+	w.Reason, _ = raw.str("reason")
+	date, ok := raw.str("expires")
 	if !ok || !d.ok(ptr+"/expires") {
 		return w
 	}

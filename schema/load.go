@@ -7,6 +7,7 @@ import (
 	"io"
 	"path/filepath"
 	"regexp"
+	"runtime"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -32,7 +33,8 @@ type Options struct {
 // named profile, then the defaults; budgets resolve table, then manifest, then project.
 func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
 	const start = "a manifest starts with \"format: 1\""
-	t, ps := parse(file, data, o.Limits, start)
+	// Read from its nodes alone: the values are built only if the schema library is needed.
+	t, ps := parseTree(isJSON(file), data, o.Limits, start, false)
 	if t == nil {
 		return nil, &Error{File: file, Problems: ps}
 	}
@@ -40,7 +42,7 @@ func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
 	// that are well-formed, so every problem is reported at once.
 	ps, bad := t.check(manifestDoc)
 	var m *Manifest
-	if root, ok := t.root.(map[string]any); ok {
+	if root, ok := nodeValue(t.doc).(obj); ok {
 		var dps []Problem
 		m, dps = t.decode(root, o.Project, bad)
 		ps = append(ps, dps...)
@@ -52,7 +54,23 @@ func LoadWith(file string, data []byte, o Options) (*Manifest, error) {
 		return nil, &Error{File: file, Problems: sortProblems(ps)}
 	}
 	m.File = file
+	release(t, len(data))
 	return m, nil
+}
+
+// releaseBytes is the input size from which a load hands its node tree back at once.
+const releaseBytes = 1 << 20
+
+// release drops a large document's node tree as soon as the manifest is typed. The
+// tree is about 25 bytes per input byte, all garbage now, and the collector would
+// otherwise reclaim it only once the analysis had allocated as much again: the run's
+// peak would be the tree and the analysis together. One collection, while little else
+// is live, costs far less than the parse did.
+func release(t *tree, size int) {
+	t.doc, t.root = nil, nil
+	if size >= releaseBytes {
+		runtime.GC()
+	}
 }
 
 // isJSON is a file named *.json: it is read as strict JSON, not as YAML.
@@ -69,6 +87,12 @@ func parse(file string, data []byte, lim Limits, start string) (*tree, []Problem
 
 // parseAs is parse with the syntax chosen by the caller: strict JSON, or YAML.
 func parseAs(asJSON bool, data []byte, lim Limits, start string) (*tree, []Problem) {
+	return parseTree(asJSON, data, lim, start, true)
+}
+
+// parseTree is parseAs that builds the values only when build is set; without them the
+// tree is read through views (view.go).
+func parseTree(asJSON bool, data []byte, lim Limits, start string, build bool) (*tree, []Problem) {
 	fail := func(p Problem) (*tree, []Problem) {
 		// A merge's leftover marker breaks the syntax somewhere at or after it; say why.
 		if at, marker, ok := conflictMarker(data); ok && at.Line <= p.Pos.Line {
@@ -96,12 +120,14 @@ func parseAs(asJSON bool, data []byte, lim Limits, start string) (*tree, []Probl
 		}
 		top = n
 	}
-	t := &tree{doc: top, lim: lim}
+	t := &tree{doc: top, lim: lim, built: build}
 	root, p := t.convert(top, 0)
 	if p != nil {
 		return fail(*p)
 	}
-	t.root = root
+	if build {
+		t.root = root
+	}
 	return t, nil
 }
 

@@ -46,12 +46,18 @@ type located struct {
 	value *yaml.Node
 }
 
-// tree is a YAML document turned into JSON-like values (map[string]any, []any,
-// string, bool, nil, json.Number), with the node tree kept to find positions. Positions
-// are looked up when asked for rather than recorded for every node: a manifest with
-// 100,000 listed partitions would otherwise build as many pointer strings.
+// tree is a YAML document as the schema and the decoder read it: the node tree, checked
+// once by the conversion (limits, duplicate keys, tags, number forms), read through
+// views (view.go) that see it as the JSON-like values the conversion defines; the values
+// themselves (map[string]any, []any, string, bool, nil, json.Number) are built only when
+// asked for: for the JSON Schema library, which reads no other form, and for the project
+// config and the baseline, which are small. A manifest is read from its nodes alone, so
+// a large one is never held twice. Positions are looked up when asked for rather than
+// recorded for every node: a manifest with 100,000 listed partitions would otherwise
+// build as many pointer strings.
 type tree struct {
-	root       any
+	root       any  // the values, once built
+	built      bool // root holds the values
 	doc        *yaml.Node
 	path       []step // where the conversion is, for error messages
 	nodes      int
@@ -225,6 +231,19 @@ func child(ptr, token string) string {
 	return ptr + pointer([]string{token})
 }
 
+// values builds the JSON-like values of a tree checked without them. The conversion
+// runs again over the same nodes: it cannot fail where it passed, and every problem it
+// finds was recorded the first time.
+func (t *tree) values() any {
+	if !t.built {
+		t.built, t.nodes, t.aliasNodes = true, 0, 0
+		t.root, _ = t.convert(t.doc, 0)
+	}
+	return t.root
+}
+
+// convert checks the node n and everything below it and, once the tree is built, returns
+// its value.
 func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	if p := t.count(n); p != nil {
 		return nil, p
@@ -249,7 +268,10 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 	case yaml.MappingNode:
 		return t.mapping(n, depth)
 	case yaml.SequenceNode:
-		out := make([]any, 0, len(n.Content))
+		var out []any
+		if t.built {
+			out = make([]any, 0, len(n.Content))
+		}
 		for i, e := range n.Content {
 			t.path = append(t.path, step{index: i})
 			cv, p := t.convert(e, depth+1)
@@ -257,10 +279,21 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 			if p != nil {
 				return nil, p
 			}
-			out = append(out, cv)
+			if t.built {
+				out = append(out, cv)
+			}
+		}
+		if !t.built {
+			return nil, nil
 		}
 		return out, nil
 	case yaml.ScalarNode:
+		if !t.built {
+			if msg := scalarProblem(n); msg != "" {
+				t.refuse(n, t.here(), msg, true)
+			}
+			return nil, nil
+		}
 		v, msg := scalar(n)
 		if msg != "" {
 			t.refuse(n, t.here(), msg, true)
@@ -275,8 +308,34 @@ func (t *tree) convert(n *yaml.Node, depth int) (any, *Problem) {
 // manifest key comes near it, and a longer one would be quoted whole in messages.
 const maxKeyLength = 1024
 
+// filled are the keys a mapping has set so far: the map itself once the tree is built,
+// else just the names.
+type filled struct {
+	out  map[string]any
+	keys keySet
+}
+
+func (f *filled) has(k string) bool {
+	if f.out != nil {
+		_, ok := f.out[k]
+		return ok
+	}
+	return f.keys.has(k)
+}
+
+func (f *filled) put(k string, v any) {
+	if f.out != nil {
+		f.out[k] = v
+	} else {
+		f.keys.add(k)
+	}
+}
+
 func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
-	out := make(map[string]any, len(n.Content)/2)
+	out := &filled{}
+	if t.built {
+		out.out = make(map[string]any, len(n.Content)/2)
+	}
 	var merges []*yaml.Node
 	var firstMerge *yaml.Node
 	for i := 0; i+1 < len(n.Content); i += 2 {
@@ -302,7 +361,7 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 			t.refuse(k, t.here(), fmt.Sprintf("key is %s characters long, above the limit of %s; shorten it (manifest keys are short names)", group(int64(l)), group(maxKeyLength)), false)
 			continue
 		}
-		if _, dup := out[k.Value]; dup {
+		if out.has(k.Value) {
 			t.refuse(k, t.here(), fmt.Sprintf("key %s is already defined at line %d; remove one of them", quoteShort(k.Value), firstKey(n, k.Value).Line), false)
 			continue
 		}
@@ -312,7 +371,7 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 		if p != nil {
 			return nil, p
 		}
-		out[k.Value] = cv
+		out.put(k.Value, cv)
 	}
 	// Merge keys (<<) fill in only the keys the mapping does not set itself.
 	for _, m := range merges {
@@ -320,7 +379,10 @@ func (t *tree) mapping(n *yaml.Node, depth int) (any, *Problem) {
 			return nil, p
 		}
 	}
-	return out, nil
+	if out.out == nil {
+		return nil, nil
+	}
+	return out.out, nil
 }
 
 // explicitTags are the tags a manifest may write: YAML's core types. A plain date
@@ -351,7 +413,7 @@ func firstKey(n *yaml.Node, key string) *yaml.Node {
 
 // merge fills out with the keys of a merged mapping that out does not hold yet: keys
 // the mapping sets itself come first, then earlier merges win over later ones.
-func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
+func (t *tree) merge(out *filled, m *yaml.Node, depth int) *Problem {
 	// Each merge counts as a node and a level: a merge key that refers to its own mapping
 	// would otherwise recurse until the stack overflows, and merges of merges of merges
 	// would take exponential time without ever converting a node.
@@ -406,7 +468,7 @@ func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 			continue
 		}
 		own[k.Value] = true
-		if _, set := out[k.Value]; set {
+		if out.has(k.Value) {
 			continue
 		}
 		t.path = append(t.path, step{key: k.Value, isKey: true})
@@ -415,7 +477,7 @@ func (t *tree) merge(out map[string]any, m *yaml.Node, depth int) *Problem {
 		if p != nil {
 			return p
 		}
-		out[k.Value] = cv
+		out.put(k.Value, cv)
 	}
 	return nil
 }
@@ -439,42 +501,86 @@ var jsonNumber = regexp.MustCompile(`^-?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9
 // scalar turns a YAML scalar into a JSON value; numbers stay exact as json.Number. A
 // value it refuses comes back as written, with the reason.
 func scalar(n *yaml.Node) (any, string) {
+	sc, msg := scalarOf(n)
+	return sc.value(), msg
+}
+
+// scal is a scalar's JSON value unboxed: its type (one of tNull, tBoolean, tNumber,
+// tString) and its text or truth. The quick check reads node scalars through it, so
+// checking a value allocates nothing.
+type scal struct {
+	kind typeSet
+	text string
+	b    bool
+}
+
+func (s scal) value() any {
+	switch s.kind {
+	case tNull:
+		return nil
+	case tBoolean:
+		return s.b
+	case tNumber:
+		return json.Number(s.text)
+	}
+	return s.text
+}
+
+// scalarOf is scalar unboxed.
+func scalarOf(n *yaml.Node) (scal, string) {
+	if msg := scalarProblem(n); msg != "" {
+		return scal{kind: tString, text: n.Value}, msg
+	}
 	switch n.ShortTag() {
 	case "!!null":
-		return nil, ""
+		return scal{kind: tNull}, ""
 	case "!!bool":
 		var b bool
-		if err := n.Decode(&b); err != nil {
-			return n.Value, "not a valid true/false value"
-		}
-		return b, ""
+		n.Decode(&b) // scalarProblem decoded it already
+		return scal{kind: tBoolean, b: b}, ""
 	case "!!int":
 		if canonicalInt(n.Value) {
-			return json.Number(n.Value), "" // already as big.Int would print it
-		}
-		if !jsonInt.MatchString(n.Value) {
-			if msg := numberFormProblem(n.Value); msg != "" {
-				return n.Value, msg
-			}
-			return n.Value, fmt.Sprintf("%s is not a valid integer", quoteShort(n.Value))
+			return scal{kind: tNumber, text: n.Value}, "" // already as big.Int would print it
 		}
 		var i big.Int
 		i.SetString(n.Value, 10)
-		return json.Number(i.String()), ""
+		return scal{kind: tNumber, text: i.String()}, ""
+	case "!!float":
+		// Kept as written, so messages quote the user.
+		return scal{kind: tNumber, text: n.Value}, ""
+	default:
+		// Strings and plain dates (!!timestamp) are kept as written.
+		return scal{kind: tString, text: n.Value}, ""
+	}
+}
+
+// scalarProblem is why scalar refuses n, "" when it takes it; the conversion's check,
+// which needs no value.
+func scalarProblem(n *yaml.Node) string {
+	switch n.ShortTag() {
+	case "!!bool":
+		var b bool
+		if err := n.Decode(&b); err != nil {
+			return "not a valid true/false value"
+		}
+	case "!!int":
+		if canonicalInt(n.Value) || jsonInt.MatchString(n.Value) {
+			return ""
+		}
+		if msg := numberFormProblem(n.Value); msg != "" {
+			return msg
+		}
+		return fmt.Sprintf("%s is not a valid integer", quoteShort(n.Value))
 	case "!!float":
 		if !jsonNumber.MatchString(n.Value) {
 			if msg := numberFormProblem(n.Value); msg != "" {
-				return n.Value, msg
+				return msg
 			}
-			return n.Value, fmt.Sprintf("%s is not a valid number", quoteShort(n.Value))
+			return fmt.Sprintf("%s is not a valid number", quoteShort(n.Value))
 		}
 		if f, err := strconv.ParseFloat(n.Value, 64); err != nil && !errors.Is(err, strconv.ErrRange) || math.IsInf(f, 0) {
-			return n.Value, fmt.Sprintf("%s is not a finite number; write a plain number", quoteShort(n.Value))
+			return fmt.Sprintf("%s is not a finite number; write a plain number", quoteShort(n.Value))
 		}
-		// Kept as written, so messages quote the user.
-		return json.Number(n.Value), ""
-	default:
-		// Strings and plain dates (!!timestamp) are kept as written.
-		return n.Value, ""
 	}
+	return ""
 }

@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"go.yaml.in/yaml/v3"
 )
 
 // The quick check answers one question about a document, "does it match the schema?",
@@ -293,22 +295,39 @@ func isInteger(n json.Number) verdict {
 	return passes
 }
 
+// unboxed is a scalar value of either form as a scal; ok is false for a mapping or a
+// sequence.
+func unboxed(v any) (scal, bool) {
+	switch v := v.(type) {
+	case *yaml.Node:
+		return nodeScalar(v), true
+	case string:
+		return scal{kind: tString, text: v}, true
+	case json.Number:
+		return scal{kind: tNumber, text: string(v)}, true
+	case bool:
+		return scal{kind: tBoolean, b: v}, true
+	case nil:
+		return scal{kind: tNull}, true
+	}
+	return scal{}, false
+}
+
 // equal compares a document value with a const or enum value of the schema.
 func equal(v, want any) verdict {
+	sc, isScalar := unboxed(v)
 	switch w := want.(type) {
 	case string:
-		s, ok := v.(string)
-		return truth(ok && s == w)
+		return truth(isScalar && sc.kind == tString && sc.text == w)
 	case bool:
-		b, ok := v.(bool)
-		return truth(ok && b == w)
+		return truth(isScalar && sc.kind == tBoolean && sc.b == w)
 	case nil:
-		return truth(v == nil)
+		return truth(isScalar && sc.kind == tNull)
 	case json.Number:
-		n, ok := v.(json.Number)
-		if !ok {
+		if !isScalar || sc.kind != tNumber {
 			return truth(false)
 		}
+		n := json.Number(sc.text)
 		if n == w {
 			return passes
 		}
@@ -333,8 +352,8 @@ func truth(b bool) verdict {
 	return fails
 }
 
-// check is the quick verdict for v, a value of the tree (map[string]any, []any, string,
-// bool, nil, json.Number).
+// check is the quick verdict for v, a value of the tree in either form: built
+// (map[string]any, []any) or viewed (obj, list), with string, bool, nil, json.Number.
 func (q *quick) check(v any) verdict {
 	if q == nil {
 		return passes
@@ -343,7 +362,7 @@ func (q *quick) check(v any) verdict {
 		return fails
 	}
 	switch v.(type) {
-	case map[string]any, []any, string, bool, nil, json.Number:
+	case map[string]any, []any, obj, list, *yaml.Node, string, bool, nil, json.Number:
 	default:
 		return unsure // not a value the tree holds
 	}
@@ -370,9 +389,20 @@ func (q *quick) check(v any) verdict {
 		r = r.and(q.number(v))
 	case string:
 		r = r.and(q.text(v))
+	case *yaml.Node:
+		switch sc := nodeScalar(v); sc.kind {
+		case tNumber:
+			r = r.and(q.number(json.Number(sc.text)))
+		case tString:
+			r = r.and(q.text(sc.text))
+		}
 	case map[string]any:
+		r = r.and(q.object(builtObject(v)))
+	case obj:
 		r = r.and(q.object(v))
 	case []any:
+		r = r.and(q.array(builtList(v)))
+	case list:
 		r = r.and(q.array(v))
 	}
 	if r == fails {
@@ -428,24 +458,22 @@ func (q *quick) typeOK(v any) verdict {
 	}
 	var bit typeSet
 	switch v := v.(type) {
-	case map[string]any:
+	case map[string]any, obj:
 		bit = tObject
-	case []any:
+	case []any, list:
 		bit = tArray
-	case string:
-		bit = tString
-	case bool:
-		bit = tBoolean
-	case nil:
-		bit = tNull
-	case json.Number:
-		if q.types&tNumber != 0 {
-			return passes
+	default:
+		sc, _ := unboxed(v)
+		if sc.kind == tNumber {
+			if q.types&tNumber != 0 {
+				return passes
+			}
+			if q.types&tInteger != 0 {
+				return isInteger(json.Number(sc.text)) // passes or unsure, never a definite no
+			}
+			return fails
 		}
-		if q.types&tInteger != 0 {
-			return isInteger(v) // passes or unsure, never a definite no
-		}
-		return fails
+		bit = sc.kind
 	}
 	return truth(q.types&bit != 0)
 }
@@ -473,57 +501,95 @@ func (q *quick) text(s string) verdict {
 	return truth(q.pattern == nil || q.pattern.MatchString(s))
 }
 
-func (q *quick) object(m map[string]any) verdict {
+// object is a mapping in either form.
+type object interface {
+	member(key string) (any, bool)
+	size() int
+	each(yield func(key string, v any) bool)
+}
+
+// builtObject and builtList are the built tree's forms of object and array.
+type (
+	builtObject map[string]any
+	builtList   []any
+)
+
+func (m builtObject) member(key string) (any, bool) { v, ok := m[key]; return v, ok }
+func (m builtObject) get(key string) (any, bool)    { return m.member(key) }
+func (m builtObject) size() int                     { return len(m) }
+func (m builtObject) each(yield func(string, any) bool) {
+	for k, v := range m {
+		if !yield(k, v) {
+			return
+		}
+	}
+}
+
+func (o obj) each(yield func(string, any) bool) {
+	for k, n := range o.members() {
+		if !yield(k, rawValue(n)) {
+			return
+		}
+	}
+}
+
+func (a builtList) size() int      { return len(a) }
+func (a builtList) elem(i int) any { return a[i] }
+
+func (q *quick) object(m object) verdict {
 	for _, k := range q.required {
-		if _, ok := m[k]; !ok {
+		if _, ok := m.member(k); !ok {
 			return fails
 		}
 	}
 	// The schema's properties are few: look each up rather than range over the value.
 	r, known := passes, 0
 	for _, p := range q.props {
-		if v, ok := m[p.name]; ok {
+		if v, ok := m.member(p.name); ok {
 			known++
 			if r = r.and(p.q.check(v)); r == fails {
 				return fails
 			}
 		}
 	}
-	if q.names == nil && (known == len(m) || (q.extra == nil && !q.noExtra)) {
-		return r // no other keys, or nothing said about them
+	if q.names == nil && (q.extra == nil && !q.noExtra || known == m.size()) {
+		return r // nothing said about other keys, or no other keys
 	}
 	if q.noExtra && q.names == nil {
 		return fails // a key the schema does not name
 	}
-	for k, v := range m {
+	m.each(func(k string, v any) bool {
 		if q.names != nil {
 			if r = r.and(q.names.check(k)); r == fails {
-				return fails
+				return false
 			}
 		}
 		if _, named := q.properties[k]; named {
-			continue
+			return true
 		}
 		if q.noExtra {
-			return fails
+			r = fails
+			return false
 		}
-		if r = r.and(q.extra.check(v)); r == fails {
-			return fails
-		}
-	}
+		r = r.and(q.extra.check(v))
+		return r != fails
+	})
 	return r
 }
 
-func (q *quick) array(a []any) verdict {
-	if len(a) < q.minItems {
+func (q *quick) array(a interface {
+	size() int
+	elem(int) any
+}) verdict {
+	if a.size() < q.minItems {
 		return fails
 	}
 	r := passes
 	if q.items == nil {
 		return r
 	}
-	for _, v := range a {
-		if r = r.and(q.items.check(v)); r == fails {
+	for i := range a.size() {
+		if r = r.and(q.items.check(a.elem(i))); r == fails {
 			return fails
 		}
 	}

@@ -5,6 +5,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -74,6 +75,7 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 		if tr == nil {
 			continue
 		}
+		viewsAgree(t, path, data, tr)
 		n[agree(t, path, manifestDoc, tr.root)]++
 		agree(t, path+" (as a config)", configDoc, tr.root)
 		agree(t, path+" (as a baseline)", baselineDoc, tr.root)
@@ -93,6 +95,32 @@ func TestQuickAgreesWithLibraryOnTestdata(t *testing.T) {
 	}
 	if n[passes] < 20 || n[fails] < 20 {
 		t.Errorf("too few verdicts of each kind to compare: %v", n)
+	}
+}
+
+// viewsAgree: the tree read through views (a manifest's) is the tree built (a config's):
+// the same problems, the same values and the same quick verdicts.
+func viewsAgree(t *testing.T, name string, data []byte, tr *tree) {
+	t.Helper()
+	vt, _ := parseTree(isJSON(name), data, DefaultLimits, "", false)
+	if vt == nil || vt.built || vt.root != nil {
+		t.Fatalf("%s: the built tree parses, the viewed one does not or holds values", name)
+	}
+	if !reflect.DeepEqual(vt.problems, tr.problems) || !reflect.DeepEqual(vt.refused, tr.refused) {
+		t.Errorf("%s: problems viewed %v, built %v", name, vt.problems, tr.problems)
+	}
+	view := nodeValue(vt.doc)
+	if got := built(view); !reflect.DeepEqual(got, tr.root) {
+		t.Errorf("%s: viewed values\n%#v\nbuilt\n%#v", name, got, tr.root)
+	}
+	for _, d := range []*document{manifestDoc, configDoc, baselineDoc} {
+		q := mustQuick(t, d)
+		if v, b := q.check(view), q.check(tr.root); v != b {
+			t.Errorf("%s: quick verdict on the views %d, on the built values %d (%s)", name, v, b, d.url)
+		}
+	}
+	if vt.values(); !reflect.DeepEqual(vt.root, tr.root) || !reflect.DeepEqual(vt.problems, tr.problems) {
+		t.Errorf("%s: values built after the check differ from those built at once", name)
 	}
 }
 
@@ -192,6 +220,7 @@ func FuzzQuickAgreesWithLibrary(f *testing.F) {
 		if tr == nil {
 			return
 		}
+		viewsAgree(t, "fuzz.yaml", data, tr)
 		agree(t, "fuzz.yaml", manifestDoc, tr.root)
 		agree(t, "fuzz.yaml (as a config)", configDoc, tr.root)
 	})

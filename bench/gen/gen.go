@@ -4,7 +4,10 @@ package gen
 
 import (
 	"fmt"
+	"maps"
 	"math/rand/v2"
+	"slices"
+	"strconv"
 	"strings"
 )
 
@@ -107,4 +110,51 @@ func ManyTables(n int, seed uint64) []byte {
 		b.WriteString("}\n")
 	}
 	return []byte(b.String())
+}
+
+// Dense is a monorepo where about half the tables have a finding: files manifests of
+// about 40 tables, each messy with probability 0.7 (some messy layouts are fine). Its check costs what the hints
+// cost, where Monorepo's costs what reading the files costs.
+func Dense(files int, seed uint64) map[string][]byte {
+	return Monorepo(files, 40, 0.7, seed)
+}
+
+// Changed is a copy of a monorepo with a share of its files edited as a pull request
+// would: the first table's row count of every chosen file doubles (a file without a
+// rows line gains a growth line instead). Files are chosen by a seeded shuffle of the
+// sorted names, so the same files change on every machine.
+func Changed(files map[string][]byte, share float64, seed uint64) map[string][]byte {
+	names := make([]string, 0, len(files))
+	for n := range files {
+		names = append(names, n)
+	}
+	slices.Sort(names)
+	r := rand.New(rand.NewPCG(seed, 4))
+	r.Shuffle(len(names), func(i, j int) { names[i], names[j] = names[j], names[i] })
+	out := maps.Clone(files)
+	for _, n := range names[:int(float64(len(names))*share)] {
+		out[n] = edit(files[n])
+	}
+	return out
+}
+
+// edit doubles the first "    rows: N" of a manifest, or adds growth to its first table.
+func edit(data []byte) []byte {
+	lines := strings.SplitAfter(string(data), "\n")
+	for i, l := range lines {
+		if v, ok := strings.CutPrefix(l, "    rows: "); ok {
+			n, err := strconv.ParseInt(strings.TrimSpace(v), 10, 64)
+			if err == nil {
+				lines[i] = fmt.Sprintf("    rows: %d\n", 2*n)
+				return []byte(strings.Join(lines, ""))
+			}
+		}
+	}
+	for i, l := range lines {
+		if strings.HasPrefix(l, "  - name: ") {
+			lines[i] = l + "    growth_per_year: 0.5\n"
+			break
+		}
+	}
+	return []byte(strings.Join(lines, ""))
 }

@@ -19,15 +19,15 @@ func init() {
 // Data cannot end the command's line or add one: every line break is percent-encoded,
 // every other hidden rune made visible.
 func writeGitHub(w io.Writer, r *Result, _ bool) error {
-	var b strings.Builder
+	out := &flusher{w: w}
 	for _, f := range r.Findings {
 		if f.Accepted() {
 			continue // accepted debt is listed in the other reports, not annotated
 		}
-		command(&b, commandLevel(f.Severity), r.URI(f.File), f.Pos, "scangate "+f.Rule, findingLines(f, ""))
+		command(&out.b, commandLevel(f.Severity), r.URI(f.File), f.Pos, "scangate "+f.Rule, findingLines(f, ""))
+		out.flush()
 	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	return out.err
 }
 
 // commandLevel is the workflow command of a severity.

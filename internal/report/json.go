@@ -1,14 +1,11 @@
 package report
 
 import (
-	"bytes"
-	"encoding/json"
 	"io"
 	"math"
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
-	"github.com/scangate/scangate/internal/escape"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
@@ -27,13 +24,13 @@ func init() {
 const JSONSchemaVersion = 1
 
 type jsonReport struct {
-	SchemaVersion int           `json:"schema_version"`
-	Tool          jsonTool      `json:"tool"`
-	FailOn        string        `json:"fail_on"`
-	Failed        bool          `json:"failed"`
-	Summary       jsonSummary   `json:"summary"`
-	Files         []jsonFile    `json:"files"`
-	Findings      []jsonFinding `json:"findings"`
+	SchemaVersion int                  `json:"schema_version"`
+	Tool          jsonTool             `json:"tool"`
+	FailOn        string               `json:"fail_on"`
+	Failed        bool                 `json:"failed"`
+	Summary       jsonSummary          `json:"summary"`
+	Files         jsonSeq[jsonFile]    `json:"files"`
+	Findings      jsonSeq[jsonFinding] `json:"findings"`
 }
 
 type jsonTool struct {
@@ -59,11 +56,11 @@ type jsonSummary struct {
 }
 
 type jsonFile struct {
-	Path   string      `json:"path"`
-	URI    string      `json:"uri"`
-	Model  string      `json:"model,omitempty"`
-	Valid  bool        `json:"valid"`
-	Tables []jsonTable `json:"tables"`
+	Path   string             `json:"path"`
+	URI    string             `json:"uri"`
+	Model  string             `json:"model,omitempty"`
+	Valid  bool               `json:"valid"`
+	Tables jsonSeq[jsonTable] `json:"tables"`
 }
 
 type jsonTable struct {
@@ -154,48 +151,30 @@ func writeJSON(w io.Writer, r *Result, _ bool) error {
 			Errors: n[rules.Error], Warnings: n[rules.Warning], Notes: n[rules.Note],
 			Waived: waived, Baselined: baselined,
 		},
-		Files:    []jsonFile{},
-		Findings: []jsonFinding{},
+		// Files and findings are built one at a time as they are written.
+		Files: seqOf(r.Files, func(f File) jsonFile {
+			return jsonFile{Path: f.Name, URI: f.URI, Model: f.Model, Valid: !f.Invalid, Tables: seqOf(f.Tables, tableJSON)}
+		}),
+		Findings: seqOf(r.Findings, func(f rules.Finding) jsonFinding { return findingJSON(r, f) }),
 	}
 	if r.Baseline != nil {
 		u := *r.Baseline
 		doc.Summary.BaselineFixed, doc.Summary.BaselineEscalated, doc.Summary.BaselineExpired = &u.Fixed, &u.Escalated, &u.Expired
 	}
-	for _, f := range r.Files {
-		jf := jsonFile{Path: f.Name, URI: f.URI, Model: f.Model, Valid: !f.Invalid, Tables: []jsonTable{}}
-		for _, t := range f.Tables {
-			jf.Tables = append(jf.Tables, tableJSON(t))
-		}
-		doc.Files = append(doc.Files, jf)
-	}
-	for _, f := range r.Findings {
-		nums, hints := numbersJSON(f), hintsJSON(f)
-		jf := jsonFinding{
-			Rule: f.Rule, Severity: f.Severity.String(), Fails: r.Fails(f),
-			File: f.File, URI: r.URI(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
-			Table: f.Table, Message: f.Message, Hints: hints,
-			Fingerprint: r.Fingerprint(f), Numbers: nums, Baselined: f.Baselined,
-		}
-		if w := f.Waiver; w != nil {
-			jf.Waiver = &jsonWaiver{Reason: w.Reason, Expires: w.Expires.Format("2006-01-02"), Line: w.Pos.Line}
-		}
-		doc.Findings = append(doc.Findings, jf)
-	}
 	return encodeJSON(w, doc)
 }
 
-// encodeJSON writes doc as indented JSON with a final newline; hidden runes the encoder
-// leaves raw are written as \u escapes (escape.JSON), which read back the same.
-func encodeJSON(w io.Writer, doc any) error {
-	var b bytes.Buffer
-	enc := json.NewEncoder(&b)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(doc); err != nil {
-		return err
+func findingJSON(r *Result, f rules.Finding) jsonFinding {
+	jf := jsonFinding{
+		Rule: f.Rule, Severity: f.Severity.String(), Fails: r.Fails(f),
+		File: f.File, URI: r.URI(f.File), Line: f.Pos.Line, Column: f.Pos.Col,
+		Table: f.Table, Message: f.Message, Hints: hintsJSON(f),
+		Fingerprint: r.Fingerprint(f), Numbers: numbersJSON(f), Baselined: f.Baselined,
 	}
-	_, err := w.Write(escape.JSON(b.Bytes()))
-	return err
+	if w := f.Waiver; w != nil {
+		jf.Waiver = &jsonWaiver{Reason: w.Reason, Expires: w.Expires.Format("2006-01-02"), Line: w.Pos.Line}
+	}
+	return jf
 }
 
 func tableJSON(t *analysis.Table) jsonTable {

@@ -23,14 +23,15 @@ func init() {
 // severity with their hints. Input strings are inline text (mdEscape) or code spans
 // (code), so none can break the table or become markup.
 func writeMarkdown(w io.Writer, r *Result, _ bool) error {
-	var b strings.Builder
+	out := &flusher{w: w}
+	b := &out.b
 	n := r.Counts()
 	verdict := "passed"
 	if r.Failed() {
 		verdict = "failed"
 	}
-	fmt.Fprintf(&b, "### scangate %s\n\n", verdict)
-	fmt.Fprintf(&b, "%s (the gate fails at %s).\n\n", mdEscape(SummaryLine(r)), failOnName(r.FailOn))
+	fmt.Fprintf(b, "### scangate %s\n\n", verdict)
+	fmt.Fprintf(b, "%s (the gate fails at %s).\n\n", mdEscape(SummaryLine(r)), failOnName(r.FailOn))
 	if r.Summary.Tables > 0 {
 		b.WriteString("| file | table | partitions | segments | ideal | fill | fixed ms per scan | budget ms |\n")
 		b.WriteString("|---|---|--:|--:|--:|--:|--:|--:|\n")
@@ -41,40 +42,44 @@ func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 				if t.Budgets.ScanOverheadMs != nil {
 					budget = units.Ms(*t.Budgets.ScanOverheadMs)
 				}
-				fmt.Fprintf(&b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
+				fmt.Fprintf(b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
 					code(f.Name), code(t.Spec.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
 					units.Num(l.Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
+				out.flush()
 			}
 		}
 		b.WriteString("\n")
 	}
-	charts(&b, r)
+	charts(b, r)
+	out.flush()
 	for _, sev := range []rules.Severity{rules.Error, rules.Warning, rules.Note} {
 		if n[sev] == 0 {
 			continue
 		}
-		fmt.Fprintf(&b, "#### %s (%d)\n\n", map[rules.Severity]string{rules.Error: "Errors", rules.Warning: "Warnings", rules.Note: "Notes"}[sev], n[sev])
+		fmt.Fprintf(b, "#### %s (%d)\n\n", map[rules.Severity]string{rules.Error: "Errors", rules.Warning: "Warnings", rules.Note: "Notes"}[sev], n[sev])
 		for _, f := range r.Findings {
 			if f.Severity == sev && !f.Accepted() {
-				mdFinding(&b, f, "")
+				mdFinding(b, f, "")
+				out.flush()
 			}
 		}
 		b.WriteString("\n")
 	}
 	if waived, baselined := r.Accepted(); waived+baselined > 0 {
-		fmt.Fprintf(&b, "#### Accepted debt (%d)\n\n", waived+baselined)
+		fmt.Fprintf(b, "#### Accepted debt (%d)\n\n", waived+baselined)
 		for _, f := range r.Findings {
 			switch {
 			case f.Waiver != nil:
-				mdFinding(&b, f, fmt.Sprintf(" (waived until %s: %s)", f.Waiver.Expires.Format("2006-01-02"), mdEscape(f.Waiver.Reason)))
+				mdFinding(b, f, fmt.Sprintf(" (waived until %s: %s)", f.Waiver.Expires.Format("2006-01-02"), mdEscape(f.Waiver.Reason)))
 			case f.Baselined:
-				mdFinding(&b, f, " (baselined)")
+				mdFinding(b, f, " (baselined)")
 			}
+			out.flush()
 		}
 		b.WriteString("\n")
 	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	out.flush()
+	return out.err
 }
 
 func mdFinding(b *strings.Builder, f rules.Finding, note string) {

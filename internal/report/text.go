@@ -34,14 +34,15 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	bold := paint(color.New(color.Bold))
 	faint := paint(color.New(color.Faint))
 	sev := severityPaint(paint)
-	var b strings.Builder
+	out := &flusher{w: w, guard: escape.Log}
+	b := &out.b
 	advised := map[[2]string]bool{} // tables whose recommendation is printed already, by file and name
 	line := func(f rules.Finding, note string) {
 		loc := escape.Text(f.File)
 		if f.Pos.Line > 0 {
 			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
 		}
-		fmt.Fprintf(&b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
+		fmt.Fprintf(b, "%s: %s: %s %s%s\n", bold(loc), sev[f.Severity](f.Severity.String()), escape.Text(f.Message), faint("["+escape.Text(f.Rule)+"]"), note)
 		for i, h := range f.Hints {
 			// A table's findings share one fix: its first finding carries it, the
 			// others point to it.
@@ -52,8 +53,9 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 				}
 				advised[k] = true
 			}
-			fmt.Fprintf(&b, "    hint: %s\n", escape.Text(h))
+			fmt.Fprintf(b, "    hint: %s\n", escape.Text(h))
 		}
+		out.flush()
 	}
 	for _, f := range r.Findings {
 		if f.Baselined {
@@ -67,9 +69,9 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 	}
 	if _, baselined := r.Accepted(); baselined > 0 {
 		if r.Baseline.Hide {
-			fmt.Fprintf(&b, "%s of %s not listed (--hide-baselined); they do not fail the run\n", plural(baselined, "baselined finding"), escape.Text(r.Baseline.File))
+			fmt.Fprintf(b, "%s of %s not listed (--hide-baselined); they do not fail the run\n", plural(baselined, "baselined finding"), escape.Text(r.Baseline.File))
 		} else {
-			fmt.Fprintf(&b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
+			fmt.Fprintf(b, "baselined in %s, not failing the run:\n", escape.Text(r.Baseline.File))
 			for _, f := range r.Findings {
 				if f.Baselined {
 					line(f, "")
@@ -78,17 +80,17 @@ func writeText(w io.Writer, r *Result, useColor bool) error {
 		}
 	}
 	if u := r.Baseline; u != nil && u.Escalated+u.Expired > 0 {
-		fmt.Fprintf(&b, "%s of %s no longer absorbed: %d escalated past the severity recorded, %d of expired entries; they count again (listed above)\n",
+		fmt.Fprintf(b, "%s of %s no longer absorbed: %d escalated past the severity recorded, %d of expired entries; they count again (listed above)\n",
 			plural(u.Escalated+u.Expired, "finding"), escape.Text(u.File), u.Escalated, u.Expired)
 	}
 	if r.Baseline != nil && r.Baseline.Fixed > 0 {
-		fmt.Fprintf(&b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
+		fmt.Fprintf(b, "%s in %s no longer found (fixed); run `scangate baseline write` to drop them\n",
 			plural(r.Baseline.Fixed, "baseline entry"), escape.Text(r.Baseline.File))
 	}
 	b.WriteString(SummaryLine(r))
 	b.WriteByte('\n')
-	_, err := io.WriteString(w, escape.Log(b.String()))
-	return err
+	out.flush()
+	return out.err
 }
 
 // SeeAbove is the hint a table's later findings print in place of its recommendation,
@@ -147,4 +149,25 @@ func plural(n int, word string) string {
 		return fmt.Sprintf("%d %sies", n, strings.TrimSuffix(word, "y"))
 	}
 	return fmt.Sprintf("%d %ss", n, word)
+}
+
+// flusher hands a builder's text to w whenever asked, so a report is written as it is
+// built rather than held whole; guard, when set, escapes each piece (pieces are whole
+// lines, so a line-wise guard reads them as it would the page). The first error stops it.
+type flusher struct {
+	w     io.Writer
+	b     strings.Builder
+	guard func(string) string
+	err   error
+}
+
+func (f *flusher) flush() {
+	if f.err == nil && f.b.Len() > 0 {
+		s := f.b.String()
+		if f.guard != nil {
+			s = f.guard(s)
+		}
+		_, f.err = io.WriteString(f.w, s)
+	}
+	f.b.Reset()
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"maps"
+	"io"
 	"os"
 	"path/filepath"
 	"slices"
@@ -14,6 +15,7 @@ import (
 
 	"github.com/scangate/scangate/bench/gen"
 	"github.com/scangate/scangate/internal/change"
+	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -77,8 +79,10 @@ func benchDecode(b *testing.B, inputs []Input) {
 }
 
 var (
-	listed   = benchInputs(map[string][]byte{"listed.yaml": gen.Listed(100_000, 1)})
-	monorepo = benchInputs(gen.Monorepo(2000, 40, 0.05, 1))
+	listed       = benchInputs(map[string][]byte{"listed.yaml": gen.Listed(100_000, 1)})
+	monorepoData = gen.Monorepo(2000, 40, 0.05, 1)
+	monorepo     = benchInputs(monorepoData)
+	dense        = benchInputs(gen.Dense(800, 1))
 )
 
 // (a) one manifest with 100,000 listed partitions.
@@ -88,6 +92,45 @@ func BenchmarkDecodeListed100k(b *testing.B) { benchDecode(b, listed) }
 // (b) a monorepo of 2,000 manifests of about 40 tables, 5% of them messy.
 func BenchmarkCheckMonorepo(b *testing.B)  { benchCheck(b, monorepo) }
 func BenchmarkDecodeMonorepo(b *testing.B) { benchDecode(b, monorepo) }
+
+// The dense-findings monorepo: 800 manifests of about 40 tables, half of them flagged,
+// so the hints' cost shows beside the reading's.
+func BenchmarkCheckDense(b *testing.B)  { benchCheck(b, dense) }
+func BenchmarkDecodeDense(b *testing.B) { benchDecode(b, dense) }
+
+// The monorepo checked and written as the JSON report (to nowhere): the tables kept to
+// the end, and the report streamed.
+func BenchmarkJSONMonorepo(b *testing.B) {
+	cfg, _ := PlainConfig("2026-01-01")
+	format, _ := report.Lookup("json", report.CheckReport)
+	outs := []Destination{{Format: format}}
+	b.ReportAllocs()
+	for b.Loop() {
+		files, findings := Check(slices.Clone(monorepo), cfg, nil, schema.DefaultLimits, NeedsTables(outs))
+		r := &report.Result{Files: files, Findings: findings, Summary: report.Summarize(files), FailOn: rules.Error}
+		if err := Write(outs, r, io.Discard, false); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// diff of the monorepo and a copy with 5% of its files changed, beside one check of the
+// copy (BenchmarkCheckMonorepoChanged).
+func BenchmarkDiffMonorepo(b *testing.B) {
+	cfg, _ := PlainConfig("2026-01-01")
+	sides := diffSides(monorepoData, gen.Changed(monorepoData, 0.05, 1))
+	b.ReportAllocs()
+	for b.Loop() {
+		checked := CheckSides(sides, cfg, Project{}, schema.DefaultLimits)
+		if d := change.Compare(checked[0], checked[1]); len(d.Tables()) == 0 {
+			b.Fatal("no tables compared")
+		}
+	}
+}
+
+func BenchmarkCheckMonorepoChanged(b *testing.B) {
+	benchCheck(b, benchInputs(gen.Changed(monorepoData, 0.05, 1)))
+}
 
 // (c) the demo.
 func BenchmarkCheckDemo(b *testing.B) {
@@ -112,18 +155,18 @@ func BenchmarkCheckPartitions(b *testing.B) {
 	}
 }
 
-// Cost against tables: one manifest of 10k and 100k small tables (gen.ManyTables), beside
+// Cost against tables: one manifest of 1k, 10k and 100k small tables (gen.ManyTables), beside
 // the decode-only baseline of the same bytes. Every whole-model figure (refresh peak,
 // forecast, sweep) must stay linear in tables.
 func BenchmarkCheckTables(b *testing.B) {
-	for _, n := range []int{10_000, 100_000} {
+	for _, n := range []int{1_000, 10_000, 100_000} {
 		in := benchInputs(map[string][]byte{"tables.yaml": gen.ManyTables(n, 1)})
 		b.Run(fmt.Sprint(n), func(b *testing.B) { benchCheck(b, in) })
 	}
 }
 
 func BenchmarkDecodeTables(b *testing.B) {
-	for _, n := range []int{10_000, 100_000} {
+	for _, n := range []int{1_000, 10_000, 100_000} {
 		in := benchInputs(map[string][]byte{"tables.yaml": gen.ManyTables(n, 1)})
 		b.Run(fmt.Sprint(n), func(b *testing.B) { benchDecode(b, in) })
 	}

@@ -1,14 +1,13 @@
 package run
 
 import (
-	"bytes"
+	"bufio"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 
 	"github.com/mattn/go-isatty"
 
@@ -101,46 +100,75 @@ func NeedsTables(outs []Destination) bool {
 	return false
 }
 
-// Write renders every report first, then writes the files atomically, then stdout; a
-// report that fails to render leaves nothing written. Only stdout is coloured, and
-// only with color. A report bound for the runner's step summary file is appended to it
-// instead (the runner owns that file and earlier steps' text must stay). A format with
-// a step summary appends the Markdown rendering of doc there once the reports are out,
-// unless a markdown report already went there.
+// Write renders every report file into a temporary file as it goes (nothing is held
+// whole in memory), renames them all into place once every one is complete, then
+// renders the reports bound for stdout straight into it; a report that fails to render
+// leaves no file written. Only stdout is coloured, and only with color. A report bound
+// for the runner's step summary file is appended to it instead (the runner owns that
+// file and earlier steps' text must stay). A format with a step summary appends the
+// Markdown rendering of doc there once the reports are out, unless a markdown report
+// already went there.
 func Write(outs []Destination, doc report.Doc, stdout io.Writer, color bool) error {
-	rendered := make([][]byte, len(outs))
-	for i, o := range outs {
-		var b bytes.Buffer
-		if err := o.Format.Render(&b, doc, color && o.Path == ""); err != nil {
-			return fmt.Errorf("writing the %s report: %v", o.Format.Traits().Name, err)
-		}
-		rendered[i] = b.Bytes()
-	}
 	summary := os.Getenv("GITHUB_STEP_SUMMARY")
 	wantSummary, markdownThere := false, false
-	for i, o := range outs {
+	var spools []*spool
+	defer func() {
+		for _, s := range spools {
+			s.discard()
+		}
+	}()
+	for _, o := range outs {
 		wantSummary = wantSummary || o.Format.Traits().StepSummary
 		if o.Path == "" {
 			continue
 		}
-		if summary != "" && SamePath(o.Path, summary) {
-			markdownThere = markdownThere || o.Format.Traits().Name == "markdown"
-			if err := appendFile(o.Path, rendered[i]); err != nil {
-				return fmt.Errorf("cannot write %s: %v", o.Path, err)
-			}
-		} else if err := WriteFileAtomic(o.Path, rendered[i]); err != nil {
+		toSummary := summary != "" && SamePath(o.Path, summary)
+		markdownThere = markdownThere || toSummary && o.Format.Traits().Name == "markdown"
+		s, err := newSpool(o.Path, toSummary)
+		if err != nil {
+			return err
+		}
+		spools = append(spools, s)
+		if err := render(o, doc, s, false); err != nil {
 			return err
 		}
 	}
-	for i, o := range outs {
-		if o.Path == "" {
-			if _, err := stdout.Write(rendered[i]); err != nil {
-				return err
-			}
+	for _, s := range spools {
+		if err := s.commit(); err != nil {
+			return err
+		}
+	}
+	for _, o := range outs {
+		if o.Path != "" {
+			continue
+		}
+		watched := Watch(stdout)
+		w := bufio.NewWriterSize(watched, 64<<10)
+		err := render(o, doc, w, color)
+		if err == nil {
+			err = w.Flush()
+		}
+		if watched.Err() != nil {
+			return watched.Err() // as stdout said it
+		}
+		if err != nil {
+			return err
 		}
 	}
 	if wantSummary && !markdownThere {
 		return appendStepSummary(doc)
+	}
+	return nil
+}
+
+// render writes one report; an error that is not its target's names the format.
+func render(o Destination, doc report.Doc, w io.Writer, color bool) error {
+	err := o.Format.Render(w, doc, color && o.Path == "")
+	if s, ok := w.(*spool); ok && s.err != nil {
+		return s.err
+	}
+	if err != nil {
+		return fmt.Errorf("writing the %s report: %v", o.Format.Traits().Name, err)
 	}
 	return nil
 }
@@ -170,27 +198,22 @@ func appendStepSummary(doc report.Doc) error {
 	if !ok {
 		return nil
 	}
-	var b bytes.Buffer
-	if err := md.Render(&b, doc, false); err != nil {
+	s, err := newSpool(path, true)
+	if err != nil {
 		return err
 	}
-	if err := appendFile(path, b.Bytes()); err != nil {
+	defer s.discard()
+	if err := md.Render(s, doc, false); err != nil {
+		return err
+	}
+	if err := s.commit(); err != nil {
+		var te *targetError
+		if errors.As(err, &te) {
+			err = te.err
+		}
 		return fmt.Errorf("cannot append to the step summary %s (GITHUB_STEP_SUMMARY): %v", path, err)
 	}
 	return nil
-}
-
-// appendFile adds data at the end of path, creating it when it is missing.
-func appendFile(path string, data []byte) error {
-	f, err := os.OpenFile(path, os.O_APPEND|os.O_CREATE|os.O_WRONLY, 0o644)
-	if err != nil {
-		return UnwrapPath(err)
-	}
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		return UnwrapPath(err)
-	}
-	return UnwrapPath(f.Close())
 }
 
 // UseColor colours only a terminal, and never with --no-color or NO_COLOR set.
@@ -214,59 +237,18 @@ func isTerminal(w any) bool {
 // WriteFileAtomic writes data to path through a temporary file in the same directory and
 // a rename, creating parent directories; readers never see a half-written report.
 //
-// A path that names a device or a FIFO is written directly, never renamed over: the
+// A path that names a device or a FIFO is written in place, never renamed over: the
 // special file stays what it is (/dev/null discards the report, a FIFO passes it on).
 func WriteFileAtomic(path string, data []byte) error {
-	if info, err := os.Stat(path); err == nil && !info.Mode().IsRegular() {
-		if info.IsDir() {
-			return fmt.Errorf("cannot write %s: it is a directory; name a file", path)
-		}
-		return writeSpecial(path, data)
-	}
-	dir := filepath.Dir(path)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("cannot create %s: %v", dir, UnwrapPath(err))
-	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	s, err := newSpool(path, false)
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
+		return err
 	}
-	defer os.Remove(tmp.Name()) // a no-op after the rename
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
+	defer s.discard()
+	if _, err := s.Write(data); err != nil {
+		return err
 	}
-	if err := tmp.Chmod(0o644); err != nil {
-		tmp.Close()
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	return nil
-}
-
-// writeSpecial writes data to an existing device or FIFO in place. A FIFO without a
-// reader is an error at once rather than a wait for one.
-func writeSpecial(path string, data []byte) error {
-	f, err := os.OpenFile(path, os.O_WRONLY|syscall.O_NONBLOCK, 0)
-	if err != nil {
-		if errors.Is(err, syscall.ENXIO) {
-			return fmt.Errorf("cannot write %s: it is a FIFO with no reader", path)
-		}
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %v", path, UnwrapPath(err))
-	}
-	return nil
+	return s.commit()
 }
 
 // GuardTargets refuses, before anything is written, a report path that would write

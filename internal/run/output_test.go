@@ -2,6 +2,8 @@ package run
 
 import (
 	"bytes"
+	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -208,5 +210,79 @@ func TestGuardTargetsOneFileOneReport(t *testing.T) {
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
 		t.Errorf("the guard wrote something: %d entries", len(entries))
+	}
+}
+
+// bulky is a format that writes size bytes and reports, at the end of its rendering, how
+// many of them had already reached a temporary file beside its target.
+type bulky struct {
+	size   int
+	dir    string
+	onDisk *int64
+	fail   bool
+}
+
+func (b bulky) Traits() report.Traits {
+	return report.Traits{Name: "bulky", Kinds: report.CheckReport}
+}
+
+func (b bulky) Render(w io.Writer, _ report.Doc, _ bool) error {
+	if b.fail {
+		return errors.New("refused")
+	}
+	line := bytes.Repeat([]byte("x"), 1023)
+	for written := 0; written < b.size; written += 1024 {
+		if _, err := w.Write(append(line, '\n')); err != nil {
+			return err
+		}
+	}
+	entries, _ := os.ReadDir(b.dir)
+	for _, e := range entries {
+		if info, err := e.Info(); err == nil && strings.HasSuffix(e.Name(), ".tmp") {
+			*b.onDisk = info.Size()
+		}
+	}
+	return nil
+}
+
+// A report streams into its temporary file as it renders (it is never held whole), and
+// is still all or nothing: a later report's failure leaves neither it nor its temporary
+// file behind.
+func TestWriteStreamsToTheTemporaryFile(t *testing.T) {
+	dir := t.TempDir()
+	var onDisk int64
+	big := bulky{size: 4 << 20, dir: dir, onDisk: &onDisk}
+	target := filepath.Join(dir, "r.txt")
+	if err := Write([]Destination{{Format: big, Path: target}}, &report.Result{}, &bytes.Buffer{}, false); err != nil {
+		t.Fatal(err)
+	}
+	if onDisk < 4<<20-64<<10 {
+		t.Errorf("%d bytes on disk at the end of the rendering, want all but a buffer's worth of %d", onDisk, 4<<20)
+	}
+	if info, err := os.Stat(target); err != nil || info.Size() != 4<<20 {
+		t.Fatalf("target: %v %v", info, err)
+	}
+	os.Remove(target)
+	failing := bulky{fail: true}
+	err := Write([]Destination{{Format: big, Path: target}, {Format: failing, Path: filepath.Join(dir, "other.txt")}}, &report.Result{}, &bytes.Buffer{}, false)
+	if err == nil || !strings.Contains(err.Error(), "writing the bulky report: refused") {
+		t.Fatalf("err = %v", err)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
+		t.Errorf("left %v after a failed report", entries)
+	}
+}
+
+// A device is written in place once the report is complete, never renamed over.
+func TestWriteToADevice(t *testing.T) {
+	text, _ := report.Lookup("text", report.CheckReport)
+	if err := Write([]Destination{{Format: text, Path: os.DevNull}}, &report.Result{}, &bytes.Buffer{}, false); err != nil {
+		t.Fatal(err)
+	}
+	if info, err := os.Stat(os.DevNull); err != nil || info.Mode().IsRegular() {
+		t.Fatalf("%s: %v %v", os.DevNull, info, err)
+	}
+	if err := Write([]Destination{{Format: text, Path: t.TempDir()}}, &report.Result{}, &bytes.Buffer{}, false); err == nil || !strings.Contains(err.Error(), "it is a directory") {
+		t.Errorf("a directory as target: %v", err)
 	}
 }

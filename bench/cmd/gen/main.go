@@ -31,13 +31,20 @@ func main() {
 	for name, data := range gen.Monorepo(2000, 40, 0.05, *seed) {
 		write(filepath.Join("monorepo", name), data)
 	}
+	mono := gen.Monorepo(2000, 40, 0.05, *seed)
+	for name, data := range gen.Changed(mono, 0.05, *seed) {
+		write(filepath.Join("monorepo-changed", name), data)
+	}
+	for name, data := range gen.Dense(800, *seed) {
+		write(filepath.Join("dense", name), data)
+	}
 	for name, data := range gen.Monorepo(200, 40, 1, *seed) {
 		write(filepath.Join("stress", name), data)
 	}
 	for _, n := range []int{10_000, 100_000, 1_000_000} {
 		write(fmt.Sprintf("days/%d/days.yaml", n), gen.Days(n))
 	}
-	for _, n := range []int{10_000, 100_000} {
+	for _, n := range []int{1_000, 10_000, 100_000} {
 		write(fmt.Sprintf("tables/%d/tables.yaml", n), gen.ManyTables(n, *seed))
 	}
 }

@@ -87,6 +87,9 @@ func size(dir string) int64 {
 	return n
 }
 
+// row is one line of the Markdown table printed for README.md's Speed section.
+type row struct{ input, cpu, wall, peak, perByte, base string }
+
 func main() {
 	bin := flag.String("bin", "", "directory holding the scangate and decodeonly binaries")
 	in := flag.String("in", "", "directory the generator wrote the inputs into")
@@ -101,53 +104,95 @@ func main() {
 		missed++
 		return "MISSED"
 	}
-	fmt.Printf("%-22s %10s %10s %9s | %10s %10s %9s | %6s %6s %6s %8s\n", "input", "wall ms", "cpu ms", "peak MiB", "base wall", "base cpu", "base MiB", "wall x", "cpu x", "MiB x", "MiB/in")
-	for _, c := range []struct{ name, dir string }{
-		{"(a) 100k listed", "listed"},
-		{"(b) monorepo 2000x40", "monorepo"},
-		{"    stress 200x40", "stress"},
-		{"(c) demo", "demo"},
-		{"(d) 100k tables", "tables/100000"},
+	var readme []row
+	check := func(dir string, extra ...string) sample {
+		return measure(*runs, scangate, append(append([]string{"check", "--fail-on", "never"}, extra...), dir)...)
+	}
+	fmt.Printf("%-24s %10s %10s %9s | %10s %10s %9s | %6s %6s %6s %8s\n", "input", "wall ms", "cpu ms", "peak MiB", "base wall", "base cpu", "base MiB", "wall x", "cpu x", "MiB x", "MiB/in")
+	var text sample // the monorepo's text run, for the json run's ratio
+	for _, c := range []struct{ name, dir, readme string }{
+		{"(a) 100k listed", "listed", "one manifest, 100,000 listed partitions"},
+		{"(b) monorepo 2000x40", "monorepo", "2,000 manifests of about 40 tables, 5% messy"},
+		{"    dense 800x40", "dense", "800 manifests of about 40 tables, half of them flagged"},
+		{"    stress 200x40", "stress", "200 manifests of about 40 tables, all messy"},
+		{"(c) demo", "demo", "the demo"},
+		{"(d) 100k tables", "tables/100000", "one manifest of 100,000 small tables"},
 	} {
 		dir := filepath.Join(*in, c.dir)
-		s := measure(*runs, scangate, "check", "--fail-on", "never", dir)
-		b := measure(*runs, decode, dir)
+		s, b := check(dir), measure(*runs, decode, dir)
 		wx, cx := float64(s.wall)/float64(b.wall), float64(s.cpu)/float64(b.cpu)
 		memx := float64(s.rssKB*1024) / float64(size(dir))
 		basex := float64(s.rssKB) / float64(b.rssKB)
-		fmt.Printf("%-22s %10.0f %10.0f %9.1f | %10.0f %10.0f %9.1f | %6.2f %6.2f %6.2f %8.1f\n", c.name,
-			ms(s.wall), ms(s.cpu), float64(s.rssKB)/1024, ms(b.wall), ms(b.cpu), float64(b.rssKB)/1024, wx, cx, basex, memx)
-		if c.dir == "listed" || c.dir == "monorepo" {
-			fmt.Printf("    target: within 1.5x of the baseline (cpu): %s; peak memory within 3x of the input: %s\n", verdict(cx <= 1.5), verdict(memx <= 3))
+		fmt.Printf("%-24s %10.0f %10.0f %9.1f | %10.0f %10.0f %9.1f | %6.2f %6.2f %6.2f %8.1f\n", c.name,
+			ms(s.wall), ms(s.cpu), mib(s), ms(b.wall), ms(b.cpu), mib(b), wx, cx, basex, memx)
+		switch c.dir {
+		case "listed":
+			fmt.Printf("    target: cpu within 1.5x of the baseline: %s; peak memory within 1.2x of the baseline's: %s\n", verdict(cx <= 1.5), verdict(basex <= 1.2))
+		case "monorepo", "dense":
+			fmt.Printf("    target: cpu within 1.5x of the baseline: %s (aim: 1.2x)\n", verdict(cx <= 1.5))
 		}
+		if c.dir == "monorepo" {
+			text = s
+		}
+		readme = append(readme, row{fmt.Sprintf("%s (%s)", c.readme, sizeWords(size(dir))), fmt.Sprintf("%.2fx", cx), fmt.Sprintf("%.2fx", wx),
+			fmt.Sprintf("%.0f MiB (%.2fx)", mib(s), basex), fmt.Sprintf("%.1fx", memx), fmt.Sprintf("%.0f MiB", mib(b))})
 	}
+
+	mono := filepath.Join(*in, "monorepo")
+	j := check(mono, "--format", "json")
+	jx := float64(j.rssKB) / float64(text.rssKB)
+	fmt.Printf("\n--format json on the monorepo: %.0f ms cpu (%.2fx the text run), %.1f MiB peak (%.2fx the text run's)\n", ms(j.cpu), float64(j.cpu)/float64(text.cpu), mib(j), jx)
+	fmt.Printf("    target: peak memory within 2.5x of the text run's: %s\n", verdict(jx <= 2.5))
+	readme = append(readme, row{"the monorepo, `--format json` (against the text run)", fmt.Sprintf("%.2fx", float64(j.cpu)/float64(text.cpu)), fmt.Sprintf("%.2fx", float64(j.wall)/float64(text.wall)),
+		fmt.Sprintf("%.0f MiB (%.2fx)", mib(j), jx), "", fmt.Sprintf("%.0f MiB", mib(text))})
+
+	head := filepath.Join(*in, "monorepo-changed")
+	d, h := measure(*runs, scangate, "diff", mono, head), check(head)
+	dx, dm := float64(d.cpu)/float64(h.cpu), float64(d.rssKB)/float64(h.rssKB)
+	fmt.Printf("diff of the monorepo and a copy with 5%% of its files changed: %.0f ms cpu (%.2fx one check of the head side), %.1f MiB peak (%.2fx)\n", ms(d.cpu), dx, mib(d), dm)
+	fmt.Printf("    target: cpu within 1.5x of one check: %s; peak memory within 2x: %s\n", verdict(dx <= 1.5), verdict(dm <= 2))
+	readme = append(readme, row{"`diff` of the monorepo and a copy with 5% of its files changed (against one check of the copy)", fmt.Sprintf("%.2fx", dx), fmt.Sprintf("%.2fx", float64(d.wall)/float64(h.wall)),
+		fmt.Sprintf("%.0f MiB (%.2fx)", mib(d), dm), "", fmt.Sprintf("%.0f MiB", mib(h))})
+
 	fmt.Println("\ngrowth with partitions (one time-partitioned table):")
-	var prev sample
-	for i, n := range []int{10_000, 100_000, 1_000_000} {
-		s := measure(*runs, scangate, "check", "--fail-on", "never", filepath.Join(*in, "days", fmt.Sprint(n)))
-		growth := ""
-		if i > 0 {
-			growth = fmt.Sprintf("  x%.1f for 10x the partitions", float64(s.cpu)/float64(prev.cpu))
+	growth := func(what string, ns []int, dir func(int) string) {
+		var prev sample
+		for i, n := range ns {
+			s, b := check(dir(n)), measure(*runs, decode, dir(n))
+			g := ""
+			if i > 0 {
+				g = fmt.Sprintf("  x%.1f cpu, x%.1f MiB for %gx the %s", float64(s.cpu)/float64(prev.cpu), float64(s.rssKB)/float64(prev.rssKB), float64(n)/float64(ns[i-1]), what)
+			}
+			fmt.Printf("  %9d %s: %8.0f ms cpu (%.2fx the baseline) %8.1f MiB%s\n", n, what, ms(s.cpu), float64(s.cpu)/float64(b.cpu), mib(s), g)
+			prev = s
 		}
-		fmt.Printf("  %9d partitions: %8.0f ms cpu %8.1f MiB%s\n", n, ms(s.cpu), float64(s.rssKB)/1024, growth)
-		prev = s
 	}
+	growth("partitions", []int{10_000, 100_000, 1_000_000}, func(n int) string { return filepath.Join(*in, "days", fmt.Sprint(n)) })
 	fmt.Println("\ngrowth with tables (one manifest):")
-	for i, n := range []int{10_000, 100_000} {
-		dir := filepath.Join(*in, "tables", fmt.Sprint(n))
-		s, b := measure(*runs, scangate, "check", "--fail-on", "never", dir), measure(*runs, decode, dir)
-		growth := ""
-		if i > 0 {
-			growth = fmt.Sprintf("  x%.1f for 10x the tables", float64(s.cpu)/float64(prev.cpu))
-		}
-		fmt.Printf("  %9d tables: %8.0f ms cpu (%.2fx the baseline) %8.1f MiB%s\n", n, ms(s.cpu), float64(s.cpu)/float64(b.cpu), float64(s.rssKB)/1024, growth)
-		prev = s
-	}
+	growth("tables", []int{1_000, 10_000, 100_000}, func(n int) string { return filepath.Join(*in, "tables", fmt.Sprint(n)) })
+
 	v := measure(*runs*2, scangate, "version")
 	fmt.Printf("\nstartup, scangate version: %.1f ms wall (target under 20 ms): %s\n", ms(v.wall), verdict(v.wall < 20*time.Millisecond))
 	if missed > 0 {
 		fmt.Printf("%d target(s) missed\n", missed)
 	}
+
+	fmt.Println("\nfor README.md's Speed section:")
+	fmt.Println("| input | CPU ratio | wall ratio | peak memory (ratio) | per input byte | baseline peak |")
+	fmt.Println("|---|---|---|---|---|---|")
+	for _, r := range readme {
+		fmt.Printf("| %s | %s | %s | %s | %s | %s |\n", r.input, r.cpu, r.wall, r.peak, r.perByte, r.base)
+	}
+}
+
+func mib(s sample) float64 { return float64(s.rssKB) / 1024 }
+
+// sizeWords is a size as the README writes it: "4 MiB", "12 KiB".
+func sizeWords(n int64) string {
+	if n >= 1<<20 {
+		return fmt.Sprintf("%.0f MiB", float64(n)/(1<<20))
+	}
+	return fmt.Sprintf("%.0f KiB", float64(n)/(1<<10))
 }
 
 func ms(d time.Duration) float64 { return float64(d) / float64(time.Millisecond) }
