@@ -3,8 +3,8 @@ package run
 import (
 	"bytes"
 	"fmt"
-	"maps"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
 	"slices"
