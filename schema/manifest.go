@@ -177,6 +177,24 @@ type Partitions struct {
 	Pos    Pos    // the partitions key
 }
 
+// SamePolicy reports whether p and q describe the same partitions, positions aside.
+func (p Partitions) SamePolicy(q Partitions) bool {
+	if p.Scheme != q.Scheme || p.Count != q.Count || len(p.Tiers) != len(q.Tiers) || len(p.Items) != len(q.Items) {
+		return false
+	}
+	for i := range p.Tiers {
+		if p.Tiers[i].Grain != q.Tiers[i].Grain || p.Tiers[i].Keep != q.Tiers[i].Keep {
+			return false
+		}
+	}
+	for i := range p.Items {
+		if p.Items[i].Name != q.Items[i].Name || p.Items[i].Rows != q.Items[i].Rows {
+			return false
+		}
+	}
+	return true
+}
+
 // Tier is a run of Keep periods of one Grain.
 type Tier struct {
 	Grain Grain

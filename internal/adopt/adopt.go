@@ -222,29 +222,11 @@ func verify(res *Result, o Options) error {
 			continue
 		}
 		i, ok := index[out.Table]
-		if !ok || !samePolicy(m.Tables[i].Partitions, c.Spec.Partitions) || (c.Engine && m.Engine.SegmentRows != c.SegmentRows) {
+		if !ok || !m.Tables[i].Partitions.SamePolicy(c.Spec.Partitions) || (c.Engine && m.Engine.SegmentRows != c.SegmentRows) {
 			return fmt.Errorf("%s: table %s does not read back as the recommended layout; nothing was written", res.File, out.Table)
 		}
 	}
 	return nil
-}
-
-// samePolicy compares two partition policies, positions aside.
-func samePolicy(a, b schema.Partitions) bool {
-	if a.Scheme != b.Scheme || a.Count != b.Count || len(a.Tiers) != len(b.Tiers) || len(a.Items) != len(b.Items) {
-		return false
-	}
-	for i := range a.Tiers {
-		if a.Tiers[i].Grain != b.Tiers[i].Grain || a.Tiers[i].Keep != b.Tiers[i].Keep {
-			return false
-		}
-	}
-	for i := range a.Items {
-		if a.Items[i].Name != b.Items[i].Name || a.Items[i].Rows != b.Items[i].Rows {
-			return false
-		}
-	}
-	return true
 }
 
 // tableIndex is each table's place in the manifest, by name (names are unique).
@@ -264,7 +246,7 @@ func apply(doc *yamledit.Doc, m *schema.Manifest, i int, r analysis.Recommendati
 	out := Outcome{Table: table, Adopted: true, Fits: r.Fits, Hint: r.Hint(), Candidate: c}
 	tp := []yamledit.Step{yamledit.Key("tables"), yamledit.Index(i).Named(fmt.Sprintf("table %q", table))}
 	e := &editor{doc: doc, file: m.File}
-	if !samePolicy(spec.Partitions, c.Spec.Partitions) {
+	if !spec.Partitions.SamePolicy(c.Spec.Partitions) {
 		if err := e.partitions(append(tp, yamledit.Key("partitions")), spec.Partitions, c.Spec.Partitions); err != nil {
 			return out, err
 		}

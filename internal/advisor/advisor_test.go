@@ -285,28 +285,11 @@ tables:
 			}
 			got := back.Tables[0]
 			if back.Engine.SegmentRows != c.SegmentRows || got.Name != c.Spec.Name || Label(got.Partitions) != c.Label ||
-				!samePartitions(got.Partitions, c.Spec.Partitions) {
+				!got.Partitions.SamePolicy(c.Spec.Partitions) {
 				t.Errorf("%s %q: snippet gives %d rows per segment, %q %+v", c.Spec.Name, c.Change, back.Engine.SegmentRows, got.Name, got.Partitions)
 			}
 		}
 	}
-}
-
-func samePartitions(a, b schema.Partitions) bool {
-	if a.Scheme != b.Scheme || a.Count != b.Count || len(a.Tiers) != len(b.Tiers) || len(a.Items) != len(b.Items) {
-		return false
-	}
-	for i := range a.Tiers {
-		if a.Tiers[i].Grain != b.Tiers[i].Grain || a.Tiers[i].Keep != b.Tiers[i].Keep {
-			return false
-		}
-	}
-	for i := range a.Items {
-		if a.Items[i].Name != b.Items[i].Name || a.Items[i].Rows != b.Items[i].Rows {
-			return false
-		}
-	}
-	return true
 }
 
 // Same manifest, same sweep, byte for byte in every figure and mark.
