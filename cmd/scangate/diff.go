@@ -37,7 +37,6 @@ func newDiff() *cobra.Command {
 			"  scangate diff --base HEAD~1 --format markdown=out/diff.md --format text\n" +
 			"  scangate diff testdata/diff/before testdata/diff/after",
 		RunE: func(cmd *cobra.Command, args []string) error {
-			o.MaxAddedMs, o.MaxAddedSegments = nil, nil // nil: the limit is off
 			if cmd.Flags().Changed("max-added-ms") {
 				o.MaxAddedMs = &maxMs
 			}

@@ -26,7 +26,6 @@ func newPlan() *cobra.Command {
 			"  scangate plan model.yaml --segment-rows 8Mi,16Mi,32Mi --horizon 36\n" +
 			"  scangate plan model.yaml --fixed-segment-rows --svg plan.svg",
 		RunE: func(cmd *cobra.Command, args []string) error {
-			o.Horizon = nil // nil: the config's horizon
 			if cmd.Flags().Changed("horizon") {
 				o.Horizon = &horizon
 			}
