@@ -23,9 +23,9 @@ func newAdopt() *cobra.Command {
 		Example: "  scangate adopt --dry-run testdata/demo/meter-telemetry.yaml\n  scangate adopt models/ --table meter_reads",
 		Args:    cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			proj, cfg, err := projectConfig(cmd, configFile, args, "")
+			proj, cfg, err := run.ProjectConfig(cmd.ErrOrStderr(), configFile, args, "", limits)
 			if err != nil {
-				return err
+				return usageError(err)
 			}
 			a, err := run.Adopt(args, proj, cfg, table, limits)
 			if err != nil {

@@ -1,23 +1,17 @@
 package main
 
 import (
-	"fmt"
-	"math"
-
 	"github.com/spf13/cobra"
 
 	"github.com/scangate/scangate/internal/change"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/run"
-	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
 
 func newDiff() *cobra.Command {
-	var base, output, today, configFile, failOnNew string
-	var formats []string
-	var noColor bool
-	var maxMs, threshold float64
+	var o run.DiffOptions
+	var maxMs float64
 	var maxSegments int64
 	cmd := &cobra.Command{
 		Use:   "diff (--base REV [PATH...] | OLD NEW)",
@@ -43,82 +37,27 @@ func newDiff() *cobra.Command {
 			"  scangate diff --base HEAD~1 --format markdown=out/diff.md --format text\n" +
 			"  scangate diff testdata/diff/before testdata/diff/after",
 		RunE: func(cmd *cobra.Command, args []string) error {
-			gate := change.Gate{}
 			if cmd.Flags().Changed("max-added-ms") {
-				if math.IsNaN(maxMs) || math.IsInf(maxMs, 0) || maxMs < 0 {
-					return usageError(fmt.Errorf("--max-added-ms %v: give a number of milliseconds, 0 or more", maxMs))
-				}
-				gate.MaxAddedMs = &maxMs
+				o.MaxAddedMs = &maxMs
 			}
 			if cmd.Flags().Changed("max-added-segments") {
-				if maxSegments < 0 {
-					return usageError(fmt.Errorf("--max-added-segments %d: give a number of segments, 0 or more", maxSegments))
-				}
-				gate.MaxAddedSegments = &maxSegments
+				o.MaxAddedSegments = &maxSegments
 			}
-			opts, err := change.PercentOptions(threshold)
-			if err != nil {
-				return usageError(err)
-			}
-			if gate.FailOnNew, err = rules.ParseThreshold("--fail-on-new", failOnNew); err != nil {
-				return usageError(err)
-			}
-			outs, err := run.ParseFormats(report.DiffReport, formats, output, run.DefaultFormats(output))
-			if err != nil {
-				return usageError(err)
-			}
-			var configFrom []string
-			if base == "" && len(args) == 2 {
-				configFrom = args[1:] // the new side's config
-			} else {
-				configFrom = args
-			}
-			proj, cfg, err := projectConfig(cmd, configFile, configFrom, today)
-			if err != nil {
-				return err
-			}
-			maxBytes := limits.MaxFileBytes
-			var sides [2]run.Side
-			if base != "" {
-				sides, err = run.RevisionSides(cmd.Context(), base, args, maxBytes, proj.Keep)
-			} else {
-				if len(args) != 2 {
-					return usageError(fmt.Errorf("diff compares two paths, OLD and NEW (got %d), or the working tree with a revision: scangate diff --base REV [PATH...]", len(args)))
-				}
-				sides, err = run.PathSides(args[0], args[1], cmd.InOrStdin(), maxBytes, proj.Keep)
-			}
-			if err != nil {
-				return usageError(err)
-			}
-			read := append(append(sides[0].Paths(), sides[1].Paths()...), proj.Files()...)
-			if err := run.GuardOutputs(outs, read); err != nil {
-				return usageError(err)
-			}
-			d := run.CompareSides(sides, cfg, proj, limits, opts)
-			res := report.NewDiffResult(run.ModuleVersion(), d, gate)
-			stdout := cmd.OutOrStdout()
-			if err := run.Write(outs, res, stdout, run.UseColor(stdout, noColor)); err != nil {
-				return usageError(err)
-			}
-			switch {
-			case len(d.Invalid) > 0:
-				return &exitError{code: exitInvalid}
-			case len(res.Breaches) > 0:
-				return &exitError{code: exitFindings}
-			}
-			return nil
+			o.Paths, o.Limits = args, limits
+			o.Stdin, o.Stdout, o.Stderr = cmd.InOrStdin(), cmd.OutOrStdout(), cmd.ErrOrStderr()
+			return exitFor(run.Diff(cmd.Context(), o))
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&base, "base", "", "git revision to compare the working tree with (a branch, tag or commit; it must be fetched)")
+	f.StringVar(&o.Base, "base", "", "git revision to compare the working tree with (a branch, tag or commit; it must be fetched)")
 	f.Float64Var(&maxMs, "max-added-ms", 0, "fail when the change adds more than this many fixed ms per scan to any one table")
 	f.Int64Var(&maxSegments, "max-added-segments", 0, "fail when the change adds more than this many segments to any one table")
-	f.StringVar(&failOnNew, "fail-on-new", "never", "fail on a new finding at or above this severity (error, warning, note or never); a finding that became this severe counts as new")
-	f.Float64Var(&threshold, "figure-threshold", 100*change.DefaultFigureThreshold, "percent a finding's graded figure must move, at the same severity, to count as worsened or improved")
-	f.BoolVar(&noColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
-	f.StringArrayVar(&formats, "format", nil, "report format NAME or NAME=FILE ("+report.NameList(report.DiffReport)+"); repeatable")
-	f.StringVar(&output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
-	f.StringVar(&today, "today", "", "the date waivers and forecasts are judged on, YYYY-MM-DD (default: today, UTC)")
-	f.StringVar(&configFile, "config", "", "project config to use for both sides (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
+	f.StringVar(&o.FailOnNew, "fail-on-new", "never", "fail on a new finding at or above this severity (error, warning, note or never); a finding that became this severe counts as new")
+	f.Float64Var(&o.FigureThreshold, "figure-threshold", 100*change.DefaultFigureThreshold, "percent a finding's graded figure must move, at the same severity, to count as worsened or improved")
+	f.BoolVar(&o.NoColor, "no-color", false, "never colour the output (NO_COLOR does the same)")
+	f.StringArrayVar(&o.Formats, "format", nil, "report format NAME or NAME=FILE ("+report.NameList(report.DiffReport)+"); repeatable")
+	f.StringVar(&o.Output, "output", "", "write the report that would go to standard output to this file instead (atomically)")
+	f.StringVar(&o.Today, "today", "", "the date waivers and forecasts are judged on, YYYY-MM-DD (default: today, UTC)")
+	f.StringVar(&o.Config, "config", "", "project config to use for both sides (default: the nearest "+schema.ConfigFile+" from the first path up to the repository root)")
 	return cmd
 }

@@ -22,6 +22,28 @@ type Gate struct {
 	FailOnNew rules.Severity
 }
 
+// NewGate is the gate of diff's --max-added-ms and --max-added-segments, each nil when
+// not given. The limits are copied; a negative one, or ms that are not a number, are
+// refused with a message naming the flag. FailOnNew is left off for the caller to set.
+func NewGate(maxMs *float64, maxSegments *int64) (Gate, error) {
+	var g Gate
+	if maxMs != nil {
+		ms := *maxMs
+		if math.IsNaN(ms) || math.IsInf(ms, 0) || ms < 0 {
+			return Gate{}, fmt.Errorf("--max-added-ms %v: give a number of milliseconds, 0 or more", ms)
+		}
+		g.MaxAddedMs = &ms
+	}
+	if maxSegments != nil {
+		n := *maxSegments
+		if n < 0 {
+			return Gate{}, fmt.Errorf("--max-added-segments %d: give a number of segments, 0 or more", n)
+		}
+		g.MaxAddedSegments = &n
+	}
+	return g, nil
+}
+
 // Breach is one limit a change crosses.
 type Breach struct {
 	Kind    string // "added-ms", "added-segments" or "new-finding"

@@ -3,6 +3,7 @@ package run
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path"
 	"path/filepath"
@@ -157,4 +158,23 @@ func (p Project) Files() []string {
 		return nil
 	}
 	return []string{p.Config.File}
+}
+
+// ProjectConfig reads the project config (--config, or the nearest one found from the
+// paths) and the rules' settings with --today. A config that breaks its schema has its
+// problems printed on stderr at their lines and columns (Problems).
+func ProjectConfig(stderr io.Writer, configFile string, paths []string, today string, limits schema.Limits) (Project, rules.Config, error) {
+	proj, err := LoadProject(configFile, paths, limits)
+	if err != nil {
+		return proj, rules.Config{}, configProblems(stderr, err)
+	}
+	cfg, err := proj.RulesConfig(today)
+	if err != nil {
+		return proj, cfg, configProblems(stderr, err)
+	}
+	return proj, cfg, nil
+}
+
+func configProblems(stderr io.Writer, err error) error {
+	return Problems(stderr, err, "config", "the project config is invalid; fix it and run again")
 }
