@@ -105,25 +105,13 @@ func writable(path string) error {
 	return nil
 }
 
-// printSchemaProblems prints a manifest's schema problems in check's style, each at its
-// line and column, as LoadOne does.
-func printSchemaProblems(stderr io.Writer, se *schema.Error) {
-	for _, f := range rules.SchemaFindings(se) {
-		loc := escape.Text(f.File)
-		if f.Pos.Line > 0 {
-			loc = fmt.Sprintf("%s:%d:%d", loc, f.Pos.Line, f.Pos.Col)
-		}
-		fmt.Fprint(stderr, escape.Log(fmt.Sprintf("%s: error: %s [%s]\n", loc, escape.Text(f.Message), escape.Text(f.Rule))))
-	}
-}
-
 // PrintErrors prints why manifests could not be adopted, a manifest's schema problems
 // each at its line and column; false when there were none.
 func (a *Adoption) PrintErrors(stderr io.Writer) bool {
 	for _, err := range a.Errors {
 		var se *schema.Error
 		if errors.As(err, &se) {
-			printSchemaProblems(stderr, se)
+			printProblems(stderr, se)
 		} else {
 			fmt.Fprint(stderr, escape.Log("scangate: "+escape.Text(err.Error())+"\n"))
 		}
