@@ -7,6 +7,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
+	"unicode/utf8"
 
 	"github.com/scangate/scangate/internal/survey"
 )
@@ -40,6 +42,9 @@ func readCSV(f File, t *survey.Table, column, fileKey string, lim Limits, progre
 		}
 		if name == "" {
 			return fmt.Errorf("%s:1:%d: column %d has no name; the first row must name every column", f.Path, i+1, i+1)
+		}
+		if !utf8.ValidString(name) {
+			return fmt.Errorf("%s:1:%d: column name %q is not UTF-8 text, which a manifest needs: rename the column (or save the file as UTF-8)", f.Path, i+1, strings.ToValidUTF8(name, "\uFFFD"))
 		}
 		if seen[name] {
 			return fmt.Errorf("%s:1:%d: column %q is named twice in the header row", f.Path, i+1, name)

@@ -306,12 +306,14 @@ func TestBadInput(t *testing.T) {
 		"empty.csv":    "",
 		"nameless.csv": "a,,c\n1,2,3\n",
 		"twice.csv":    "a,a\n1,2\n",
+		"latin1.csv":   "a,caf\xe9\n1,2\n", // not UTF-8: the manifest could not hold the name
 		"bad.parquet":  "PAR1 not really",
 		"foot.parquet": "PAR1xxxxxxxxxxxx\xff\xff\xff\x7fPAR1",
 	}
 	want := map[string]string{
 		"ragged.csv": "ragged.csv:3:1:", "quote.csv": "quote.csv:2:", "empty.csv": "empty.csv:1:1: the file is empty",
 		"nameless.csv": "nameless.csv:1:2: column 2 has no name", "twice.csv": "twice.csv:1:2:",
+		"latin1.csv":  "latin1.csv:1:2: column name \"caf\uFFFD\" is not UTF-8 text",
 		"bad.parquet": "not a Parquet file", "foot.parquet": "footer claims",
 	}
 	for name, body := range cases {

@@ -91,6 +91,9 @@ func Survey(o SurveyOptions) error {
 	} else if t, err = surveyData(o); err != nil {
 		return err
 	}
+	if err := survey.CheckText(surveySource(o), t); err != nil {
+		return err
+	}
 	if o.Into != "" {
 		return writeInto(o, t)
 	}
@@ -100,6 +103,14 @@ func Survey(o SurveyOptions) error {
 	}
 	_, err = o.Stdout.Write(out)
 	return err
+}
+
+// surveySource names where a survey's figures came from, for its errors.
+func surveySource(o SurveyOptions) string {
+	if o.FromResult != "" {
+		return o.FromResult
+	}
+	return strings.Join(o.Data, ", ")
 }
 
 func validGrain(g string) bool {

@@ -3,8 +3,11 @@ package survey
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strconv"
+	"strings"
+	"unicode/utf8"
 
 	"go.yaml.in/yaml/v3"
 
@@ -23,7 +26,7 @@ func Fragment(tables []schema.SurveyTable) []byte {
 	var b bytes.Buffer
 	enc := yaml.NewEncoder(&b)
 	enc.SetIndent(2)
-	_ = enc.Encode(doc) // encoding nodes built here cannot fail
+	_ = enc.Encode(doc) // cannot fail: every string is UTF-8 (FromResult and run.Survey call CheckText first)
 	_ = enc.Close()
 	return b.Bytes()
 }
@@ -115,4 +118,30 @@ func flt(v float64) *yaml.Node {
 	}
 	s := strconv.FormatFloat(v, 'f', -1, 64)
 	return &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!float", Value: s}
+}
+
+// CheckText refuses a table whose names are not UTF-8 text (a column, the table, a
+// partition): a manifest is UTF-8, so its fragment could not hold them, and a JSON
+// report would change them. file names where the names came from.
+func CheckText(file string, t schema.SurveyTable) error {
+	bad := func(what, s string) error {
+		return fmt.Errorf("%s: %s %q is not UTF-8 text, which a manifest needs: rename it in the data (or the query)", file, what, strings.ToValidUTF8(s, "\uFFFD"))
+	}
+	if !utf8.ValidString(t.Name) {
+		return fmt.Errorf("%s: the table name %q is not UTF-8 text, which a manifest needs: give one with --name", file, strings.ToValidUTF8(t.Name, "\uFFFD"))
+	}
+	if !utf8.ValidString(t.Partitions.Key) {
+		return bad("the partition key", t.Partitions.Key)
+	}
+	for _, it := range t.Partitions.Items {
+		if !utf8.ValidString(it.Name) {
+			return bad("partition", it.Name)
+		}
+	}
+	for _, c := range t.Columns {
+		if !utf8.ValidString(c.Name) {
+			return bad("column name", c.Name)
+		}
+	}
+	return nil
 }

@@ -9,6 +9,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/scangate/scangate/schema"
 )
@@ -38,6 +39,9 @@ func FromResult(file string, data []byte) (schema.SurveyTable, error) {
 	colIndex := map[string]int{}
 	for i, h := range header {
 		h = strings.TrimSpace(h)
+		if !utf8.ValidString(h) {
+			return out, fmt.Errorf("%s:1:%d: header %q is not UTF-8 text, which a manifest needs: rename the column in the query", file, i+1, strings.ToValidUTF8(h, "\uFFFD"))
+		}
 		j := strings.LastIndexByte(h, ':')
 		if j < 0 {
 			at[strings.ToLower(h)] = i
@@ -49,7 +53,13 @@ func FromResult(file string, data []byte) (schema.SurveyTable, error) {
 			return out, fmt.Errorf("%s:1:%d: header %q is not one the survey query writes (NAME:TYPE:distinct, :values or :avg_length); save the query's result as it is", file, i+1, h)
 		}
 		name, typ := rest[:k], rest[k+1:]
+		if what == "avg_length" && typ != "string" {
+			return out, fmt.Errorf("%s:1:%d: header %q: avg_length is measured for string columns only; save the query's result as it is", file, i+1, h)
+		}
 		ci, ok := colIndex[name]
+		if ok && cols[ci].Type != typ {
+			return out, fmt.Errorf("%s:1:%d: header %q types column %q %s, an earlier header %s; save the query's result as it is", file, i+1, h, name, typ, cols[ci].Type)
+		}
 		if !ok {
 			ci = len(cols)
 			colIndex[name] = ci
@@ -172,7 +182,7 @@ func FromResult(file string, data []byte) (schema.SurveyTable, error) {
 		cols = []schema.SurveyColumn{}
 	}
 	out.Columns = cols
-	return out, nil
+	return out, CheckText(file, out)
 }
 
 // wholeNumber reads a count as engines print it: 1234, 1234.0 or 1.234e3.

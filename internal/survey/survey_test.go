@@ -3,6 +3,7 @@ package survey_test
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -215,4 +216,48 @@ func equal(a, b []string) bool {
 		}
 	}
 	return true
+}
+
+// A name that is not UTF-8 (a column, a partition, the table) is refused with the file
+// it came from: the manifest fragment could not hold it, and a JSON report would change
+// it (FuzzFromResult found the first: the YAML encoder refused it and survey printed
+// nothing, exit 0).
+func TestCheckTextRefusesNonUTF8(t *testing.T) {
+	ok := schema.SurveyTable{Name: "reads", Columns: []schema.SurveyColumn{{Name: "zone"}}, Partitions: schema.SurveyPartitions{Key: "day", Items: []schema.SurveyItem{{Name: "2026-01-01"}}}}
+	if err := survey.CheckText("d.csv", ok); err != nil {
+		t.Fatalf("a UTF-8 table: %v", err)
+	}
+	for what, mutate := range map[string]func(*schema.SurveyTable){
+		"the table name": func(t *schema.SurveyTable) { t.Name = "r\xffads" },
+		"column name":    func(t *schema.SurveyTable) { t.Columns = []schema.SurveyColumn{{Name: "caf\xe9"}} },
+		"partition":      func(t *schema.SurveyTable) { t.Partitions.Items = []schema.SurveyItem{{Name: "\xc3"}} },
+		"partition key":  func(t *schema.SurveyTable) { t.Partitions.Key = "\x89" },
+	} {
+		bad := ok
+		bad.Columns, bad.Partitions.Items = slices.Clone(ok.Columns), slices.Clone(ok.Partitions.Items)
+		mutate(&bad)
+		err := survey.CheckText("d.csv", bad)
+		if err == nil || !strings.HasPrefix(err.Error(), "d.csv: ") || !strings.Contains(err.Error(), what) || !strings.Contains(err.Error(), "not UTF-8") {
+			t.Errorf("%s: %v", what, err)
+		}
+	}
+	if _, err := survey.FromResult("r.csv", []byte("table,dialect,grain,key,scope,partition,rows,\x89:string:avg_length\nt,ansi,,,table,,5,2\n")); err == nil ||
+		!strings.Contains(err.Error(), "r.csv:1:8: header") {
+		t.Errorf("a result header that is not UTF-8: %v", err)
+	}
+}
+
+// A result header the survey query never writes is refused at its column (both found by
+// FuzzFromResult): avg_length of a column that is not a string (the manifest allows it on
+// strings only), and one column given two types.
+func TestFromResultRefusesMixedHeaders(t *testing.T) {
+	head := "table,dialect,grain,key,scope,partition,rows,"
+	for body, want := range map[string]string{
+		head + "n:int64:avg_length\nt,ansi,,,table,,5,2\n":                 `r.csv:1:8: header "n:int64:avg_length": avg_length is measured for string columns only`,
+		head + "n:int64:distinct,n:string:values\nt,ansi,,,table,,5,2,2\n": `r.csv:1:9: header "n:string:values" types column "n" string, an earlier header int64`,
+	} {
+		if _, err := survey.FromResult("r.csv", []byte(body)); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("%q: %v, want %q", body, err, want)
+		}
+	}
 }
