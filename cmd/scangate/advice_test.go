@@ -21,6 +21,12 @@ type jsonRec struct {
 // the flags given; nil when today's layout is kept.
 func planRec(t *testing.T, path string, flags ...string) *jsonRec {
 	t.Helper()
+	return planRecs(t, path, flags...)[0]
+}
+
+// planRecs are the recommendations of every table of the first file of plan's JSON.
+func planRecs(t *testing.T, path string, flags ...string) []*jsonRec {
+	t.Helper()
 	r := scangate(t, root(t), "", nil, append([]string{"plan", path, "--format", "json", "--today", "2026-01-15"}, flags...)...)
 	wantCode(t, r, 0)
 	var doc struct {
@@ -33,7 +39,11 @@ func planRec(t *testing.T, path string, flags ...string) *jsonRec {
 	if err := json.Unmarshal([]byte(r.stdout), &doc); err != nil {
 		t.Fatal(err)
 	}
-	return doc.Files[0].Tables[0].Recommendation
+	var out []*jsonRec
+	for _, tb := range doc.Files[0].Tables {
+		out = append(out, tb.Recommendation)
+	}
+	return out
 }
 
 // The contradictions of issue 17, each as a manifest of testdata/advice (the arithmetic is
@@ -67,6 +77,15 @@ func TestAdviceRegressions(t *testing.T) {
 	}
 	if out := check("testdata/advice/broken-memory.yaml"); !strings.Contains(out, "hint: no layout tried fits every budget, or comes nearer to them than today's without breaking another or making one worse") {
 		t.Errorf("broken memory: check:\n%s", out)
+	}
+	// A refresh no layout can fit (the two copies alone past the engine memory) steers no
+	// table's advice: the over-partitioned table gets its one partition at today's segment
+	// size, not a smaller size that trims the rows in flight and pushes the other table
+	// further over its scan budget (the arithmetic is in the file's comment).
+	recs := planRecs(t, "testdata/advice/unreachable-memory.yaml")
+	if len(recs) != 2 || recs[0] == nil || recs[0].SegmentRows != 4<<20 || recs[1] == nil || recs[1].Change != "use count: 1" || recs[1].SegmentRows != 4<<20 {
+		got, _ := json.Marshal(recs)
+		t.Errorf("unreachable memory: plan %s", got)
 	}
 	// engine.max_segment_rows caps the sweep: the closest layout is the largest size allowed.
 	r = planRec(t, "testdata/advice/capped-size.yaml")

@@ -165,6 +165,7 @@ type viewKey struct {
 // never lays it out, or holds its partitions, twice.
 type view struct {
 	scan    []scanState // by table: whether it fits its scan budgets, judged when first asked for
+	broken  []scanFigs  // by table: its scan figures, kept only when it breaks them
 	bytes   []float64   // by table: the encoded size of its profiled columns, 0 when unknown
 	total   exactSum    // of bytes, so a refresh peak costs the same however many tables
 	skip    int         // the table left out, -1 none
@@ -189,6 +190,15 @@ func scanStateOf(b schema.Budgets, f Figures) scanState {
 		return scanFits
 	}
 	return scanBreaks
+}
+
+// scanFigs are the figures a table's scan budgets judge: fixed ms and wall ms per scan.
+type scanFigs struct{ fixed, wall float64 }
+
+// worse reports whether a breaks the budgets by more than b does on either figure.
+func (a scanFigs) worse(b scanFigs) bool {
+	const slack = 1e-9 // the same sum in another order
+	return a.fixed > b.fixed*(1+slack) || a.wall > b.wall*(1+slack)
 }
 
 type tableMiss struct {
@@ -314,7 +324,7 @@ func (md *Model) view(s int64, month, i int) *view {
 	v, ok := md.views[k]
 	if !ok {
 		n := len(md.M.Tables)
-		v = &view{scan: make([]scanState, n), bytes: make([]float64, n), skip: -1}
+		v = &view{scan: make([]scanState, n), broken: make([]scanFigs, n), bytes: make([]float64, n), skip: -1}
 		md.views[k] = v
 		if i >= 0 && i < n {
 			v.skip = i
@@ -341,7 +351,7 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 	if month != 0 && !grows(md.M.Tables[j]) {
 		// Growth leaves it as it is: share today's figures (j != i, so they are there).
 		base := md.view(s, 0, i)
-		v.scan[j], v.bytes[j] = base.scan[j], base.bytes[j]
+		v.scan[j], v.broken[j], v.bytes[j] = base.scan[j], base.broken[j], base.bytes[j]
 		v.total.add(v.bytes[j])
 		return
 	}
@@ -352,6 +362,9 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 	}
 	f := md.figures(spec, parts, s)
 	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
+	if v.scan[j] == scanBreaks {
+		v.broken[j] = scanFigs{f.Layout.FixedMs, f.WallMs}
+	}
 	v.total.add(v.bytes[j])
 }
 
@@ -368,7 +381,10 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
 		v.scan[j] = scanFits // no scan budget applies
 	default:
-		v.scan[j] = scanStateOf(b, md.figures(spec, parts, s))
+		f := md.figures(spec, parts, s)
+		if v.scan[j] = scanStateOf(b, f); v.scan[j] == scanBreaks {
+			v.broken[j] = scanFigs{f.Layout.FixedMs, f.WallMs}
+		}
 	}
 	return v.scan[j]
 }
@@ -400,18 +416,25 @@ func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
 }
 
 // judgeOver adds table j to v.over, in table order, when it fits its scan budgets in
-// now but not in v; when either view left it out, it waits in v.lacking.
+// now but not in v, or breaks them in both but by more in v: a segment size that one
+// table's advice proposes moves every table, and must not push another one further
+// over. When either view left j out, it waits in v.lacking.
 func (md *Model) judgeOver(v, now *view, s, today int64, month, j int) {
 	if j == v.skip || j == now.skip {
 		v.lacking = append(v.lacking, j)
 		return
 	}
-	if md.scanOf(now, today, month, j) != scanFits || md.scanOf(v, s, month, j) != scanBreaks {
-		return // fits in both, breaks today already, or cannot be expanded
+	was, is := md.scanOf(now, today, month, j), md.scanOf(v, s, month, j)
+	if is != scanBreaks || (was != scanFits && (was != scanBreaks || !v.broken[j].worse(now.broken[j]))) {
+		return // fits in v, breaks as much or less than today, or cannot be expanded
 	}
 	name := md.M.Tables[j].Name
+	text := fmt.Sprintf("table %s over its scan budgets", name)
+	if was == scanBreaks {
+		text = fmt.Sprintf("table %s further over its scan budgets", name)
+	}
 	at, _ := slices.BinarySearchFunc(v.over, j, func(o tableMiss, j int) int { return cmp.Compare(o.j, j) })
-	v.over = slices.Insert(v.over, at, tableMiss{j, Miss{Key: "table " + name, Text: fmt.Sprintf("table %s over its scan budgets", name)}})
+	v.over = slices.Insert(v.over, at, tableMiss{j, Miss{Key: "table " + name, Text: text}})
 }
 
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
@@ -750,9 +773,13 @@ func (md *Model) mark(sw *Sweep) {
 		// Nearer every budget at once than today; ties keep the fewer fixed ms, then the
 		// first generated: the order is part of the output.
 		// A share within a billionth of today's is today's computed another way
-		// (floating point), not a step nearer.
+		// (floating point), not a step nearer. As near as today's, a layout still
+		// qualifies when it cuts fixed ms per scan at today's segment size: a budget no
+		// layout can reach (the model's two copies alone past the engine memory, say)
+		// leaves a table's own waste to mend, but it moves no engine setting for nothing.
 		e := Excess(c.missed)
-		if !(e < nowExcess-1e-9*math.Abs(nowExcess)) {
+		tie := math.Abs(e-nowExcess) <= 1e-9*math.Abs(nowExcess)
+		if !(e < nowExcess-1e-9*math.Abs(nowExcess)) && !(tie && !c.Engine && c.Layout.FixedMs < now.Layout.FixedMs) {
 			continue
 		}
 		if sw.Closest < 0 || e < bestExcess || (e == bestExcess && c.Layout.FixedMs < sw.Candidates[sw.Closest].Layout.FixedMs) {
