@@ -70,6 +70,11 @@ func Parse(src []byte, asJSON bool) (*Doc, error) {
 		d.bom = true
 		src = src[len(bomBytes):]
 	}
+	if bytes.HasPrefix(src, []byte(bomBytes)) {
+		// The YAML parser drops a mark at the start of its input without counting a
+		// column, and misreads later lines after a second one: every span would be off.
+		return nil, &Error{Line: 1, Col: 1, Msg: "the document starts with more than one byte order mark; remove all but one"}
+	}
 	d.src = bytes.Clone(src)
 	d.nl = "\n"
 	if i := bytes.IndexByte(src, '\n'); i > 0 && src[i-1] == '\r' {

@@ -2,6 +2,7 @@ package yamledit
 
 import (
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -232,5 +233,32 @@ func TestUpsert(t *testing.T) {
 			}
 			checkOutside(t, []byte(c.in), d)
 		})
+	}
+}
+
+// A second byte order mark after the first is refused at 1:1: the YAML parser drops it
+// without counting a column (so every span on line 1 would be one character off, and
+// deleting the first key took the mark with it), and a third makes it drop the first
+// character of every later line ("model" reads "odel").
+func TestExtraByteOrderMarks(t *testing.T) {
+	for _, c := range []struct {
+		in   string
+		json bool
+	}{
+		{bomBytes + bomBytes + "format: 1\nmodel: m\n", false},
+		{bomBytes + bomBytes + bomBytes + "format: 1\nmodel: m\n", false},
+		{bomBytes + bomBytes + "# head\nformat: 1\n", false},
+		{bomBytes + bomBytes + "{\"format\": 1}", true},
+	} {
+		d, err := Parse([]byte(c.in), c.json)
+		var e *Error
+		if !errors.As(err, &e) || e.Line != 1 || e.Col != 1 || !strings.Contains(e.Msg, "byte order mark") {
+			got := ""
+			if d != nil {
+				v, _ := Value(d.Root())
+				got = fmt.Sprintf(" (reads %v)", v)
+			}
+			t.Errorf("%q: %v%s; want a refusal at 1:1 naming the byte order mark", c.in, err, got)
+		}
 	}
 }

@@ -2,22 +2,27 @@ package yamledit
 
 import (
 	"errors"
+	"maps"
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
+	"sort"
 	"strings"
 	"testing"
 
 	"go.yaml.in/yaml/v3"
 )
 
-// corpus is every manifest under testdata, each also with CR LF line breaks and with a
-// byte order mark, and a few documents written for the odd corners.
+// corpus is every manifest under testdata and a few documents written for the odd
+// corners, each also with CR LF line breaks, with a byte order mark, and with both.
 func corpus(t *testing.T) map[string][]byte {
 	t.Helper()
 	out := map[string][]byte{
 		"corners.yaml": []byte("# head\na: &A {x: 1, y: [1, 2]}\nb: *A\nc:\n  <<: *A\n  z: 'q' # zed\nd: |\n  text\n  more\ne:\n- 1\n- - 2\n  - 3\nf: plain\n  folded\ng:\nh: !!str 5\n"),
 		"corners.json": []byte("{\n  \"a\": {\"x\": 1, \"y\": [1, 2.5e3, true, null]},\n  \"b\": [\n    {\"n\": \"\\u00e9\\/\"}\n  ],\n  \"c\": {}\n}\n"),
+		// A key on the first line, where a byte order mark stands before it.
+		"first-line.yaml": []byte("format: 1\nmodel: m\ntables:\n  - name: t # c\n    rows: 10\n"),
 	}
 	err := filepath.WalkDir("../../testdata", func(p string, e os.DirEntry, err error) error {
 		if err != nil || e.IsDir() || !(strings.HasSuffix(p, ".yaml") || strings.HasSuffix(p, ".json")) || strings.Contains(p, "/bad") {
@@ -32,11 +37,22 @@ func corpus(t *testing.T) map[string][]byte {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for name, b := range out {
-		if !strings.Contains(string(b), "\r") {
-			out[name+" (crlf)"] = []byte(strings.ReplaceAll(string(b), "\n", "\r\n"))
+	// Variants of the base documents only: a map ranged over while it grows may or may
+	// not yield the new entries, and once made the corpus differ from run to run.
+	bases := slices.Sorted(maps.Keys(out))
+	for _, name := range bases {
+		b := string(out[name])
+		crlf := !strings.Contains(b, "\r")
+		if crlf {
+			out[name+" (crlf)"] = []byte(strings.ReplaceAll(b, "\n", "\r\n"))
 		}
-		out[name+" (bom)"] = append([]byte(bomBytes), b...)
+		if strings.HasPrefix(b, bomBytes) {
+			continue // a second mark is refused (TestExtraByteOrderMarks)
+		}
+		out[name+" (bom)"] = []byte(bomBytes + b)
+		if crlf {
+			out[name+" (crlf) (bom)"] = []byte(bomBytes + strings.ReplaceAll(b, "\n", "\r\n"))
+		}
 	}
 	return out
 }
@@ -115,8 +131,24 @@ func TestEveryEdit(t *testing.T) {
 	block, _ := Parsed("{a: 1, b: [2, {c: 3}]}")
 	unflow(block)
 	values := []*yaml.Node{Scalar(7), Scalar("two words: and # more"), Scalar(""), mustParse("{scheme: none}"), mustParse("[1, x]"), block}
+	// Every edit is given the same nodes: the editor must not change them.
+	kept := make([]*yaml.Node, len(values))
+	for i, v := range values {
+		kept[i] = deepCopy(v)
+	}
+	defer func() {
+		for i, v := range values {
+			if !reflect.DeepEqual(v, kept[i]) {
+				t.Errorf("the value %s was changed by the edits made with it", inline(kept[i]))
+			}
+		}
+	}()
+	// In name order, so a failure recurs on the same document.
+	docs := corpus(t)
+	names := slices.Sorted(maps.Keys(docs))
 	done, refused := 0, 0
-	for name, src := range corpus(t) {
+	for _, name := range names {
+		src := docs[name]
 		isJSON := strings.Contains(name, ".json")
 		orig, err := Parse(src, isJSON)
 		if err != nil {
@@ -160,7 +192,8 @@ func TestEveryEdit(t *testing.T) {
 	}
 	t.Logf("%d edits made, %d refused", done, refused)
 	batched := 0
-	for name, src := range corpus(t) {
+	for _, name := range names {
+		src := docs[name]
 		isJSON := strings.Contains(name, ".json")
 		d, err := Parse(src, isJSON)
 		if err != nil {
@@ -198,6 +231,15 @@ func mustParse(s string) *yaml.Node {
 		panic(err)
 	}
 	return n
+}
+
+func deepCopy(n *yaml.Node) *yaml.Node {
+	c := *n
+	c.Content = nil
+	for _, e := range n.Content {
+		c.Content = append(c.Content, deepCopy(e))
+	}
+	return &c
 }
 
 func unflow(n *yaml.Node) {
@@ -254,4 +296,27 @@ func FuzzSetText(f *testing.F) {
 		}
 		checkOutside(t, src, d)
 	})
+}
+
+// The corpus is the same on every call: a variant is made of each base document only
+// (once a document with a byte order mark and CR LF breaks came and went with map
+// iteration order, and documents with two marks with it).
+func TestCorpusIsFixed(t *testing.T) {
+	names := func() []string {
+		var out []string
+		for name := range corpus(t) {
+			if strings.Count(name, "(bom)") > 1 || strings.Count(name, "(crlf)") > 1 {
+				t.Errorf("%s: a variant of a variant", name)
+			}
+			out = append(out, name)
+		}
+		sort.Strings(out)
+		return out
+	}
+	first := names()
+	for range 5 {
+		if again := names(); !slices.Equal(again, first) {
+			t.Fatalf("the corpus changed between calls: %d documents, then %d", len(first), len(again))
+		}
+	}
 }
