@@ -315,6 +315,12 @@ func encodingProblem(data []byte) *Problem {
 		return &Problem{Pos: Pos{1, 1}, Message: "file is UTF-16; save it as UTF-8"}
 	}
 	body := bytes.TrimPrefix(data, []byte{0xEF, 0xBB, 0xBF})
+	// A second mark is not text the parser counts: it would drop the first character of
+	// later lines and misplace every position, so the problems would name keys that are
+	// not in the file.
+	if bytes.HasPrefix(body, []byte{0xEF, 0xBB, 0xBF}) {
+		return &Problem{Pos: Pos{1, 1}, Message: "file starts with more than one byte order mark; remove all but one (or save it as UTF-8 again)"}
+	}
 	// The first NUL or invalid byte, reported at its own line and column.
 	for i := 0; i < len(body); {
 		r, size := utf8.DecodeRune(body[i:])

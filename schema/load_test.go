@@ -437,6 +437,8 @@ func TestLoadEncodings(t *testing.T) {
 	oneProblem(t, be, 1, 1, "UTF-16; save it as UTF-8")
 	// Without a byte order mark UTF-16 is full of NUL bytes: not text.
 	oneProblem(t, le[2:], 1, 2, "not UTF-8 text") // the NUL after the first letter
+	// Two byte order marks: the parser would read "odel" for "model" on the next line.
+	oneProblem(t, []byte("\uFEFF\uFEFFformat: 1\nmodel: m\nengine: {segment_rows: 1M}\ntables: []\n"), 1, 1, "more than one byte order mark")
 
 	garbage := []byte{0x7F, 'E', 'L', 'F', 2, 1, 1, 0, 0, 0, 0xFF, 0xFE, 0x80, '\n', 0}
 	oneProblem(t, garbage, 1, 8, "not UTF-8 text") // the first NUL, the 8th byte
