@@ -27,8 +27,8 @@ type File struct {
 	// in the new directory. "" means Key.
 	Path    string
 	Model   string
-	Invalid bool // could not be read or broke the schema; its findings say why
-	Tables  []*analysis.Table
+	Invalid bool           // could not be read or broke the schema; its findings say why
+	Tables  []analysis.Row // in brief: the figures compared, not the analyses
 }
 
 // RepoPath is where the file is on its own side: Path, or Key when Path is unset.
@@ -87,13 +87,13 @@ type Figures struct {
 	ScanWallMs *float64 // wall ms of a full scan of the widest column; nil without column profiles
 }
 
-func figuresOf(t *analysis.Table) *Figures {
+func figuresOf(t *analysis.Row) *Figures {
 	f := &Figures{
 		Rows: t.Layout.Rows, Partitions: t.Layout.Partitions, Segments: t.Layout.Segments,
 		Fill: t.Layout.Fill, FixedMs: t.Layout.FixedMs,
 	}
-	if t.Widest != nil {
-		w := t.Scan.WallMs
+	if t.Scanned {
+		w := t.ScanWallMs
 		f.ScanWallMs = &w
 	}
 	return f
@@ -360,7 +360,7 @@ func fileKey(c FileChange) string {
 type placed struct {
 	file  *File
 	key   string // the file's key, a base key translated through renames
-	table *analysis.Table
+	table *analysis.Row
 }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
@@ -373,8 +373,8 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			if k, ok := rename[key]; ok {
 				key = k
 			}
-			for _, t := range files[i].Tables {
-				out = append(out, placed{&files[i], key, t})
+			for j := range files[i].Tables {
+				out = append(out, placed{&files[i], key, &files[i].Tables[j]})
 			}
 		}
 		return out
@@ -391,7 +391,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	}
 	inFile, anywhere := map[placedName][]int{}, map[name][]int{}
 	for j, b := range bs {
-		n := name{b.file.Model, b.table.Spec.Name}
+		n := name{b.file.Model, b.table.Name}
 		inFile[placedName{b.key, n}] = append(inFile[placedName{b.key, n}], j)
 		anywhere[n] = append(anywhere[n], j)
 	}
@@ -409,7 +409,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			if pair[i] != 0 {
 				continue
 			}
-			n := name{h.file.Model, h.table.Spec.Name}
+			n := name{h.file.Model, h.table.Name}
 			j := -1
 			if pass == 0 {
 				k := placedName{h.key, n}
@@ -432,10 +432,10 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return m
 	}
 	for i, h := range hs {
-		tc := TableChange{Model: h.file.Model, Name: h.table.Spec.Name, HeadFile: h.file.Name, HeadPos: h.table.Spec.Pos, After: figuresOf(h.table), Status: Added}
+		tc := TableChange{Model: h.file.Model, Name: h.table.Name, HeadFile: h.file.Name, HeadPos: h.table.Pos, After: figuresOf(h.table), Status: Added}
 		if pair[i] != 0 {
 			b := bs[pair[i]-1]
-			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = b.file.Name, b.table.Spec.Pos, figuresOf(b.table), b.file.Key != h.file.Key
+			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = b.file.Name, b.table.Pos, figuresOf(b.table), b.file.Key != h.file.Key
 			tc.Status = Changed
 			if tc.Before.equal(tc.After) {
 				tc.Status = Unchanged
@@ -449,7 +449,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			continue
 		}
 		m := model(b.file.Model)
-		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Spec.Name, BaseFile: b.file.Name, BasePos: b.table.Spec.Pos, Before: figuresOf(b.table), Status: Removed})
+		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Name, BaseFile: b.file.Name, BasePos: b.table.Pos, Before: figuresOf(b.table), Status: Removed})
 	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.
@@ -496,10 +496,13 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 }
 
 // tablesByModel lists the tables of each model on one side, in file order.
-func tablesByModel(files []File) map[string][]*analysis.Table {
-	out := map[string][]*analysis.Table{}
-	for _, f := range files {
-		out[f.Model] = append(out[f.Model], f.Tables...)
+func tablesByModel(files []File) map[string][]*analysis.Row {
+	out := map[string][]*analysis.Row{}
+	for i := range files {
+		f := &files[i]
+		for j := range f.Tables {
+			out[f.Model] = append(out[f.Model], &f.Tables[j])
+		}
 	}
 	return out
 }
@@ -507,26 +510,21 @@ func tablesByModel(files []File) map[string][]*analysis.Table {
 // refreshPeak is the model's refresh peak as the refresh-memory rule states it
 // (layout.RefreshPeak): 2 x the encoded size of every profiled column + the partitions
 // refreshed at once x segment_rows x the widest uncompressed row. nil without profiles.
-func refreshPeak(ts []*analysis.Table) *float64 {
+func refreshPeak(ts []*analysis.Row) *float64 {
 	var bytes, row float64
 	profiled := false
 	for _, t := range ts {
-		if len(t.Spec.Columns) == 0 {
+		if !t.Profiled {
 			continue
 		}
 		profiled = true
-		bytes += t.EncodedBytes()
-		row = max(row, layout.RowBytes(t.Spec.Columns))
+		bytes += t.Encoded
+		row = max(row, t.RowBytes)
 	}
 	if !profiled {
 		return nil
 	}
-	e := ts[0].Engine
-	parallelism := e.RefreshParallelism
-	if parallelism < 1 {
-		parallelism = max(e.Cores, 1)
-	}
-	peak := layout.RefreshPeak(bytes, parallelism, e.SegmentRows, row)
+	peak := layout.RefreshPeak(bytes, ts[0].Workers, ts[0].SegmentRows, row)
 	return &peak
 }
 

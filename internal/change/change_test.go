@@ -6,6 +6,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -45,7 +46,7 @@ func side(t *testing.T, label string, keys []string, bodies ...string) Side {
 			t.Fatal(err)
 		}
 		md, findings := rules.Check(m, rules.Config{Today: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)})
-		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: md.Tables})
+		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: analysis.Rows(md.Tables)})
 		s.Findings = append(s.Findings, findings...)
 	}
 	return s

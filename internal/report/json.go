@@ -6,7 +6,6 @@ import (
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
-	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -101,7 +100,7 @@ type jsonRebuild struct {
 	PeakBytes  *float64 `json:"model_peak_bytes,omitempty"`
 }
 
-func rebuildJSON(r layout.Rebuild, peak *float64) jsonRebuild {
+func rebuildJSON(r analysis.RowRebuild, peak *float64) jsonRebuild {
 	j := jsonRebuild{Partitions: r.Partitions, Rows: r.Rows, Seconds: round(r.Seconds)}
 	if r.Days > 0 {
 		d := round(r.Days)
@@ -177,24 +176,23 @@ func findingJSON(r *Result, f rules.Finding) jsonFinding {
 	return jf
 }
 
-func tableJSON(t *analysis.Table) jsonTable {
+func tableJSON(t analysis.Row) jsonTable {
 	l := t.Layout
 	jt := jsonTable{
-		Name: t.Spec.Name, Line: t.Spec.Pos.Line, Column: t.Spec.Pos.Col,
-		Scheme: string(t.Spec.Partitions.Scheme), Rows: l.Rows, SegmentRows: t.Engine.SegmentRows,
+		Name: t.Name, Line: t.Pos.Line, Column: t.Pos.Col,
+		Scheme: string(t.Scheme), Rows: l.Rows, SegmentRows: t.SegmentRows,
 		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
-		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
-		Recommendation: tableRecommendation(t),
+		ScanOverheadBudgetMs: t.ScanOverheadBudgetMs, ScanBudgetMs: t.ScanBudgetMs,
+		Recommendation: recommendationJSON(t.Recommendation),
 	}
-	if t.Widest != nil {
-		wall := round(t.Scan.WallMs)
-		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
+	if t.Scanned {
+		wall := round(t.ScanWallMs)
+		jt.WidestColumn, jt.ScanWallMs = t.Widest, &wall
 	}
-	peaks := t.Peaks()
-	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
-	if t.RoutineDeclared() {
-		r := rebuildJSON(t.Routine, peaks.Routine)
+	jt.Refresh.Full = rebuildJSON(t.Full, t.Peaks.Full)
+	if t.RoutineDeclared {
+		r := rebuildJSON(t.Routine, t.Peaks.Routine)
 		jt.Refresh.Routine = &r
 	}
 	return jt

@@ -39,11 +39,11 @@ func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 			for _, t := range f.Tables {
 				l := t.Layout
 				budget := "–"
-				if t.Budgets.ScanOverheadMs != nil {
-					budget = units.Ms(*t.Budgets.ScanOverheadMs)
+				if t.ScanOverheadBudgetMs != nil {
+					budget = units.Ms(*t.ScanOverheadBudgetMs)
 				}
 				fmt.Fprintf(b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
-					code(f.Name), code(t.Spec.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
+					code(f.Name), code(t.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
 					units.Num(l.Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
 				out.flush()
 			}
