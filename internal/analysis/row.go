@@ -10,29 +10,28 @@ import (
 // keeps one row per table to the end instead of the analysis, which holds several times
 // as much (the spec's column lists above all).
 type Row struct {
-	File string
 	Name string
 	Pos  schema.Pos // the table's mapping's first key
 	// Scheme is the table's partition policy; SegmentRows and Workers are its engine's
 	// segment capacity and refresh workers (schema.Engine.RefreshWorkers).
 	Scheme      schema.Scheme
 	SegmentRows int64
-	Workers     int
-	Layout      RowLayout
+	Workers     int32
+	// Scanned is whether the table has column profiles, and so a widest column;
+	// RoutineDeclared whether it declares a routine refresh (Table.RoutineDeclared).
+	Scanned, RoutineDeclared bool
+	Layout                   RowLayout
 	// ScanOverheadBudgetMs and ScanBudgetMs are the table's budgets, nil when unset.
 	ScanOverheadBudgetMs, ScanBudgetMs *float64
-	// Widest is the name of the column whose full scan costs most, Scanned false without
-	// column profiles; ScanWallMs is that scan's wall time.
+	// Widest is the name of the column whose full scan costs most; ScanWallMs is that
+	// scan's wall time.
 	Widest     string
-	Scanned    bool
 	ScanWallMs float64
-	// Profiled is whether the table lists column profiles; Encoded is their encoded
-	// size and RowBytes the widest uncompressed row, for the model's refresh peak.
-	Profiled          bool
+	// Encoded is the encoded size of the profiled columns and RowBytes the widest
+	// uncompressed row, for the model's refresh peak.
 	Encoded, RowBytes float64
 	Full, Routine     RowRebuild
-	RoutineDeclared   bool
-	Peaks             Peaks
+	Peaks             *Peaks          // the model's, shared by its rows
 	Recommendation    *Recommendation // nil when there is none, or when it was never computed
 	Layouts           *Layouts        // Table.Layouts: nil when the table was never swept
 }
@@ -60,21 +59,21 @@ func rebuildRow(r layout.Rebuild) RowRebuild {
 	return RowRebuild{Partitions: r.Partitions, Rows: r.Rows, Days: r.Days, Seconds: r.Seconds}
 }
 
-// Row is the table in brief. Called on a settled table, it reads only what settling
-// kept: the recommendation when one was computed, the sweep's layouts when it was swept.
-// The recommendation's candidate is copied without its spec and warnings, which no
-// report of a row reads.
-func (t *Table) Row() Row {
+// Row is the table in brief, with the model's peaks p. Called on a settled table, it
+// reads only what settling kept: the recommendation when one was computed, the sweep's
+// layouts when it was swept. The recommendation's candidate is copied without its spec
+// and warnings, which no report of a row reads.
+func (t *Table) Row(p *Peaks) Row {
 	l := t.Layout
 	r := Row{
-		File: t.File, Name: t.Spec.Name, Pos: t.Spec.Pos, Scheme: t.Spec.Partitions.Scheme,
-		SegmentRows: t.Engine.SegmentRows, Workers: t.Engine.RefreshWorkers(),
+		Name: t.Spec.Name, Pos: t.Spec.Pos, Scheme: internScheme(t.Spec.Partitions.Scheme),
+		SegmentRows: t.Engine.SegmentRows, Workers: int32(t.Engine.RefreshWorkers()),
 		Layout: RowLayout{Partitions: l.Partitions, Rows: l.Rows, Segments: l.Segments, Ideal: l.Ideal,
 			Excess: l.Excess, Fill: l.Fill, FixedMs: l.FixedMs},
 		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
-		Profiled: len(t.Spec.Columns) > 0, Encoded: t.EncodedBytes(), RowBytes: layout.RowBytes(t.Spec.Columns),
+		Encoded: t.EncodedBytes(), RowBytes: layout.RowBytes(t.Spec.Columns),
 		Full: rebuildRow(t.Full), Routine: rebuildRow(t.Routine), RoutineDeclared: t.RoutineDeclared(),
-		Peaks: t.Peaks(), Layouts: t.Layouts(),
+		Peaks: p, Layouts: t.Layouts(),
 	}
 	if t.Widest != nil {
 		r.Widest, r.Scanned, r.ScanWallMs = t.Widest.Name, true, t.Scan.WallMs
@@ -88,11 +87,27 @@ func (t *Table) Row() Row {
 	return r
 }
 
-// Rows are the tables in brief, in order.
+// internScheme is s as one of the schema's constants, so a row does not keep the
+// manifest's copy of the word alive.
+func internScheme(s schema.Scheme) schema.Scheme {
+	for _, c := range []schema.Scheme{schema.SchemeNone, schema.SchemeEven, schema.SchemeTime, schema.SchemeList} {
+		if s == c {
+			return c
+		}
+	}
+	return s
+}
+
+// Rows are the tables of one model in brief, in order; they share one copy of the
+// model's peaks.
 func Rows(ts []*Table) []Row {
 	out := make([]Row, len(ts))
+	if len(ts) == 0 {
+		return out
+	}
+	p := ts[0].Peaks()
 	for i, t := range ts {
-		out[i] = t.Row()
+		out[i] = t.Row(&p)
 	}
 	return out
 }

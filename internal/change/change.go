@@ -8,6 +8,7 @@
 package change
 
 import (
+	"iter"
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
@@ -209,13 +210,30 @@ type Diff struct {
 	Invalid []Invalid
 }
 
-// Tables lists every table of every model, in report order.
-func (d *Diff) Tables() []TableChange {
-	var out []TableChange
-	for _, m := range d.Models {
-		out = append(out, m.Tables...)
+// Tables is every table of every model, in report order, numbered from 0. It yields
+// them in place rather than copying them into one list: a change over a repository
+// holds tens of thousands, and the gate and the reports walk them several times.
+func (d *Diff) Tables() iter.Seq2[int, TableChange] {
+	return func(yield func(int, TableChange) bool) {
+		i := 0
+		for _, m := range d.Models {
+			for _, t := range m.Tables {
+				if !yield(i, t) {
+					return
+				}
+				i++
+			}
+		}
 	}
-	return out
+}
+
+// TableCount is how many tables Tables yields.
+func (d *Diff) TableCount() int {
+	n := 0
+	for _, m := range d.Models {
+		n += len(m.Tables)
+	}
+	return n
 }
 
 // Options tune Compare.
@@ -422,12 +440,26 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			}
 		}
 	}
+	// Each model's list is made its exact length at once: a change over a repository
+	// lists every table, and lists grown by appending hold up to twice that.
+	sizes := map[string]int{}
+	for _, h := range hs {
+		sizes[h.file.Model]++
+	}
+	for j, b := range bs {
+		if !used[j] {
+			sizes[b.file.Model]++
+		}
+	}
 	models := map[string]*ModelChange{}
 	model := func(name string) *ModelChange {
 		if m, ok := models[name]; ok {
 			return m
 		}
 		m := &ModelChange{Name: name}
+		if n := sizes[name]; n > 0 {
+			m.Tables = make([]TableChange, 0, n)
+		}
 		models[name] = m
 		return m
 	}
@@ -439,6 +471,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			tc.Status = Changed
 			if tc.Before.equal(tc.After) {
 				tc.Status = Unchanged
+				tc.Before = tc.After // read only: most tables of a change hold one copy, not two
 			}
 		}
 		m := model(tc.Model)
@@ -514,7 +547,7 @@ func refreshPeak(ts []*analysis.Row) *float64 {
 	var bytes, row float64
 	profiled := false
 	for _, t := range ts {
-		if !t.Profiled {
+		if !t.Scanned {
 			continue
 		}
 		profiled = true
@@ -524,7 +557,7 @@ func refreshPeak(ts []*analysis.Row) *float64 {
 	if !profiled {
 		return nil
 	}
-	peak := layout.RefreshPeak(bytes, ts[0].Workers, ts[0].SegmentRows, row)
+	peak := layout.RefreshPeak(bytes, int(ts[0].Workers), ts[0].SegmentRows, row)
 	return &peak
 }
 

@@ -59,7 +59,7 @@ func table(t *testing.T, d *Diff, model, name string) TableChange {
 			return tc
 		}
 	}
-	t.Fatalf("no table %s/%s in %+v", model, name, d.Tables())
+	t.Fatalf("no table %s/%s in %+v", model, name, d.Models)
 	return TableChange{}
 }
 

@@ -42,7 +42,7 @@ func charts(b *strings.Builder, r *Result) {
 	drawn := 0
 	for _, f := range r.Files {
 		for _, t := range f.Tables {
-			if drawn == maxCharts || !flagged[[2]string{t.File, t.Name}] {
+			if drawn == maxCharts || !flagged[[2]string{f.Name, t.Name}] {
 				continue
 			}
 			bars := chartBars(t.Layouts)

@@ -190,9 +190,13 @@ func tableJSON(t analysis.Row) jsonTable {
 		wall := round(t.ScanWallMs)
 		jt.WidestColumn, jt.ScanWallMs = t.Widest, &wall
 	}
-	jt.Refresh.Full = rebuildJSON(t.Full, t.Peaks.Full)
+	var peaks analysis.Peaks
+	if t.Peaks != nil {
+		peaks = *t.Peaks
+	}
+	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
 	if t.RoutineDeclared {
-		r := rebuildJSON(t.Routine, t.Peaks.Routine)
+		r := rebuildJSON(t.Routine, peaks.Routine)
 		jt.Refresh.Routine = &r
 	}
 	return jt

@@ -92,9 +92,9 @@ func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.Proje
 		case keepAdvised:
 			f.Tables = analysis.Rows(md.Tables)
 		case keepRows:
-			f.Tables = make([]analysis.Row, len(md.Tables))
-			for i, t := range md.Tables {
-				f.Tables[i] = t.Row().Brief()
+			f.Tables = analysis.Rows(md.Tables)
+			for i := range f.Tables {
+				f.Tables[i] = f.Tables[i].Brief()
 			}
 		}
 	}
