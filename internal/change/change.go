@@ -400,19 +400,11 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	bs, hs := list(base, rename), list(head, nil)
 	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
 	used := make([]bool, len(bs))
-	// The base tables by (model, table) and by (file, model, table), in base order: each
-	// head table takes the first unused one, in the same file first.
+	// Each head table takes the first unused base table of its (model, table) in base
+	// order, in the same file first. The same file's are looked up one file at a time
+	// and the rest only among the tables left, so the lookups stay the size of a file
+	// and of the leftovers, not of the repository.
 	type name struct{ model, table string }
-	type placedName struct {
-		key string
-		name
-	}
-	inFile, anywhere := map[placedName][]int{}, map[name][]int{}
-	for j, b := range bs {
-		n := name{b.file.Model, b.table.Name}
-		inFile[placedName{b.key, n}] = append(inFile[placedName{b.key, n}], j)
-		anywhere[n] = append(anywhere[n], j)
-	}
 	take := func(q []int) ([]int, int) {
 		for len(q) > 0 && used[q[0]] {
 			q = q[1:] // taken by an earlier head table; never wanted again
@@ -422,22 +414,44 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		}
 		return q[1:], q[0]
 	}
-	for pass := 0; pass < 2; pass++ {
-		for i, h := range hs {
-			if pair[i] != 0 {
-				continue
-			}
-			n := name{h.file.Model, h.table.Name}
-			j := -1
-			if pass == 0 {
-				k := placedName{h.key, n}
-				inFile[k], j = take(inFile[k])
-			} else {
-				anywhere[n], j = take(anywhere[n])
-			}
-			if j >= 0 {
+	byKey := map[string][]int{} // base tables by their (translated) file key, in base order
+	for j, b := range bs {
+		byKey[b.key] = append(byKey[b.key], j)
+	}
+	inFile := map[name][]int{}
+	for i := 0; i < len(hs); {
+		end := i + 1
+		for end < len(hs) && hs[end].key == hs[i].key {
+			end++ // a head file's tables are listed together
+		}
+		clear(inFile)
+		for _, j := range byKey[hs[i].key] {
+			n := name{bs[j].file.Model, bs[j].table.Name}
+			inFile[n] = append(inFile[n], j)
+		}
+		for ; i < end; i++ {
+			n := name{hs[i].file.Model, hs[i].table.Name}
+			var j int
+			if inFile[n], j = take(inFile[n]); j >= 0 {
 				used[j], pair[i] = true, j+1
 			}
+		}
+	}
+	anywhere := map[name][]int{}
+	for j, b := range bs {
+		if !used[j] {
+			n := name{b.file.Model, b.table.Name}
+			anywhere[n] = append(anywhere[n], j)
+		}
+	}
+	for i, h := range hs {
+		if pair[i] != 0 || len(anywhere) == 0 {
+			continue
+		}
+		n := name{h.file.Model, h.table.Name}
+		var j int
+		if anywhere[n], j = take(anywhere[n]); j >= 0 {
+			used[j], pair[i] = true, j+1
 		}
 	}
 	// Each model's list is made its exact length at once: a change over a repository

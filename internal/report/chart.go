@@ -45,7 +45,7 @@ func charts(b *strings.Builder, r *Result) {
 			if drawn == maxCharts || !flagged[[2]string{f.Name, t.Name}] {
 				continue
 			}
-			bars := chartBars(t.Layouts)
+			bars := chartBars(rowReport(t).Layouts)
 			if len(bars) < 2 {
 				continue
 			}
@@ -53,7 +53,7 @@ func charts(b *strings.Builder, r *Result) {
 				b.WriteString("#### Fixed ms per scan by layout\n\n")
 			}
 			drawn++
-			chart(b, t.Name, bars, t.ScanOverheadBudgetMs)
+			chart(b, t.Name, bars, rowReport(t).ScanOverheadBudgetMs)
 		}
 	}
 }

@@ -58,7 +58,7 @@ func analysedResult(t *testing.T, name, uri, src string, failOn rules.Severity) 
 	t.Helper()
 	m := loadFixture(t, name, src)
 	md, fs := rules.Check(m, rules.Config{Today: fixtureToday})
-	files := []File{{Name: name, URI: uri, Model: m.Model, Analysed: len(md.Tables), Tables: analysis.Rows(md.Tables)}}
+	files := []File{{Name: name, URI: uri, Model: m.Model, Analysed: len(md.Tables), Tables: analysis.ReportRows(md.Tables)}}
 	return &Result{Version: "v0.0.0-test", FailOn: failOn, Files: files, Findings: fs, Summary: Summarize(files)}
 }
 

@@ -177,29 +177,37 @@ func findingJSON(r *Result, f rules.Finding) jsonFinding {
 }
 
 func tableJSON(t analysis.Row) jsonTable {
-	l := t.Layout
+	l, rr := t.Layout, rowReport(t)
 	jt := jsonTable{
 		Name: t.Name, Line: t.Pos.Line, Column: t.Pos.Col,
-		Scheme: string(t.Scheme), Rows: l.Rows, SegmentRows: t.SegmentRows,
+		Scheme: string(rr.Scheme), Rows: l.Rows, SegmentRows: t.SegmentRows,
 		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
-		ScanOverheadBudgetMs: t.ScanOverheadBudgetMs, ScanBudgetMs: t.ScanBudgetMs,
-		Recommendation: recommendationJSON(t.Recommendation),
+		ScanOverheadBudgetMs: rr.ScanOverheadBudgetMs, ScanBudgetMs: rr.ScanBudgetMs,
+		Recommendation: recommendationJSON(rr.Recommendation),
 	}
 	if t.Scanned {
 		wall := round(t.ScanWallMs)
-		jt.WidestColumn, jt.ScanWallMs = t.Widest, &wall
+		jt.WidestColumn, jt.ScanWallMs = rr.Widest, &wall
 	}
 	var peaks analysis.Peaks
-	if t.Peaks != nil {
-		peaks = *t.Peaks
+	if rr.Peaks != nil {
+		peaks = *rr.Peaks
 	}
-	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
-	if t.RoutineDeclared {
-		r := rebuildJSON(t.Routine, peaks.Routine)
+	jt.Refresh.Full = rebuildJSON(rr.Full, peaks.Full)
+	if rr.RoutineDeclared {
+		r := rebuildJSON(rr.Routine, peaks.Routine)
 		jt.Refresh.Routine = &r
 	}
 	return jt
+}
+
+// rowReport is what a row holds for reports; empty for a row made for comparing.
+func rowReport(t analysis.Row) *analysis.RowReport {
+	if t.Report == nil {
+		return &analysis.RowReport{}
+	}
+	return t.Report
 }
 
 // numbersJSON rounds a finding's figures for the JSON reports.

@@ -39,8 +39,8 @@ func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 			for _, t := range f.Tables {
 				l := t.Layout
 				budget := "–"
-				if t.ScanOverheadBudgetMs != nil {
-					budget = units.Ms(*t.ScanOverheadBudgetMs)
+				if b := rowReport(t).ScanOverheadBudgetMs; b != nil {
+					budget = units.Ms(*b)
 				}
 				fmt.Fprintf(b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
 					code(f.Name), code(t.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),

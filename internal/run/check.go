@@ -90,12 +90,9 @@ func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.Proje
 		// The rows, not the analyses: a run over a repository holds every table to the end.
 		switch keep {
 		case keepAdvised:
-			f.Tables = analysis.Rows(md.Tables)
+			f.Tables = analysis.ReportRows(md.Tables)
 		case keepRows:
 			f.Tables = analysis.Rows(md.Tables)
-			for i := range f.Tables {
-				f.Tables[i] = f.Tables[i].Brief()
-			}
 		}
 	}
 	return f, fs
