@@ -375,36 +375,54 @@ func fileKey(c FileChange) string {
 	return c.Base.Key
 }
 
-type placed struct {
-	file  *File
-	key   string // the file's key, a base key translated through renames
-	table *analysis.Row
+// placed is one table of one side by index: its file and its place among the file's
+// rows, so listing every table of a repository costs 8 bytes a table.
+type placed struct{ file, table int32 }
+
+// placedSide resolves the placed tables of one side; keys are its files' keys, a base
+// key translated through renames.
+type placedSide struct {
+	files []File
+	keys  []string
 }
+
+func (s placedSide) file(p placed) *File        { return &s.files[p.file] }
+func (s placedSide) row(p placed) *analysis.Row { return &s.files[p.file].Tables[p.table] }
+func (s placedSide) key(p placed) string        { return s.keys[p.file] }
+func (s placedSide) name(p placed) name         { return name{s.files[p.file].Model, s.row(p).Name} }
+
+// name is a table's identity across the sides: its model and its name.
+type name struct{ model, table string }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
 // those left, and groups them by model.
 func matchTables(base, head []File, rename map[string]string) []ModelChange {
-	list := func(files []File, rename map[string]string) []placed {
-		var out []placed
+	list := func(files []File, rename map[string]string) (placedSide, []placed) {
+		s := placedSide{files: files, keys: make([]string, len(files))}
+		n := 0
 		for i := range files {
-			key := files[i].Key
-			if k, ok := rename[key]; ok {
-				key = k
+			s.keys[i] = files[i].Key
+			if k, ok := rename[s.keys[i]]; ok {
+				s.keys[i] = k
 			}
+			n += len(files[i].Tables)
+		}
+		out := make([]placed, 0, n)
+		for i := range files {
 			for j := range files[i].Tables {
-				out = append(out, placed{&files[i], key, &files[i].Tables[j]})
+				out = append(out, placed{int32(i), int32(j)})
 			}
 		}
-		return out
+		return s, out
 	}
-	bs, hs := list(base, rename), list(head, nil)
+	bside, bs := list(base, rename)
+	hside, hs := list(head, nil)
 	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
 	used := make([]bool, len(bs))
 	// Each head table takes the first unused base table of its (model, table) in base
 	// order, in the same file first. The same file's are looked up one file at a time
 	// and the rest only among the tables left, so the lookups stay the size of a file
 	// and of the leftovers, not of the repository.
-	type name struct{ model, table string }
 	take := func(q []int) ([]int, int) {
 		for len(q) > 0 && used[q[0]] {
 			q = q[1:] // taken by an earlier head table; never wanted again
@@ -416,21 +434,21 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	}
 	byKey := map[string][]int{} // base tables by their (translated) file key, in base order
 	for j, b := range bs {
-		byKey[b.key] = append(byKey[b.key], j)
+		byKey[bside.key(b)] = append(byKey[bside.key(b)], j)
 	}
 	inFile := map[name][]int{}
 	for i := 0; i < len(hs); {
 		end := i + 1
-		for end < len(hs) && hs[end].key == hs[i].key {
+		for end < len(hs) && hs[end].file == hs[i].file {
 			end++ // a head file's tables are listed together
 		}
 		clear(inFile)
-		for _, j := range byKey[hs[i].key] {
-			n := name{bs[j].file.Model, bs[j].table.Name}
+		for _, j := range byKey[hside.key(hs[i])] {
+			n := bside.name(bs[j])
 			inFile[n] = append(inFile[n], j)
 		}
 		for ; i < end; i++ {
-			n := name{hs[i].file.Model, hs[i].table.Name}
+			n := hside.name(hs[i])
 			var j int
 			if inFile[n], j = take(inFile[n]); j >= 0 {
 				used[j], pair[i] = true, j+1
@@ -440,7 +458,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	anywhere := map[name][]int{}
 	for j, b := range bs {
 		if !used[j] {
-			n := name{b.file.Model, b.table.Name}
+			n := bside.name(b)
 			anywhere[n] = append(anywhere[n], j)
 		}
 	}
@@ -448,7 +466,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		if pair[i] != 0 || len(anywhere) == 0 {
 			continue
 		}
-		n := name{h.file.Model, h.table.Name}
+		n := hside.name(h)
 		var j int
 		if anywhere[n], j = take(anywhere[n]); j >= 0 {
 			used[j], pair[i] = true, j+1
@@ -458,11 +476,11 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	// lists every table, and lists grown by appending hold up to twice that.
 	sizes := map[string]int{}
 	for _, h := range hs {
-		sizes[h.file.Model]++
+		sizes[hside.file(h).Model]++
 	}
 	for j, b := range bs {
 		if !used[j] {
-			sizes[b.file.Model]++
+			sizes[bside.file(b).Model]++
 		}
 	}
 	models := map[string]*ModelChange{}
@@ -478,10 +496,12 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return m
 	}
 	for i, h := range hs {
-		tc := TableChange{Model: h.file.Model, Name: h.table.Name, HeadFile: h.file.Name, HeadPos: h.table.Pos, After: figuresOf(h.table), Status: Added}
+		hf, ht := hside.file(h), hside.row(h)
+		tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
 		if pair[i] != 0 {
 			b := bs[pair[i]-1]
-			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = b.file.Name, b.table.Pos, figuresOf(b.table), b.file.Key != h.file.Key
+			bf, bt := bside.file(b), bside.row(b)
+			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = bf.Name, bt.Pos, figuresOf(bt), bf.Key != hf.Key
 			tc.Status = Changed
 			if tc.Before.equal(tc.After) {
 				tc.Status = Unchanged
@@ -495,8 +515,9 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		if used[j] {
 			continue
 		}
-		m := model(b.file.Model)
-		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Name, BaseFile: b.file.Name, BasePos: b.table.Pos, Before: figuresOf(b.table), Status: Removed})
+		bf, bt := bside.file(b), bside.row(b)
+		m := model(bf.Model)
+		m.Tables = append(m.Tables, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
 	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.
@@ -509,17 +530,17 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return p
 	}
 	inBase, inHead := present(base), present(head)
-	baseTables, headTables := tablesByModel(base), tablesByModel(head)
+	basePeaks, headPeaks := refreshPeaks(base), refreshPeaks(head)
 	out := make([]ModelChange, 0, len(models))
 	for _, name := range sortedNames(models) {
 		m := models[name]
 		if inBase[name] {
 			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
-			m.Before.RefreshBytes = refreshPeak(baseTables[name])
+			m.Before.RefreshBytes = basePeaks[name]
 		}
 		if inHead[name] {
 			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
-			m.After.RefreshBytes = refreshPeak(headTables[name])
+			m.After.RefreshBytes = headPeaks[name]
 		}
 		switch {
 		case m.Before == nil:
@@ -542,37 +563,42 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	return out
 }
 
-// tablesByModel lists the tables of each model on one side, in file order.
-func tablesByModel(files []File) map[string][]*analysis.Row {
-	out := map[string][]*analysis.Row{}
+// refreshPeaks is each model's refresh peak on one side as the refresh-memory rule
+// states it (layout.RefreshPeak): 2 x the encoded size of every profiled column + the
+// partitions refreshed at once x segment_rows x the widest uncompressed row, with the
+// engine of the model's first table, in file order; nil without profiles.
+func refreshPeaks(files []File) map[string]*float64 {
+	type sum struct {
+		bytes, row float64
+		profiled   bool
+		first      *analysis.Row
+	}
+	sums := map[string]*sum{}
 	for i := range files {
 		f := &files[i]
 		for j := range f.Tables {
-			out[f.Model] = append(out[f.Model], &f.Tables[j])
+			t := &f.Tables[j]
+			s := sums[f.Model]
+			if s == nil {
+				s = &sum{first: t}
+				sums[f.Model] = s
+			}
+			if !t.Scanned {
+				continue
+			}
+			s.profiled = true
+			s.bytes += t.Encoded
+			s.row = max(s.row, t.RowBytes)
+		}
+	}
+	out := make(map[string]*float64, len(sums))
+	for model, s := range sums {
+		if s.profiled {
+			peak := layout.RefreshPeak(s.bytes, int(s.first.Workers), s.first.SegmentRows, s.row)
+			out[model] = &peak
 		}
 	}
 	return out
-}
-
-// refreshPeak is the model's refresh peak as the refresh-memory rule states it
-// (layout.RefreshPeak): 2 x the encoded size of every profiled column + the partitions
-// refreshed at once x segment_rows x the widest uncompressed row. nil without profiles.
-func refreshPeak(ts []*analysis.Row) *float64 {
-	var bytes, row float64
-	profiled := false
-	for _, t := range ts {
-		if !t.Scanned {
-			continue
-		}
-		profiled = true
-		bytes += t.Encoded
-		row = max(row, t.RowBytes)
-	}
-	if !profiled {
-		return nil
-	}
-	peak := layout.RefreshPeak(bytes, int(ts[0].Workers), ts[0].SegmentRows, row)
-	return &peak
 }
 
 func totals(tables []TableChange, side func(TableChange) *Figures) *Totals {
