@@ -242,6 +242,11 @@ type Options struct {
 	// figure must move at the same severity to count as worsened or improved: 0.1 is
 	// 10%. A move of exactly the threshold is unchanged.
 	FigureThreshold float64
+	// Release sets the Tables of both sides' files to nil once the tables are matched:
+	// the table changes hold every figure the diff shows, and a change over a whole
+	// repository need not hold both sides' rows beside them while its findings are
+	// matched. For a caller that has no further use for the sides.
+	Release bool
 }
 
 // DefaultFigureThreshold is diff's --figure-threshold unless told otherwise: 10%.
@@ -267,6 +272,13 @@ func CompareWith(base, head Side, o Options) *Diff {
 	var rename map[string]string // base key -> head key of renamed files
 	d.Files, rename = matchFiles(base.Files, head.Files)
 	d.Models = matchTables(base.Files, head.Files, rename)
+	if o.Release {
+		for _, files := range [][]File{base.Files, head.Files} {
+			for i := range files {
+				files[i].Tables = nil
+			}
+		}
+	}
 	var kept []FindingChange
 	d.Introduced, d.Resolved, kept = matchFindings(base, head, rename)
 	for _, f := range kept {

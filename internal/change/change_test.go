@@ -2,6 +2,7 @@ package change
 
 import (
 	"errors"
+	"reflect"
 	"strings"
 	"testing"
 	"time"
@@ -109,6 +110,30 @@ func TestCompareChangedTable(t *testing.T) {
 	}
 	if len(d.Files) != 1 || d.Files[0].Status != FileKept {
 		t.Errorf("files %+v", d.Files)
+	}
+}
+
+// Releasing the rows changes nothing compared: the same diff, and the sides' files hold
+// no rows afterwards.
+func TestCompareRelease(t *testing.T) {
+	sides := func() (Side, Side) {
+		return side(t, "base", []string{"m.yaml"}, manifest("sales", "1.5", ordersNone+stores)),
+			side(t, "head", []string{"m.yaml"}, manifest("sales", "1.5", ordersEven4+stores))
+	}
+	base, head := sides()
+	kept := Compare(base, head)
+	base, head = sides()
+	released := CompareWith(base, head, Options{FigureThreshold: DefaultFigureThreshold, Release: true})
+	if !reflect.DeepEqual(kept.Models, released.Models) || !reflect.DeepEqual(kept.Introduced, released.Introduced) {
+		t.Errorf("release changed the diff:\n%+v\n%+v", kept.Models, released.Models)
+	}
+	for _, f := range append(base.Files, head.Files...) {
+		if f.Tables != nil {
+			t.Errorf("%s still holds %d rows", f.Name, len(f.Tables))
+		}
+	}
+	if kept.Files[0].Head.Tables == nil {
+		t.Error("Compare without Release dropped the rows")
 	}
 }
 

@@ -13,14 +13,8 @@ import (
 // the same config and date, so the diff shows what the manifests change and nothing else.
 func CompareSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Limits, o change.Options) *change.Diff {
 	checked := CheckSides(sides, cfg, proj, limits)
-	d := change.CompareWith(checked[0], checked[1], o)
-	// The table changes hold every figure the reports print: the rows go before they render.
-	for s := range checked {
-		for i := range checked[s].Files {
-			checked[s].Files[i].Tables = nil
-		}
-	}
-	return d
+	o.Release = true // the sides are checked for this comparison alone
+	return change.CompareWith(checked[0], checked[1], o)
 }
 
 // CheckSides loads and checks both sides of a diff as check does, with one config and
