@@ -30,6 +30,9 @@ type Row struct {
 // RowReport is what check's reports print of a table beyond the figures diff compares.
 type RowReport struct {
 	Scheme schema.Scheme // the partition policy
+	// Ideal is the fewest segments the rows fit in (layout.Layout.Ideal); the excess is
+	// Layout.Segments - Ideal.
+	Ideal int64
 	// ScanOverheadBudgetMs and ScanBudgetMs are the table's budgets, nil when unset.
 	ScanOverheadBudgetMs, ScanBudgetMs *float64
 	Widest                             string // the widest column's name, when Scanned
@@ -40,13 +43,11 @@ type RowReport struct {
 	Layouts                            *Layouts        // Table.Layouts: nil when the table was never swept
 }
 
-// RowLayout is the part of layout.Layout reports print.
+// RowLayout is the part of layout.Layout diff compares and reports print.
 type RowLayout struct {
 	Partitions int
 	Rows       int64
 	Segments   int64
-	Ideal      int64
-	Excess     int64
 	Fill       float64
 	FixedMs    float64
 }
@@ -69,8 +70,8 @@ func (t *Table) Row() Row {
 	r := Row{
 		Name: t.Spec.Name, Pos: t.Spec.Pos,
 		SegmentRows: t.Engine.SegmentRows, Workers: int32(t.Engine.RefreshWorkers()),
-		Layout: RowLayout{Partitions: l.Partitions, Rows: l.Rows, Segments: l.Segments, Ideal: l.Ideal,
-			Excess: l.Excess, Fill: l.Fill, FixedMs: l.FixedMs},
+		Layout: RowLayout{Partitions: l.Partitions, Rows: l.Rows, Segments: l.Segments,
+			Fill: l.Fill, FixedMs: l.FixedMs},
 		Encoded: t.EncodedBytes(), RowBytes: layout.RowBytes(t.Spec.Columns),
 	}
 	if t.Widest != nil {
@@ -86,7 +87,7 @@ func (t *Table) Row() Row {
 func (t *Table) ReportRow(p *Peaks) Row {
 	r := t.Row()
 	rr := &RowReport{
-		Scheme:               internScheme(t.Spec.Partitions.Scheme),
+		Scheme: internScheme(t.Spec.Partitions.Scheme), Ideal: t.Layout.Ideal,
 		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
 		Full: rebuildRow(t.Full), Routine: rebuildRow(t.Routine), RoutineDeclared: t.RoutineDeclared(),
 		Peaks: p, Layouts: t.Layouts(),

@@ -181,7 +181,7 @@ func tableJSON(t analysis.Row) jsonTable {
 	jt := jsonTable{
 		Name: t.Name, Line: t.Pos.Line, Column: t.Pos.Col,
 		Scheme: string(rr.Scheme), Rows: l.Rows, SegmentRows: t.SegmentRows,
-		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
+		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: rr.Ideal, ExcessSegments: l.Segments - rr.Ideal,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
 		ScanOverheadBudgetMs: rr.ScanOverheadBudgetMs, ScanBudgetMs: rr.ScanBudgetMs,
 		Recommendation: recommendationJSON(rr.Recommendation),

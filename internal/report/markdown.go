@@ -44,7 +44,7 @@ func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 				}
 				fmt.Fprintf(b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
 					code(f.Name), code(t.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
-					units.Num(l.Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
+					units.Num(rowReport(t).Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
 				out.flush()
 			}
 		}
