@@ -281,8 +281,23 @@ func CompareWith(base, head Side, o Options) *Diff {
 	}
 	var kept []FindingChange
 	d.Introduced, d.Resolved, kept = matchFindings(base, head, rename)
-	for _, f := range kept {
-		switch judge(f, o.FigureThreshold) {
+	// Judged once, then each list made its exact length: on a repository most findings
+	// are kept unchanged, and a list grown by appending holds up to twice them.
+	verdicts := make([]int8, len(kept))
+	var count [3]int // worsened, improved, unchanged
+	for i, f := range kept {
+		switch verdicts[i] = int8(judge(f, o.FigureThreshold)); verdicts[i] {
+		case 1:
+			count[0]++
+		case -1:
+			count[1]++
+		default:
+			count[2]++
+		}
+	}
+	d.Worsened, d.Improved, d.Unchanged = sized(count[0]), sized(count[1]), sized(count[2])
+	for i, f := range kept {
+		switch verdicts[i] {
 		case 1:
 			d.Worsened = append(d.Worsened, f)
 		case -1:
@@ -292,6 +307,14 @@ func CompareWith(base, head Side, o Options) *Diff {
 		}
 	}
 	return d
+}
+
+// sized is a list with room for n findings, nil for none (as a list never appended to).
+func sized(n int) []FindingChange {
+	if n == 0 {
+		return nil
+	}
+	return make([]FindingChange, 0, n)
 }
 
 func invalid(side string, s Side) []Invalid {

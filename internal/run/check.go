@@ -44,7 +44,11 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 // report lists them.
 func sortChecked(files []report.File, found [][]rules.Finding) ([]report.File, []rules.Finding) {
 	sort.SliceStable(files, func(i, j int) bool { return files[i].Name < files[j].Name })
-	var findings []rules.Finding
+	n := 0
+	for _, fs := range found {
+		n += len(fs)
+	}
+	findings := make([]rules.Finding, 0, n) // exact: a run holds them to the end
 	for _, fs := range found {
 		findings = append(findings, fs...)
 	}
