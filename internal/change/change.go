@@ -8,6 +8,7 @@
 package change
 
 import (
+	"iter"
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
@@ -27,8 +28,8 @@ type File struct {
 	// in the new directory. "" means Key.
 	Path    string
 	Model   string
-	Invalid bool // could not be read or broke the schema; its findings say why
-	Tables  []*analysis.Table
+	Invalid bool           // could not be read or broke the schema; its findings say why
+	Tables  []analysis.Row // in brief: the figures compared, not the analyses
 }
 
 // RepoPath is where the file is on its own side: Path, or Key when Path is unset.
@@ -87,13 +88,13 @@ type Figures struct {
 	ScanWallMs *float64 // wall ms of a full scan of the widest column; nil without column profiles
 }
 
-func figuresOf(t *analysis.Table) *Figures {
+func figuresOf(t *analysis.Row) *Figures {
 	f := &Figures{
 		Rows: t.Layout.Rows, Partitions: t.Layout.Partitions, Segments: t.Layout.Segments,
 		Fill: t.Layout.Fill, FixedMs: t.Layout.FixedMs,
 	}
-	if t.Widest != nil {
-		w := t.Scan.WallMs
+	if t.Scanned {
+		w := t.ScanWallMs
 		f.ScanWallMs = &w
 	}
 	return f
@@ -209,13 +210,30 @@ type Diff struct {
 	Invalid []Invalid
 }
 
-// Tables lists every table of every model, in report order.
-func (d *Diff) Tables() []TableChange {
-	var out []TableChange
-	for _, m := range d.Models {
-		out = append(out, m.Tables...)
+// Tables is every table of every model, in report order, numbered from 0. It yields
+// them in place rather than copying them into one list: a change over a repository
+// holds tens of thousands, and the gate and the reports walk them several times.
+func (d *Diff) Tables() iter.Seq2[int, TableChange] {
+	return func(yield func(int, TableChange) bool) {
+		i := 0
+		for _, m := range d.Models {
+			for _, t := range m.Tables {
+				if !yield(i, t) {
+					return
+				}
+				i++
+			}
+		}
 	}
-	return out
+}
+
+// TableCount is how many tables Tables yields.
+func (d *Diff) TableCount() int {
+	n := 0
+	for _, m := range d.Models {
+		n += len(m.Tables)
+	}
+	return n
 }
 
 // Options tune Compare.
@@ -224,6 +242,11 @@ type Options struct {
 	// figure must move at the same severity to count as worsened or improved: 0.1 is
 	// 10%. A move of exactly the threshold is unchanged.
 	FigureThreshold float64
+	// Release sets the Tables of both sides' files to nil once the tables are matched:
+	// the table changes hold every figure the diff shows, and a change over a whole
+	// repository need not hold both sides' rows beside them while its findings are
+	// matched. For a caller that has no further use for the sides.
+	Release bool
 }
 
 // DefaultFigureThreshold is diff's --figure-threshold unless told otherwise: 10%.
@@ -249,10 +272,32 @@ func CompareWith(base, head Side, o Options) *Diff {
 	var rename map[string]string // base key -> head key of renamed files
 	d.Files, rename = matchFiles(base.Files, head.Files)
 	d.Models = matchTables(base.Files, head.Files, rename)
+	if o.Release {
+		for _, files := range [][]File{base.Files, head.Files} {
+			for i := range files {
+				files[i].Tables = nil
+			}
+		}
+	}
 	var kept []FindingChange
 	d.Introduced, d.Resolved, kept = matchFindings(base, head, rename)
-	for _, f := range kept {
-		switch judge(f, o.FigureThreshold) {
+	// Judged once, then each list made its exact length: on a repository most findings
+	// are kept unchanged, and a list grown by appending holds up to twice them.
+	verdicts := make([]int8, len(kept))
+	var count [3]int // worsened, improved, unchanged
+	for i, f := range kept {
+		switch verdicts[i] = int8(judge(f, o.FigureThreshold)); verdicts[i] {
+		case 1:
+			count[0]++
+		case -1:
+			count[1]++
+		default:
+			count[2]++
+		}
+	}
+	d.Worsened, d.Improved, d.Unchanged = sized(count[0]), sized(count[1]), sized(count[2])
+	for i, f := range kept {
+		switch verdicts[i] {
 		case 1:
 			d.Worsened = append(d.Worsened, f)
 		case -1:
@@ -262,6 +307,14 @@ func CompareWith(base, head Side, o Options) *Diff {
 		}
 	}
 	return d
+}
+
+// sized is a list with room for n findings, nil for none (as a list never appended to).
+func sized(n int) []FindingChange {
+	if n == 0 {
+		return nil
+	}
+	return make([]FindingChange, 0, n)
 }
 
 func invalid(side string, s Side) []Invalid {
@@ -357,44 +410,54 @@ func fileKey(c FileChange) string {
 	return c.Base.Key
 }
 
-type placed struct {
-	file  *File
-	key   string // the file's key, a base key translated through renames
-	table *analysis.Table
+// placed is one table of one side by index: its file and its place among the file's
+// rows, so listing every table of a repository costs 8 bytes a table.
+type placed struct{ file, table int32 }
+
+// placedSide resolves the placed tables of one side; keys are its files' keys, a base
+// key translated through renames.
+type placedSide struct {
+	files []File
+	keys  []string
 }
+
+func (s placedSide) file(p placed) *File        { return &s.files[p.file] }
+func (s placedSide) row(p placed) *analysis.Row { return &s.files[p.file].Tables[p.table] }
+func (s placedSide) key(p placed) string        { return s.keys[p.file] }
+func (s placedSide) name(p placed) name         { return name{s.files[p.file].Model, s.row(p).Name} }
+
+// name is a table's identity across the sides: its model and its name.
+type name struct{ model, table string }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
 // those left, and groups them by model.
 func matchTables(base, head []File, rename map[string]string) []ModelChange {
-	list := func(files []File, rename map[string]string) []placed {
-		var out []placed
+	list := func(files []File, rename map[string]string) (placedSide, []placed) {
+		s := placedSide{files: files, keys: make([]string, len(files))}
+		n := 0
 		for i := range files {
-			key := files[i].Key
-			if k, ok := rename[key]; ok {
-				key = k
+			s.keys[i] = files[i].Key
+			if k, ok := rename[s.keys[i]]; ok {
+				s.keys[i] = k
 			}
-			for _, t := range files[i].Tables {
-				out = append(out, placed{&files[i], key, t})
+			n += len(files[i].Tables)
+		}
+		out := make([]placed, 0, n)
+		for i := range files {
+			for j := range files[i].Tables {
+				out = append(out, placed{int32(i), int32(j)})
 			}
 		}
-		return out
+		return s, out
 	}
-	bs, hs := list(base, rename), list(head, nil)
+	bside, bs := list(base, rename)
+	hside, hs := list(head, nil)
 	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
 	used := make([]bool, len(bs))
-	// The base tables by (model, table) and by (file, model, table), in base order: each
-	// head table takes the first unused one, in the same file first.
-	type name struct{ model, table string }
-	type placedName struct {
-		key string
-		name
-	}
-	inFile, anywhere := map[placedName][]int{}, map[name][]int{}
-	for j, b := range bs {
-		n := name{b.file.Model, b.table.Spec.Name}
-		inFile[placedName{b.key, n}] = append(inFile[placedName{b.key, n}], j)
-		anywhere[n] = append(anywhere[n], j)
-	}
+	// Each head table takes the first unused base table of its (model, table) in base
+	// order, in the same file first. The same file's are looked up one file at a time
+	// and the rest only among the tables left, so the lookups stay the size of a file
+	// and of the leftovers, not of the repository.
 	take := func(q []int) ([]int, int) {
 		for len(q) > 0 && used[q[0]] {
 			q = q[1:] // taken by an earlier head table; never wanted again
@@ -404,22 +467,55 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		}
 		return q[1:], q[0]
 	}
-	for pass := 0; pass < 2; pass++ {
-		for i, h := range hs {
-			if pair[i] != 0 {
-				continue
-			}
-			n := name{h.file.Model, h.table.Spec.Name}
-			j := -1
-			if pass == 0 {
-				k := placedName{h.key, n}
-				inFile[k], j = take(inFile[k])
-			} else {
-				anywhere[n], j = take(anywhere[n])
-			}
-			if j >= 0 {
+	byKey := map[string][]int{} // base tables by their (translated) file key, in base order
+	for j, b := range bs {
+		byKey[bside.key(b)] = append(byKey[bside.key(b)], j)
+	}
+	inFile := map[name][]int{}
+	for i := 0; i < len(hs); {
+		end := i + 1
+		for end < len(hs) && hs[end].file == hs[i].file {
+			end++ // a head file's tables are listed together
+		}
+		clear(inFile)
+		for _, j := range byKey[hside.key(hs[i])] {
+			n := bside.name(bs[j])
+			inFile[n] = append(inFile[n], j)
+		}
+		for ; i < end; i++ {
+			n := hside.name(hs[i])
+			var j int
+			if inFile[n], j = take(inFile[n]); j >= 0 {
 				used[j], pair[i] = true, j+1
 			}
+		}
+	}
+	anywhere := map[name][]int{}
+	for j, b := range bs {
+		if !used[j] {
+			n := bside.name(b)
+			anywhere[n] = append(anywhere[n], j)
+		}
+	}
+	for i, h := range hs {
+		if pair[i] != 0 || len(anywhere) == 0 {
+			continue
+		}
+		n := hside.name(h)
+		var j int
+		if anywhere[n], j = take(anywhere[n]); j >= 0 {
+			used[j], pair[i] = true, j+1
+		}
+	}
+	// Each model's list is made its exact length at once: a change over a repository
+	// lists every table, and lists grown by appending hold up to twice that.
+	sizes := map[string]int{}
+	for _, h := range hs {
+		sizes[hside.file(h).Model]++
+	}
+	for j, b := range bs {
+		if !used[j] {
+			sizes[bside.file(b).Model]++
 		}
 	}
 	models := map[string]*ModelChange{}
@@ -428,17 +524,23 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			return m
 		}
 		m := &ModelChange{Name: name}
+		if n := sizes[name]; n > 0 {
+			m.Tables = make([]TableChange, 0, n)
+		}
 		models[name] = m
 		return m
 	}
 	for i, h := range hs {
-		tc := TableChange{Model: h.file.Model, Name: h.table.Spec.Name, HeadFile: h.file.Name, HeadPos: h.table.Spec.Pos, After: figuresOf(h.table), Status: Added}
+		hf, ht := hside.file(h), hside.row(h)
+		tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
 		if pair[i] != 0 {
 			b := bs[pair[i]-1]
-			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = b.file.Name, b.table.Spec.Pos, figuresOf(b.table), b.file.Key != h.file.Key
+			bf, bt := bside.file(b), bside.row(b)
+			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = bf.Name, bt.Pos, figuresOf(bt), bf.Key != hf.Key
 			tc.Status = Changed
 			if tc.Before.equal(tc.After) {
 				tc.Status = Unchanged
+				tc.Before = tc.After // read only: most tables of a change hold one copy, not two
 			}
 		}
 		m := model(tc.Model)
@@ -448,8 +550,9 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		if used[j] {
 			continue
 		}
-		m := model(b.file.Model)
-		m.Tables = append(m.Tables, TableChange{Model: b.file.Model, Name: b.table.Spec.Name, BaseFile: b.file.Name, BasePos: b.table.Spec.Pos, Before: figuresOf(b.table), Status: Removed})
+		bf, bt := bside.file(b), bside.row(b)
+		m := model(bf.Model)
+		m.Tables = append(m.Tables, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
 	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.
@@ -462,17 +565,17 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return p
 	}
 	inBase, inHead := present(base), present(head)
-	baseTables, headTables := tablesByModel(base), tablesByModel(head)
+	basePeaks, headPeaks := refreshPeaks(base), refreshPeaks(head)
 	out := make([]ModelChange, 0, len(models))
 	for _, name := range sortedNames(models) {
 		m := models[name]
 		if inBase[name] {
 			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
-			m.Before.RefreshBytes = refreshPeak(baseTables[name])
+			m.Before.RefreshBytes = basePeaks[name]
 		}
 		if inHead[name] {
 			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
-			m.After.RefreshBytes = refreshPeak(headTables[name])
+			m.After.RefreshBytes = headPeaks[name]
 		}
 		switch {
 		case m.Before == nil:
@@ -495,39 +598,42 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	return out
 }
 
-// tablesByModel lists the tables of each model on one side, in file order.
-func tablesByModel(files []File) map[string][]*analysis.Table {
-	out := map[string][]*analysis.Table{}
-	for _, f := range files {
-		out[f.Model] = append(out[f.Model], f.Tables...)
+// refreshPeaks is each model's refresh peak on one side as the refresh-memory rule
+// states it (layout.RefreshPeak): 2 x the encoded size of every profiled column + the
+// partitions refreshed at once x segment_rows x the widest uncompressed row, with the
+// engine of the model's first table, in file order; nil without profiles.
+func refreshPeaks(files []File) map[string]*float64 {
+	type sum struct {
+		bytes, row float64
+		profiled   bool
+		first      *analysis.Row
+	}
+	sums := map[string]*sum{}
+	for i := range files {
+		f := &files[i]
+		for j := range f.Tables {
+			t := &f.Tables[j]
+			s := sums[f.Model]
+			if s == nil {
+				s = &sum{first: t}
+				sums[f.Model] = s
+			}
+			if !t.Scanned {
+				continue
+			}
+			s.profiled = true
+			s.bytes += t.Encoded
+			s.row = max(s.row, t.RowBytes)
+		}
+	}
+	out := make(map[string]*float64, len(sums))
+	for model, s := range sums {
+		if s.profiled {
+			peak := layout.RefreshPeak(s.bytes, int(s.first.Workers), s.first.SegmentRows, s.row)
+			out[model] = &peak
+		}
 	}
 	return out
-}
-
-// refreshPeak is the model's refresh peak as the refresh-memory rule states it
-// (layout.RefreshPeak): 2 x the encoded size of every profiled column + the partitions
-// refreshed at once x segment_rows x the widest uncompressed row. nil without profiles.
-func refreshPeak(ts []*analysis.Table) *float64 {
-	var bytes, row float64
-	profiled := false
-	for _, t := range ts {
-		if len(t.Spec.Columns) == 0 {
-			continue
-		}
-		profiled = true
-		bytes += t.EncodedBytes()
-		row = max(row, layout.RowBytes(t.Spec.Columns))
-	}
-	if !profiled {
-		return nil
-	}
-	e := ts[0].Engine
-	parallelism := e.RefreshParallelism
-	if parallelism < 1 {
-		parallelism = max(e.Cores, 1)
-	}
-	peak := layout.RefreshPeak(bytes, parallelism, e.SegmentRows, row)
-	return &peak
 }
 
 func totals(tables []TableChange, side func(TableChange) *Figures) *Totals {

@@ -2,10 +2,12 @@ package change
 
 import (
 	"errors"
+	"reflect"
 	"strings"
 	"testing"
 	"time"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/rules"
 	"github.com/scangate/scangate/schema"
 )
@@ -45,7 +47,7 @@ func side(t *testing.T, label string, keys []string, bodies ...string) Side {
 			t.Fatal(err)
 		}
 		md, findings := rules.Check(m, rules.Config{Today: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)})
-		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: md.Tables})
+		s.Files = append(s.Files, File{Name: name, Key: key, Model: m.Model, Tables: analysis.Rows(md.Tables)})
 		s.Findings = append(s.Findings, findings...)
 	}
 	return s
@@ -58,7 +60,7 @@ func table(t *testing.T, d *Diff, model, name string) TableChange {
 			return tc
 		}
 	}
-	t.Fatalf("no table %s/%s in %+v", model, name, d.Tables())
+	t.Fatalf("no table %s/%s in %+v", model, name, d.Models)
 	return TableChange{}
 }
 
@@ -108,6 +110,30 @@ func TestCompareChangedTable(t *testing.T) {
 	}
 	if len(d.Files) != 1 || d.Files[0].Status != FileKept {
 		t.Errorf("files %+v", d.Files)
+	}
+}
+
+// Releasing the rows changes nothing compared: the same diff, and the sides' files hold
+// no rows afterwards.
+func TestCompareRelease(t *testing.T) {
+	sides := func() (Side, Side) {
+		return side(t, "base", []string{"m.yaml"}, manifest("sales", "1.5", ordersNone+stores)),
+			side(t, "head", []string{"m.yaml"}, manifest("sales", "1.5", ordersEven4+stores))
+	}
+	base, head := sides()
+	kept := Compare(base, head)
+	base, head = sides()
+	released := CompareWith(base, head, Options{FigureThreshold: DefaultFigureThreshold, Release: true})
+	if !reflect.DeepEqual(kept.Models, released.Models) || !reflect.DeepEqual(kept.Introduced, released.Introduced) {
+		t.Errorf("release changed the diff:\n%+v\n%+v", kept.Models, released.Models)
+	}
+	for _, f := range append(base.Files, head.Files...) {
+		if f.Tables != nil {
+			t.Errorf("%s still holds %d rows", f.Name, len(f.Tables))
+		}
+	}
+	if kept.Files[0].Head.Tables == nil {
+		t.Error("Compare without Release dropped the rows")
 	}
 }
 

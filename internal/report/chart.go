@@ -42,10 +42,10 @@ func charts(b *strings.Builder, r *Result) {
 	drawn := 0
 	for _, f := range r.Files {
 		for _, t := range f.Tables {
-			if drawn == maxCharts || !flagged[[2]string{t.File, t.Spec.Name}] {
+			if drawn == maxCharts || !flagged[[2]string{f.Name, t.Name}] {
 				continue
 			}
-			bars := chartBars(t.Layouts())
+			bars := chartBars(rowReport(t).Layouts)
 			if len(bars) < 2 {
 				continue
 			}
@@ -53,7 +53,7 @@ func charts(b *strings.Builder, r *Result) {
 				b.WriteString("#### Fixed ms per scan by layout\n\n")
 			}
 			drawn++
-			chart(b, t.Spec.Name, bars, t.Budgets.ScanOverheadMs)
+			chart(b, t.Name, bars, rowReport(t).ScanOverheadBudgetMs)
 		}
 	}
 }

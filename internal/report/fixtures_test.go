@@ -58,7 +58,7 @@ func analysedResult(t *testing.T, name, uri, src string, failOn rules.Severity) 
 	t.Helper()
 	m := loadFixture(t, name, src)
 	md, fs := rules.Check(m, rules.Config{Today: fixtureToday})
-	files := []File{{Name: name, URI: uri, Model: m.Model, Analysed: len(md.Tables), Tables: md.Tables}}
+	files := []File{{Name: name, URI: uri, Model: m.Model, Analysed: len(md.Tables), Tables: analysis.ReportRows(md.Tables)}}
 	return &Result{Version: "v0.0.0-test", FailOn: failOn, Files: files, Findings: fs, Summary: Summarize(files)}
 }
 
@@ -119,7 +119,7 @@ func diffDoc(t *testing.T) *DiffResult {
 		m := loadFixture(t, label+":m.yaml", src)
 		md, fs := rules.Check(m, rules.Config{Today: fixtureToday})
 		return change.Side{Label: label, Findings: fs, Files: []change.File{
-			{Name: label + ":m.yaml", Key: "m.yaml", Model: m.Model, Tables: md.Tables}}}
+			{Name: label + ":m.yaml", Key: "m.yaml", Model: m.Model, Tables: analysis.Rows(md.Tables)}}}
 	}
 	head := bytes.Replace([]byte(fixtureManifest), []byte("rows: 5000\n    partitions: {scheme: none}"),
 		[]byte("rows: 5000\n    partitions: {scheme: even, count: 20}"), 1)

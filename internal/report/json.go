@@ -6,7 +6,6 @@ import (
 	"sort"
 
 	"github.com/scangate/scangate/internal/analysis"
-	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/rules"
 )
 
@@ -101,7 +100,7 @@ type jsonRebuild struct {
 	PeakBytes  *float64 `json:"model_peak_bytes,omitempty"`
 }
 
-func rebuildJSON(r layout.Rebuild, peak *float64) jsonRebuild {
+func rebuildJSON(r analysis.RowRebuild, peak *float64) jsonRebuild {
 	j := jsonRebuild{Partitions: r.Partitions, Rows: r.Rows, Seconds: round(r.Seconds)}
 	if r.Days > 0 {
 		d := round(r.Days)
@@ -177,27 +176,38 @@ func findingJSON(r *Result, f rules.Finding) jsonFinding {
 	return jf
 }
 
-func tableJSON(t *analysis.Table) jsonTable {
-	l := t.Layout
+func tableJSON(t analysis.Row) jsonTable {
+	l, rr := t.Layout, rowReport(t)
 	jt := jsonTable{
-		Name: t.Spec.Name, Line: t.Spec.Pos.Line, Column: t.Spec.Pos.Col,
-		Scheme: string(t.Spec.Partitions.Scheme), Rows: l.Rows, SegmentRows: t.Engine.SegmentRows,
-		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: l.Ideal, ExcessSegments: l.Excess,
+		Name: t.Name, Line: t.Pos.Line, Column: t.Pos.Col,
+		Scheme: string(rr.Scheme), Rows: l.Rows, SegmentRows: t.SegmentRows,
+		Partitions: l.Partitions, Segments: l.Segments, IdealSegments: rr.Ideal, ExcessSegments: l.Segments - rr.Ideal,
 		Fill: round(l.Fill), FixedOverheadMs: round(l.FixedMs),
-		ScanOverheadBudgetMs: t.Budgets.ScanOverheadMs, ScanBudgetMs: t.Budgets.ScanMs,
-		Recommendation: tableRecommendation(t),
+		ScanOverheadBudgetMs: rr.ScanOverheadBudgetMs, ScanBudgetMs: rr.ScanBudgetMs,
+		Recommendation: recommendationJSON(rr.Recommendation),
 	}
-	if t.Widest != nil {
-		wall := round(t.Scan.WallMs)
-		jt.WidestColumn, jt.ScanWallMs = t.Widest.Name, &wall
+	if t.Scanned {
+		wall := round(t.ScanWallMs)
+		jt.WidestColumn, jt.ScanWallMs = rr.Widest, &wall
 	}
-	peaks := t.Peaks()
-	jt.Refresh.Full = rebuildJSON(t.Full, peaks.Full)
-	if t.RoutineDeclared() {
-		r := rebuildJSON(t.Routine, peaks.Routine)
+	var peaks analysis.Peaks
+	if rr.Peaks != nil {
+		peaks = *rr.Peaks
+	}
+	jt.Refresh.Full = rebuildJSON(rr.Full, peaks.Full)
+	if rr.RoutineDeclared {
+		r := rebuildJSON(rr.Routine, peaks.Routine)
 		jt.Refresh.Routine = &r
 	}
 	return jt
+}
+
+// rowReport is what a row holds for reports; empty for a row made for comparing.
+func rowReport(t analysis.Row) *analysis.RowReport {
+	if t.Report == nil {
+		return &analysis.RowReport{}
+	}
+	return t.Report
 }
 
 // numbersJSON rounds a finding's figures for the JSON reports.

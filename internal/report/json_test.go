@@ -186,8 +186,8 @@ func TestJSONTables(t *testing.T) {
 	for i, tb := range r.Files[0].Tables {
 		g := tables[i]
 		l := tb.Layout
-		if g["name"] != tb.Spec.Name || g["segments"] != float64(l.Segments) || g["ideal_segments"] != float64(l.Ideal) ||
-			g["excess_segments"] != float64(l.Excess) || g["partitions"] != float64(l.Partitions) || g["fixed_overhead_ms"] != l.FixedMs ||
+		if g["name"] != tb.Name || g["segments"] != float64(l.Segments) || g["ideal_segments"] != float64(tb.Report.Ideal) ||
+			g["excess_segments"] != float64(l.Segments-tb.Report.Ideal) || g["partitions"] != float64(l.Partitions) || g["fixed_overhead_ms"] != l.FixedMs ||
 			g["segment_rows"] != float64(1000) || g["scan_overhead_budget_ms"] != float64(1000) {
 			t.Errorf("table %d: %v, layout %+v", i, g, l)
 		}

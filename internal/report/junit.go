@@ -115,8 +115,8 @@ func junitSuiteOf(r *Result, f File, fs []rules.Finding) junitSuite {
 		suite.Cases = append(suite.Cases, junitCaseOf(r, "model "+model, model, fileLevel))
 	}
 	for _, t := range f.Tables {
-		c := junitCaseOf(r, escape.Text(t.Spec.Name), model, byTable[t.Spec.Name])
-		c.SystemOut = fmt.Sprintf("%s:%d:%d", uri, t.Spec.Pos.Line, t.Spec.Pos.Col)
+		c := junitCaseOf(r, escape.Text(t.Name), model, byTable[t.Name])
+		c.SystemOut = fmt.Sprintf("%s:%d:%d", uri, t.Pos.Line, t.Pos.Col)
 		suite.Cases = append(suite.Cases, c)
 	}
 	for _, c := range suite.Cases {

@@ -157,7 +157,7 @@ func TestJUnitSchemaAndModelCases(t *testing.T) {
 	r := analysedResult(t, "m.yaml", "conf/m.yaml", fixtureManifest, 0)
 	r.Files = append(r.Files, File{Name: "broken.yaml", URI: "conf/broken.yaml", Invalid: true})
 	r.Findings = append(r.Findings,
-		rules.Finding{Rule: "refresh-memory", Severity: rules.Error, File: "m.yaml", Pos: r.Files[0].Tables[0].Spec.Pos, Message: "the refresh needs 9 GiB"},
+		rules.Finding{Rule: "refresh-memory", Severity: rules.Error, File: "m.yaml", Pos: r.Files[0].Tables[0].Pos, Message: "the refresh needs 9 GiB"},
 		rules.Finding{Rule: "schema", Severity: rules.Error, File: "broken.yaml", Pos: schema.Pos{Line: 2, Col: 1}, Message: "model: required"},
 		rules.Finding{Rule: "schema", Severity: rules.Error, File: "broken.yaml", Pos: schema.Pos{Line: 3, Col: 1}, Message: "tables: required"},
 	)
@@ -225,7 +225,7 @@ func TestJUnitSkipped(t *testing.T) {
 // severe, though a warning comes first in report order; the text lists both.
 func TestJUnitMostSevereFirst(t *testing.T) {
 	r := analysedResult(t, "m.yaml", "conf/m.yaml", fixtureManifest, rules.Warning)
-	pos := r.Files[0].Tables[0].Spec.Pos
+	pos := r.Files[0].Tables[0].Pos
 	early := rules.Finding{Rule: "truncated-segments", Severity: rules.Warning, File: "m.yaml", Table: "events",
 		Pos: schema.Pos{Line: pos.Line, Col: 1}, Message: "events: a warning first"}
 	r.Findings = append([]rules.Finding{early}, r.Findings...)
@@ -268,7 +268,7 @@ func waivedAndBaselined(t *testing.T) *Result {
 		}
 	}
 	note := rules.Finding{Rule: "needless-partitioning", Severity: rules.Note, File: "m.yaml", Table: "events",
-		Pos: r.Files[0].Tables[0].Spec.Pos, Message: "events: an accepted note", Baselined: true}
+		Pos: r.Files[0].Tables[0].Pos, Message: "events: an accepted note", Baselined: true}
 	r.Findings = slices.Insert(r.Findings, 1, note)
 	r.Baseline = &BaselineUse{File: "scangate-baseline.json"}
 	return r

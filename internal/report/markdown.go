@@ -39,12 +39,12 @@ func writeMarkdown(w io.Writer, r *Result, _ bool) error {
 			for _, t := range f.Tables {
 				l := t.Layout
 				budget := "–"
-				if t.Budgets.ScanOverheadMs != nil {
-					budget = units.Ms(*t.Budgets.ScanOverheadMs)
+				if b := rowReport(t).ScanOverheadBudgetMs; b != nil {
+					budget = units.Ms(*b)
 				}
 				fmt.Fprintf(b, "| %s | %s | %s | %s | %s | %s | %s | %s |\n",
-					code(f.Name), code(t.Spec.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
-					units.Num(l.Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
+					code(f.Name), code(t.Name), units.Num(int64(l.Partitions)), units.Num(l.Segments),
+					units.Num(rowReport(t).Ideal), units.Pct(l.Fill), units.Ms(l.FixedMs), budget)
 				out.flush()
 			}
 		}

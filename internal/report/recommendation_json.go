@@ -41,12 +41,3 @@ func recommendationJSON(r *analysis.Recommendation) *jsonRecommendation {
 	}
 	return out
 }
-
-// tableRecommendation is the recommendation of an analysed table, nil without one.
-func tableRecommendation(t *analysis.Table) *jsonRecommendation {
-	r, ok := t.Recommended()
-	if !ok {
-		return nil
-	}
-	return recommendationJSON(&r)
-}

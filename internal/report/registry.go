@@ -62,7 +62,7 @@ type Traits struct {
 	Name  string
 	Kinds Kind // the documents it renders
 	// NeedsTables: it prints per-table figures, so check keeps every analysed table to
-	// the end for it (a run that prints only findings drops them as it goes).
+	// the end for it, in brief (analysis.Row); a run that prints only findings keeps none.
 	NeedsTables bool
 	Colours     bool // colours its output on a terminal
 	// StepSummary: in a CI job that names a step summary file, the Markdown rendering of

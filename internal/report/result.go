@@ -40,11 +40,11 @@ type File struct {
 	Key     string
 	Model   string
 	Invalid bool // could not be read or broke the schema; its findings say why
-	// Analysed counts the tables analysed. Tables holds them only when a report prints
-	// per-table figures (json, markdown, junit, the job summary): a run over thousands
-	// of files that prints only findings does not keep them all to the end.
+	// Analysed counts the tables analysed. Tables holds them in brief (analysis.Row) only
+	// when a report prints per-table figures (json, markdown, junit, the job summary): a
+	// run over thousands of files that prints only findings does not keep them to the end.
 	Analysed int
-	Tables   []*analysis.Table
+	Tables   []analysis.Row
 }
 
 // Summary counts what a run looked at.

@@ -122,7 +122,7 @@ func BenchmarkDiffMonorepo(b *testing.B) {
 	b.ReportAllocs()
 	for b.Loop() {
 		checked := CheckSides(sides, cfg, Project{}, schema.DefaultLimits)
-		if d := change.Compare(checked[0], checked[1]); len(d.Tables()) == 0 {
+		if d := change.Compare(checked[0], checked[1]); d.TableCount() == 0 {
 			b.Fatal("no tables compared")
 		}
 	}
@@ -217,7 +217,7 @@ func BenchmarkDiff(b *testing.B) {
 				sides := CheckSides(diffSides(base, head), cfg, Project{}, schema.DefaultLimits)
 				d := change.Compare(sides[0], sides[1])
 				change.Gate{FailOnNew: rules.Warning}.Check(d)
-				tables = len(d.Tables())
+				tables = d.TableCount()
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(tables), "ns/table")
 		})

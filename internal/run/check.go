@@ -7,6 +7,7 @@ import (
 	"sort"
 	"sync"
 
+	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/units"
 	"github.com/scangate/scangate/rules"
@@ -33,7 +34,7 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 	// hold their bytes and parse trees. A run of thousands of files keeps no more than
 	// their findings, and their tables when a report prints them.
 	parallel(len(inputs), func(i int) {
-		files[i], found[i] = checkInput(inputs[i], root, keys[i], cfg, proj, limits, keepTables, func(n int64) bool { return budget.spend(i, n) })
+		files[i], found[i] = checkInput(inputs[i], root, keys[i], cfg, proj, limits, keepFor(keepTables), func(n int64) bool { return budget.spend(i, n) })
 		inputs[i].data = nil
 	})
 	return sortChecked(files, found)
@@ -43,7 +44,11 @@ func Check(inputs []Input, cfg rules.Config, proj *schema.ProjectConfig, limits 
 // report lists them.
 func sortChecked(files []report.File, found [][]rules.Finding) ([]report.File, []rules.Finding) {
 	sort.SliceStable(files, func(i, j int) bool { return files[i].Name < files[j].Name })
-	var findings []rules.Finding
+	n := 0
+	for _, fs := range found {
+		n += len(fs)
+	}
+	findings := make([]rules.Finding, 0, n) // exact: a run holds them to the end
 	for _, fs := range found {
 		findings = append(findings, fs...)
 	}
@@ -51,10 +56,27 @@ func sortChecked(files []report.File, found [][]rules.Finding) ([]report.File, [
 	return files, findings
 }
 
+// tableKeep is what a checked file keeps of its tables.
+type tableKeep int
+
+const (
+	keepCount   tableKeep = iota // how many were analysed, nothing more
+	keepRows                     // their rows without recommendations: what diff compares
+	keepAdvised                  // their rows with every table's recommendation: reports that print tables
+)
+
+// keepFor is what check keeps: the advised rows when a report prints tables (NeedsTables).
+func keepFor(keepTables bool) tableKeep {
+	if keepTables {
+		return keepAdvised
+	}
+	return keepCount
+}
+
 // checkInput loads and checks one input. spend is called exactly once, with the
 // partitions the manifest expands to (0 when it did not load), and says whether they
 // fit the run's budget; a manifest that does not fit is refused with a schema finding.
-func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.ProjectConfig, limits schema.Limits, keepTables bool, spend func(int64) bool) (report.File, []rules.Finding) {
+func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.ProjectConfig, limits schema.Limits, keep tableKeep, spend func(int64) bool) (report.File, []rules.Finding) {
 	f, m, fs := loadInput(in, root, key, proj, limits)
 	var n int64
 	if m != nil {
@@ -65,12 +87,16 @@ func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.Proje
 		return f, []rules.Finding{refusal(f.Name, n, limits)}
 	}
 	if m != nil {
-		cfg.Advise = keepTables // the reports that print tables print their recommendations
+		cfg.Advise = keep == keepAdvised // the reports that print tables print their recommendations
 		md, own := rules.Check(m, cfg)
 		fs = own
 		f.Analysed = len(md.Tables)
-		if keepTables {
-			f.Tables = md.Tables
+		// The rows, not the analyses: a run over a repository holds every table to the end.
+		switch keep {
+		case keepAdvised:
+			f.Tables = analysis.ReportRows(md.Tables)
+		case keepRows:
+			f.Tables = analysis.Rows(md.Tables)
 		}
 	}
 	return f, fs

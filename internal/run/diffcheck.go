@@ -13,6 +13,7 @@ import (
 // the same config and date, so the diff shows what the manifests change and nothing else.
 func CompareSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Limits, o change.Options) *change.Diff {
 	checked := CheckSides(sides, cfg, proj, limits)
+	o.Release = true // the sides are checked for this comparison alone
 	return change.CompareWith(checked[0], checked[1], o)
 }
 
@@ -71,7 +72,7 @@ func CheckSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Lim
 		if ins[0] != nil && ins[1] != nil && ins[0].err == nil && ins[1].err == nil && bytes.Equal(ins[0].data, ins[1].data) {
 			var n int64
 			var fits bool
-			hf, hfs := checkInput(ins[1].Input, root, ins[1].key, cfg, proj.Config, limits, true, func(p int64) bool {
+			hf, hfs := checkInput(ins[1].Input, root, ins[1].key, cfg, proj.Config, limits, keepRows, func(p int64) bool {
 				n, fits = p, budgets[0].spend(k, p)
 				spent[0], spent[1] = true, true
 				return budgets[1].spend(k, p)
@@ -88,7 +89,7 @@ func CheckSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Lim
 				if ins[s] == nil {
 					continue
 				}
-				files[s][at[s]], found[s][at[s]] = checkInput(ins[s].Input, root, ins[s].key, cfg, proj.Config, limits, true, spend(s))
+				files[s][at[s]], found[s][at[s]] = checkInput(ins[s].Input, root, ins[s].key, cfg, proj.Config, limits, keepRows, spend(s))
 			}
 		}
 		for s := range 2 {

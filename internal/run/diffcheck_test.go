@@ -49,7 +49,7 @@ func TestCheckSidesReusesIdenticalFiles(t *testing.T) {
 	}
 	for _, b := range got[0].Files {
 		h, ok := heads[b.Key]
-		shared := ok && len(b.Tables) == 1 && len(h.Tables) == 1 && b.Tables[0] == h.Tables[0]
+		shared := ok && len(b.Tables) == 1 && len(h.Tables) == 1 && &b.Tables[0] == &h.Tables[0]
 		if want := strings.HasPrefix(b.Key, "same"); shared != want {
 			t.Errorf("%s: analysis shared with the head %v, want %v", b.Name, shared, want)
 		}
