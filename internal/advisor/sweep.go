@@ -206,6 +206,7 @@ type grownTables struct {
 type grownTableEntry struct {
 	spec  schema.Table
 	parts []layout.Partition // nil when it cannot be expanded
+	whole *oneSegment        // its column figures above every partition, shared by the views
 }
 
 // NewModel prepares m for sweeps and forecasts.
@@ -266,8 +267,66 @@ func (md *Model) expand(spec schema.Table) ([]layout.Partition, error) {
 
 // figures lays out partitions already expanded from spec.
 func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) Figures {
+	return md.figuresWith(spec, parts, s, nil)
+}
+
+// oneSegment is what figuresWith keeps of one list of partitions (one policy, grown or not)
+// across the capacities a sweep tries: the column figures (Widest, WallMs, Bytes) of a
+// capacity above every partition's rows. There each partition is one part-empty segment
+// of its own rows whatever the capacity (k = 0 full segments, rest = its rows, in
+// layout's columnBytes), so the same estimates and the same schedule come out, in the
+// same order, to the bit: most sweeps try five or more capacities above a table's
+// partitions and pay for one.
+type oneSegment struct {
+	top   int64 // the most rows of any partition; -1 until measured
+	rows  int64 // spec.Rows the figures were computed with
+	cols  []schema.Column
+	done  bool
+	cache Figures // only Widest, WallMs and Bytes are set
+}
+
+func newOneSegment() *oneSegment { return &oneSegment{top: -1} }
+
+// fits reports whether w's figures hold for spec laid out in parts with capacity s.
+func (w *oneSegment) fits(spec schema.Table, parts []layout.Partition, s int64) bool {
+	if w.top < 0 {
+		w.top = 0
+		for _, p := range parts {
+			w.top = max(w.top, p.Rows)
+		}
+	}
+	return s > w.top
+}
+
+// figuresWith is figures, reusing w's column figures when the capacity is above every
+// partition (w nil: no reuse).
+func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
 	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	reuse := w != nil && w.fits(spec, parts, s)
+	if reuse && w.done && w.rows == spec.Rows && sameColumns(w.cols, spec.Columns) {
+		f.Widest, f.WallMs, f.Bytes = w.cache.Widest, w.cache.WallMs, w.cache.Bytes
+		return f
+	}
+	md.columnFigures(&f, spec, parts, s)
+	if reuse && !w.done {
+		w.done, w.rows, w.cols = true, spec.Rows, spec.Columns
+		w.cache = Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
+	}
+	return f
+}
+
+// sameColumns reports whether a and b are the same profiles (a grown table's are a copy).
+func sameColumns(a, b []schema.Column) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	return len(a) == 0 || &a[0] == &b[0] || slices.Equal(a, b)
+}
+
+// columnFigures sets f's Widest, WallMs and Bytes: spec's columns in parts with segments
+// of s rows.
+func (md *Model) columnFigures(f *Figures, spec schema.Table, parts []layout.Partition, s int64) {
 	e := md.engineAt(s)
 	best, widest := -1.0, -1
 	for i, c := range spec.Columns {
@@ -283,14 +342,19 @@ func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) F
 		c := spec.Columns[widest]
 		f.Widest, f.WallMs = c.Name, layout.ScanColumn(c, spec.Rows, parts, e).WallMs
 	}
-	return f
 }
 
 // grownTable is table j grown for month months, and its partitions, expanded once.
 func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
+	spec, parts, _ := md.grownEntry(j, month)
+	return spec, parts
+}
+
+// grownEntry is grownTable with the partitions' column figures above every partition.
+func (md *Model) grownEntry(j, month int) (schema.Table, []layout.Partition, *oneSegment) {
 	t := md.M.Tables[j]
 	if month != 0 && !grows(t) {
-		return md.grownTable(j, 0) // growth leaves it as it is
+		return md.grownEntry(j, 0) // growth leaves it as it is
 	}
 	g, ok := md.grown[month]
 	if !ok {
@@ -300,11 +364,11 @@ func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
 	}
 	e := g.tables[j]
 	if e == nil {
-		e = &grownTableEntry{spec: Grow(t, month)}
+		e = &grownTableEntry{spec: Grow(t, month), whole: newOneSegment()}
 		e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
 		g.tables[j] = e
 	}
-	return e.spec, e.parts
+	return e.spec, e.parts, e.whole
 }
 
 // view is the model laid out with segments of s rows after month months of growth,
@@ -345,12 +409,12 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 		v.total.add(v.bytes[j])
 		return
 	}
-	spec, parts := md.grownTable(j, month)
+	spec, parts, w := md.grownEntry(j, month)
 	if parts == nil {
 		v.scan[j] = scanNone
 		return
 	}
-	f := md.figures(spec, parts, s)
+	f := md.figuresWith(spec, parts, s, w)
 	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
 	v.total.add(v.bytes[j])
 }
@@ -362,13 +426,13 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 		return v.scan[j]
 	}
 	b := md.budgets[j]
-	switch spec, parts := md.grownTable(j, month); {
+	switch spec, parts, w := md.grownEntry(j, month); {
 	case parts == nil:
 		v.scan[j] = scanNone
 	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
 		v.scan[j] = scanFits // no scan budget applies
 	default:
-		v.scan[j] = scanStateOf(b, md.figures(spec, parts, s))
+		v.scan[j] = scanStateOf(b, md.figuresWith(spec, parts, s, w))
 	}
 	return v.scan[j]
 }
@@ -578,7 +642,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
-				p = &policy{}
+				p = &policy{whole: newOneSegment(), laterWhole: newOneSegment()}
 				if p.parts, _ = md.expand(v.Spec); p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
 				}
@@ -602,7 +666,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			f := md.figures(v.Spec, p.parts, s)
+			f := md.figuresWith(v.Spec, p.parts, s, p.whole)
 			c.Figures = f
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
@@ -685,6 +749,9 @@ type policy struct {
 	grown    schema.Table       // grown to the horizon, once hasLater
 	later    []layout.Partition // its partitions; nil when it cannot be expanded
 	hasLater bool
+	// whole and laterWhole are the column figures of parts and later above every
+	// partition (figuresWith).
+	whole, laterWhole *oneSegment
 }
 
 // atHorizon is the table laid out as v (policy p, figures f today) with segments of s
@@ -701,7 +768,7 @@ func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int
 	if p.later == nil {
 		return Figures{}, false
 	}
-	return md.figures(p.grown, p.later, s), true
+	return md.figuresWith(p.grown, p.later, s, p.laterWhole), true
 }
 
 // memAxis is the front's memory figure: the refresh peak, or, without column profiles,
