@@ -69,6 +69,15 @@ type Settings struct {
 	// capacity can rank above it (better), so the other capacities are left out. The
 	// pick is the full sweep's; the front and the list of candidates are not.
 	PickOnly bool
+	// Prune leaves out, at capacities other than today's, what no reader of check's
+	// sweep (the pick, the closest layout, the alternative at today's capacity, the
+	// front) reads: the scheduled scan time of a layout whose scan is certainly within
+	// the warning share of scan_ms, or that answers to no scan_ms (its WallMs is then a
+	// ceiling, not the estimate), and the horizon of a layout that cannot be picked
+	// (see try in Sweep). The pick, closest layout, front, fits, misses and
+	// warnings-count ranking are the full sweep's; the pick's figures are computed in
+	// full. plan, which prints every candidate, sweeps without it.
+	Prune bool
 }
 
 func (s Settings) levels() Levels {
@@ -104,6 +113,8 @@ type Candidate struct {
 	Warnings []string // what check would still warn about, crossings within ForecastMonths included
 	missed   []Miss   // Misses with their figures, for Closest
 	order    int
+	rough    bool // WallMs is a ceiling (Settings.Prune): figured in full when picked
+	pol      *policy
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -327,7 +338,14 @@ func sameColumns(a, b []schema.Column) bool {
 // columnFigures sets f's Widest, WallMs and Bytes: spec's columns in parts with segments
 // of s rows.
 func (md *Model) columnFigures(f *Figures, spec schema.Table, parts []layout.Partition, s int64) {
-	e := md.engineAt(s)
+	if k := md.widest(f, spec, parts, s); k >= 0 {
+		f.WallMs = layout.ScanColumn(spec.Columns[k], spec.Rows, parts, md.engineAt(s)).WallMs
+	}
+}
+
+// widest sets f's Bytes and Widest and returns the index of the widest column, -1
+// without profiles.
+func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64) int {
 	best, widest := -1.0, -1
 	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
@@ -339,9 +357,9 @@ func (md *Model) columnFigures(f *Figures, spec schema.Table, parts []layout.Par
 		f.Bytes += b
 	}
 	if widest >= 0 {
-		c := spec.Columns[widest]
-		f.Widest, f.WallMs = c.Name, layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+		f.Widest = spec.Columns[widest].Name
 	}
+	return widest
 }
 
 // grownTable is table j grown for month months, and its partitions, expanded once.
@@ -624,6 +642,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	}
 	clean := false // some candidate fits every budget with no warning left
 	windowRead := false
+	best := -1 // the candidate ranked first so far among those that fit (Settings.Prune)
 	try := func(s int64) {
 		raise := ""
 		if s != today {
@@ -666,8 +685,16 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			f := md.figuresWith(v.Spec, p.parts, s, p.whole)
-			c.Figures = f
+			// Pruned only once today's layout is in: better weighs routine refreshes
+			// against it.
+			prune := set.Prune && s != today && sw.Today >= 0
+			var f Figures
+			if prune {
+				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv)
+			} else {
+				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
+			}
+			c.Figures, c.pol = f, p
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
 			c.missed = md.missed(i, f, s, 0, c.Peak)
@@ -675,7 +702,15 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			c.Fits = len(c.Misses) == 0
 			if c.Fits {
 				c.Warnings = md.warnings(i, f, lv)
-				if md.growth {
+				// The horizon only adds warnings, and better ranks fewer warnings
+				// first: a layout already ranked below a fitting one tried before
+				// (whose warnings are final) at the warnings it has without it stays
+				// below whatever the horizon adds, so it is neither the pick (mark)
+				// nor, at another capacity than today's, the alternative (BestAt at
+				// today's). A locked layout is never picked. Its count is then only
+				// short of the horizon's one, which no reader of a pruned sweep reads.
+				beaten := prune && (c.Locked || (best >= 0 && better(&sw.Candidates[best], &c, today, sw.routineToday())))
+				if md.growth && !beaten {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
 					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
@@ -690,6 +725,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				sw.Today = len(sw.Candidates)
 			}
 			sw.Candidates = append(sw.Candidates, c)
+			if c.Fits && !c.Locked && sw.Today >= 0 && (best < 0 || better(&c, &sw.Candidates[best], today, sw.routineToday())) {
+				best = len(sw.Candidates) - 1
+			}
 		}
 	}
 	caps := md.capacities(set)
@@ -718,7 +756,45 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 	}
 	md.mark(sw)
+	md.refine(sw)
 	return sw
+}
+
+// refine figures the pick and the closest layout of a pruned sweep in full: the hints
+// and plan quote their figures. A rough WallMs was a ceiling within every level, so the
+// full one is too: it moves no fit, miss or warning.
+func (md *Model) refine(sw *Sweep) {
+	for _, k := range []int{sw.Recommended, sw.Closest} {
+		if k < 0 || !sw.Candidates[k].rough {
+			continue
+		}
+		c := &sw.Candidates[k]
+		f := md.figuresWith(c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
+		c.Figures, c.rough = f, false
+	}
+}
+
+// roughFigures is figures for a pruned sweep: the scan time a ceiling (rough true)
+// when it is certainly within the warning share of table i's scan_ms, or when no
+// scan_ms applies; then no miss or warning reads more of it than the full figure gives.
+func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels) (Figures, bool) {
+	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	k := md.widest(&f, spec, parts, s)
+	if k < 0 {
+		return f, false
+	}
+	c := spec.Columns[k]
+	e := md.engineAt(s)
+	b := md.Budgets(i)
+	ceiling := layout.ScanCeiling(c, spec.Rows, parts, e)
+	// A millionth over: the ceiling and the schedule sum the same task times in other
+	// orders, so their last bits may differ.
+	if b.ScanMs == nil || ceiling*(1+1e-6) < min(lv.ScanWarnShare, 1)**b.ScanMs {
+		f.WallMs = ceiling
+		return f, true
+	}
+	f.WallMs = layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+	return f, false
 }
 
 // whole reports whether every candidate at capacity s holds each partition in one segment.
