@@ -432,7 +432,7 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 		v.scan[j] = scanNone
 		return
 	}
-	f := md.figuresWith(spec, parts, s, w)
+	f := md.judgedFigures(j, spec, parts, s, w)
 	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
 	v.total.add(v.bytes[j])
 }
@@ -450,7 +450,7 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
 		v.scan[j] = scanFits // no scan budget applies
 	default:
-		v.scan[j] = scanStateOf(b, md.figuresWith(spec, parts, s, w))
+		v.scan[j] = scanStateOf(b, md.judgedFigures(j, spec, parts, s, w))
 	}
 	return v.scan[j]
 }
@@ -774,10 +774,37 @@ func (md *Model) refine(sw *Sweep) {
 	}
 }
 
+// judgedFigures is figures of table j for a view, which keeps only its bytes and
+// whether it fits its scan budgets (scanStateOf): a scan whose list-scheduling ceiling
+// is within scan_ms, or under no scan_ms, is not scheduled (WallMs is the ceiling).
+func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
+	if w != nil && w.fits(spec, parts, s) && w.done {
+		return md.figuresWith(spec, parts, s, w) // figured already
+	}
+	md.work++
+	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	k := md.widest(&f, spec, parts, s)
+	if k < 0 {
+		return f
+	}
+	b := md.budgets[j]
+	if b.ScanMs == nil {
+		return f // WallMs 0: fitsScan reads it only under a scan_ms
+	}
+	c, e := spec.Columns[k], md.engineAt(s)
+	if ceiling := layout.ScanCeiling(c, spec.Rows, parts, e); ceiling*(1+1e-6) < *b.ScanMs {
+		f.WallMs = ceiling
+		return f
+	}
+	f.WallMs = layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+	return f
+}
+
 // roughFigures is figures for a pruned sweep: the scan time a ceiling (rough true)
 // when it is certainly within the warning share of table i's scan_ms, or when no
 // scan_ms applies; then no miss or warning reads more of it than the full figure gives.
 func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels) (Figures, bool) {
+	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	k := md.widest(&f, spec, parts, s)
 	if k < 0 {
