@@ -281,24 +281,27 @@ func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) F
 	return md.figuresWith(spec, parts, s, nil)
 }
 
-// oneSegment is what figuresWith keeps of one list of partitions (one policy, grown or not)
-// across the capacities a sweep tries: the column figures (Widest, WallMs, Bytes) of a
-// capacity above every partition's rows. There each partition is one part-empty segment
-// of its own rows whatever the capacity (k = 0 full segments, rest = its rows, in
-// layout's columnBytes), so the same estimates and the same schedule come out, in the
-// same order, to the bit: most sweeps try five or more capacities above a table's
-// partitions and pay for one.
+// oneSegment is what figuresWith keeps of one list of partitions (one policy, grown or
+// not, with its spec) across the capacities a sweep tries. At a capacity above a
+// partition's rows the partition is one part-empty segment of its own rows whatever the
+// capacity (k = 0 full segments, rest = its rows, in layout's columnBytes), so the same
+// estimates come out to the bit: each column keeps them (layout.Smaller), and at a
+// capacity above every partition the column figures (Widest, WallMs, Bytes) are the
+// same, schedule included, so they are kept whole. Most sweeps try five or more
+// capacities above a small table's partitions and pay for one.
 type oneSegment struct {
-	top   int64 // the most rows of any partition; -1 until measured
-	rows  int64 // spec.Rows the figures were computed with
-	cols  []schema.Column
-	done  bool
-	cache Figures // only Widest, WallMs and Bytes are set
+	top     int64 // the most rows of any partition; -1 until measured
+	rows    int64 // spec.Rows the figures are for
+	cols    []schema.Column
+	set     bool             // rows and cols are set
+	smaller []layout.Smaller // by column
+	done    bool
+	cache   Figures // only Widest, WallMs and Bytes are set
 }
 
 func newOneSegment() *oneSegment { return &oneSegment{top: -1} }
 
-// fits reports whether w's figures hold for spec laid out in parts with capacity s.
+// fits reports whether capacity s is above every partition of parts.
 func (w *oneSegment) fits(spec schema.Table, parts []layout.Partition, s int64) bool {
 	if w.top < 0 {
 		w.top = 0
@@ -309,22 +312,47 @@ func (w *oneSegment) fits(spec schema.Table, parts []layout.Partition, s int64) 
 	return s > w.top
 }
 
-// figuresWith is figures, reusing w's column figures when the capacity is above every
-// partition (w nil: no reuse).
+// memo is w's estimates by column when w is spec's (taken on first use), else nil.
+func (w *oneSegment) memo(spec schema.Table) []layout.Smaller {
+	if w == nil {
+		return nil
+	}
+	if !w.set {
+		w.set, w.rows, w.cols = true, spec.Rows, spec.Columns
+		w.smaller = make([]layout.Smaller, len(spec.Columns))
+	}
+	if w.rows != spec.Rows || !sameColumns(w.cols, spec.Columns) {
+		return nil
+	}
+	return w.smaller
+}
+
+// figuresWith is figures, with w's estimates and column figures of the same partitions
+// (w nil: none).
 func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
 	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
-	reuse := w != nil && w.fits(spec, parts, s)
-	if reuse && w.done && w.rows == spec.Rows && sameColumns(w.cols, spec.Columns) {
+	memo := w.memo(spec)
+	whole := memo != nil && w.fits(spec, parts, s)
+	if whole && w.done {
 		f.Widest, f.WallMs, f.Bytes = w.cache.Widest, w.cache.WallMs, w.cache.Bytes
 		return f
 	}
-	md.columnFigures(&f, spec, parts, s)
-	if reuse && !w.done {
-		w.done, w.rows, w.cols = true, spec.Rows, spec.Columns
-		w.cache = Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
+	if k := md.widest(&f, spec, parts, s, memo); k >= 0 {
+		f.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, parts, md.engineAt(s), at(memo, k)).WallMs
+	}
+	if whole {
+		w.done, w.cache = true, Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
 	}
 	return f
+}
+
+// at is &memo[k], nil without a memo.
+func at(memo []layout.Smaller, k int) *layout.Smaller {
+	if memo == nil {
+		return nil
+	}
+	return &memo[k]
 }
 
 // sameColumns reports whether a and b are the same profiles (a grown table's are a copy).
@@ -335,22 +363,14 @@ func sameColumns(a, b []schema.Column) bool {
 	return len(a) == 0 || &a[0] == &b[0] || slices.Equal(a, b)
 }
 
-// columnFigures sets f's Widest, WallMs and Bytes: spec's columns in parts with segments
-// of s rows.
-func (md *Model) columnFigures(f *Figures, spec schema.Table, parts []layout.Partition, s int64) {
-	if k := md.widest(f, spec, parts, s); k >= 0 {
-		f.WallMs = layout.ScanColumn(spec.Columns[k], spec.Rows, parts, md.engineAt(s)).WallMs
-	}
-}
-
 // widest sets f's Bytes and Widest and returns the index of the widest column, -1
 // without profiles.
-func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64) int {
+func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller) int {
 	best, widest := -1.0, -1
 	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
 		// size (layout.TableBytes sums the same figure); only the widest is scheduled.
-		b := layout.ColumnBytes(c, parts, s)
+		b := layout.ColumnBytesWith(c, parts, s, at(memo, i))
 		if b > best {
 			best, widest = b, i
 		}
@@ -690,7 +710,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			prune := set.Prune && s != today && sw.Today >= 0
 			var f Figures
 			if prune {
-				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv)
+				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole)
 			} else {
 				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
 			}
@@ -775,52 +795,43 @@ func (md *Model) refine(sw *Sweep) {
 }
 
 // judgedFigures is figures of table j for a view, which keeps only its bytes and
-// whether it fits its scan budgets (scanStateOf): a scan whose list-scheduling ceiling
-// is within scan_ms, or under no scan_ms, is not scheduled (WallMs is the ceiling).
+// whether it fits its scan budgets (scanStateOf, which reads WallMs only against
+// scan_ms): the scan is scheduled only when its ceiling is not within scan_ms.
 func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
-	if w != nil && w.fits(spec, parts, s) && w.done {
-		return md.figuresWith(spec, parts, s, w) // figured already
-	}
-	md.work++
-	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
-	k := md.widest(&f, spec, parts, s)
-	if k < 0 {
-		return f
-	}
-	b := md.budgets[j]
-	if b.ScanMs == nil {
-		return f // WallMs 0: fitsScan reads it only under a scan_ms
-	}
-	c, e := spec.Columns[k], md.engineAt(s)
-	if ceiling := layout.ScanCeiling(c, spec.Rows, parts, e); ceiling*(1+1e-6) < *b.ScanMs {
-		f.WallMs = ceiling
-		return f
-	}
-	f.WallMs = layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[j].ScanMs, 1)
 	return f
 }
 
-// roughFigures is figures for a pruned sweep: the scan time a ceiling (rough true)
-// when it is certainly within the warning share of table i's scan_ms, or when no
-// scan_ms applies; then no miss or warning reads more of it than the full figure gives.
-func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels) (Figures, bool) {
+// roughFigures is figures of table i for a pruned sweep: the scan is scheduled only when
+// its ceiling is not within the warning share of scan_ms (then no miss or warning reads
+// more of it than the schedule gives); rough reports that WallMs is the ceiling.
+func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment) (Figures, bool) {
+	return md.boundedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1))
+}
+
+// boundedFigures is figuresWith with the scan scheduled only when its list-scheduling
+// ceiling (layout.ScanCeiling) is not below share x scanMs; nil scanMs: never (WallMs
+// is then the ceiling, and rough is true).
+func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64) (f Figures, rough bool) {
+	memo := w.memo(spec)
+	if memo != nil && w.fits(spec, parts, s) && w.done {
+		return md.figuresWith(spec, parts, s, w), false // figured already
+	}
 	md.work++
-	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
-	k := md.widest(&f, spec, parts, s)
+	f = Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	k := md.widest(&f, spec, parts, s, memo)
 	if k < 0 {
 		return f, false
 	}
-	c := spec.Columns[k]
-	e := md.engineAt(s)
-	b := md.Budgets(i)
-	ceiling := layout.ScanCeiling(c, spec.Rows, parts, e)
+	c, e := spec.Columns[k], md.engineAt(s)
+	ceiling := layout.ScanCeiling(c, spec.Rows, parts, e, at(memo, k))
 	// A millionth over: the ceiling and the schedule sum the same task times in other
 	// orders, so their last bits may differ.
-	if b.ScanMs == nil || ceiling*(1+1e-6) < min(lv.ScanWarnShare, 1)**b.ScanMs {
+	if scanMs == nil || ceiling*(1+1e-6) < share**scanMs {
 		f.WallMs = ceiling
 		return f, true
 	}
-	f.WallMs = layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+	f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
 	return f, false
 }
 

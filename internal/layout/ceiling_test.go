@@ -36,7 +36,7 @@ func TestScanCeilingBoundsTheSchedule(t *testing.T) {
 			tableRows = 0
 		}
 		s := ScanColumn(c, tableRows, parts, e)
-		ceiling := ScanCeiling(c, tableRows, parts, e)
+		ceiling := ScanCeiling(c, tableRows, parts, e, nil)
 		if s.WallMs > ceiling*(1+1e-9) || s.WallMs < s.BoundMs*(1-1e-9) {
 			t.Fatalf("case %d: schedule %v ms outside [%v, %v] (bound, ceiling)", n, s.WallMs, s.BoundMs, ceiling)
 		}

@@ -20,6 +20,11 @@ type Scan struct {
 // (0 → the sum of the partitions). Engine values left at zero or invalid take the
 // format defaults, a negative overhead counts as 0, so every result is finite.
 func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.Engine) Scan {
+	return ScanColumnWith(c, tableRows, parts, e, nil)
+}
+
+// ScanColumnWith is ScanColumn keeping estimates in memo (nil: none).
+func ScanColumnWith(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) Scan {
 	f, theta, cores := scanRates(e)
 	if tableRows <= 0 {
 		for _, p := range parts {
@@ -39,7 +44,7 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 		}
 		groups = append(groups, TaskGroup{Count: n, Ms: ms})
 	}
-	bytes, segs := columnBytes(c, tableRows, parts, e.SegmentRows, func(full int64, fb float64, rest int64, rb float64) {
+	bytes, segs := columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
 		if full > 0 {
 			add(full, f+fb/theta)
 		}
@@ -61,7 +66,7 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 // on multiprocessing timing anomalies", SIAM J. Appl. Math. 17(2): the last task to
 // finish starts when its core frees first, before the average load). The task times
 // are ScanColumn's, from the same estimates.
-func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.Engine) float64 {
+func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) float64 {
 	f, theta, cores := scanRates(e)
 	if tableRows <= 0 {
 		for _, p := range parts {
@@ -75,7 +80,7 @@ func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.E
 			longest = max(longest, ms)
 		}
 	}
-	columnBytes(c, tableRows, parts, e.SegmentRows, func(full int64, fb float64, rest int64, rb float64) {
+	columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
 		task(full, f+fb/theta)
 		if rest > 0 {
 			task(1, f+rb/theta)
