@@ -69,11 +69,11 @@ type Settings struct {
 	// capacity can rank above it (better), so the other capacities are left out. The
 	// pick is the full sweep's; the front and the list of candidates are not.
 	PickOnly bool
-	// Prune leaves out, at capacities other than today's, what no reader of check's
-	// sweep (the pick, the closest layout, the alternative at today's capacity, the
-	// front) reads: the scheduled scan time of a layout whose scan is certainly within
-	// the warning share of scan_ms, or that answers to no scan_ms (its WallMs is then a
-	// ceiling, not the estimate), and the horizon of a layout that cannot be picked
+	// Prune leaves out what no reader of check's sweep (the pick, the closest layout,
+	// the alternative at today's capacity, the front) reads: the scheduled scan time
+	// of a layout whose scan is certainly within the warning share of scan_ms, or that
+	// answers to no scan_ms (its WallMs is then a ceiling, not the estimate), and, at
+	// other capacities than today's, the horizon of a layout that cannot be picked
 	// (see try in Sweep). The pick, closest layout, front, fits, misses and
 	// warnings-count ranking are the full sweep's; the pick's figures are computed in
 	// full. plan, which prints every candidate, sweeps without it.
@@ -678,6 +678,11 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		} else {
 			vs = append(vs, Variants(spec, s)...)
 		}
+		if cap(sw.Candidates) == 0 {
+			// Room for every default capacity at once: a candidate is large, and
+			// growing the list copies every one made so far.
+			sw.Candidates = make([]Candidate, 0, len(vs)*(len(DefaultCapacities)+1))
+		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
@@ -705,11 +710,13 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			// Pruned only once today's layout is in: better weighs routine refreshes
-			// against it.
+			// A rough scan time moves no fit, miss or warning: any layout may have one.
+			// The horizon is skipped only at another capacity than today's (BestAt
+			// ranks today's) and once today's layout is in (better weighs routine
+			// refreshes against it).
 			prune := set.Prune && s != today && sw.Today >= 0
 			var f Figures
-			if prune {
+			if set.Prune {
 				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole)
 			} else {
 				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
