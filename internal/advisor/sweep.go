@@ -763,6 +763,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for k := range sw.Candidates {
 			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
 				md.mark(sw)
+				md.refine(sw)
 				return sw
 			}
 		}

@@ -102,7 +102,7 @@ func (t *Table) Advise() {
 		t.Recommended()
 		return
 	}
-	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true})
+	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true, Prune: true})
 	t.recDone = true
 	t.rec, t.keep = recommendationOf(t, sw, t.model.levels)
 }
