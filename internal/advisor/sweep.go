@@ -680,8 +680,13 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 		if cap(sw.Candidates) == 0 {
 			// Room for every default capacity at once: a candidate is large, and
-			// growing the list copies every one made so far.
-			sw.Candidates = make([]Candidate, 0, len(vs)*(len(DefaultCapacities)+1))
+			// growing the list copies every one made so far. A pick-only sweep most
+			// often stops at today's.
+			n := len(DefaultCapacities) + 1
+			if set.PickOnly {
+				n = 1
+			}
+			sw.Candidates = make([]Candidate, 0, len(vs)*n)
 		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
