@@ -69,6 +69,15 @@ type Settings struct {
 	// capacity can rank above it (better), so the other capacities are left out. The
 	// pick is the full sweep's; the front and the list of candidates are not.
 	PickOnly bool
+	// Prune leaves out what no reader of check's sweep (the pick, the closest layout,
+	// the alternative at today's capacity, the front) reads: the scheduled scan time
+	// of a layout whose scan is certainly within the warning share of scan_ms, or that
+	// answers to no scan_ms (its WallMs is then a ceiling, not the estimate), and, at
+	// other capacities than today's, the horizon of a layout that cannot be picked
+	// (see try in Sweep). The pick, closest layout, front, fits, misses and
+	// warnings-count ranking are the full sweep's; the pick's figures are computed in
+	// full. plan, which prints every candidate, sweeps without it.
+	Prune bool
 }
 
 func (s Settings) levels() Levels {
@@ -104,6 +113,8 @@ type Candidate struct {
 	Warnings []string // what check would still warn about, crossings within ForecastMonths included
 	missed   []Miss   // Misses with their figures, for Closest
 	order    int
+	rough    bool // WallMs is a ceiling (Settings.Prune): figured in full when picked
+	pol      *policy
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -192,8 +203,21 @@ func scanStateOf(b schema.Budgets, f Figures) scanState {
 	return scanBreaks
 }
 
-// scanFigs are the figures a table's scan budgets judge: fixed ms and wall ms per scan.
+// scanFigs are the figures by which a table breaks its scan budgets: fixed ms and wall
+// ms per scan, each 0 when within its budget (a pruned scan's ceiling is, and says no
+// more than that).
 type scanFigs struct{ fixed, wall float64 }
+
+func brokenFigs(b schema.Budgets, f Figures) scanFigs {
+	var out scanFigs
+	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
+		out.fixed = f.Layout.FixedMs
+	}
+	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
+		out.wall = f.WallMs
+	}
+	return out
+}
 
 // worse reports whether a breaks the budgets by more than b does on either figure.
 func (a scanFigs) worse(b scanFigs) bool {
@@ -216,6 +240,7 @@ type grownTables struct {
 type grownTableEntry struct {
 	spec  schema.Table
 	parts []layout.Partition // nil when it cannot be expanded
+	whole *oneSegment        // its column figures above every partition, shared by the views
 }
 
 // NewModel prepares m for sweeps and forecasts.
@@ -276,31 +301,121 @@ func (md *Model) expand(spec schema.Table) ([]layout.Partition, error) {
 
 // figures lays out partitions already expanded from spec.
 func (md *Model) figures(spec schema.Table, parts []layout.Partition, s int64) Figures {
+	return md.figuresWith(spec, parts, s, nil)
+}
+
+// oneSegment is what figuresWith keeps of one list of partitions (one policy, grown or
+// not, with its spec) across the capacities a sweep tries. At a capacity above a
+// partition's rows the partition is one part-empty segment of its own rows whatever the
+// capacity (k = 0 full segments, rest = its rows, in layout's columnBytes), so the same
+// estimates come out to the bit: each column keeps them (layout.Smaller), and at a
+// capacity above every partition the column figures (Widest, WallMs, Bytes) are the
+// same, schedule included, so they are kept whole. Most sweeps try five or more
+// capacities above a small table's partitions and pay for one.
+type oneSegment struct {
+	top     int64 // the most rows of any partition; -1 until measured
+	rows    int64 // spec.Rows the figures are for
+	cols    []schema.Column
+	set     bool             // rows and cols are set
+	smaller []layout.Smaller // by column
+	done    bool
+	cache   Figures // only Widest, WallMs and Bytes are set
+}
+
+func newOneSegment() *oneSegment { return &oneSegment{top: -1} }
+
+// fits reports whether capacity s is above every partition of parts.
+func (w *oneSegment) fits(spec schema.Table, parts []layout.Partition, s int64) bool {
+	if w.top < 0 {
+		w.top = 0
+		for _, p := range parts {
+			w.top = max(w.top, p.Rows)
+		}
+	}
+	return s > w.top
+}
+
+// memo is w's estimates by column when w is spec's (taken on first use), else nil.
+func (w *oneSegment) memo(spec schema.Table) []layout.Smaller {
+	if w == nil {
+		return nil
+	}
+	if !w.set {
+		w.set, w.rows, w.cols = true, spec.Rows, spec.Columns
+		w.smaller = make([]layout.Smaller, len(spec.Columns))
+	}
+	if w.rows != spec.Rows || !sameColumns(w.cols, spec.Columns) {
+		return nil
+	}
+	return w.smaller
+}
+
+// figuresWith is figures, with w's estimates and column figures of the same partitions
+// (w nil: none).
+func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
 	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
-	e := md.engineAt(s)
+	memo := w.memo(spec)
+	whole := memo != nil && w.fits(spec, parts, s)
+	if whole && w.done {
+		f.Widest, f.WallMs, f.Bytes = w.cache.Widest, w.cache.WallMs, w.cache.Bytes
+		return f
+	}
+	if k := md.widest(&f, spec, parts, s, memo); k >= 0 {
+		f.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, parts, md.engineAt(s), at(memo, k)).WallMs
+	}
+	if whole {
+		w.done, w.cache = true, Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
+	}
+	return f
+}
+
+// at is &memo[k], nil without a memo.
+func at(memo []layout.Smaller, k int) *layout.Smaller {
+	if memo == nil {
+		return nil
+	}
+	return &memo[k]
+}
+
+// sameColumns reports whether a and b are the same profiles (a grown table's are a copy).
+func sameColumns(a, b []schema.Column) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	return len(a) == 0 || &a[0] == &b[0] || slices.Equal(a, b)
+}
+
+// widest sets f's Bytes and Widest and returns the index of the widest column, -1
+// without profiles.
+func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller) int {
 	best, widest := -1.0, -1
 	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
 		// size (layout.TableBytes sums the same figure); only the widest is scheduled.
-		b := layout.ColumnBytes(c, parts, s)
+		b := layout.ColumnBytesWith(c, parts, s, at(memo, i))
 		if b > best {
 			best, widest = b, i
 		}
 		f.Bytes += b
 	}
 	if widest >= 0 {
-		c := spec.Columns[widest]
-		f.Widest, f.WallMs = c.Name, layout.ScanColumn(c, spec.Rows, parts, e).WallMs
+		f.Widest = spec.Columns[widest].Name
 	}
-	return f
+	return widest
 }
 
 // grownTable is table j grown for month months, and its partitions, expanded once.
 func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
+	spec, parts, _ := md.grownEntry(j, month)
+	return spec, parts
+}
+
+// grownEntry is grownTable with the partitions' column figures above every partition.
+func (md *Model) grownEntry(j, month int) (schema.Table, []layout.Partition, *oneSegment) {
 	t := md.M.Tables[j]
 	if month != 0 && !grows(t) {
-		return md.grownTable(j, 0) // growth leaves it as it is
+		return md.grownEntry(j, 0) // growth leaves it as it is
 	}
 	g, ok := md.grown[month]
 	if !ok {
@@ -310,11 +425,11 @@ func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
 	}
 	e := g.tables[j]
 	if e == nil {
-		e = &grownTableEntry{spec: Grow(t, month)}
+		e = &grownTableEntry{spec: Grow(t, month), whole: newOneSegment()}
 		e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
 		g.tables[j] = e
 	}
-	return e.spec, e.parts
+	return e.spec, e.parts, e.whole
 }
 
 // view is the model laid out with segments of s rows after month months of growth,
@@ -355,15 +470,15 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 		v.total.add(v.bytes[j])
 		return
 	}
-	spec, parts := md.grownTable(j, month)
+	spec, parts, w := md.grownEntry(j, month)
 	if parts == nil {
 		v.scan[j] = scanNone
 		return
 	}
-	f := md.figures(spec, parts, s)
+	f := md.judgedFigures(j, spec, parts, s, w)
 	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
 	if v.scan[j] == scanBreaks {
-		v.broken[j] = scanFigs{f.Layout.FixedMs, f.WallMs}
+		v.broken[j] = brokenFigs(md.budgets[j], f)
 	}
 	v.total.add(v.bytes[j])
 }
@@ -375,15 +490,15 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 		return v.scan[j]
 	}
 	b := md.budgets[j]
-	switch spec, parts := md.grownTable(j, month); {
+	switch spec, parts, w := md.grownEntry(j, month); {
 	case parts == nil:
 		v.scan[j] = scanNone
 	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
 		v.scan[j] = scanFits // no scan budget applies
 	default:
-		f := md.figures(spec, parts, s)
+		f := md.judgedFigures(j, spec, parts, s, w)
 		if v.scan[j] = scanStateOf(b, f); v.scan[j] == scanBreaks {
-			v.broken[j] = scanFigs{f.Layout.FixedMs, f.WallMs}
+			v.broken[j] = brokenFigs(b, f)
 		}
 	}
 	return v.scan[j]
@@ -583,6 +698,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	}
 	clean := false // some candidate fits every budget with no warning left
 	windowRead := false
+	best := -1 // the candidate ranked first so far among those that fit (Settings.Prune)
 	try := func(s int64) {
 		raise := ""
 		if s != today {
@@ -598,10 +714,20 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		} else {
 			vs = append(vs, Variants(spec, s)...)
 		}
+		if cap(sw.Candidates) == 0 {
+			// Room for every default capacity at once: a candidate is large, and
+			// growing the list copies every one made so far. A pick-only sweep most
+			// often stops at today's.
+			n := len(DefaultCapacities) + 1
+			if set.PickOnly {
+				n = 1
+			}
+			sw.Candidates = make([]Candidate, 0, len(vs)*n)
+		}
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
-				p = &policy{}
+				p = &policy{whole: newOneSegment(), laterWhole: newOneSegment()}
 				if p.parts, _ = md.expand(v.Spec); p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
 				}
@@ -625,8 +751,18 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			f := md.figures(v.Spec, p.parts, s)
-			c.Figures = f
+			// A rough scan time moves no fit, miss or warning: any layout may have one.
+			// The horizon is skipped only at another capacity than today's (BestAt
+			// ranks today's) and once today's layout is in (better weighs routine
+			// refreshes against it).
+			prune := set.Prune && s != today && sw.Today >= 0
+			var f Figures
+			if set.Prune {
+				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole)
+			} else {
+				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
+			}
+			c.Figures, c.pol = f, p
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = md.Peak(i, f, s, 0)
 			c.missed = md.missed(i, f, s, 0, c.Peak)
@@ -634,7 +770,15 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			c.Fits = len(c.Misses) == 0
 			if c.Fits {
 				c.Warnings = md.warnings(i, f, lv)
-				if md.growth {
+				// The horizon only adds warnings, and better ranks fewer warnings
+				// first: a layout already ranked below a fitting one tried before
+				// (whose warnings are final) at the warnings it has without it stays
+				// below whatever the horizon adds, so it is neither the pick (mark)
+				// nor, at another capacity than today's, the alternative (BestAt at
+				// today's). A locked layout is never picked. Its count is then only
+				// short of the horizon's one, which no reader of a pruned sweep reads.
+				beaten := prune && (c.Locked || (best >= 0 && better(&sw.Candidates[best], &c, today, sw.routineToday())))
+				if md.growth && !beaten {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
 					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
@@ -649,6 +793,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				sw.Today = len(sw.Candidates)
 			}
 			sw.Candidates = append(sw.Candidates, c)
+			if c.Fits && !c.Locked && sw.Today >= 0 && (best < 0 || better(&c, &sw.Candidates[best], today, sw.routineToday())) {
+				best = len(sw.Candidates) - 1
+			}
 		}
 	}
 	caps := md.capacities(set)
@@ -657,6 +804,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for k := range sw.Candidates {
 			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
 				md.mark(sw)
+				md.refine(sw)
 				return sw
 			}
 		}
@@ -677,7 +825,63 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 	}
 	md.mark(sw)
+	md.refine(sw)
 	return sw
+}
+
+// refine figures the pick and the closest layout of a pruned sweep in full: the hints
+// and plan quote their figures. A rough WallMs was a ceiling within every level, so the
+// full one is too: it moves no fit, miss or warning.
+func (md *Model) refine(sw *Sweep) {
+	for _, k := range []int{sw.Recommended, sw.Closest} {
+		if k < 0 || !sw.Candidates[k].rough {
+			continue
+		}
+		c := &sw.Candidates[k]
+		f := md.figuresWith(c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
+		c.Figures, c.rough = f, false
+	}
+}
+
+// judgedFigures is figures of table j for a view, which keeps only its bytes and
+// whether it fits its scan budgets (scanStateOf, which reads WallMs only against
+// scan_ms): the scan is scheduled only when its ceiling is not within scan_ms.
+func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
+	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[j].ScanMs, 1)
+	return f
+}
+
+// roughFigures is figures of table i for a pruned sweep: the scan is scheduled only when
+// its ceiling is not within the warning share of scan_ms (then no miss or warning reads
+// more of it than the schedule gives); rough reports that WallMs is the ceiling.
+func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment) (Figures, bool) {
+	return md.boundedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1))
+}
+
+// boundedFigures is figuresWith with the scan scheduled only when its list-scheduling
+// ceiling (layout.ScanCeiling) is not below share x scanMs; nil scanMs: never (WallMs
+// is then the ceiling, and rough is true).
+func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64) (f Figures, rough bool) {
+	memo := w.memo(spec)
+	if memo != nil && w.fits(spec, parts, s) && w.done {
+		return md.figuresWith(spec, parts, s, w), false // figured already
+	}
+	md.work++
+	f = Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	k := md.widest(&f, spec, parts, s, memo)
+	if k < 0 {
+		return f, false
+	}
+	c, e := spec.Columns[k], md.engineAt(s)
+	ceiling := layout.ScanCeiling(c, spec.Rows, parts, e, at(memo, k))
+	// A millionth over: the ceiling and the schedule sum the same task times in other
+	// orders, so their last bits may differ.
+	if scanMs == nil || ceiling*(1+1e-6) < share**scanMs {
+		f.WallMs = ceiling
+		return f, true
+	}
+	f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
+	return f, false
 }
 
 // whole reports whether every candidate at capacity s holds each partition in one segment.
@@ -708,6 +912,9 @@ type policy struct {
 	grown    schema.Table       // grown to the horizon, once hasLater
 	later    []layout.Partition // its partitions; nil when it cannot be expanded
 	hasLater bool
+	// whole and laterWhole are the column figures of parts and later above every
+	// partition (figuresWith).
+	whole, laterWhole *oneSegment
 }
 
 // atHorizon is the table laid out as v (policy p, figures f today) with segments of s
@@ -724,7 +931,7 @@ func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int
 	if p.later == nil {
 		return Figures{}, false
 	}
-	return md.figures(p.grown, p.later, s), true
+	return md.figuresWith(p.grown, p.later, s, p.laterWhole), true
 }
 
 // memAxis is the front's memory figure: the refresh peak, or, without column profiles,

@@ -96,6 +96,7 @@ type Table struct {
 
 	sweep   *advisor.Sweep // the advisor's sweep, computed when first asked for
 	swept   bool
+	pruned  bool     // sweep is pruned to what check reads (Sweep), not plan's (FullSweep)
 	kept    *Layouts // the sweep's layouts as reports compare them, kept by Settle
 	rec     Recommendation
 	recDone bool

@@ -44,7 +44,7 @@ func (md *Model) Plans(idx []int, set advisor.Settings, horizon int) []TablePlan
 		p.Table = t
 		var r Recommendation
 		if def {
-			p.Sweep = t.Sweep()
+			p.Sweep = t.FullSweep()
 			r, _ = t.Recommended()
 			p.Keep = t.keep
 		} else {

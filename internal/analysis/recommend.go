@@ -8,15 +8,29 @@ import (
 )
 
 // Sweep is the advisor's sweep of the table with the default capacities and the model's
-// warning levels, the same one `scangate plan` prints without flags; nil for a table
-// built outside Analyze or once the model is settled.
+// warning levels, pruned to what check reads (advisor.Settings.Prune: the same pick,
+// closest layout, alternative and front as the sweep `scangate plan` prints without
+// flags, FullSweep); nil for a table built outside Analyze or once the model is settled.
 func (t *Table) Sweep() *advisor.Sweep {
 	if t.swept || t.model == nil {
 		return t.sweep
 	}
-	t.swept = true
-	t.sweep = t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels})
+	t.swept, t.pruned = true, true
+	t.sweep = t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, Prune: true})
 	return t.sweep
+}
+
+// FullSweep is Sweep with every candidate figured in full, as plan prints them; it
+// becomes the table's sweep when none was made yet.
+func (t *Table) FullSweep() *advisor.Sweep {
+	if t.swept && !t.pruned || t.model == nil {
+		return t.sweep
+	}
+	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels})
+	if !t.swept {
+		t.sweep, t.swept = sw, true
+	}
+	return sw
 }
 
 // Recommendation is the one change the analysis proposes for a table: the sweep's pick
@@ -88,7 +102,7 @@ func (t *Table) Advise() {
 		t.Recommended()
 		return
 	}
-	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true})
+	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true, Prune: true})
 	t.recDone = true
 	t.rec, t.keep = recommendationOf(t, sw, t.model.levels)
 }

@@ -332,11 +332,45 @@ func hybridBytes(w int, uniform, mixed, rleRuns, bpRuns float64) float64 {
 // that a full scan reads. Segments are grouped by size, so 10^9 segments cost one
 // estimate for the full ones plus one per part-empty segment.
 func ColumnBytes(c schema.Column, parts []Partition, segmentRows int64) float64 {
+	return ColumnBytesWith(c, parts, segmentRows, nil)
+}
+
+// ColumnBytesWith is ColumnBytes keeping estimates in memo (nil: none).
+func ColumnBytesWith(c schema.Column, parts []Partition, segmentRows int64, memo *Smaller) float64 {
 	var rows int64
 	for _, p := range parts {
 		rows = satAdd(rows, max(p.Rows, 0))
 	}
-	b, _ := columnBytes(c, rows, parts, segmentRows, nil)
+	b, _ := columnBytes(c, rows, parts, segmentRows, memo, nil)
+	return b
+}
+
+// Smaller keeps, for one column of one list of partitions, the estimate of each
+// partition's one segment at a capacity above the partition's rows: the same segment
+// (of the partition's own rows) at every such capacity, so a sweep trying several
+// capacities estimates it once. The same column, partitions and table rows must come
+// with it every time; the zero value is ready to use.
+type Smaller struct {
+	rows  int64     // table rows the estimates are for
+	bytes []float64 // by partition; -1 not yet estimated
+}
+
+// of is the estimate of partition i's one segment of n rows, kept once made.
+func (m *Smaller) of(c schema.Column, tableRows int64, parts int, i int, n int64) float64 {
+	if m.bytes == nil {
+		m.rows, m.bytes = tableRows, make([]float64, parts)
+		for k := range m.bytes {
+			m.bytes[k] = -1
+		}
+	}
+	if m.rows != tableRows || len(m.bytes) != parts {
+		return SegmentBytes(c, tableRows, n)
+	}
+	if b := m.bytes[i]; b >= 0 {
+		return b
+	}
+	b := SegmentBytes(c, tableRows, n)
+	m.bytes[i] = b
 	return b
 }
 
@@ -344,14 +378,14 @@ func ColumnBytes(c schema.Column, parts []Partition, segmentRows int64) float64 
 // float sum deterministic). When visit is set it is called for each partition with its
 // full-segment count and bytes and its partial segment's rows and bytes, so a scan can
 // build its tasks from the same numbers.
-func columnBytes(c schema.Column, tableRows int64, parts []Partition, segmentRows int64,
+func columnBytes(c schema.Column, tableRows int64, parts []Partition, segmentRows int64, memo *Smaller,
 	visit func(full int64, fullBytes float64, partRows int64, partBytes float64)) (bytes float64, segments int64) {
 	s := max(segmentRows, 1)
 	var full int64
 	fullBytes := -1.0 // computed once, on the first full segment
 	var partial float64
 	lastRows, lastBytes := int64(-1), 0.0
-	for _, p := range parts {
+	for i, p := range parts {
 		r := max(p.Rows, 0)
 		k, rest := r/s, r%s
 		if k > 0 && fullBytes < 0 {
@@ -360,7 +394,11 @@ func columnBytes(c schema.Column, tableRows int64, parts []Partition, segmentRow
 		full = satAdd(full, k)
 		var rb float64
 		if rest > 0 {
-			if rest != lastRows {
+			switch {
+			case rest == lastRows:
+			case k == 0 && memo != nil:
+				lastRows, lastBytes = rest, memo.of(c, tableRows, len(parts), i, rest)
+			default:
 				lastRows, lastBytes = rest, SegmentBytes(c, tableRows, rest)
 			}
 			rb = lastBytes

@@ -27,7 +27,7 @@ func TableBytes(cols []schema.Column, tableRows int64, parts []Partition, segmen
 	}
 	var b float64
 	for _, c := range cols {
-		x, _ := columnBytes(c, tableRows, parts, segmentRows, nil)
+		x, _ := columnBytes(c, tableRows, parts, segmentRows, nil, nil)
 		b += x
 	}
 	return b

@@ -20,19 +20,12 @@ type Scan struct {
 // (0 → the sum of the partitions). Engine values left at zero or invalid take the
 // format defaults, a negative overhead counts as 0, so every result is finite.
 func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.Engine) Scan {
-	f := e.SegmentOverheadMs
-	if !(f >= 0) || math.IsInf(f, 0) {
-		f = 0
-	}
-	rate := e.ScanMBPerS
-	if !(rate > 0) || math.IsInf(rate, 0) {
-		rate = schema.DefaultScanMBPerS
-	}
-	theta := rate * 1000
-	cores := e.Cores
-	if cores < 1 {
-		cores = schema.DefaultCores
-	}
+	return ScanColumnWith(c, tableRows, parts, e, nil)
+}
+
+// ScanColumnWith is ScanColumn keeping estimates in memo (nil: none).
+func ScanColumnWith(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) Scan {
+	f, theta, cores := scanRates(e)
 	if tableRows <= 0 {
 		for _, p := range parts {
 			tableRows = satAdd(tableRows, max(p.Rows, 0))
@@ -51,7 +44,7 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 		}
 		groups = append(groups, TaskGroup{Count: n, Ms: ms})
 	}
-	bytes, segs := columnBytes(c, tableRows, parts, e.SegmentRows, func(full int64, fb float64, rest int64, rb float64) {
+	bytes, segs := columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
 		if full > 0 {
 			add(full, f+fb/theta)
 		}
@@ -66,4 +59,50 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 		BoundMs: bound,
 		Bytes:   bytes,
 	}
+}
+
+// ScanCeiling is an upper bound on ScanColumn's WallMs without the schedule: list
+// scheduling never ends later than sum/cores + the longest task (Graham 1969, "Bounds
+// on multiprocessing timing anomalies", SIAM J. Appl. Math. 17(2): the last task to
+// finish starts when its core frees first, before the average load). The task times
+// are ScanColumn's, from the same estimates.
+func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) float64 {
+	f, theta, cores := scanRates(e)
+	if tableRows <= 0 {
+		for _, p := range parts {
+			tableRows = satAdd(tableRows, max(p.Rows, 0))
+		}
+	}
+	var sum, longest float64
+	task := func(n int64, ms float64) {
+		if n > 0 && ms > 0 && !math.IsInf(ms, 1) {
+			sum = float64(float64(n)*ms) + sum
+			longest = max(longest, ms)
+		}
+	}
+	columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
+		task(full, f+fb/theta)
+		if rest > 0 {
+			task(1, f+rb/theta)
+		}
+	})
+	return sum/float64(cores) + longest
+}
+
+// scanRates are ScanColumn's engine figures: the fixed ms per segment, the bytes per ms
+// and the cores, with the format defaults for values left at zero or invalid.
+func scanRates(e schema.Engine) (overheadMs, theta float64, cores int) {
+	overheadMs = e.SegmentOverheadMs
+	if !(overheadMs >= 0) || math.IsInf(overheadMs, 0) {
+		overheadMs = 0
+	}
+	rate := e.ScanMBPerS
+	if !(rate > 0) || math.IsInf(rate, 0) {
+		rate = schema.DefaultScanMBPerS
+	}
+	cores = e.Cores
+	if cores < 1 {
+		cores = schema.DefaultCores
+	}
+	return overheadMs, rate * 1000, cores
 }

@@ -1,0 +1,90 @@
+package advisor
+
+import (
+	"fmt"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// A pruned sweep (Settings.Prune, what check reads) has the full sweep's pick, closest
+// layout, front, alternative at today's capacity and, layout by layout, the same fits,
+// misses, figures but the scan time, and no more warnings; the pick's figures in full.
+// Random models of a few tables, some growing, with budgets from loose to tight.
+func TestPrunedSweepKeepsThePick(t *testing.T) {
+	r := rand.New(rand.NewPCG(14, 2026))
+	types := []string{"int64", "string", "float64", "bool"}
+	grains := 0
+	for trial := range 300 {
+		var tables []schema.Table
+		for n := range 1 + r.IntN(3) {
+			spec := schema.Table{Name: fmt.Sprint("t", n), Rows: 1 + r.Int64N(1e10), RowsDeclared: true, GrowthPerYear: []float64{0, 0.15, 0.8}[r.IntN(3)]}
+			switch r.IntN(3) {
+			case 0:
+				spec.Partitions = schema.Partitions{Scheme: schema.SchemeNone}
+			case 1:
+				spec.Partitions = schema.Partitions{Scheme: schema.SchemeEven, Count: 1 + r.IntN(300)}
+			default:
+				var tiers []schema.Tier
+				for g := r.IntN(3); g < 5; g += 1 + r.IntN(3) {
+					tiers = append(tiers, schema.Tier{Grain: schema.Grains[g], Keep: 1 + r.IntN(60)})
+				}
+				spec.Partitions = schema.Partitions{Scheme: schema.SchemeTime, Tiers: tiers}
+				grains++
+			}
+			for k := range r.IntN(4) {
+				spec.Columns = append(spec.Columns, schema.Column{Name: fmt.Sprint("c", k), Type: types[r.IntN(len(types))], AvgLength: 10, Distinct: r.Int64N(1e9),
+					Order: []schema.Order{"", schema.Sorted, schema.Clustered}[r.IntN(3)]})
+			}
+			if r.IntN(3) == 0 {
+				scan := r.Float64() * 2e4
+				spec.Budgets = schema.Budgets{ScanMs: &scan}
+			}
+			tables = append(tables, spec)
+		}
+		overhead, scan := 1+r.Float64()*3000, 1+r.Float64()*3e4
+		m := &schema.Manifest{File: "f", Engine: schema.Engine{SegmentRows: 1 << uint(18+r.IntN(7)), Cores: 1 + r.IntN(32), SegmentOverheadMs: 1.5,
+			ScanMBPerS: 200, Memory: r.Int64N(1 << 40), RefreshParallelism: r.IntN(8)},
+			Budgets: schema.Budgets{ScanOverheadMs: &overhead, ScanMs: &scan}, Tables: tables}
+		lv := DefaultLevels
+		for i := range tables {
+			locked := r.IntN(4) == 0
+			full := NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked})
+			shared := NewModel(m) // a pruned sweep after another table's, caches warm
+			shared.Sweep((i+1)%len(tables), Settings{Levels: lv, Prune: true})
+			for _, pruned := range []*Sweep{NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true}), shared.Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true})} {
+				samePick(t, fmt.Sprintf("trial %d table %d", trial, i), full, pruned, m.Engine.SegmentRows)
+			}
+		}
+	}
+	if grains == 0 {
+		t.Fatal("no time-partitioned table tried")
+	}
+}
+
+func samePick(t *testing.T, name string, full, pruned *Sweep, today int64) {
+	t.Helper()
+	if full.Recommended != pruned.Recommended || full.Closest != pruned.Closest || full.Today != pruned.Today ||
+		full.Largest != pruned.Largest || len(full.Candidates) != len(pruned.Candidates) {
+		t.Fatalf("%s: pick %d/%d, closest %d/%d, largest %d/%d, %d/%d candidates", name, full.Recommended, pruned.Recommended,
+			full.Closest, pruned.Closest, full.Largest, pruned.Largest, len(full.Candidates), len(pruned.Candidates))
+	}
+	for k := range full.Candidates {
+		a, b := &full.Candidates[k], &pruned.Candidates[k]
+		if a.Change != b.Change || a.Fits != b.Fits || a.Front != b.Front || a.Layout != b.Layout || a.Peak != b.Peak ||
+			a.Bytes != b.Bytes || a.Widest != b.Widest || !slices.Equal(a.Misses, b.Misses) || len(b.Warnings) > len(a.Warnings) {
+			t.Fatalf("%s: candidate %d %q differs:\n full   %+v\n pruned %+v", name, k, a.Change, a.Figures, b.Figures)
+		}
+		if b.SegmentRows == today && !slices.Equal(a.Warnings, b.Warnings) {
+			t.Fatalf("%s: candidate %d at today's capacity warns %q, full %q", name, k, b.Warnings, a.Warnings)
+		}
+		if (k == full.Recommended || k == full.Closest) && (a.WallMs != b.WallMs || !slices.Equal(a.Warnings, b.Warnings)) {
+			t.Fatalf("%s: the pick's figures %+v, full %+v", name, b.Figures, a.Figures)
+		}
+	}
+	if x, y := full.BestAt(today, today), pruned.BestAt(today, today); (x == nil) != (y == nil) || x != nil && x.Change != y.Change {
+		t.Fatalf("%s: alternatives differ", name)
+	}
+}

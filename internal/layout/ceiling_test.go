@@ -1,0 +1,44 @@
+package layout
+
+import (
+	"math/rand/v2"
+	"testing"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// The scan ceiling is Graham's bound for list scheduling (R. L. Graham, "Bounds on
+// multiprocessing timing anomalies", SIAM J. Appl. Math. 17(2), 1969): no list
+// schedule ends after sum/cores + the longest task, and none before max(sum/cores,
+// longest). Random columns, partitions and engines hold ScanColumn's schedule between
+// the two, so a sweep that prices a layout by its ceiling never reads less than the
+// schedule gives.
+func TestScanCeilingBoundsTheSchedule(t *testing.T) {
+	r := rand.New(rand.NewPCG(1969, 17))
+	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
+	for n := range 3000 {
+		c := schema.Column{Name: "c", Type: "int64", Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
+		if r.IntN(4) == 0 {
+			c.Type, c.AvgLength = "string", float64(1+r.IntN(40))
+		}
+		if r.IntN(6) == 0 {
+			c.EncodedBytes = 1 + r.Int64N(1e10)
+		}
+		parts := make([]Partition, 1+r.IntN(60))
+		var rows int64
+		for k := range parts {
+			parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
+			rows += parts[k].Rows
+		}
+		e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+		tableRows := rows
+		if r.IntN(3) == 0 {
+			tableRows = 0
+		}
+		s := ScanColumn(c, tableRows, parts, e)
+		ceiling := ScanCeiling(c, tableRows, parts, e, nil)
+		if s.WallMs > ceiling*(1+1e-9) || s.WallMs < s.BoundMs*(1-1e-9) {
+			t.Fatalf("case %d: schedule %v ms outside [%v, %v] (bound, ceiling)", n, s.WallMs, s.BoundMs, ceiling)
+		}
+	}
+}
