@@ -8,7 +8,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 
 	"github.com/scangate/scangate/internal/adopt"
 	"github.com/scangate/scangate/internal/escape"
@@ -96,8 +95,8 @@ func writable(path string) error {
 	case !m.IsRegular():
 		return fmt.Errorf("%s: %s", name, strings.Replace(notRegular(info).Error(), "the baseline file", "the manifest file", 1))
 	}
-	if st, ok := info.Sys().(*syscall.Stat_t); ok && st.Nlink > 1 {
-		return fmt.Errorf("%s has %d hard links; rewriting it would part it from the others: copy it to a file of its own first", name, st.Nlink)
+	if n := hardLinks(info); n > 1 {
+		return fmt.Errorf("%s has %d hard links; rewriting it would part it from the others: copy it to a file of its own first", name, n)
 	}
 	if info.Mode().Perm()&0o200 == 0 {
 		return fmt.Errorf("%s is read-only; make it writable to adopt into it", name)
