@@ -23,6 +23,9 @@ type Config struct {
 	// reports that print it beside each table (the JSON report), not only for the tables
 	// a finding quotes it for.
 	Advise bool
+	// Charts: a report charts each swept table's front (analysis.Layouts), so the
+	// sweeps mark it; without it they are lean (analysis.Model.Charted).
+	Charts bool
 	// Observed is what `scangate survey` measured (check --observed); nil without it.
 	Observed *schema.Survey
 }

@@ -98,6 +98,7 @@ func Run(m *schema.Manifest, cfg Config) []Finding {
 // findings, sorted; reports show both.
 func Check(m *schema.Manifest, cfg Config) (*analysis.Model, []Finding) {
 	md := analysis.Analyze(m, cfg.Levels())
+	md.Charted = cfg.Charts
 	// Model-wide findings are about no one table; a live waiver for the rule on any
 	// table of the model accepts them (the first such waiver counts as used).
 	var model []Finding

@@ -109,7 +109,7 @@ func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, e
 	if err != nil {
 		return nil, err
 	}
-	return md.missed(i, f, s, month, md.Peak(i, f, s, month)), nil
+	return md.missed(i, f, s, month, md.missPeak(i, f, s, month)), nil
 }
 
 // NewlyBroken reports whether growth over months months breaks a budget that table i,
@@ -192,7 +192,7 @@ func (md *Model) Holds(sw *Sweep, months int) *Candidate {
 		}
 		if months > 0 {
 			f, err := md.Evaluate(c.Spec, c.SegmentRows, months)
-			if err != nil || len(md.misses(sw.Index, f, c.SegmentRows, months, md.Peak(sw.Index, f, c.SegmentRows, months))) > 0 {
+			if err != nil || len(md.missed(sw.Index, f, c.SegmentRows, months, md.missPeak(sw.Index, f, c.SegmentRows, months))) > 0 {
 				continue
 			}
 		}

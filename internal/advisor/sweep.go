@@ -78,6 +78,15 @@ type Settings struct {
 	// warnings-count ranking are the full sweep's; the pick's figures are computed in
 	// full. plan, which prints every candidate, sweeps without it.
 	Prune bool
+	// Lean, with Prune, is check's sweep when no report charts the front: the front is
+	// not marked (every Front is false) and, once a layout fits, a layout at another
+	// capacity than today's that it outranks even at the warnings its layout alone
+	// raises (a lower bound of its own) is laid out but not figured (Unfigured): it can
+	// be neither the pick, nor the closest layout (something fits), nor the alternative
+	// (which is at today's capacity). Refresh peaks are computed only where a memory
+	// budget reads them, and a miss is worded only for the pick and the closest layout.
+	// The pick, closest layout and alternative are the pruned sweep's.
+	Lean bool
 }
 
 func (s Settings) levels() Levels {
@@ -114,7 +123,11 @@ type Candidate struct {
 	missed   []Miss   // Misses with their figures, for Closest
 	order    int
 	rough    bool // WallMs is a ceiling (Settings.Prune): figured in full when picked
-	pol      *policy
+	// Unfigured: a lean sweep (Settings.Lean) laid it out only, knowing it outranked:
+	// its Layout, Routine and Full are set; its column figures, Peak, Misses, Fits and
+	// Warnings are not.
+	Unfigured bool
+	pol       *policy
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -535,6 +548,11 @@ func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
 // table's advice proposes moves every table, and must not push another one further
 // over. When either view left j out, it waits in v.lacking.
 func (md *Model) judgeOver(v, now *view, s, today int64, month, j int) {
+	if s > today && len(md.M.Tables[j].Columns) == 0 {
+		// Without profiles only fixed ms is judged, and larger segments never add one:
+		// a table without them that fits today fits, and one over is no further over.
+		return
+	}
 	if j == v.skip || j == now.skip {
 		v.lacking = append(v.lacking, j)
 		return
@@ -561,6 +579,21 @@ func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
 	return layout.RefreshPeak(v.total.swap(v.bytes[i], f.Bytes), md.parallelism, s, md.rowBytes)
 }
 
+// memoryBound reports whether a memory budget applies to the model's refresh peak:
+// only then does a miss read it (missed).
+func (md *Model) memoryBound() bool {
+	return md.profiled && (md.M.Engine.Memory > 0 || md.refresh != nil)
+}
+
+// missPeak is the refresh peak as missed reads it: Peak where a memory budget applies,
+// else 0, which it reads not at all.
+func (md *Model) missPeak(i int, f Figures, s int64, month int) float64 {
+	if !md.memoryBound() {
+		return 0
+	}
+	return md.Peak(i, f, s, month)
+}
+
 // Budgets are the budgets table i answers to: the model's with the table's own on top.
 func (md *Model) Budgets(i int) schema.Budgets {
 	return md.budgets[i]
@@ -571,8 +604,24 @@ func (md *Model) Budgets(i int) schema.Budgets {
 // segment size pushes over its scan budgets) and the words a plan prints, with the
 // figure and its limit (both 0 for another table's budgets).
 type Miss struct {
-	Key, Text    string
+	Key, Text    string // Text is set for another table's budgets; Words makes the rest
 	Value, Limit float64
+}
+
+// Words is the text of the miss, as a plan prints it: made when read, since a sweep
+// tries many layouts that miss a budget and prints the misses of few.
+func (m Miss) Words() string {
+	switch m.Key {
+	case "scan_overhead_ms":
+		return fmt.Sprintf("scan overhead %s ms > %s ms", units.Ms(m.Value), units.Ms(m.Limit))
+	case "scan_ms":
+		return fmt.Sprintf("scan time %s ms > %s ms", units.Ms(m.Value), units.Ms(m.Limit))
+	case "engine.memory":
+		return fmt.Sprintf("refresh peak %s > engine memory %s", units.Size(m.Value), units.Size(m.Limit))
+	case "refresh_memory":
+		return fmt.Sprintf("refresh peak %s > budget %s", units.Size(m.Value), units.Size(m.Limit))
+	}
+	return m.Text
 }
 
 // Excess is how far a layout is from every budget at once: the sum, over the budgets
@@ -588,28 +637,22 @@ func Excess(ms []Miss) float64 {
 	return sum
 }
 
-// misses lists, as words, the budgets table i breaks when laid out as f with segments
-// of s rows in month months and the model's refresh peaks at peak.
-func (md *Model) misses(i int, f Figures, s int64, month int, peak float64) []string {
-	return words(md.missed(i, f, s, month, peak))
-}
-
 // missed lists the budgets table i breaks. With another segment capacity than today's,
 // a table of the model that fits its scan budgets today must still fit.
 func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Miss {
 	var out []Miss
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
-		out = append(out, Miss{"scan_overhead_ms", fmt.Sprintf("scan overhead %s ms > %s ms", units.Ms(f.Layout.FixedMs), units.Ms(*b.ScanOverheadMs)), f.Layout.FixedMs, *b.ScanOverheadMs})
+		out = append(out, Miss{Key: "scan_overhead_ms", Value: f.Layout.FixedMs, Limit: *b.ScanOverheadMs})
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > *b.ScanMs {
-		out = append(out, Miss{"scan_ms", fmt.Sprintf("scan time %s ms > %s ms", units.Ms(f.WallMs), units.Ms(*b.ScanMs)), f.WallMs, *b.ScanMs})
+		out = append(out, Miss{Key: "scan_ms", Value: f.WallMs, Limit: *b.ScanMs})
 	}
 	if mem := md.M.Engine.Memory; mem > 0 && md.profiled && peak > float64(mem) {
-		out = append(out, Miss{"engine.memory", fmt.Sprintf("refresh peak %s > engine memory %s", units.Size(peak), units.Size(float64(mem))), peak, float64(mem)})
+		out = append(out, Miss{Key: "engine.memory", Value: peak, Limit: float64(mem)})
 	}
 	if md.refresh != nil && md.profiled && peak > *md.refresh {
-		out = append(out, Miss{"refresh_memory", fmt.Sprintf("refresh peak %s > budget %s", units.Size(peak), units.Size(*md.refresh)), peak, *md.refresh})
+		out = append(out, Miss{Key: "refresh_memory", Value: peak, Limit: *md.refresh})
 	}
 	if s != md.M.Engine.SegmentRows {
 		for _, o := range md.outgrown(i, s, month) {
@@ -698,6 +741,11 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	}
 	clean := false // some candidate fits every budget with no warning left
 	windowRead := false
+	lean := set.Lean && set.Prune
+	peakOf := md.Peak // the front reads every peak; a lean sweep only what a miss reads
+	if lean {
+		peakOf = md.missPeak
+	}
 	best := -1 // the candidate ranked first so far among those that fit (Settings.Prune)
 	try := func(s int64) {
 		raise := ""
@@ -751,6 +799,10 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
+			if lean && s != today && best >= 0 && md.outranked(sw, best, &c, i, v.Spec, p, lv) {
+				sw.Candidates = append(sw.Candidates, c)
+				continue
+			}
 			// A rough scan time moves no fit, miss or warning: any layout may have one.
 			// The horizon is skipped only at another capacity than today's (BestAt
 			// ranks today's) and once today's layout is in (better weighs routine
@@ -764,10 +816,12 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			}
 			c.Figures, c.pol = f, p
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
-			c.Peak = md.Peak(i, f, s, 0)
+			c.Peak = peakOf(i, f, s, 0)
 			c.missed = md.missed(i, f, s, 0, c.Peak)
-			c.Misses = words(c.missed)
-			c.Fits = len(c.Misses) == 0
+			if !lean {
+				c.Misses = words(c.missed)
+			}
+			c.Fits = len(c.missed) == 0
 			if c.Fits {
 				c.Warnings = md.warnings(i, f, lv)
 				// The horizon only adds warnings, and better ranks fewer warnings
@@ -782,8 +836,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
 					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
-						if miss := md.misses(i, g, s, horizon, md.Peak(i, g, s, horizon)); len(miss) > 0 {
-							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0]))
+						if miss := md.missed(i, g, s, horizon, peakOf(i, g, s, horizon)); len(miss) > 0 {
+							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0].Words()))
 						}
 					}
 				}
@@ -799,18 +853,23 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 	}
 	caps := md.capacities(set)
-	if set.PickOnly {
+	// Today's capacity first: its layouts rank above the others' at as few warnings, so
+	// a sweep that prunes by the best layout so far prunes most. The candidates are put
+	// back in capacity order before they are ranked (inOrder).
+	first := set.PickOnly || lean
+	if first {
 		try(today)
+	}
+	if set.PickOnly {
 		for k := range sw.Candidates {
 			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
-				md.mark(sw)
-				md.refine(sw)
+				md.settle(sw, lean)
 				return sw
 			}
 		}
 	}
 	for _, s := range caps {
-		if !set.PickOnly || s != today {
+		if !first || s != today {
 			try(s)
 		}
 	}
@@ -824,9 +883,52 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			sw.Largest = s
 		}
 	}
-	md.mark(sw)
-	md.refine(sw)
+	md.settle(sw, lean)
 	return sw
+}
+
+// settle ranks a sweep's candidates, in capacity order, and figures the pick and the
+// closest layout in full.
+func (md *Model) settle(sw *Sweep, lean bool) {
+	inOrder(sw)
+	md.mark(sw, !lean)
+	md.refine(sw)
+}
+
+// inOrder sorts the candidates by capacity, keeping the order each capacity generated
+// them in: a sweep that tried today's capacity first lists them as one that did not,
+// so ties resolve alike.
+func inOrder(sw *Sweep) {
+	if slices.IsSortedFunc(sw.Candidates, byCapacity) {
+		return
+	}
+	if sw.Today < 0 {
+		slices.SortStableFunc(sw.Candidates, byCapacity)
+		return
+	}
+	today := &sw.Candidates[sw.Today]
+	s, order := today.SegmentRows, today.order
+	slices.SortStableFunc(sw.Candidates, byCapacity)
+	sw.Today = slices.IndexFunc(sw.Candidates, func(c Candidate) bool { return c.SegmentRows == s && c.order == order })
+}
+
+func byCapacity(a, b Candidate) int { return cmp.Compare(a.SegmentRows, b.SegmentRows) }
+
+// outranked reports whether candidate c (not yet figured, at another capacity than
+// today's) ranks below the best candidate so far even at the warnings its layout alone
+// raises, a lower bound of its own; then it is laid out only (Unfigured). A locked
+// candidate is never picked.
+func (md *Model) outranked(sw *Sweep, best int, c *Candidate, i int, spec schema.Table, p *policy, lv Levels) bool {
+	c.Figures = Figures{Rows: spec.Rows, Layout: layout.Compute(p.parts, c.SegmentRows, md.M.Engine.SegmentOverheadMs)}
+	c.pol = p
+	c.Routine, c.Full = md.rebuilds(sw.Window, spec, p)
+	bound := *c
+	bound.Warnings = md.warnings(i, c.Figures, lv) // without Widest: no scan-time warning
+	if c.Locked || better(&sw.Candidates[best], &bound, md.M.Engine.SegmentRows, sw.routineToday()) {
+		c.Unfigured = true
+		return true
+	}
+	return false
 }
 
 // refine figures the pick and the closest layout of a pruned sweep in full: the hints
@@ -834,10 +936,16 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 // full one is too: it moves no fit, miss or warning.
 func (md *Model) refine(sw *Sweep) {
 	for _, k := range []int{sw.Recommended, sw.Closest} {
-		if k < 0 || !sw.Candidates[k].rough {
+		if k < 0 {
 			continue
 		}
 		c := &sw.Candidates[k]
+		if c.Misses == nil {
+			c.Misses = words(c.missed) // a lean sweep words only these
+		}
+		if !c.rough {
+			continue
+		}
 		f := md.figuresWith(c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
 		c.Figures, c.rough = f, false
 	}
@@ -898,7 +1006,7 @@ func whole(cs []Candidate, s int64) bool {
 func words(ms []Miss) []string {
 	var out []string
 	for _, m := range ms {
-		out = append(out, m.Text)
+		out = append(out, m.Words())
 	}
 	return out
 }
@@ -943,18 +1051,20 @@ func (sw *Sweep) memAxis(c *Candidate) float64 {
 	return float64(c.SegmentRows)
 }
 
-// mark sets the front over the candidates that can be chosen, the recommendation and,
-// when nothing fits, the closest candidate.
-func (md *Model) mark(sw *Sweep) {
+// mark sets the front (when front is set) over the candidates that can be chosen, the
+// recommendation and, when nothing fits, the closest candidate.
+func (md *Model) mark(sw *Sweep, front bool) {
 	var idx []int
 	var pts []Point
 	for k := range sw.Candidates {
 		c := &sw.Candidates[k]
-		if c.Locked {
+		if c.Locked || c.Unfigured {
 			continue
 		}
 		idx = append(idx, k)
-		pts = append(pts, Point{X: c.Layout.FixedMs, Y: sw.memAxis(c)})
+		if front {
+			pts = append(pts, Point{X: c.Layout.FixedMs, Y: sw.memAxis(c)})
+		}
 	}
 	for n, on := range Front(pts) {
 		sw.Candidates[idx[n]].Front = on

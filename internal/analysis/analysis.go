@@ -22,6 +22,10 @@ type Model struct {
 	// FirstGrowing is the manifest index of the first table with growth_per_year, -1
 	// without one: the model's refresh peak moves with growth and is forecast once, there.
 	FirstGrowing int
+	// Charted: a report charts each swept table's front (Layouts), so the sweeps mark
+	// it. Without it they are lean (advisor.Settings.Lean): the same pick, closest
+	// layout and alternative for a fraction of the work, and no front.
+	Charted bool
 
 	advisor *advisor.Model
 	levels  advisor.Levels

@@ -16,7 +16,7 @@ func (t *Table) Sweep() *advisor.Sweep {
 		return t.sweep
 	}
 	t.swept, t.pruned = true, true
-	t.sweep = t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, Prune: true})
+	t.sweep = t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, Prune: true, Lean: !t.model.Charted})
 	return t.sweep
 }
 

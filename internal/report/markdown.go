@@ -12,7 +12,7 @@ import (
 
 func init() {
 	register(writers{
-		traits: Traits{Name: "markdown", Kinds: CheckReport | DiffReport, NeedsTables: true},
+		traits: Traits{Name: "markdown", Kinds: CheckReport | DiffReport, NeedsTables: true, Charts: true},
 		check:  writeMarkdown,
 		diff:   writeDiffMarkdown,
 	})

@@ -64,7 +64,10 @@ type Traits struct {
 	// NeedsTables: it prints per-table figures, so check keeps every analysed table to
 	// the end for it, in brief (analysis.Row); a run that prints only findings keeps none.
 	NeedsTables bool
-	Colours     bool // colours its output on a terminal
+	// Charts: it charts the front of each flagged table's sweep (analysis.Layouts), so
+	// check's sweeps mark it (rules.Config.Charts); implies NeedsTables.
+	Charts  bool
+	Colours bool // colours its output on a terminal
 	// StepSummary: in a CI job that names a step summary file, the Markdown rendering of
 	// the same document is appended there too, and so needs the tables.
 	StepSummary bool

@@ -60,6 +60,7 @@ func CheckPaths(o CheckOptions) (Verdict, error) {
 	if err := GuardOutputs(outs, read); err != nil {
 		return Clean, err
 	}
+	cfg.Charts = NeedsCharts(outs)
 	files, findings := Check(inputs, cfg, proj.Config, o.Limits, NeedsTables(outs))
 	res := &report.Result{
 		Version:  ModuleVersion(),

@@ -87,6 +87,18 @@ func DefaultFormats(output string) []string {
 	return []string{"text"}
 }
 
+// NeedsCharts reports whether any of the reports charts each sweep's front, so check's
+// sweeps mark it (rules.Config.Charts); the job summary counts as for NeedsTables.
+func NeedsCharts(outs []Destination) bool {
+	for _, o := range outs {
+		t := o.Format.Traits()
+		if t.Charts || (t.StepSummary && os.Getenv("GITHUB_STEP_SUMMARY") != "") {
+			return true
+		}
+	}
+	return false
+}
+
 // NeedsTables reports whether any of the reports prints per-table figures, so check
 // keeps every analysed table to the end only when one does (the job summary counts
 // when the runner names its file).
