@@ -16,7 +16,7 @@ import (
 func TestPrunedSweepKeepsThePick(t *testing.T) {
 	r := rand.New(rand.NewPCG(14, 2026))
 	types := []string{"int64", "string", "float64", "bool"}
-	grains := 0
+	grains, skipped := 0, 0
 	for trial := range 300 {
 		var tables []schema.Table
 		for n := range 1 + r.IntN(3) {
@@ -57,11 +57,60 @@ func TestPrunedSweepKeepsThePick(t *testing.T) {
 			for _, pruned := range []*Sweep{NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true}), shared.Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true})} {
 				samePick(t, fmt.Sprintf("trial %d table %d", trial, i), full, pruned, m.Engine.SegmentRows)
 			}
+			warm := NewModel(m)
+			warm.Sweep((i+1)%len(tables), Settings{Levels: lv, Prune: true, Lean: true})
+			for _, lean := range []*Sweep{NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true, Lean: true}), warm.Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true, Lean: true})} {
+				leanPick(t, fmt.Sprintf("trial %d table %d (lean)", trial, i), full, lean, m.Engine.SegmentRows)
+				skipped += countUnfigured(lean)
+			}
 		}
 	}
 	if grains == 0 {
 		t.Fatal("no time-partitioned table tried")
 	}
+	if skipped == 0 {
+		t.Fatal("no lean sweep left a layout unfigured: the test shows nothing of the pruning")
+	}
+}
+
+// leanPick holds a lean sweep (Settings.Lean: check without a chart) to the full
+// sweep's pick, closest layout and alternative: the same indexes, in the same order of
+// candidates, the pick and closest figured in full with the same misses and warnings,
+// every layout at today's capacity with the same fits and warnings, and no front.
+func leanPick(t *testing.T, name string, full, lean *Sweep, today int64) {
+	t.Helper()
+	if full.Recommended != lean.Recommended || full.Closest != lean.Closest || full.Today != lean.Today ||
+		full.Largest != lean.Largest || len(full.Candidates) != len(lean.Candidates) {
+		t.Fatalf("%s: pick %d/%d, closest %d/%d, today %d/%d, largest %d/%d, %d/%d candidates", name, full.Recommended, lean.Recommended,
+			full.Closest, lean.Closest, full.Today, lean.Today, full.Largest, lean.Largest, len(full.Candidates), len(lean.Candidates))
+	}
+	for k := range full.Candidates {
+		a, b := &full.Candidates[k], &lean.Candidates[k]
+		if a.Change != b.Change || a.Layout != b.Layout || b.Front {
+			t.Fatalf("%s: candidate %d %q differs:\n full %+v\n lean %+v", name, k, a.Change, a.Figures, b.Figures)
+		}
+		if b.SegmentRows == today && (b.Unfigured || a.Fits != b.Fits || !slices.Equal(a.Warnings, b.Warnings)) {
+			t.Fatalf("%s: candidate %d at today's capacity: fits %v/%v, warns %q/%q", name, k, a.Fits, b.Fits, a.Warnings, b.Warnings)
+		}
+		if k == full.Recommended || k == full.Closest {
+			if b.Unfigured || a.Figures != b.Figures || !slices.Equal(a.Misses, b.Misses) || !slices.Equal(a.Warnings, b.Warnings) {
+				t.Fatalf("%s: the pick's figures %+v %q, full %+v %q", name, b.Figures, b.Misses, a.Figures, a.Misses)
+			}
+		}
+	}
+	if x, y := full.BestAt(today, today), lean.BestAt(today, today); (x == nil) != (y == nil) || x != nil && x.Change != y.Change {
+		t.Fatalf("%s: alternatives differ", name)
+	}
+}
+
+func countUnfigured(sw *Sweep) int {
+	n := 0
+	for k := range sw.Candidates {
+		if sw.Candidates[k].Unfigured {
+			n++
+		}
+	}
+	return n
 }
 
 func samePick(t *testing.T, name string, full, pruned *Sweep, today int64) {
