@@ -65,7 +65,7 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 		return peak, false // nothing to lay out again
 	}
 	s := md.M.Engine.SegmentRows
-	v := md.view(s, 0, -1)
+	v := md.filled(s, 0, -1)
 	var rebuilt float64
 	inFlight, declared := 0, false
 	for j, t := range md.M.Tables {

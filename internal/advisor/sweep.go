@@ -190,8 +190,9 @@ type viewKey struct {
 type view struct {
 	scan    []scanState // by table: whether it fits its scan budgets, judged when first asked for
 	broken  []scanFigs  // by table: its scan figures, kept only when it breaks them
-	bytes   []float64   // by table: the encoded size of its profiled columns, 0 when unknown
+	bytes   []float64   // by table: the encoded size of its profiled columns, 0 when unknown; once filled
 	total   exactSum    // of bytes, so a refresh peak costs the same however many tables
+	filled  bool        // bytes and total hold every table but skip (filled)
 	skip    int         // the table left out, -1 none
 	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one, by table
 	listed  bool        // over has been listed
@@ -452,19 +453,34 @@ func (md *Model) view(s int64, month, i int) *view {
 	v, ok := md.views[k]
 	if !ok {
 		n := len(md.M.Tables)
-		v = &view{scan: make([]scanState, n), broken: make([]scanFigs, n), bytes: make([]float64, n), skip: -1}
+		v = &view{scan: make([]scanState, n), broken: make([]scanFigs, n), skip: -1}
 		md.views[k] = v
 		if i >= 0 && i < n {
 			v.skip = i
 		}
-		for j := range n {
+	} else if v.skip >= 0 && v.skip != i {
+		if v.filled {
+			md.layOut(v, s, month, v.skip, i)
+		}
+		v.skip = -1
+	}
+	return v
+}
+
+// filled is view, with the encoded bytes of every table it holds, which a refresh peak
+// sums: laid out when a peak first asks, so a sweep that reads no peak (a model
+// without a memory budget, checked without a chart) judges only the scan budgets it
+// needs (scanOf).
+func (md *Model) filled(s int64, month, i int) *view {
+	v := md.view(s, month, i)
+	if !v.filled {
+		v.filled = true
+		v.bytes = make([]float64, len(md.M.Tables))
+		for j := range md.M.Tables {
 			if j != v.skip {
 				md.layOut(v, s, month, j, i)
 			}
 		}
-	} else if v.skip >= 0 && v.skip != i {
-		md.layOut(v, s, month, v.skip, i)
-		v.skip = -1
 	}
 	return v
 }
@@ -478,7 +494,7 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 	}
 	if month != 0 && !grows(md.M.Tables[j]) {
 		// Growth leaves it as it is: share today's figures (j != i, so they are there).
-		base := md.view(s, 0, i)
+		base := md.filled(s, 0, i)
 		v.scan[j], v.broken[j], v.bytes[j] = base.scan[j], base.broken[j], base.bytes[j]
 		v.total.add(v.bytes[j])
 		return
@@ -488,7 +504,7 @@ func (md *Model) layOut(v *view, s int64, month, j, i int) {
 		v.scan[j] = scanNone
 		return
 	}
-	f := md.judgedFigures(j, spec, parts, s, w)
+	f := md.judgedFigures(j, spec, parts, s, w, true)
 	v.scan[j], v.bytes[j] = scanStateOf(md.budgets[j], f), f.Bytes
 	if v.scan[j] == scanBreaks {
 		v.broken[j] = brokenFigs(md.budgets[j], f)
@@ -509,7 +525,7 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 	case b.ScanOverheadMs == nil && (b.ScanMs == nil || len(spec.Columns) == 0):
 		v.scan[j] = scanFits // no scan budget applies
 	default:
-		f := md.judgedFigures(j, spec, parts, s, w)
+		f := md.judgedFigures(j, spec, parts, s, w, false)
 		if v.scan[j] = scanStateOf(b, f); v.scan[j] == scanBreaks {
 			v.broken[j] = brokenFigs(b, f)
 		}
@@ -573,7 +589,7 @@ func (md *Model) judgeOver(v, now *view, s, today int64, month, j int) {
 // Peak is the model's refresh peak when table i is laid out as f with segments of s rows
 // and the other tables as the manifest has them, all grown for month months.
 func (md *Model) Peak(i int, f Figures, s int64, month int) float64 {
-	v := md.view(s, month, i)
+	v := md.filled(s, month, i)
 	// The other tables' bytes, summed exactly and rounded once: the same figure whichever
 	// table asks, at the cost of one table, not of the model.
 	return layout.RefreshPeak(v.total.swap(v.bytes[i], f.Bytes), md.parallelism, s, md.rowBytes)
@@ -746,6 +762,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	if lean {
 		peakOf = md.missPeak
 	}
+	// Some reader of the layouts' bytes and widest columns: a peak, the front.
+	bytes := !lean || md.memoryBound()
 	best := -1 // the candidate ranked first so far among those that fit (Settings.Prune)
 	try := func(s int64) {
 		raise := ""
@@ -810,7 +828,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			prune := set.Prune && s != today && sw.Today >= 0
 			var f Figures
 			if set.Prune {
-				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole)
+				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole, bytes)
 			} else {
 				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
 			}
@@ -835,7 +853,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				if md.growth && !beaten {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
-					if g, ok := md.atHorizon(v, p, f, s, horizon); ok {
+					if g, ok := md.atHorizon(i, v, p, f, s, horizon, bytes); ok {
 						if miss := md.missed(i, g, s, horizon, peakOf(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0].Words()))
 						}
@@ -954,28 +972,41 @@ func (md *Model) refine(sw *Sweep) {
 // judgedFigures is figures of table j for a view, which keeps only its bytes and
 // whether it fits its scan budgets (scanStateOf, which reads WallMs only against
 // scan_ms): the scan is scheduled only when its ceiling is not within scan_ms.
-func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partition, s int64, w *oneSegment) Figures {
-	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[j].ScanMs, 1)
+func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, bytes bool) Figures {
+	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[j].ScanMs, 1, bytes)
 	return f
 }
 
 // roughFigures is figures of table i for a pruned sweep: the scan is scheduled only when
 // its ceiling is not within the warning share of scan_ms (then no miss or warning reads
 // more of it than the schedule gives); rough reports that WallMs is the ceiling.
-func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment) (Figures, bool) {
-	return md.boundedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1))
+func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment, bytes bool) (Figures, bool) {
+	return md.boundedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1), bytes)
 }
 
 // boundedFigures is figuresWith with the scan scheduled only when its list-scheduling
 // ceiling (layout.ScanCeiling) is not below share x scanMs; nil scanMs: never (WallMs
-// is then the ceiling, and rough is true).
-func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64) (f Figures, rough bool) {
+// is then the ceiling, and rough is true). Without bytes (no reader of Bytes, Widest
+// or a peak), the columns are not estimated at all when even their plain ceiling
+// (layout.PlainCeiling) is below, or nothing reads the scan: Widest is then "" and
+// WallMs that ceiling or 0, which no miss or warning reads past.
+func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64, bytes bool) (f Figures, rough bool) {
 	memo := w.memo(spec)
 	if memo != nil && w.fits(spec, parts, s) && w.done {
 		return md.figuresWith(spec, parts, s, w), false // figured already
 	}
 	md.work++
 	f = Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
+	if !bytes && len(spec.Columns) > 0 {
+		if scanMs == nil {
+			return f, true
+		}
+		// A millionth over, as below.
+		if c := md.plainCeiling(spec, parts, f.Layout, s); c*(1+1e-6) < share**scanMs {
+			f.WallMs = c
+			return f, true
+		}
+	}
 	k := md.widest(&f, spec, parts, s, memo)
 	if k < 0 {
 		return f, false
@@ -990,6 +1021,21 @@ func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s i
 	}
 	f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
 	return f, false
+}
+
+// plainCeiling is the largest plain ceiling of spec's columns laid out as l in segments
+// of s rows: above the widest column's scan ceiling, whichever column that is.
+func (md *Model) plainCeiling(spec schema.Table, parts []layout.Partition, l layout.Layout, s int64) float64 {
+	var largest int64
+	for _, p := range parts {
+		largest = max(largest, p.Rows)
+	}
+	e := md.engineAt(s)
+	top := 0.0
+	for _, c := range spec.Columns {
+		top = max(top, layout.PlainCeiling(c, spec.Rows, l, min(largest, s), e))
+	}
+	return top
 }
 
 // whole reports whether every candidate at capacity s holds each partition in one segment.
@@ -1027,7 +1073,7 @@ type policy struct {
 
 // atHorizon is the table laid out as v (policy p, figures f today) with segments of s
 // rows after horizon months of growth; false when it cannot be expanded.
-func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int) (Figures, bool) {
+func (md *Model) atHorizon(i int, v Variant, p *policy, f Figures, s int64, horizon int, bytes bool) (Figures, bool) {
 	if !grows(v.Spec) {
 		return f, true // growth leaves it as it is
 	}
@@ -1038,6 +1084,11 @@ func (md *Model) atHorizon(v Variant, p *policy, f Figures, s int64, horizon int
 	}
 	if p.later == nil {
 		return Figures{}, false
+	}
+	if !bytes {
+		// Only its misses are read: a scan within scan_ms by its ceiling misses nothing.
+		g, _ := md.boundedFigures(p.grown, p.later, s, p.laterWhole, md.Budgets(i).ScanMs, 1, false)
+		return g, true
 	}
 	return md.figuresWith(p.grown, p.later, s, p.laterWhole), true
 }

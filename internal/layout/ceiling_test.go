@@ -42,3 +42,45 @@ func TestScanCeilingBoundsTheSchedule(t *testing.T) {
 		}
 	}
 }
+
+// The plain ceiling bounds the scan ceiling from the layout alone: each segment's
+// estimate is at most its values written plain (the Apache Parquet format's PLAIN
+// encoding sizes, PlainBytes) or its share of a measured size, so Graham's sum and
+// longest task are bounded term by term. Random columns of every type, partitions,
+// engines and table sizes, some above or below the partitions' sum.
+func TestPlainCeilingBoundsTheScanCeiling(t *testing.T) {
+	r := rand.New(rand.NewPCG(1969, 18))
+	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
+	types := []string{"int64", "string", "bool", "date", "float64"}
+	tight := 0
+	for n := range 3000 {
+		c := schema.Column{Name: "c", Type: types[r.IntN(len(types))], AvgLength: float64(r.IntN(40)), Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
+		if r.IntN(6) == 0 {
+			c.EncodedBytes = 1 + r.Int64N(1e10)
+		}
+		if c.Order == schema.Clustered && r.IntN(2) == 0 {
+			c.RunLength = 1 + r.Int64N(1e5)
+		}
+		parts := make([]Partition, 1+r.IntN(60))
+		var rows, largest int64
+		for k := range parts {
+			parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
+			rows += parts[k].Rows
+			largest = max(largest, parts[k].Rows)
+		}
+		e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+		tableRows := []int64{rows, 0, rows / 2, rows * 3}[r.IntN(4)]
+		ceiling := ScanCeiling(c, tableRows, parts, e, nil)
+		plain := PlainCeiling(c, tableRows, Compute(parts, e.SegmentRows, e.SegmentOverheadMs), min(largest, e.SegmentRows), e)
+		if ceiling > plain*(1+1e-9) {
+			t.Fatalf("case %d (%+v, table rows %d): scan ceiling %v ms above the plain ceiling %v", n, c, tableRows, ceiling, plain)
+		}
+		if plain < 2*ceiling {
+			tight++
+		}
+	}
+	// A bound that is always far above would prune nothing: most cases come within 2x.
+	if tight < 1500 {
+		t.Fatalf("the plain ceiling is within 2x of the scan ceiling in only %d of 3000 cases", tight)
+	}
+}

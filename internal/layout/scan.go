@@ -89,6 +89,36 @@ func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.E
 	return sum/float64(cores) + longest
 }
 
+// PlainCeiling is an upper bound on ScanCeiling that makes no estimate: it reads the
+// layout l of the table's partitions and the rows of its largest segment. No segment's
+// estimate is above its values written plain (SegmentSize keeps the smaller of the
+// dictionary and the plain values) and a measured encoded size is spread over the rows
+// in proportion, so the tasks sum to at most N x overhead + (the plain bytes)/theta, and
+// none is longer than the largest segment's. A table whose scan is certainly within a
+// budget by this bound needs no column estimate to say so.
+func PlainCeiling(c schema.Column, tableRows int64, l Layout, largest int64, e schema.Engine) float64 {
+	f, theta, cores := scanRates(e)
+	if tableRows <= 0 {
+		tableRows = l.Rows
+	}
+	// upper bounds SegmentBytes(c, tableRows, n) (DictionarySize: a segment is never
+	// larger than its table, so a measured size is at most its share n/tableRows).
+	upper := func(n int64) float64 {
+		switch {
+		case n <= 0 || tableRows <= 0:
+			return 0
+		case c.EncodedBytes > 0:
+			return float64(c.EncodedBytes) * float64(n) / float64(tableRows)
+		}
+		return PlainBytes(c, n)
+	}
+	bytes := upper(l.Rows) // one value after another: the plain bytes add up
+	if c.Type == "bool" && c.EncodedBytes <= 0 {
+		bytes = float64(l.Rows)/8 + float64(l.Segments) // each segment rounds up to a byte
+	}
+	return float64(float64(l.Segments)*f+bytes/theta)/float64(cores) + f + upper(largest)/theta
+}
+
 // scanRates are ScanColumn's engine figures: the fixed ms per segment, the bytes per ms
 // and the cores, with the format defaults for values left at zero or invalid.
 func scanRates(e schema.Engine) (overheadMs, theta float64, cores int) {
