@@ -105,10 +105,14 @@ func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, ho
 // Breaks lists the budgets table i, laid out as spec with segments of s rows, breaks
 // after month months of growth.
 func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, error) {
-	f, err := md.Evaluate(spec, s, month)
+	spec = Grow(spec, month)
+	parts, err := md.expand(spec)
 	if err != nil {
 		return nil, err
 	}
+	// Figured as far as a miss reads them: the scan is estimated only when its ceiling
+	// is not within scan_ms, the columns only when a memory budget reads their bytes.
+	f, _ := md.boundedFigures(spec, parts, s, nil, md.budgets[i].ScanMs, 1, md.memoryBound())
 	return md.missed(i, f, s, month, md.missPeak(i, f, s, month)), nil
 }
 
