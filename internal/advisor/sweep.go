@@ -881,7 +881,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	if set.PickOnly {
 		for k := range sw.Candidates {
 			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
-				md.settle(sw, lean)
+				md.settle(sw, lean, first)
 				return sw
 			}
 		}
@@ -901,36 +901,49 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			sw.Largest = s
 		}
 	}
-	md.settle(sw, lean)
+	md.settle(sw, lean, first)
 	return sw
 }
 
-// settle ranks a sweep's candidates, in capacity order, and figures the pick and the
-// closest layout in full.
-func (md *Model) settle(sw *Sweep, lean bool) {
-	inOrder(sw)
+// settle ranks a sweep's candidates, in capacity order (first: today's were tried
+// first), and figures the pick and the closest layout in full.
+func (md *Model) settle(sw *Sweep, lean, first bool) {
+	if first {
+		inOrder(sw)
+	}
 	md.mark(sw, !lean)
 	md.refine(sw)
 }
 
-// inOrder sorts the candidates by capacity, keeping the order each capacity generated
-// them in: a sweep that tried today's capacity first lists them as one that did not,
-// so ties resolve alike.
+// inOrder puts the candidates in capacity order, each capacity's in the order it
+// generated them: a sweep that tried today's capacity first lists them as one that did
+// not, so ties resolve alike. Today's come first as one block and the rest ascend, so
+// the block moves behind the smaller capacities: a rotation, not a sort.
 func inOrder(sw *Sweep) {
-	if slices.IsSortedFunc(sw.Candidates, byCapacity) {
+	cs := sw.Candidates
+	if len(cs) == 0 {
 		return
 	}
-	if sw.Today < 0 {
-		slices.SortStableFunc(sw.Candidates, byCapacity)
-		return
+	s := cs[0].SegmentRows
+	k := 0 // today's block
+	for k < len(cs) && cs[k].SegmentRows == s {
+		k++
 	}
-	today := &sw.Candidates[sw.Today]
-	s, order := today.SegmentRows, today.order
-	slices.SortStableFunc(sw.Candidates, byCapacity)
-	sw.Today = slices.IndexFunc(sw.Candidates, func(c Candidate) bool { return c.SegmentRows == s && c.order == order })
+	n := k // through the smaller capacities behind it
+	for n < len(cs) && cs[n].SegmentRows < s {
+		n++
+	}
+	if n == k {
+		return // nothing smaller: in order already
+	}
+	// B A from A B, by three reversals.
+	slices.Reverse(cs[:k])
+	slices.Reverse(cs[k:n])
+	slices.Reverse(cs[:n])
+	if sw.Today >= 0 && sw.Today < k {
+		sw.Today += n - k
+	}
 }
-
-func byCapacity(a, b Candidate) int { return cmp.Compare(a.SegmentRows, b.SegmentRows) }
 
 // outranked reports whether candidate c (not yet figured, at another capacity than
 // today's) ranks below the best candidate so far even at the warnings its layout alone
