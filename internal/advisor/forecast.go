@@ -195,7 +195,7 @@ func (md *Model) Holds(sw *Sweep, months int) *Candidate {
 			continue
 		}
 		if months > 0 {
-			f, err := md.Evaluate(c.Spec, c.SegmentRows, months)
+			f, err := md.Evaluate(*c.Spec, c.SegmentRows, months)
 			if err != nil || len(md.missed(sw.Index, f, c.SegmentRows, months, md.missPeak(sw.Index, f, c.SegmentRows, months))) > 0 {
 				continue
 			}

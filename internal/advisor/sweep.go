@@ -107,9 +107,9 @@ type Figures struct {
 
 // Candidate is one layout of the sweep: a partition policy and a segment capacity.
 type Candidate struct {
-	Change      string // what to change, as a hint says it; "" for today's layout
-	Label       string // short name of the partition policy
-	Spec        schema.Table
+	Change      string        // what to change, as a hint says it; "" for today's layout
+	Label       string        // short name of the partition policy
+	Spec        *schema.Table // the table with this policy, shared by the policy's candidates
 	SegmentRows int64
 	Engine      bool // another segment capacity than today's: an engine setting for the whole model
 	Locked      bool // Engine, but the capacity is fixed (Settings.FixedSegmentRows)
@@ -131,6 +131,14 @@ type Candidate struct {
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
+}
+
+// Detached is a copy of the candidate for a report to keep: without its spec, warnings
+// and the sweep's own state (the policy's partitions among it), which no report of a
+// row reads and which would keep the sweep alive.
+func (c Candidate) Detached() Candidate {
+	c.Spec, c.Warnings, c.missed, c.pol = nil, nil, nil, nil
+	return c
 }
 
 // Needless reports whether the layout keeps several partitions of a table whose rows fit
@@ -793,7 +801,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
-				p = &policy{whole: newOneSegment(), laterWhole: newOneSegment()}
+				p = &policy{spec: v.Spec, whole: newOneSegment(), laterWhole: newOneSegment()}
 				if p.parts, _ = md.expand(v.Spec); p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
 				}
@@ -806,7 +814,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				sw.Window = layout.WindowOf(spec, p.parts) // today's policy comes first
 				windowRead = true
 			}
-			c := Candidate{Change: v.Change, Label: p.label, Spec: v.Spec, SegmentRows: s,
+			c := Candidate{Change: v.Change, Label: p.label, Spec: &p.spec, SegmentRows: s,
 				Engine: s != today, Window: v.Window, order: order}
 			order++
 			if c.Engine {
@@ -977,7 +985,7 @@ func (md *Model) refine(sw *Sweep) {
 		if !c.rough {
 			continue
 		}
-		f := md.figuresWith(c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
+		f := md.figuresWith(*c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
 		c.Figures, c.rough = f, false
 	}
 }
@@ -1073,6 +1081,7 @@ func words(ms []Miss) []string {
 // policy is one partition policy of a sweep: it expands to the same partitions at every
 // capacity, so it is expanded once, and once grown to the horizon.
 type policy struct {
+	spec     schema.Table // the table with this policy
 	label    string
 	parts    []layout.Partition
 	rebuilt  *[2]layout.Rebuild // the routine and the full refresh, the same at every capacity (rebuilds)

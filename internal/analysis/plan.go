@@ -62,7 +62,7 @@ func (md *Model) Plans(idx []int, set advisor.Settings, horizon int) []TablePlan
 		}
 		p.Now, _ = md.advisor.Forecast(i, spec, md.Manifest.Engine.SegmentRows, today, horizon)
 		if c, _, ok := p.Sweep.Pick(); ok && !c.Today() {
-			p.TablePlan.Rec, _ = md.advisor.Forecast(i, c.Spec, c.SegmentRows, today, horizon)
+			p.TablePlan.Rec, _ = md.advisor.Forecast(i, *c.Spec, c.SegmentRows, today, horizon)
 		}
 		if spec.GrowthPerYear != 0 {
 			p.Holds = md.advisor.Holds(p.Sweep, horizon)

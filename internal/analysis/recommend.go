@@ -146,7 +146,7 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 	md := t.model.advisor
 	r.Growth = md.Grows()
 	if fits {
-		r.HoldsMonths = md.HoldsFor(t.Index, c.Spec, c.SegmentRows, r.Horizon)
+		r.HoldsMonths = md.HoldsFor(t.Index, *c.Spec, c.SegmentRows, r.Horizon)
 		r.HoldsThrough = holdsThrough(lv, r.HoldsMonths)
 	}
 	return r, ""

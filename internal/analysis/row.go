@@ -82,8 +82,8 @@ func (t *Table) Row() Row {
 
 // ReportRow is Row with what reports print, with the model's peaks p. On a settled
 // table it reads only what settling kept: the recommendation when one was computed, the
-// sweep's layouts when it was swept. The recommendation's candidate is copied without
-// its spec and warnings, which no report of a row reads.
+// sweep's layouts when it was swept. The recommendation's candidate is kept detached
+// (advisor.Candidate.Detached), so a row holds nothing of the sweep.
 func (t *Table) ReportRow(p *Peaks) Row {
 	r := t.Row()
 	rr := &RowReport{
@@ -96,8 +96,7 @@ func (t *Table) ReportRow(p *Peaks) Row {
 		rr.Widest = t.Widest.Name
 	}
 	if rec, ok := t.Recommended(); ok {
-		c := *rec.Candidate
-		c.Spec, c.Warnings = schema.Table{}, nil
+		c := rec.Candidate.Detached()
 		rec.Candidate = &c
 		rr.Recommendation = &rec
 	}
