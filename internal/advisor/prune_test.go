@@ -16,7 +16,7 @@ import (
 func TestPrunedSweepKeepsThePick(t *testing.T) {
 	r := rand.New(rand.NewPCG(14, 2026))
 	types := []string{"int64", "string", "float64", "bool"}
-	grains, skipped := 0, 0
+	grains, skipped, stopped := 0, 0, 0
 	for trial := range 300 {
 		var tables []schema.Table
 		for n := range 1 + r.IntN(3) {
@@ -33,6 +33,9 @@ func TestPrunedSweepKeepsThePick(t *testing.T) {
 				}
 				spec.Partitions = schema.Partitions{Scheme: schema.SchemeTime, Tiers: tiers}
 				grains++
+				if r.IntN(3) == 0 { // a routine refresh, which the ranking weighs first after warnings
+					spec.Routine = schema.Routine{RecentDays: 1 + r.IntN(40)}
+				}
 			}
 			for k := range r.IntN(4) {
 				spec.Columns = append(spec.Columns, schema.Column{Name: fmt.Sprint("c", k), Type: types[r.IntN(len(types))], AvgLength: 10, Distinct: r.Int64N(1e9),
@@ -60,25 +63,50 @@ func TestPrunedSweepKeepsThePick(t *testing.T) {
 			warm := NewModel(m)
 			warm.Sweep((i+1)%len(tables), Settings{Levels: lv, Prune: true, Lean: true})
 			for _, lean := range []*Sweep{NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true, Lean: true}), warm.Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true, Lean: true})} {
-				leanPick(t, fmt.Sprintf("trial %d table %d (lean)", trial, i), full, lean, m.Engine.SegmentRows)
+				if leanPick(t, fmt.Sprintf("trial %d table %d (lean)", trial, i), full, lean, m.Engine.SegmentRows) {
+					stopped++
+				}
 				skipped += countUnfigured(lean)
+			}
+			// A pick-only sweep (Advise) stops at today's capacity when it may: the same pick.
+			if only := NewModel(m).Sweep(i, Settings{Levels: lv, FixedSegmentRows: locked, Prune: true, PickOnly: true}); !samePicked(full, only) {
+				t.Fatalf("trial %d table %d: the pick-only sweep picks %v, the full sweep %v", trial, i, pickOf(only), pickOf(full))
 			}
 		}
 	}
 	if grains == 0 {
 		t.Fatal("no time-partitioned table tried")
 	}
-	if skipped == 0 {
-		t.Fatal("no lean sweep left a layout unfigured: the test shows nothing of the pruning")
+	if skipped == 0 || stopped == 0 {
+		t.Fatalf("%d lean sweeps stopped at today's capacity, %d layouts left unfigured: the test shows too little of the pruning", stopped, skipped)
 	}
 }
 
 // leanPick holds a lean sweep (Settings.Lean: check without a chart) to the full
 // sweep's pick, closest layout and alternative: the same indexes, in the same order of
 // candidates, the pick and closest figured in full with the same misses and warnings,
-// every layout at today's capacity with the same fits and warnings, and no front.
-func leanPick(t *testing.T, name string, full, lean *Sweep, today int64) {
+// every layout at today's capacity with the same fits and warnings, and no front; or,
+// when it stopped at today's capacity (stopped), the same pick and today's layouts.
+func leanPick(t *testing.T, name string, full, lean *Sweep, today int64) (stopped bool) {
 	t.Helper()
+	if len(lean.Candidates) < len(full.Candidates) {
+		// Stopped at today's capacity: the same pick, and today's layouts as the full sweep's.
+		var now []Candidate
+		for _, c := range full.Candidates {
+			if c.SegmentRows == today {
+				now = append(now, c)
+			}
+		}
+		if !samePicked(full, lean) || len(now) != len(lean.Candidates) {
+			t.Fatalf("%s: stopped early with %d candidates (%d at today's capacity), pick %v, full %v", name, len(lean.Candidates), len(now), pickOf(lean), pickOf(full))
+		}
+		for k := range now {
+			if a, b := &now[k], &lean.Candidates[k]; a.Change != b.Change || a.Fits != b.Fits || !slices.Equal(a.Warnings, b.Warnings) {
+				t.Fatalf("%s: candidate %q at today's capacity differs", name, a.Change)
+			}
+		}
+		return true
+	}
 	if full.Recommended != lean.Recommended || full.Closest != lean.Closest || full.Today != lean.Today ||
 		full.Largest != lean.Largest || len(full.Candidates) != len(lean.Candidates) {
 		t.Fatalf("%s: pick %d/%d, closest %d/%d, today %d/%d, largest %d/%d, %d/%d candidates", name, full.Recommended, lean.Recommended,
@@ -101,6 +129,7 @@ func leanPick(t *testing.T, name string, full, lean *Sweep, today int64) {
 	if x, y := full.BestAt(today, today), lean.BestAt(today, today); (x == nil) != (y == nil) || x != nil && x.Change != y.Change {
 		t.Fatalf("%s: alternatives differ", name)
 	}
+	return false
 }
 
 func countUnfigured(sw *Sweep) int {
@@ -136,4 +165,16 @@ func samePick(t *testing.T, name string, full, pruned *Sweep, today int64) {
 	if x, y := full.BestAt(today, today), pruned.BestAt(today, today); (x == nil) != (y == nil) || x != nil && x.Change != y.Change {
 		t.Fatalf("%s: alternatives differ", name)
 	}
+}
+
+// samePicked reports whether two sweeps, whose candidates may differ in number, pick the
+// same layout (or the same closest one).
+func samePicked(a, b *Sweep) bool { return pickOf(a) == pickOf(b) }
+
+func pickOf(sw *Sweep) [3]any {
+	c, fits, ok := sw.Pick()
+	if !ok {
+		return [3]any{}
+	}
+	return [3]any{c.Change, c.SegmentRows, fits}
 }

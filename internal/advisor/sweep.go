@@ -65,9 +65,10 @@ type Settings struct {
 	FixedSegmentRows bool   // the deployment cannot change the segment capacity
 	Levels           Levels // the zero value means DefaultLevels
 	// PickOnly sweeps only as far as the pick needs: when a layout at today's capacity
-	// fits every budget with no warning and no needless partitions, no layout at another
-	// capacity can rank above it (better), so the other capacities are left out. The
-	// pick is the full sweep's; the front and the list of candidates are not.
+	// fits every budget with no warning, no needless partitions and no more rows for the
+	// routine refresh than today's layout rebuilds, no layout at another capacity can
+	// rank above it (better), so the other capacities are left out. The pick is the
+	// full sweep's; the front and the list of candidates are not.
 	PickOnly bool
 	// Prune leaves out what no reader of check's sweep (the pick, the closest layout,
 	// the alternative at today's capacity, the front) reads: the scheduled scan time
@@ -85,7 +86,9 @@ type Settings struct {
 	// be neither the pick, nor the closest layout (something fits), nor the alternative
 	// (which is at today's capacity). Refresh peaks are computed only where a memory
 	// budget reads them, and a miss is worded only for the pick and the closest layout.
-	// The pick, closest layout and alternative are the pruned sweep's.
+	// Like PickOnly, it stops at today's capacity when the pick is there. The pick,
+	// closest layout and alternative are the pruned sweep's; the list of candidates is
+	// not.
 	Lean bool
 }
 
@@ -886,9 +889,12 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	if first {
 		try(today)
 	}
-	if set.PickOnly {
+	if set.PickOnly || lean {
+		// A layout at today's capacity that fits with no warning, no needless partitions
+		// and no more rows for the routine refresh than today's outranks every layout at
+		// another capacity (better): the pick is at today's, and so is the alternative.
 		for k := range sw.Candidates {
-			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() {
+			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() && c.RoutineExtra(sw.routineToday()) == 0 {
 				md.settle(sw, lean, first)
 				return sw
 			}
