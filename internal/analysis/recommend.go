@@ -96,13 +96,14 @@ func (t *Table) Recommended() (r Recommendation, ok bool) {
 // Advise computes the table's recommendation for a report that prints it beside every
 // table, sweeping only as far as the pick needs when no rule asked for the sweep
 // (advisor.Settings.PickOnly): the same recommendation at a fraction of the cost for a
-// table whose layout is fine today. The sweep is not kept, so Layouts stays nil.
+// table whose layout is fine today. The sweep is not kept, so Layouts stays nil, and
+// it is lean (advisor.Settings.Lean): nothing reads its front.
 func (t *Table) Advise() {
 	if t.recDone || t.swept || t.model == nil {
 		t.Recommended()
 		return
 	}
-	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true, Prune: true})
+	sw := t.model.advisor.Sweep(t.Index, advisor.Settings{Levels: t.model.levels, PickOnly: true, Prune: true, Lean: true})
 	t.recDone = true
 	t.rec, t.keep = recommendationOf(t, sw, t.model.levels)
 }
