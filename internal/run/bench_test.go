@@ -93,6 +93,24 @@ func BenchmarkDecodeListed100k(b *testing.B) { benchDecode(b, listed) }
 func BenchmarkCheckMonorepo(b *testing.B)  { benchCheck(b, monorepo) }
 func BenchmarkDecodeMonorepo(b *testing.B) { benchDecode(b, monorepo) }
 
+// The monorepo's loading alone (parse, schema, typed manifest), serial as the baseline
+// runs: what the loader adds to the YAML library's parse.
+func BenchmarkLoadMonorepo(b *testing.B) {
+	var size int64
+	for _, in := range monorepo {
+		size += int64(len(in.data))
+	}
+	b.SetBytes(size)
+	b.ReportAllocs()
+	for b.Loop() {
+		for _, in := range monorepo {
+			if _, err := schema.Load(in.name, in.data, schema.DefaultLimits); err != nil {
+				b.Fatalf("%s: %v", in.name, err)
+			}
+		}
+	}
+}
+
 // The dense-findings monorepo: 800 manifests of about 40 tables, half of them flagged,
 // so the hints' cost shows beside the reading's.
 func BenchmarkCheckDense(b *testing.B)  { benchCheck(b, dense) }
