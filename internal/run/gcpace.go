@@ -1,6 +1,7 @@
 package run
 
 import (
+	"math"
 	"runtime"
 	"runtime/debug"
 	"runtime/metrics"
@@ -47,14 +48,17 @@ type pacer struct {
 }
 
 // percent is the GC percent whose goal, after a collection that found live bytes
-// alive, is the floor: never below the default 100, and at most the percent whose
-// first goal (the runtime's 4 MiB minimum, scaled by it) is the floor.
+// alive, is the floor: at most the percent whose first goal (the runtime's 4 MiB
+// minimum, scaled by it) is the floor, and the default 100 from half the floor up.
 func (p *pacer) percent(live int64) int {
 	most := int(p.floor * 100 / runtimeMinimum)
-	if live <= 0 {
+	switch {
+	case live <= 0:
 		return most
+	case live >= p.floor/2:
+		return 100
 	}
-	return int(min(max((p.floor-live)*100/live, 100), int64(most)))
+	return min(int((p.floor-live)*100/live), most)
 }
 
 // sentinel is garbage from birth: its cleanup runs after the collection that finds it
@@ -83,12 +87,13 @@ func (p *pacer) retune() bool {
 	return want > 100
 }
 
-// liveHeap is the heap the last collection marked alive.
+// liveHeap is the heap the last collection marked alive; a runtime that cannot say is
+// taken as a large heap, so the default pace holds.
 func liveHeap() int64 {
 	s := []metrics.Sample{{Name: "/gc/heap/live:bytes"}}
 	metrics.Read(s)
 	if s[0].Value.Kind() != metrics.KindUint64 {
-		return 0
+		return math.MaxInt64
 	}
-	return int64(s[0].Value.Uint64())
+	return int64(min(s[0].Value.Uint64(), math.MaxInt64))
 }

@@ -1,6 +1,7 @@
 package run
 
 import (
+	"math"
 	"runtime"
 	"sync/atomic"
 	"testing"
@@ -13,12 +14,13 @@ func TestPacePercent(t *testing.T) {
 		live int64
 		want int
 	}{
-		{0, 1600},        // before the first collection: the runtime's 4 MiB goal scaled to the floor
-		{1 << 20, 1600},  // capped at that same percent
-		{8 << 20, 700},   // 8 MiB alive: the goal is the floor, 8 MiB x 8
-		{16 << 20, 300},  // 16 x 4
-		{32 << 20, 100},  // half the floor: the default pace
-		{500 << 20, 100}, // never tighter than the default
+		{0, 1600},            // before the first collection: the runtime's 4 MiB goal scaled to the floor
+		{1 << 20, 1600},      // capped at that same percent
+		{8 << 20, 700},       // 8 MiB alive: the goal is the floor, 8 MiB x 8
+		{16 << 20, 300},      // 16 x 4
+		{32 << 20, 100},      // half the floor: the default pace
+		{500 << 20, 100},     // never tighter than the default
+		{math.MaxInt64, 100}, // what a runtime that cannot read the live heap reports
 	} {
 		if got := p.percent(c.live); got != c.want {
 			t.Errorf("percent(%d MiB) = %d, want %d", c.live>>20, got, c.want)
@@ -83,4 +85,12 @@ func collectUntil(t *testing.T, got chan int) int {
 	}
 	t.Fatal("no percent set after collections for 10 s")
 	return 0
+}
+
+// The metric's name is right: a wrong one would leave the default pace on silently.
+func TestLiveHeapReadsTheRuntime(t *testing.T) {
+	runtime.GC()
+	if n := liveHeap(); n <= 0 || n == math.MaxInt64 {
+		t.Fatalf("live heap read as %d bytes", n)
+	}
 }
