@@ -38,13 +38,18 @@ func benchInputs(files map[string][]byte) []Input {
 	return out
 }
 
-func benchCheck(b *testing.B, inputs []Input) {
-	cfg, _ := PlainConfig("2026-01-01")
+// inputBytes is the inputs' size, for the benchmarks' MB/s.
+func inputBytes(inputs []Input) int64 {
 	var size int64
 	for _, in := range inputs {
 		size += int64(len(in.data))
 	}
-	b.SetBytes(size)
+	return size
+}
+
+func benchCheck(b *testing.B, inputs []Input) {
+	cfg, _ := PlainConfig("2026-01-01")
+	b.SetBytes(inputBytes(inputs))
 	b.ReportAllocs()
 	for b.Loop() {
 		files, findings := Check(slices.Clone(inputs), cfg, nil, schema.DefaultLimits, false) // as a text report runs; Check consumes its inputs' bytes
@@ -62,11 +67,7 @@ func benchCheck(b *testing.B, inputs []Input) {
 }
 
 func benchDecode(b *testing.B, inputs []Input) {
-	var size int64
-	for _, in := range inputs {
-		size += int64(len(in.data))
-	}
-	b.SetBytes(size)
+	b.SetBytes(inputBytes(inputs))
 	b.ReportAllocs()
 	for b.Loop() {
 		for _, in := range inputs {
@@ -96,11 +97,7 @@ func BenchmarkDecodeMonorepo(b *testing.B) { benchDecode(b, monorepo) }
 // The monorepo's loading alone (parse, schema, typed manifest), serial as the baseline
 // runs: what the loader adds to the YAML library's parse.
 func BenchmarkLoadMonorepo(b *testing.B) {
-	var size int64
-	for _, in := range monorepo {
-		size += int64(len(in.data))
-	}
-	b.SetBytes(size)
+	b.SetBytes(inputBytes(monorepo))
 	b.ReportAllocs()
 	for b.Loop() {
 		for _, in := range monorepo {
