@@ -325,7 +325,8 @@ func (d *decoder) budgets(ptr string, b fields) Budgets {
 }
 
 func (d *decoder) table(ptr string, raw obj) Table {
-	t := Table{Pos: d.pos(ptr), RowsPos: d.pos(ptr)}
+	at := d.pos(ptr)
+	t := Table{Pos: at, RowsPos: at}
 	t.Name, _ = raw.str("name")
 	if v, ok := raw.get("rows"); ok {
 		t.Rows = d.count(ptr+"/rows", v, false)

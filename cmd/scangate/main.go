@@ -20,6 +20,7 @@ import (
 )
 
 func main() {
+	run.PaceGC(os.Getenv) // a short run's collector pace; GOGC or GOMEMLIMIT override it
 	os.Exit(execute(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
 }
 

@@ -38,13 +38,18 @@ func benchInputs(files map[string][]byte) []Input {
 	return out
 }
 
-func benchCheck(b *testing.B, inputs []Input) {
-	cfg, _ := PlainConfig("2026-01-01")
+// inputBytes is the inputs' size, for the benchmarks' MB/s.
+func inputBytes(inputs []Input) int64 {
 	var size int64
 	for _, in := range inputs {
 		size += int64(len(in.data))
 	}
-	b.SetBytes(size)
+	return size
+}
+
+func benchCheck(b *testing.B, inputs []Input) {
+	cfg, _ := PlainConfig("2026-01-01")
+	b.SetBytes(inputBytes(inputs))
 	b.ReportAllocs()
 	for b.Loop() {
 		files, findings := Check(slices.Clone(inputs), cfg, nil, schema.DefaultLimits, false) // as a text report runs; Check consumes its inputs' bytes
@@ -62,11 +67,7 @@ func benchCheck(b *testing.B, inputs []Input) {
 }
 
 func benchDecode(b *testing.B, inputs []Input) {
-	var size int64
-	for _, in := range inputs {
-		size += int64(len(in.data))
-	}
-	b.SetBytes(size)
+	b.SetBytes(inputBytes(inputs))
 	b.ReportAllocs()
 	for b.Loop() {
 		for _, in := range inputs {
@@ -92,6 +93,20 @@ func BenchmarkDecodeListed100k(b *testing.B) { benchDecode(b, listed) }
 // (b) a monorepo of 2,000 manifests of about 40 tables, 5% of them messy.
 func BenchmarkCheckMonorepo(b *testing.B)  { benchCheck(b, monorepo) }
 func BenchmarkDecodeMonorepo(b *testing.B) { benchDecode(b, monorepo) }
+
+// The monorepo's loading alone (parse, schema, typed manifest), serial as the baseline
+// runs: what the loader adds to the YAML library's parse.
+func BenchmarkLoadMonorepo(b *testing.B) {
+	b.SetBytes(inputBytes(monorepo))
+	b.ReportAllocs()
+	for b.Loop() {
+		for _, in := range monorepo {
+			if _, err := schema.Load(in.name, in.data, schema.DefaultLimits); err != nil {
+				b.Fatalf("%s: %v", in.name, err)
+			}
+		}
+	}
+}
 
 // The dense-findings monorepo: 800 manifests of about 40 tables, half of them flagged,
 // so the hints' cost shows beside the reading's.
