@@ -5,6 +5,7 @@ import (
 	"slices"
 	"time"
 
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/internal/units"
 
 	"github.com/scangate/scangate/schema"
@@ -106,13 +107,21 @@ func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, ho
 // after month months of growth.
 func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, error) {
 	spec = Grow(spec, month)
-	parts, err := md.expand(spec)
-	if err != nil {
-		return nil, err
+	var parts []layout.Partition
+	var w *oneSegment
+	if own := md.M.Tables[i]; month == 0 && spec.Rows == own.Rows && spec.GrowthPerYear == own.GrowthPerYear && spec.Partitions.SamePolicy(own.Partitions) && sameColumns(spec.Columns, own.Columns) {
+		_, parts, w = md.grownEntry(i, 0) // the table as it is: expanded once
+	}
+	if parts == nil {
+		var err error
+		if parts, err = md.expand(spec); err != nil {
+			return nil, err
+		}
+		w = nil
 	}
 	// Figured as far as a miss reads them: the scan is estimated only when its ceiling
 	// is not within scan_ms, the columns only when a memory budget reads their bytes.
-	f, _ := md.boundedFigures(spec, parts, s, nil, md.budgets[i].ScanMs, 1, md.memoryBound())
+	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[i].ScanMs, 1, md.memoryBound())
 	return md.missed(i, f, s, month, md.missPeak(i, f, s, month)), nil
 }
 

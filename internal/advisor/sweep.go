@@ -430,6 +430,20 @@ func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition,
 	return widest
 }
 
+// Expanded hands the model table i's partitions as the manifest has them, already
+// expanded (the analysis lays every table out first): its sweep, the views of the
+// other tables' sweeps and its forecasts share them instead of expanding it again.
+func (md *Model) Expanded(i int, parts []layout.Partition) {
+	g, ok := md.grown[0]
+	if !ok {
+		g = &grownTables{tables: make([]*grownTableEntry, len(md.M.Tables))}
+		md.grown[0] = g
+	}
+	if g.tables[i] == nil {
+		g.tables[i] = &grownTableEntry{spec: md.M.Tables[i], parts: parts, whole: newOneSegment()}
+	}
+}
+
 // grownTable is table j grown for month months, and its partitions, expanded once.
 func (md *Model) grownTable(j, month int) (schema.Table, []layout.Partition) {
 	spec, parts, _ := md.grownEntry(j, month)
@@ -805,7 +819,13 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			p, ok := policies[v.Change]
 			if !ok {
 				p = &policy{spec: v.Spec, whole: newOneSegment(), laterWhole: newOneSegment()}
-				if p.parts, _ = md.expand(v.Spec); p.parts != nil {
+				if v.Change == "" {
+					// Today's policy: the partitions and estimates the views share.
+					_, p.parts, p.whole = md.grownEntry(i, 0)
+				} else {
+					p.parts, _ = md.expand(v.Spec)
+				}
+				if p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
 				}
 				policies[v.Change] = p

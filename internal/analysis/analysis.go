@@ -121,6 +121,7 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		if err != nil {
 			continue
 		}
+		md.advisor.Expanded(i, parts) // one expansion, shared with the sweeps
 		t := &Table{
 			File:    m.File,
 			Spec:    spec,
