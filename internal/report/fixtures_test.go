@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"slices"
 	"testing"
 	"time"
 
@@ -57,9 +58,30 @@ func loadFixture(t *testing.T, name, src string) *schema.Manifest {
 func analysedResult(t *testing.T, name, uri, src string, failOn rules.Severity) *Result {
 	t.Helper()
 	m := loadFixture(t, name, src)
-	md, fs := rules.Check(m, rules.Config{Today: fixtureToday})
+	// Charted, as a run with a Markdown report checks: the sweeps mark their fronts.
+	md, fs := rules.Check(m, rules.Config{Today: fixtureToday, Charts: true})
 	files := []File{{Name: name, URI: uri, Model: m.Model, Analysed: len(md.Tables), Tables: analysis.ReportRows(md.Tables)}}
 	return &Result{Version: "v0.0.0-test", FailOn: failOn, Files: files, Findings: fs, Summary: Summarize(files)}
+}
+
+// withoutFronts is r as a run whose sweeps were lean keeps it: no layout on a front.
+func withoutFronts(r *Result) *Result {
+	out := *r
+	out.Files = make([]File, len(r.Files))
+	for i, f := range r.Files {
+		f.Tables = slices.Clone(f.Tables)
+		for k := range f.Tables {
+			if rr := f.Tables[k].Report; rr != nil && rr.Layouts != nil {
+				brief := *rr
+				l := *rr.Layouts
+				l.Front = nil
+				brief.Layouts = &l
+				f.Tables[k].Report = &brief
+			}
+		}
+		out.Files[i] = f
+	}
+	return &out
 }
 
 // withoutTables is r as a run that prints only findings keeps it.

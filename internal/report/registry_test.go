@@ -135,6 +135,29 @@ func TestNeedsTablesExactlyWhenTablesChangeTheOutput(t *testing.T) {
 	}
 }
 
+// Charts is what lets check's sweeps be lean (no front): it must be set for exactly the
+// formats whose output changes when the fronts are dropped, and imply NeedsTables.
+func TestChartsExactlyWhenFrontsChangeTheOutput(t *testing.T) {
+	kept := analysedResult(t, "m.yaml", "conf/m.yaml", fixtureManifest, rules.Error)
+	lean := withoutFronts(kept)
+	fronts := 0
+	for _, r := range kept.Files[0].Tables {
+		if r.Report.Layouts != nil {
+			fronts += len(r.Report.Layouts.Front)
+		}
+	}
+	if fronts == 0 {
+		t.Fatal("fixture: no layout on any front; the test would show nothing")
+	}
+	for _, name := range Names(CheckReport) {
+		tr := registry[name].Traits()
+		differs := render(t, name, kept, false) != render(t, name, lean, false)
+		if differs != tr.Charts || (tr.Charts && !tr.NeedsTables) {
+			t.Errorf("%s: output changes without fronts: %v; Charts: %v, NeedsTables: %v", name, differs, tr.Charts, tr.NeedsTables)
+		}
+	}
+}
+
 // Colour escapes (SGR sequences, ECMA-48 CSI "ESC [") appear only in a format that
 // colours and only when colour is asked for; a colouring format does colour then.
 func TestColourOnlyWhenAskedAndSupported(t *testing.T) {
