@@ -100,12 +100,11 @@ func figuresOf(t *analysis.Row) *Figures {
 	return f
 }
 
-func (f *Figures) equal(g *Figures) bool {
-	if f == nil || g == nil {
-		return f == g
-	}
-	return f.Rows == g.Rows && f.Partitions == g.Partitions && f.Segments == g.Segments &&
-		f.Fill == g.Fill && f.FixedMs == g.FixedMs && sameFloat(f.ScanWallMs, g.ScanWallMs)
+// sameFigures reports whether two rows have equal figures (figuresOf), without making them.
+func sameFigures(a, b *analysis.Row) bool {
+	return a.Layout.Rows == b.Layout.Rows && a.Layout.Partitions == b.Layout.Partitions &&
+		a.Layout.Segments == b.Layout.Segments && a.Layout.Fill == b.Layout.Fill &&
+		a.Layout.FixedMs == b.Layout.FixedMs && a.Scanned == b.Scanned && (!a.Scanned || a.ScanWallMs == b.ScanWallMs)
 }
 
 func sameFloat(a, b *float64) bool {
@@ -271,7 +270,7 @@ func CompareWith(base, head Side, o Options) *Diff {
 	}
 	var rename map[string]string // base key -> head key of renamed files
 	d.Files, rename = matchFiles(base.Files, head.Files)
-	d.Models = matchTables(base.Files, head.Files, rename)
+	d.Models = matchTables(base.Files, head.Files, rename, o.Release)
 	if o.Release {
 		for _, files := range [][]File{base.Files, head.Files} {
 			for i := range files {
@@ -431,7 +430,7 @@ type name struct{ model, table string }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
 // those left, and groups them by model.
-func matchTables(base, head []File, rename map[string]string) []ModelChange {
+func matchTables(base, head []File, rename map[string]string, release bool) []ModelChange {
 	list := func(files []File, rename map[string]string) (placedSide, []placed) {
 		s := placedSide{files: files, keys: make([]string, len(files))}
 		n := 0
@@ -530,30 +529,6 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		models[name] = m
 		return m
 	}
-	for i, h := range hs {
-		hf, ht := hside.file(h), hside.row(h)
-		tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
-		if pair[i] != 0 {
-			b := bs[pair[i]-1]
-			bf, bt := bside.file(b), bside.row(b)
-			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = bf.Name, bt.Pos, figuresOf(bt), bf.Key != hf.Key
-			tc.Status = Changed
-			if tc.Before.equal(tc.After) {
-				tc.Status = Unchanged
-				tc.Before = tc.After // read only: most tables of a change hold one copy, not two
-			}
-		}
-		m := model(tc.Model)
-		m.Tables = append(m.Tables, tc)
-	}
-	for j, b := range bs {
-		if used[j] {
-			continue
-		}
-		bf, bt := bside.file(b), bside.row(b)
-		m := model(bf.Model)
-		m.Tables = append(m.Tables, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
-	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.
 	present := func(files []File) map[string]bool {
@@ -565,7 +540,63 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		return p
 	}
 	inBase, inHead := present(base), present(head)
+	// The peaks read every row, so they come before any row is released.
 	basePeaks, headPeaks := refreshPeaks(base), refreshPeaks(head)
+	// With release, a file's rows go as soon as its last table has its change: the
+	// changes then take the rows' place instead of piling up beside them. The removed
+	// tables are taken first (they go after the head's, in base order), so that a base
+	// file's rows wait only for the head tables paired with them.
+	var removed []TableChange
+	for j, b := range bs {
+		if used[j] {
+			continue
+		}
+		bf, bt := bside.file(b), bside.row(b)
+		removed = append(removed, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
+	}
+	var waiting []int32 // per base file: its paired tables whose change is not made yet
+	if release {
+		waiting = make([]int32, len(base))
+		for j, b := range bs {
+			if used[j] {
+				waiting[b.file]++
+			}
+		}
+		for i := range base {
+			if waiting[i] == 0 {
+				base[i].Tables = nil
+			}
+		}
+	}
+	for i, h := range hs {
+		hf, ht := hside.file(h), hside.row(h)
+		tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
+		if pair[i] != 0 {
+			b := bs[pair[i]-1]
+			bf, bt := bside.file(b), bside.row(b)
+			tc.BaseFile, tc.BasePos, tc.Moved = bf.Name, bt.Pos, bf.Key != hf.Key
+			if sameFigures(bt, ht) {
+				tc.Status = Unchanged
+				tc.Before = tc.After // read only: most tables of a change hold one copy, not two
+			} else {
+				tc.Status, tc.Before = Changed, figuresOf(bt)
+			}
+			if release {
+				if waiting[b.file]--; waiting[b.file] == 0 {
+					bf.Tables = nil
+				}
+			}
+		}
+		m := model(tc.Model)
+		m.Tables = append(m.Tables, tc)
+		if release && (i+1 == len(hs) || hs[i+1].file != h.file) {
+			hf.Tables = nil // a head file's tables are listed together: this was its last
+		}
+	}
+	for _, tc := range removed {
+		m := model(tc.Model)
+		m.Tables = append(m.Tables, tc)
+	}
 	out := make([]ModelChange, 0, len(models))
 	for _, name := range sortedNames(models) {
 		m := models[name]
