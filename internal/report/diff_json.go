@@ -234,7 +234,7 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 			d := round(pa - pb)
 			jm.Delta.RefreshPeakBytes = &d
 		}
-		for _, t := range m.Tables {
+		for t := range m.TableChanges() {
 			jm.Tables = append(jm.Tables, tableChangeJSON(t))
 			doc.Summary.AddedSegments += t.AddedSegments()
 			doc.Summary.AddedMs += t.AddedMs()
