@@ -100,12 +100,11 @@ func figuresOf(t *analysis.Row) *Figures {
 	return f
 }
 
-func (f *Figures) equal(g *Figures) bool {
-	if f == nil || g == nil {
-		return f == g
-	}
-	return f.Rows == g.Rows && f.Partitions == g.Partitions && f.Segments == g.Segments &&
-		f.Fill == g.Fill && f.FixedMs == g.FixedMs && sameFloat(f.ScanWallMs, g.ScanWallMs)
+// sameFigures reports whether two rows have equal figures (figuresOf), without making them.
+func sameFigures(a, b *analysis.Row) bool {
+	return a.Layout.Rows == b.Layout.Rows && a.Layout.Partitions == b.Layout.Partitions &&
+		a.Layout.Segments == b.Layout.Segments && a.Layout.Fill == b.Layout.Fill &&
+		a.Layout.FixedMs == b.Layout.FixedMs && a.Scanned == b.Scanned && (!a.Scanned || a.ScanWallMs == b.ScanWallMs)
 }
 
 func sameFloat(a, b *float64) bool {
@@ -159,13 +158,76 @@ type Totals struct {
 	RefreshBytes *float64
 }
 
-// ModelChange is one model: its tables, and its totals before and after (nil on the
-// side without the model).
+// ModelChange is one model: its tables (TableChanges), and its totals before and after
+// (nil on the side without the model).
 type ModelChange struct {
 	Name          string
 	Status        Status
-	Tables        []TableChange // head order, then the removed tables in base order
 	Before, After *Totals
+	// The tables in head order, then the removed tables in base order. Most tables of a
+	// change over a repository are unchanged in place; those are kept in brief, a third
+	// of a TableChange, and the rest in full. brief is nil when every table is in full,
+	// else it lists every table, a full one as an entry without figures.
+	full  []TableChange
+	brief []briefTable
+	files *sideFiles // what brief's file indexes point into
+}
+
+// briefTable is a table unchanged in place: the same file, position and figures on
+// both sides. fig is nil for an entry that stands for the model's next table in full.
+type briefTable struct {
+	name       string
+	pos        schema.Pos
+	fig        *Figures
+	base, head int32 // its file on each side, an index into files
+}
+
+// sideFiles are both sides' files, as Compare was given them.
+type sideFiles struct{ base, head []File }
+
+// NewModelChange is a model with the given tables, for a change put together by hand.
+func NewModelChange(name string, status Status, tables []TableChange, before, after *Totals) ModelChange {
+	return ModelChange{Name: name, Status: status, full: tables, Before: before, After: after}
+}
+
+// TableChanges yields the model's tables in order: the head's, then the removed ones.
+func (m *ModelChange) TableChanges() iter.Seq[TableChange] {
+	return func(yield func(TableChange) bool) {
+		if m.brief == nil {
+			for _, t := range m.full {
+				if !yield(t) {
+					return
+				}
+			}
+			return
+		}
+		next := 0
+		for i := range m.brief {
+			b := &m.brief[i]
+			var t TableChange
+			if b.fig == nil {
+				t = m.full[next]
+				next++
+			} else {
+				t = TableChange{
+					Model: m.Name, Name: b.name, Status: Unchanged,
+					BaseFile: m.files.base[b.base].Name, HeadFile: m.files.head[b.head].Name,
+					Before: b.fig, After: b.fig, BasePos: b.pos, HeadPos: b.pos,
+				}
+			}
+			if !yield(t) {
+				return
+			}
+		}
+	}
+}
+
+// TableCount is how many tables TableChanges yields.
+func (m *ModelChange) TableCount() int {
+	if m.brief == nil {
+		return len(m.full)
+	}
+	return len(m.brief)
 }
 
 // FindingChange is one finding of the change. For a finding of the head (new,
@@ -216,8 +278,8 @@ type Diff struct {
 func (d *Diff) Tables() iter.Seq2[int, TableChange] {
 	return func(yield func(int, TableChange) bool) {
 		i := 0
-		for _, m := range d.Models {
-			for _, t := range m.Tables {
+		for k := range d.Models {
+			for t := range d.Models[k].TableChanges() {
 				if !yield(i, t) {
 					return
 				}
@@ -230,8 +292,8 @@ func (d *Diff) Tables() iter.Seq2[int, TableChange] {
 // TableCount is how many tables Tables yields.
 func (d *Diff) TableCount() int {
 	n := 0
-	for _, m := range d.Models {
-		n += len(m.Tables)
+	for k := range d.Models {
+		n += d.Models[k].TableCount()
 	}
 	return n
 }
@@ -271,7 +333,7 @@ func CompareWith(base, head Side, o Options) *Diff {
 	}
 	var rename map[string]string // base key -> head key of renamed files
 	d.Files, rename = matchFiles(base.Files, head.Files)
-	d.Models = matchTables(base.Files, head.Files, rename)
+	d.Models = matchTables(base.Files, head.Files, rename, o.Release)
 	if o.Release {
 		for _, files := range [][]File{base.Files, head.Files} {
 			for i := range files {
@@ -279,14 +341,18 @@ func CompareWith(base, head Side, o Options) *Diff {
 			}
 		}
 	}
-	var kept []FindingChange
+	var kept []keptPair
 	d.Introduced, d.Resolved, kept = matchFindings(base, head, rename)
 	// Judged once, then each list made its exact length: on a repository most findings
-	// are kept unchanged, and a list grown by appending holds up to twice them.
+	// are kept unchanged, and a list grown by appending holds up to twice them. The
+	// pairs are indexes until then, not findings: the sides' findings are still held.
+	paired := func(k keptPair) FindingChange {
+		return pairFinding(base.Findings[k.base], head.Findings[k.head], k.fp)
+	}
 	verdicts := make([]int8, len(kept))
 	var count [3]int // worsened, improved, unchanged
-	for i, f := range kept {
-		switch verdicts[i] = int8(judge(f, o.FigureThreshold)); verdicts[i] {
+	for i, k := range kept {
+		switch verdicts[i] = int8(judge(paired(k), o.FigureThreshold)); verdicts[i] {
 		case 1:
 			count[0]++
 		case -1:
@@ -296,7 +362,8 @@ func CompareWith(base, head Side, o Options) *Diff {
 		}
 	}
 	d.Worsened, d.Improved, d.Unchanged = sized(count[0]), sized(count[1]), sized(count[2])
-	for i, f := range kept {
+	for i, k := range kept {
+		f := paired(k)
 		switch verdicts[i] {
 		case 1:
 			d.Worsened = append(d.Worsened, f)
@@ -431,7 +498,7 @@ type name struct{ model, table string }
 
 // matchTables pairs tables by (file, model, table) first, then by (model, table) among
 // those left, and groups them by model.
-func matchTables(base, head []File, rename map[string]string) []ModelChange {
+func matchTables(base, head []File, rename map[string]string, release bool) []ModelChange {
 	list := func(files []File, rename map[string]string) (placedSide, []placed) {
 		s := placedSide{files: files, keys: make([]string, len(files))}
 		n := 0
@@ -452,7 +519,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 	}
 	bside, bs := list(base, rename)
 	hside, hs := list(head, nil)
-	pair := make([]int, len(hs)) // index into bs + 1; 0 when unmatched
+	pair := make([]int32, len(hs)) // index into bs + 1; 0 when unmatched
 	used := make([]bool, len(bs))
 	// Each head table takes the first unused base table of its (model, table) in base
 	// order, in the same file first. The same file's are looked up one file at a time
@@ -486,7 +553,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			n := hside.name(hs[i])
 			var j int
 			if inFile[n], j = take(inFile[n]); j >= 0 {
-				used[j], pair[i] = true, j+1
+				used[j], pair[i] = true, int32(j+1)
 			}
 		}
 	}
@@ -504,55 +571,65 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		n := hside.name(h)
 		var j int
 		if anywhere[n], j = take(anywhere[n]); j >= 0 {
-			used[j], pair[i] = true, j+1
+			used[j], pair[i] = true, int32(j+1)
 		}
 	}
-	// Each model's list is made its exact length at once: a change over a repository
+	// A head table is kept in brief when it is unchanged in place.
+	inBrief := func(i int) bool {
+		if pair[i] == 0 {
+			return false
+		}
+		b, h := bs[pair[i]-1], hs[i]
+		bt, ht := bside.row(b), hside.row(h)
+		return bside.file(b).Key == hside.file(h).Key && bt.Pos == ht.Pos && sameFigures(bt, ht)
+	}
+	// Each model's lists are made their exact length at once: a change over a repository
 	// lists every table, and lists grown by appending hold up to twice that.
-	sizes := map[string]int{}
-	for _, h := range hs {
-		sizes[hside.file(h).Model]++
+	type size struct{ full, all int }
+	sizes := map[string]*size{}
+	count := func(model string, brief bool) {
+		n := sizes[model]
+		if n == nil {
+			n = &size{}
+			sizes[model] = n
+		}
+		n.all++
+		if !brief {
+			n.full++
+		}
+	}
+	for i, h := range hs {
+		count(hside.file(h).Model, inBrief(i))
 	}
 	for j, b := range bs {
 		if !used[j] {
-			sizes[bside.file(b).Model]++
+			count(bside.file(b).Model, false)
 		}
 	}
+	files := &sideFiles{base, head}
 	models := map[string]*ModelChange{}
 	model := func(name string) *ModelChange {
 		if m, ok := models[name]; ok {
 			return m
 		}
-		m := &ModelChange{Name: name}
-		if n := sizes[name]; n > 0 {
-			m.Tables = make([]TableChange, 0, n)
+		m := &ModelChange{Name: name, files: files}
+		if n := sizes[name]; n != nil {
+			if n.full > 0 {
+				m.full = make([]TableChange, 0, n.full)
+			}
+			if n.full < n.all {
+				m.brief = make([]briefTable, 0, n.all)
+			}
 		}
 		models[name] = m
 		return m
 	}
-	for i, h := range hs {
-		hf, ht := hside.file(h), hside.row(h)
-		tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
-		if pair[i] != 0 {
-			b := bs[pair[i]-1]
-			bf, bt := bside.file(b), bside.row(b)
-			tc.BaseFile, tc.BasePos, tc.Before, tc.Moved = bf.Name, bt.Pos, figuresOf(bt), bf.Key != hf.Key
-			tc.Status = Changed
-			if tc.Before.equal(tc.After) {
-				tc.Status = Unchanged
-				tc.Before = tc.After // read only: most tables of a change hold one copy, not two
-			}
-		}
+	addFull := func(tc TableChange) {
 		m := model(tc.Model)
-		m.Tables = append(m.Tables, tc)
-	}
-	for j, b := range bs {
-		if used[j] {
-			continue
+		if m.brief != nil {
+			m.brief = append(m.brief, briefTable{})
 		}
-		bf, bt := bside.file(b), bside.row(b)
-		m := model(bf.Model)
-		m.Tables = append(m.Tables, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
+		m.full = append(m.full, tc)
 	}
 	// Models without tables still count: a model whose file lists no tables is rare, but
 	// a file's presence on a side is what makes the model exist there.
@@ -564,17 +641,78 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 		}
 		return p
 	}
-	inBase, inHead := present(base), present(head)
+	// The peaks read every row, so they come before any row is released.
 	basePeaks, headPeaks := refreshPeaks(base), refreshPeaks(head)
+	// With release, a file's rows go as soon as its last table has its change: the
+	// changes then take the rows' place instead of piling up beside them. The removed
+	// tables are taken first (they go after the head's, in base order), so that a base
+	// file's rows wait only for the head tables paired with them.
+	var removed []TableChange
+	for j, b := range bs {
+		if used[j] {
+			continue
+		}
+		bf, bt := bside.file(b), bside.row(b)
+		removed = append(removed, TableChange{Model: bf.Model, Name: bt.Name, BaseFile: bf.Name, BasePos: bt.Pos, Before: figuresOf(bt), Status: Removed})
+	}
+	var waiting []int32 // per base file: its paired tables whose change is not made yet
+	if release {
+		waiting = make([]int32, len(base))
+		for j, b := range bs {
+			if used[j] {
+				waiting[b.file]++
+			}
+		}
+		for i := range base {
+			if waiting[i] == 0 {
+				base[i].Tables = nil
+			}
+		}
+	}
+	for i, h := range hs {
+		hf, ht := hside.file(h), hside.row(h)
+		if pair[i] != 0 && inBrief(i) {
+			b := bs[pair[i]-1]
+			m := model(hf.Model)
+			m.brief = append(m.brief, briefTable{name: ht.Name, pos: ht.Pos, fig: figuresOf(ht), base: b.file, head: h.file})
+		} else {
+			tc := TableChange{Model: hf.Model, Name: ht.Name, HeadFile: hf.Name, HeadPos: ht.Pos, After: figuresOf(ht), Status: Added}
+			if pair[i] != 0 {
+				bf, bt := bside.file(bs[pair[i]-1]), bside.row(bs[pair[i]-1])
+				tc.BaseFile, tc.BasePos, tc.Moved = bf.Name, bt.Pos, bf.Key != hf.Key
+				if sameFigures(bt, ht) {
+					tc.Status = Unchanged
+					tc.Before = tc.After // read only: most tables of a change hold one copy, not two
+				} else {
+					tc.Status, tc.Before = Changed, figuresOf(bt)
+				}
+			}
+			addFull(tc)
+		}
+		if pair[i] != 0 && release {
+			b := bs[pair[i]-1]
+			if waiting[b.file]--; waiting[b.file] == 0 {
+				bside.file(b).Tables = nil
+			}
+		}
+		if release && (i+1 == len(hs) || hs[i+1].file != h.file) {
+			hf.Tables = nil // a head file's tables are listed together: this was its last
+		}
+	}
+	for _, tc := range removed {
+		addFull(tc)
+	}
+	// Only now: a model's lists are made when its first table comes, as rows go.
+	inBase, inHead := present(base), present(head)
 	out := make([]ModelChange, 0, len(models))
 	for _, name := range sortedNames(models) {
 		m := models[name]
 		if inBase[name] {
-			m.Before = totals(m.Tables, func(t TableChange) *Figures { return t.Before })
+			m.Before = totals(m, func(t TableChange) *Figures { return t.Before })
 			m.Before.RefreshBytes = basePeaks[name]
 		}
 		if inHead[name] {
-			m.After = totals(m.Tables, func(t TableChange) *Figures { return t.After })
+			m.After = totals(m, func(t TableChange) *Figures { return t.After })
 			m.After.RefreshBytes = headPeaks[name]
 		}
 		switch {
@@ -587,7 +725,7 @@ func matchTables(base, head []File, rename map[string]string) []ModelChange {
 			if !sameFloat(m.Before.RefreshBytes, m.After.RefreshBytes) {
 				m.Status = Changed // refresh_parallelism alone moves the peak
 			}
-			for _, t := range m.Tables {
+			for _, t := range m.full { // the tables in brief are unchanged
 				if t.Status != Unchanged {
 					m.Status = Changed
 				}
@@ -636,9 +774,9 @@ func refreshPeaks(files []File) map[string]*float64 {
 	return out
 }
 
-func totals(tables []TableChange, side func(TableChange) *Figures) *Totals {
+func totals(m *ModelChange, side func(TableChange) *Figures) *Totals {
 	t := &Totals{}
-	for _, tc := range tables {
+	for tc := range m.TableChanges() {
 		if f := side(tc); f != nil {
 			t.Tables++
 			t.Partitions += f.Partitions
@@ -658,11 +796,18 @@ func sortedNames[V any](m map[string]V) []string {
 	return keys
 }
 
+// keptPair is a finding on both sides: its index in each side's findings and its
+// fingerprint.
+type keptPair struct {
+	base, head int32
+	fp         string
+}
+
 // matchFindings sorts the findings into introduced, resolved and kept by their
 // fingerprint (rule, repository path, table, subject; never the line). A base finding
 // of a renamed file is fingerprinted with the file's new path, so a rename alone
 // introduces and resolves nothing. Equal fingerprints pair up in order.
-func matchFindings(base, head Side, rename map[string]string) (introduced, resolved, kept []FindingChange) {
+func matchFindings(base, head Side, rename map[string]string) (introduced, resolved []FindingChange, kept []keptPair) {
 	keyOf := func(files []File) map[string]string {
 		m := map[string]string{}
 		for _, f := range files {
@@ -682,12 +827,13 @@ func matchFindings(base, head Side, rename map[string]string) (introduced, resol
 		pending[baseFP[i]] = append(pending[baseFP[i]], i)
 	}
 	matched := make([]bool, len(base.Findings))
-	for _, f := range head.Findings {
+	kept = make([]keptPair, 0, min(len(base.Findings), len(head.Findings)))
+	for h, f := range head.Findings {
 		fp := rules.Fingerprint(f, headKeys[f.File])
 		if q := pending[fp]; len(q) > 0 {
 			pending[fp] = q[1:]
 			matched[q[0]] = true
-			kept = append(kept, pairFinding(base.Findings[q[0]], f, fp))
+			kept = append(kept, keptPair{int32(q[0]), int32(h), fp})
 			continue
 		}
 		introduced = append(introduced, FindingChange{Finding: f, Fingerprint: fp})

@@ -3,6 +3,7 @@ package change
 import (
 	"errors"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -124,8 +125,8 @@ func TestCompareRelease(t *testing.T) {
 	kept := Compare(base, head)
 	base, head = sides()
 	released := CompareWith(base, head, Options{FigureThreshold: DefaultFigureThreshold, Release: true})
-	if !reflect.DeepEqual(kept.Models, released.Models) || !reflect.DeepEqual(kept.Introduced, released.Introduced) {
-		t.Errorf("release changed the diff:\n%+v\n%+v", kept.Models, released.Models)
+	if a, b := modelsOf(kept), modelsOf(released); !reflect.DeepEqual(a, b) || !reflect.DeepEqual(kept.Introduced, released.Introduced) {
+		t.Errorf("release changed the diff:\n%+v\n%+v", a, b)
 	}
 	for _, f := range append(base.Files, head.Files...) {
 		if f.Tables != nil {
@@ -134,6 +135,20 @@ func TestCompareRelease(t *testing.T) {
 	}
 	if kept.Files[0].Head.Tables == nil {
 		t.Error("Compare without Release dropped the rows")
+	}
+	// stores is unchanged in place, so kept in brief: it must read as a table in full.
+	var got []TableChange
+	for _, tc := range released.Tables() {
+		got = append(got, tc)
+	}
+	if len(got) != 2 || released.TableCount() != 2 {
+		t.Fatalf("tables %+v", got)
+	}
+	st := got[1]
+	if st.Model != "sales" || st.Name != "stores" || st.Status != Unchanged || st.Moved ||
+		st.BaseFile != "base:m.yaml" || st.HeadFile != "head:m.yaml" || st.Before == nil || st.Before != st.After ||
+		st.BasePos != st.HeadPos || st.HeadPos.Line == 0 || got[0].Name != "orders" || got[0].Status != Changed {
+		t.Errorf("tables %+v", got)
 	}
 }
 
@@ -375,4 +390,21 @@ func TestCompareSplitModelPairsEachTableOnce(t *testing.T) {
 	if strings.Join(got, "; ") != want {
 		t.Errorf("tables:\n%s\nwant:\n%s", strings.Join(got, "; "), want)
 	}
+}
+
+// shownModel is a model as the reports see it: its tables as TableChanges yields them.
+type shownModel struct {
+	Name          string
+	Status        Status
+	Before, After *Totals
+	Tables        []TableChange
+}
+
+func modelsOf(d *Diff) []shownModel {
+	var out []shownModel
+	for i := range d.Models {
+		m := &d.Models[i]
+		out = append(out, shownModel{m.Name, m.Status, m.Before, m.After, slices.Collect(m.TableChanges())})
+	}
+	return out
 }

@@ -60,14 +60,13 @@ type Breach struct {
 // print, so a change that adds exactly the limit passes on every machine.
 func (g Gate) Check(d *Diff) []Breach {
 	var out []Breach
-	labels := d.labels()
+	name := d.Labeler() // called only for a breach: most tables breach nothing
 	for _, t := range d.Tables() {
-		name := labels[[2]string{t.Model, t.Name}]
 		if g.MaxAddedMs != nil {
 			if added := Round(t.AddedMs()); added > *g.MaxAddedMs {
 				out = append(out, Breach{
 					Kind: "added-ms", Model: t.Model, Table: t.Name, Value: added, Limit: *g.MaxAddedMs,
-					Message: fmt.Sprintf("%s adds %s ms per scan, more than the %s ms allowed (--max-added-ms)", name, msOver(added, *g.MaxAddedMs), Limit(*g.MaxAddedMs)),
+					Message: fmt.Sprintf("%s adds %s ms per scan, more than the %s ms allowed (--max-added-ms)", name(t), msOver(added, *g.MaxAddedMs), Limit(*g.MaxAddedMs)),
 				})
 			}
 		}
@@ -75,7 +74,7 @@ func (g Gate) Check(d *Diff) []Breach {
 			if added := t.AddedSegments(); added > *g.MaxAddedSegments {
 				out = append(out, Breach{
 					Kind: "added-segments", Model: t.Model, Table: t.Name, Value: float64(added), Limit: float64(*g.MaxAddedSegments),
-					Message: fmt.Sprintf("%s adds %s segments, more than the %s allowed (--max-added-segments)", name, units.Num(added), units.Num(*g.MaxAddedSegments)),
+					Message: fmt.Sprintf("%s adds %s segments, more than the %s allowed (--max-added-segments)", name(t), units.Num(added), units.Num(*g.MaxAddedSegments)),
 				})
 			}
 		}
@@ -84,7 +83,7 @@ func (g Gate) Check(d *Diff) []Breach {
 		return out
 	}
 	flag := fmt.Sprintf("(--fail-on-new %s)", g.FailOnNew)
-	modelOf := d.modelOf()
+	modelOf := d.modelOf(d.Introduced, d.Worsened)
 	for i := range d.Introduced {
 		f := &d.Introduced[i]
 		// A finding the manifest waives or the baseline records is accepted debt.
@@ -115,18 +114,28 @@ func on(f rules.Finding) string {
 	return " on " + f.Table
 }
 
-// modelOf returns the model of the table a head finding is about, looked up in an
-// index of the head's tables built once (a change of thousands of findings and tables).
-func (d *Diff) modelOf() func(rules.Finding) string {
-	models := map[[2]string]string{}
-	for _, t := range d.Tables() {
-		if k := [2]string{t.HeadFile, t.Name}; t.HeadFile != "" {
-			if _, seen := models[k]; !seen {
-				models[k] = t.Model
-			}
+// modelOf returns the model of the table a head finding of the lists is about, looked
+// up in an index built once (a change of thousands of findings and tables) that holds
+// only the tables the lists' findings name: the first head table of each, by file.
+func (d *Diff) modelOf(lists ...[]FindingChange) func(rules.Finding) string {
+	models := map[[2]string]*string{} // nil until the table is found
+	for _, l := range lists {
+		for _, f := range l {
+			models[[2]string{f.Finding.File, f.Finding.Table}] = nil
 		}
 	}
-	return func(f rules.Finding) string { return models[[2]string{f.File, f.Table}] }
+	for _, t := range d.Tables() {
+		k := [2]string{t.HeadFile, t.Name}
+		if m, asked := models[k]; asked && m == nil && t.HeadFile != "" {
+			models[k] = &t.Model
+		}
+	}
+	return func(f rules.Finding) string {
+		if m := models[[2]string{f.File, f.Table}]; m != nil {
+			return *m
+		}
+		return ""
+	}
 }
 
 // Location is file:line:col of a finding, or the file alone for one about the whole file.
@@ -166,34 +175,32 @@ func Limit(x float64) string {
 	return fmt.Sprint(x)
 }
 
-// labels names each table for people: its name, or "name (model)" when two models of
-// the change hold a table of that name.
-func (d *Diff) labels() map[[2]string]string {
-	models := map[string]map[string]bool{}
-	for _, t := range d.Tables() {
-		if models[t.Name] == nil {
-			models[t.Name] = map[string]bool{}
-		}
-		models[t.Name][t.Model] = true
-	}
-	out := map[[2]string]string{}
-	for _, t := range d.Tables() {
-		label := t.Name
-		if len(models[t.Name]) > 1 {
-			label = fmt.Sprintf("%s (%s)", t.Name, t.Model)
-		}
-		out[[2]string{t.Model, t.Name}] = label
-	}
-	return out
-}
+// Label names a table for people: its name, or "name (model)" when two models of the
+// change hold a table of that name.
+func (d *Diff) Label(t TableChange) string { return d.Labeler()(t) }
 
-// Label names a table for people, as Verdict and the breaches do.
-func (d *Diff) Label(t TableChange) string { return d.labels()[[2]string{t.Model, t.Name}] }
-
-// Labeler is Label for many tables: the names are worked out once.
+// Labeler is Label for many tables: which names two models share is worked out once,
+// one entry per table name rather than per table, and a label is written only when asked.
 func (d *Diff) Labeler() func(TableChange) string {
-	labels := d.labels()
-	return func(t TableChange) string { return labels[[2]string{t.Model, t.Name}] }
+	type seen struct {
+		model  string // the first model with a table of the name
+		shared bool   // another model has one too
+	}
+	names := map[string]seen{}
+	for _, t := range d.Tables() {
+		switch s, ok := names[t.Name]; {
+		case !ok:
+			names[t.Name] = seen{model: t.Model}
+		case !s.shared && s.model != t.Model:
+			names[t.Name] = seen{s.model, true}
+		}
+	}
+	return func(t TableChange) string {
+		if names[t.Name].shared {
+			return fmt.Sprintf("%s (%s)", t.Name, t.Model)
+		}
+		return t.Name
+	}
 }
 
 // Verdict is one line saying what the change does to ms per scan: "adds 1,240 ms per

@@ -2,7 +2,10 @@ package change
 
 import (
 	"math"
+	"strings"
 	"testing"
+
+	"github.com/scangate/scangate/rules"
 )
 
 // NewGate keeps only the limits given, copies them, and refuses ones no change could
@@ -38,5 +41,24 @@ func TestNewGate(t *testing.T) {
 		if _, err := NewGate(&c.ms, &c.segs); err == nil || err.Error() != c.want {
 			t.Errorf("NewGate(%v, %d) error %v, want %q", c.ms, c.segs, err, c.want)
 		}
+	}
+}
+
+// A new finding's breach names the model of its table, and a table breach is labelled
+// with its model only when another model has a table of that name.
+func TestGateBreachModels(t *testing.T) {
+	base := side(t, "base", []string{"a.yaml", "b.yaml"}, manifest("sales", "1.5", ordersNone+stores), manifest("stock", "1.5", stores))
+	head := side(t, "head", []string{"a.yaml", "b.yaml"}, manifest("sales", "1.5", ordersEven20+stores), manifest("stock", "1.5", stores))
+	limit := 1.0
+	breaches := Gate{MaxAddedMs: &limit, FailOnNew: rules.Warning}.Check(Compare(base, head))
+	var kinds []string
+	for _, b := range breaches {
+		kinds = append(kinds, b.Kind+"/"+b.Model+"/"+b.Table)
+		if b.Kind == "added-ms" && !strings.HasPrefix(b.Message, "orders adds ") {
+			t.Errorf("orders is the only table of its name, labelled: %q", b.Message)
+		}
+	}
+	if got := strings.Join(kinds, " "); got != "added-ms/sales/orders new-finding/sales/orders" {
+		t.Errorf("breaches %s", got)
 	}
 }

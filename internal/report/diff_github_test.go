@@ -47,7 +47,7 @@ func hostileDiff() *DiffResult {
 	d := &change.Diff{
 		Base: "REV", Head: "working tree",
 		Files:  []change.FileChange{{Status: change.FileKept, Model: "m", Base: base, Head: head}},
-		Models: []change.ModelChange{{Name: "m", Status: change.Changed, Tables: tables, Before: &change.Totals{}, After: &change.Totals{}}},
+		Models: []change.ModelChange{change.NewModelChange("m", change.Changed, tables, &change.Totals{}, &change.Totals{})},
 		Introduced: []change.FindingChange{
 			{Finding: rules.Finding{Rule: "scan-overhead", Severity: rules.Error, File: head.Name, Pos: schema.Pos{Line: 6, Col: 5}, Table: odd,
 				Message: odd + ": 18 ms, 90% of the budget", Hints: []string{"raise segment_rows: 2M, or merge"}}},
@@ -117,8 +117,8 @@ func TestDiffGitHubInvalid(t *testing.T) {
 
 // A change that touches no figure and raises no finding annotates nothing.
 func TestDiffGitHubQuiet(t *testing.T) {
-	d := &change.Diff{Base: "a", Head: "b", Models: []change.ModelChange{{Name: "m", Status: change.Unchanged,
-		Tables: []change.TableChange{{Model: "m", Name: "t", Status: change.Unchanged}}}}}
+	d := &change.Diff{Base: "a", Head: "b", Models: []change.ModelChange{change.NewModelChange("m", change.Unchanged,
+		[]change.TableChange{{Model: "m", Name: "t", Status: change.Unchanged}}, nil, nil)}}
 	if got := render(t, "github", NewDiffResult("v0.0.0-test", d, change.Gate{}), false); got != "" {
 		t.Errorf("a quiet change annotates: %q", got)
 	}

@@ -13,19 +13,19 @@ import (
 const DiffJSONSchemaVersion = 2
 
 type jsonDiff struct {
-	SchemaVersion int                `json:"schema_version"`
-	Tool          jsonTool           `json:"tool"`
-	Base          string             `json:"base"`
-	Head          string             `json:"head"`
-	Valid         bool               `json:"valid"`
-	Failed        bool               `json:"failed"`
-	Verdict       string             `json:"verdict"`
-	Gate          jsonGate           `json:"gate"`
-	Summary       jsonDiffSummary    `json:"summary"`
-	Invalid       []jsonInvalid      `json:"invalid"`
-	Files         []jsonFileChange   `json:"files"`
-	Models        []jsonModelChange  `json:"models"`
-	Findings      jsonFindingChanges `json:"findings"`
+	SchemaVersion int                      `json:"schema_version"`
+	Tool          jsonTool                 `json:"tool"`
+	Base          string                   `json:"base"`
+	Head          string                   `json:"head"`
+	Valid         bool                     `json:"valid"`
+	Failed        bool                     `json:"failed"`
+	Verdict       string                   `json:"verdict"`
+	Gate          jsonGate                 `json:"gate"`
+	Summary       jsonDiffSummary          `json:"summary"`
+	Invalid       []jsonInvalid            `json:"invalid"`
+	Files         jsonSeq[jsonFileChange]  `json:"files"`
+	Models        jsonSeq[jsonModelChange] `json:"models"`
+	Findings      jsonFindingChanges       `json:"findings"`
 }
 
 type jsonGate struct {
@@ -80,12 +80,12 @@ type jsonFileChange struct {
 }
 
 type jsonModelChange struct {
-	Name   string            `json:"name"`
-	Status string            `json:"status"`
-	Before *jsonTotals       `json:"before"`
-	After  *jsonTotals       `json:"after"`
-	Delta  jsonTotalsDelta   `json:"delta"`
-	Tables []jsonTableChange `json:"tables"`
+	Name   string                   `json:"name"`
+	Status string                   `json:"status"`
+	Before *jsonTotals              `json:"before"`
+	After  *jsonTotals              `json:"after"`
+	Delta  jsonTotalsDelta          `json:"delta"`
+	Tables jsonSeq[jsonTableChange] `json:"tables"`
 }
 
 type jsonTotals struct {
@@ -133,11 +133,11 @@ type jsonDelta struct {
 }
 
 type jsonFindingChanges struct {
-	Introduced []jsonDiffFinding `json:"introduced"`
-	Resolved   []jsonDiffFinding `json:"resolved"`
-	Worsened   []jsonDiffFinding `json:"worsened"`
-	Improved   []jsonDiffFinding `json:"improved"`
-	Unchanged  []jsonDiffFinding `json:"unchanged"`
+	Introduced jsonSeq[jsonDiffFinding] `json:"introduced"`
+	Resolved   jsonSeq[jsonDiffFinding] `json:"resolved"`
+	Worsened   jsonSeq[jsonDiffFinding] `json:"worsened"`
+	Improved   jsonSeq[jsonDiffFinding] `json:"improved"`
+	Unchanged  jsonSeq[jsonDiffFinding] `json:"unchanged"`
 }
 
 // jsonFigure is a finding's graded figure on both sides.
@@ -163,7 +163,9 @@ type jsonDiffFinding struct {
 	Figure       *jsonFigure        `json:"figure,omitempty"`
 }
 
-// writeDiffJSON writes the versioned machine-readable diff (schema/diff.schema.json).
+// writeDiffJSON writes the versioned machine-readable diff (schema/diff.schema.json). The
+// files, models, tables and findings are streamed (jsonSeq): a change over a repository
+// lists every table, and its report would otherwise be held whole, values and bytes.
 func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 	d := r.Diff
 	tables, changed := r.counts()
@@ -184,7 +186,7 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 			Introduced: len(d.Introduced), Resolved: len(d.Resolved), Worsened: len(d.Worsened),
 			Improved: len(d.Improved), Unchanged: len(d.Unchanged),
 		},
-		Invalid: []jsonInvalid{}, Files: []jsonFileChange{}, Models: []jsonModelChange{},
+		Invalid: []jsonInvalid{},
 		Findings: jsonFindingChanges{
 			Introduced: findingsJSON(d.Introduced, breaking), Resolved: findingsJSON(d.Resolved, breaking),
 			Worsened: findingsJSON(d.Worsened, breaking), Improved: findingsJSON(d.Improved, breaking),
@@ -205,7 +207,7 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 		}
 		doc.Invalid = append(doc.Invalid, ji)
 	}
-	for _, f := range d.Files {
+	doc.Files = seqOf(d.Files, func(f change.FileChange) jsonFileChange {
 		jf := jsonFileChange{Status: string(f.Status), Model: f.Model}
 		if f.Base != nil {
 			jf.BasePath, jf.URI = &f.Base.Name, f.Base.Key
@@ -213,36 +215,53 @@ func writeDiffJSON(w io.Writer, r *DiffResult, _ bool) error {
 		if f.Head != nil {
 			jf.HeadPath, jf.URI = &f.Head.Name, f.Head.Key
 		}
-		doc.Files = append(doc.Files, jf)
-	}
-	for _, m := range d.Models {
-		jm := jsonModelChange{Name: m.Name, Status: string(m.Status), Before: totalsJSON(m.Before), After: totalsJSON(m.After), Tables: []jsonTableChange{}}
-		b, a := zeroTotals(m.Before), zeroTotals(m.After)
-		jm.Delta = jsonTotalsDelta{
-			Tables: a.Tables - b.Tables, Partitions: a.Partitions - b.Partitions,
-			Segments: a.Segments - b.Segments, FixedOverheadMs: round(a.FixedMs - b.FixedMs),
-		}
-		// A refresh delta needs the peak on every side that has the model.
-		if (m.Before == nil || m.Before.RefreshBytes != nil) && (m.After == nil || m.After.RefreshBytes != nil) && (m.Before != nil || m.After != nil) {
-			var pb, pa float64
-			if m.Before != nil {
-				pb = *m.Before.RefreshBytes
-			}
-			if m.After != nil {
-				pa = *m.After.RefreshBytes
-			}
-			d := round(pa - pb)
-			jm.Delta.RefreshPeakBytes = &d
-		}
-		for _, t := range m.Tables {
-			jm.Tables = append(jm.Tables, tableChangeJSON(t))
-			doc.Summary.AddedSegments += t.AddedSegments()
-			doc.Summary.AddedMs += t.AddedMs()
-		}
-		doc.Models = append(doc.Models, jm)
+		return jf
+	})
+	// The summary comes before the models: its sums walk the tables first, in the same
+	// order as the models list them, so they add up to the same bits.
+	for _, t := range d.Tables() {
+		doc.Summary.AddedSegments += t.AddedSegments()
+		doc.Summary.AddedMs += t.AddedMs()
 	}
 	doc.Summary.AddedMs = round(doc.Summary.AddedMs)
+	doc.Models = func(yield func(jsonModelChange) bool) {
+		for i := range d.Models {
+			if !yield(modelChangeJSON(&d.Models[i])) {
+				return
+			}
+		}
+	}
 	return encodeJSON(w, doc)
+}
+
+// modelChangeJSON is one model of the diff, its tables streamed.
+func modelChangeJSON(m *change.ModelChange) jsonModelChange {
+	jm := jsonModelChange{Name: m.Name, Status: string(m.Status), Before: totalsJSON(m.Before), After: totalsJSON(m.After)}
+	b, a := zeroTotals(m.Before), zeroTotals(m.After)
+	jm.Delta = jsonTotalsDelta{
+		Tables: a.Tables - b.Tables, Partitions: a.Partitions - b.Partitions,
+		Segments: a.Segments - b.Segments, FixedOverheadMs: round(a.FixedMs - b.FixedMs),
+	}
+	// A refresh delta needs the peak on every side that has the model.
+	if (m.Before == nil || m.Before.RefreshBytes != nil) && (m.After == nil || m.After.RefreshBytes != nil) && (m.Before != nil || m.After != nil) {
+		var pb, pa float64
+		if m.Before != nil {
+			pb = *m.Before.RefreshBytes
+		}
+		if m.After != nil {
+			pa = *m.After.RefreshBytes
+		}
+		d := round(pa - pb)
+		jm.Delta.RefreshPeakBytes = &d
+	}
+	jm.Tables = func(yield func(jsonTableChange) bool) {
+		for t := range m.TableChanges() {
+			if !yield(tableChangeJSON(t)) {
+				return
+			}
+		}
+	}
+	return jm
 }
 
 func zeroTotals(t *change.Totals) change.Totals {
@@ -321,24 +340,29 @@ func wallPair(t change.TableChange) (before, after float64, ok bool) {
 	return before, after, true
 }
 
-func findingsJSON(fs []change.FindingChange, breaking map[*change.FindingChange]bool) []jsonDiffFinding {
-	out := []jsonDiffFinding{}
-	for i := range fs {
-		fc := &fs[i]
-		f := fc.Finding
-		nums, hints := numbersJSON(f), hintsJSON(f)
-		jf := jsonDiffFinding{
-			Rule: f.Rule, Severity: f.Severity.String(), Fails: breaking[fc],
-			File: f.File, Line: f.Pos.Line, Column: f.Pos.Col, Table: f.Table,
-			Message: f.Message, Hints: hints, Fingerprint: fc.Fingerprint, Numbers: nums,
+func findingsJSON(fs []change.FindingChange, breaking map[*change.FindingChange]bool) jsonSeq[jsonDiffFinding] {
+	return func(yield func(jsonDiffFinding) bool) {
+		for i := range fs {
+			if !yield(diffFindingJSON(&fs[i], breaking)) {
+				return
+			}
 		}
-		if fc.Was != 0 {
-			jf.BaseSeverity = fc.Was.String()
-		}
-		if fc.Figure != "" {
-			jf.Figure = &jsonFigure{Name: fc.Figure, Before: round(fc.Before), After: round(fc.After)}
-		}
-		out = append(out, jf)
 	}
-	return out
+}
+
+func diffFindingJSON(fc *change.FindingChange, breaking map[*change.FindingChange]bool) jsonDiffFinding {
+	f := fc.Finding
+	nums, hints := numbersJSON(f), hintsJSON(f)
+	jf := jsonDiffFinding{
+		Rule: f.Rule, Severity: f.Severity.String(), Fails: breaking[fc],
+		File: f.File, Line: f.Pos.Line, Column: f.Pos.Col, Table: f.Table,
+		Message: f.Message, Hints: hints, Fingerprint: fc.Fingerprint, Numbers: nums,
+	}
+	if fc.Was != 0 {
+		jf.BaseSeverity = fc.Was.String()
+	}
+	if fc.Figure != "" {
+		jf.Figure = &jsonFigure{Name: fc.Figure, Before: round(fc.Before), After: round(fc.After)}
+	}
+	return jf
 }

@@ -61,7 +61,7 @@ func writeDiffMarkdown(w io.Writer, r *DiffResult, _ bool) error {
 			if m.Status == change.Unchanged {
 				continue
 			}
-			for _, t := range m.Tables {
+			for t := range m.TableChanges() {
 				if t.Status == change.Unchanged {
 					continue
 				}

@@ -226,7 +226,7 @@ func writeDiffText(w io.Writer, r *DiffResult, useColor bool) error {
 		if m.Status == change.Unchanged {
 			continue
 		}
-		for _, t := range m.Tables {
+		for t := range m.TableChanges() {
 			if t.Status == change.Unchanged {
 				continue
 			}

@@ -133,13 +133,38 @@ func BenchmarkJSONMonorepo(b *testing.B) {
 // copy (BenchmarkCheckMonorepoChanged).
 func BenchmarkDiffMonorepo(b *testing.B) {
 	cfg, _ := PlainConfig("2026-01-01")
-	sides := diffSides(monorepoData, gen.Changed(monorepoData, 0.05, 1))
+	changed := gen.Changed(monorepoData, 0.05, 1)
 	b.ReportAllocs()
 	for b.Loop() {
-		checked := CheckSides(sides, cfg, Project{}, schema.DefaultLimits)
+		// Fresh sides each time: checking them drops their bytes.
+		checked := CheckSides(diffSides(monorepoData, changed), cfg, Project{}, schema.DefaultLimits)
 		if d := change.Compare(checked[0], checked[1]); d.TableCount() == 0 {
 			b.Fatal("no tables compared")
 		}
+	}
+}
+
+// The same diff as the command runs it, the sides released once compared, and written
+// as the JSON diff (to nowhere), which lists every table and finding: text, the default,
+// beside it.
+func BenchmarkDiffReportMonorepo(b *testing.B) {
+	cfg, _ := PlainConfig("2026-01-01")
+	changed := gen.Changed(monorepoData, 0.05, 1)
+	for _, name := range []string{"text", "json"} {
+		format, _ := report.Lookup(name, report.DiffReport)
+		b.Run(name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				d := CompareSides(diffSides(monorepoData, changed), cfg, Project{}, schema.DefaultLimits, change.Options{FigureThreshold: change.DefaultFigureThreshold})
+				if d.TableCount() == 0 {
+					b.Fatal("no tables compared")
+				}
+				res := report.NewDiffResult("v0.0.0-bench", d, change.Gate{})
+				if err := Write([]Destination{{Format: format}}, res, io.Discard, false); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }
 

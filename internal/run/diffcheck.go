@@ -108,6 +108,7 @@ func CheckSides(sides [2]Side, cfg rules.Config, proj Project, limits schema.Lim
 			own[in.name] = in
 		}
 		fs, findings := sortChecked(files[s], found[s])
+		found[s] = nil // flattened into findings
 		out[s] = change.Side{Label: sides[s].label, Findings: findings}
 		for _, f := range fs {
 			in := own[f.Name]
