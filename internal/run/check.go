@@ -7,7 +7,6 @@ import (
 	"sort"
 	"sync"
 
-	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/analysis"
 	"github.com/scangate/scangate/internal/report"
 	"github.com/scangate/scangate/internal/units"
@@ -95,29 +94,12 @@ func checkInput(in Input, root, key string, cfg rules.Config, proj *schema.Proje
 		// The rows, not the analyses: a run over a repository holds every table to the end.
 		switch keep {
 		case keepAdvised:
-			f.Tables = analysis.ReportRows(md.Tables)
-			for i := range f.Tables {
-				if rec := f.Tables[i].Report.Recommendation; rec != nil && rec.Candidate != nil {
-					rec.Candidate = printed(rec.Candidate)
-				}
-			}
+			f.Tables = analysis.ReportRows(md.Tables) // each recommendation detached from its sweep
 		case keepRows:
 			f.Tables = analysis.Rows(md.Tables)
 		}
 	}
 	return f, fs
-}
-
-// printed is what the reports print of a recommended candidate, its exported figures:
-// the copy a row keeps would otherwise hold the sweep's state behind it (the policy's
-// expanded partitions and column figures) to the end of a run over every table.
-func printed(c *advisor.Candidate) *advisor.Candidate {
-	return &advisor.Candidate{
-		Change: c.Change, Label: c.Label, Spec: c.Spec, SegmentRows: c.SegmentRows,
-		Engine: c.Engine, Locked: c.Locked, Window: c.Window, Figures: c.Figures,
-		Peak: c.Peak, Front: c.Front, Fits: c.Fits, Misses: c.Misses, Warnings: c.Warnings,
-		Routine: c.Routine, Full: c.Full,
-	}
 }
 
 // refusal is the finding that says why a file was not checked.
