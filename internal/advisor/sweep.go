@@ -184,6 +184,7 @@ type Model struct {
 	views       map[viewKey]*view    // by (segment capacity, month); a cache only, never ranged over
 	grown       map[int]*grownTables // by month; a cache only, never ranged over
 	work        int                  // tables expanded or laid out so far, for the tests that hold it linear
+	expanded    [][]layout.Partition // by table: its partitions as the analysis expanded them (Expanded)
 
 	routinePeak *float64 // RoutinePeak, once computed
 }
@@ -434,14 +435,10 @@ func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition,
 // expanded (the analysis lays every table out first): its sweep, the views of the
 // other tables' sweeps and its forecasts share them instead of expanding it again.
 func (md *Model) Expanded(i int, parts []layout.Partition) {
-	g, ok := md.grown[0]
-	if !ok {
-		g = &grownTables{tables: make([]*grownTableEntry, len(md.M.Tables))}
-		md.grown[0] = g
+	if md.expanded == nil {
+		md.expanded = make([][]layout.Partition, len(md.M.Tables))
 	}
-	if g.tables[i] == nil {
-		g.tables[i] = &grownTableEntry{spec: md.M.Tables[i], parts: parts, whole: newOneSegment()}
-	}
+	md.expanded[i] = parts
 }
 
 // grownTable is table j grown for month months, and its partitions, expanded once.
@@ -465,7 +462,11 @@ func (md *Model) grownEntry(j, month int) (schema.Table, []layout.Partition, *on
 	e := g.tables[j]
 	if e == nil {
 		e = &grownTableEntry{spec: Grow(t, month), whole: newOneSegment()}
-		e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
+		if month == 0 && md.expanded != nil && md.expanded[j] != nil {
+			e.parts = md.expanded[j] // as the analysis expanded it (Expanded)
+		} else {
+			e.parts, _ = md.expand(e.spec) // nil when it cannot be expanded
+		}
 		g.tables[j] = e
 	}
 	return e.spec, e.parts, e.whole
