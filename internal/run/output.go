@@ -90,22 +90,22 @@ func DefaultFormats(output string) []string {
 // NeedsCharts reports whether any of the reports charts each sweep's front, so check's
 // sweeps mark it (rules.Config.Charts); the job summary counts as for NeedsTables.
 func NeedsCharts(outs []Destination) bool {
-	for _, o := range outs {
-		t := o.Format.Traits()
-		if t.Charts || (t.StepSummary && os.Getenv("GITHUB_STEP_SUMMARY") != "") {
-			return true
-		}
-	}
-	return false
+	return anyNeeds(outs, func(t report.Traits) bool { return t.Charts })
 }
 
 // NeedsTables reports whether any of the reports prints per-table figures, so check
 // keeps every analysed table to the end only when one does (the job summary counts
 // when the runner names its file).
 func NeedsTables(outs []Destination) bool {
+	return anyNeeds(outs, func(t report.Traits) bool { return t.NeedsTables })
+}
+
+// anyNeeds reports whether a report's traits say it needs something, the Markdown job
+// summary a step-summary format appends included when the runner names its file.
+func anyNeeds(outs []Destination, needs func(report.Traits) bool) bool {
+	summary := os.Getenv("GITHUB_STEP_SUMMARY") != ""
 	for _, o := range outs {
-		t := o.Format.Traits()
-		if t.NeedsTables || (t.StepSummary && os.Getenv("GITHUB_STEP_SUMMARY") != "") {
+		if t := o.Format.Traits(); needs(t) || (t.StepSummary && summary) {
 			return true
 		}
 	}
