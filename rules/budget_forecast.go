@@ -84,7 +84,7 @@ func checkBudgetForecast(t *analysis.Table, cfg Config) []Finding {
 		return nil
 	}
 	today := cfg.today()
-	fc, err := md.Forecast(t.Index, t.Spec, t.Engine.SegmentRows, today, horizon)
+	fc, err := md.Crossings(t.Index, t.Spec, t.Engine.SegmentRows, today, horizon)
 	if err != nil {
 		return nil
 	}

@@ -56,13 +56,24 @@ func AddMonths(date time.Time, n int) time.Time {
 // Forecast projects table i laid out as spec with segments of s rows for horizon
 // months from start, and finds the first month each budget is crossed.
 func (md *Model) Forecast(i int, spec schema.Table, s int64, start time.Time, horizon int) (*Forecast, error) {
+	return md.forecast(i, spec, s, start, horizon, md.Peak)
+}
+
+// Crossings is Forecast as far as its crossings read it, for the budget-forecast rule:
+// a month's refresh peak is computed only where a memory budget applies (0 otherwise),
+// since each one lays out every profiled table of the model for that month.
+func (md *Model) Crossings(i int, spec schema.Table, s int64, start time.Time, horizon int) (*Forecast, error) {
+	return md.forecast(i, spec, s, start, horizon, md.missPeak)
+}
+
+func (md *Model) forecast(i int, spec schema.Table, s int64, start time.Time, horizon int, peak func(int, Figures, int64, int) float64) (*Forecast, error) {
 	fc := &Forecast{Table: spec.Name, Growth: spec.GrowthPerYear, Start: start, Horizon: horizon}
 	for t := 0; t <= horizon; t++ {
 		f, err := md.Evaluate(spec, s, t)
 		if err != nil {
 			return nil, err
 		}
-		fc.Months = append(fc.Months, Projection{Month: t, Date: AddMonths(start, t), Figures: f, Peak: md.Peak(i, f, s, t)})
+		fc.Months = append(fc.Months, Projection{Month: t, Date: AddMonths(start, t), Figures: f, Peak: peak(i, f, s, t)})
 	}
 	b := md.Budgets(i)
 	type figure struct {
@@ -143,6 +154,16 @@ func (md *Model) NewlyBroken(i int, spec schema.Table, s int64, months int) bool
 		}
 	}
 	return false
+}
+
+// CandidateHolds is HoldsFor for candidate c of table i's sweep: a layout that fits
+// today and that the sweep found keeping every budget at the end of these months holds
+// throughout (the figures only grow with the rows), so only others are searched.
+func (md *Model) CandidateHolds(i int, c *Candidate, months int) int {
+	if c.Fits && (!md.growth || c.held == months) {
+		return months
+	}
+	return md.HoldsFor(i, *c.Spec, c.SegmentRows, months)
 }
 
 // HoldsFor is how many months from today table i, laid out as spec with segments of s

@@ -131,6 +131,7 @@ type Candidate struct {
 	// Warnings are not.
 	Unfigured bool
 	pol       *policy
+	held      int // the horizon a check found it keeping every budget at; 0 unchecked or broken
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -888,6 +889,8 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					if g, ok := md.atHorizon(i, v, p, f, s, horizon, bytes); ok {
 						if miss := md.missed(i, g, s, horizon, peakOf(i, g, s, horizon)); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0].Words()))
+						} else {
+							c.held = horizon
 						}
 					}
 				}

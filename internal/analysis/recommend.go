@@ -132,7 +132,7 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 		}
 		if md := t.model.advisor; md.Grows() {
 			h := Recommendation{Horizon: lv.Horizon()}
-			h.HoldsMonths = md.HoldsFor(t.Index, t.Spec, t.Engine.SegmentRows, h.Horizon)
+			h.HoldsMonths = md.CandidateHolds(t.Index, c, h.Horizon)
 			h.HoldsThrough = holdsThrough(lv, h.HoldsMonths)
 			keep += "; it " + h.Holds()
 		}
@@ -147,7 +147,7 @@ func recommendationOf(t *Table, sw *advisor.Sweep, lv advisor.Levels) (Recommend
 	md := t.model.advisor
 	r.Growth = md.Grows()
 	if fits {
-		r.HoldsMonths = md.HoldsFor(t.Index, *c.Spec, c.SegmentRows, r.Horizon)
+		r.HoldsMonths = md.CandidateHolds(t.Index, c, r.Horizon)
 		r.HoldsThrough = holdsThrough(lv, r.HoldsMonths)
 	}
 	return r, ""
