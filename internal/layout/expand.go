@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/bits"
@@ -313,9 +314,7 @@ func fixup(floors []int64, rems []float64, rows int64) {
 	}
 	// The left-th largest remainder is the threshold; everything above it gets a row,
 	// then the ties at it in index order.
-	sorted := slices.Clone(rems)
-	slices.Sort(sorted)
-	th := sorted[n-left]
+	th := nth(slices.Clone(rems), int(n-left))
 	for i, r := range rems {
 		if r > th {
 			floors[i]++
@@ -331,6 +330,50 @@ func fixup(floors []int64, rems []float64, rows int64) {
 			left--
 		}
 	}
+}
+
+// nth is the k-th smallest of xs (0-based) in slices.Sort's order, found in linear
+// expected time by selection; xs is reordered. An expansion asks for one remainder's rank
+// among every partition's, so a full sort would cost n log n for each.
+func nth(xs []float64, k int) float64 {
+	lo, hi := 0, len(xs)-1
+	for lo < hi {
+		// Median of three as the pivot: sorted or reversed remainders stay linear.
+		mid := lo + (hi-lo)/2
+		if cmp.Less(xs[mid], xs[lo]) {
+			xs[mid], xs[lo] = xs[lo], xs[mid]
+		}
+		if cmp.Less(xs[hi], xs[lo]) {
+			xs[hi], xs[lo] = xs[lo], xs[hi]
+		}
+		if cmp.Less(xs[hi], xs[mid]) {
+			xs[hi], xs[mid] = xs[mid], xs[hi]
+		}
+		pivot := xs[mid]
+		i, j := lo, hi
+		for i <= j {
+			for cmp.Less(xs[i], pivot) {
+				i++
+			}
+			for cmp.Less(pivot, xs[j]) {
+				j--
+			}
+			if i <= j {
+				xs[i], xs[j] = xs[j], xs[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return xs[k] // between the two runs: equal to the pivot
+		}
+	}
+	return xs[k]
 }
 
 // removeExcess takes rows back when float error made the floors sum above rows: first

@@ -2,6 +2,7 @@ package layout
 
 import (
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strconv"
 	"strings"
@@ -266,5 +267,38 @@ func TestExpandTimeMidpointAge(t *testing.T) {
 	p, err = Expand(timeTable(1e15, 0, schema.Tier{Grain: schema.Day, Keep: 1}, schema.Tier{Grain: schema.Year, Keep: 1}))
 	if got := float64(p[1].Rows) / float64(p[0].Rows); err != nil || math.Abs(got/365.25-1) > 1e-9 {
 		t.Errorf("no growth: year / day rows = %.12g, want 365.25 (%v)", got, err)
+	}
+}
+
+// nth is the k-th value of the sorted list (slices.Sort's order, NaN first), on random,
+// sorted, reversed and tie-heavy lists, at every rank.
+func TestNthIsTheSortedRank(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 11))
+	for trial := range 400 {
+		n := 1 + r.IntN(90)
+		xs := make([]float64, n)
+		for i := range xs {
+			switch trial % 4 {
+			case 0:
+				xs[i] = r.Float64()
+			case 1:
+				xs[i] = float64(i) / float64(n)
+			case 2:
+				xs[i] = float64(n-i) / float64(n)
+			default:
+				xs[i] = float64(r.IntN(3)) / 4 // many ties
+			}
+		}
+		if trial%25 == 0 {
+			xs[r.IntN(n)] = math.NaN()
+		}
+		sorted := slices.Clone(xs)
+		slices.Sort(sorted)
+		for k := range n {
+			got, want := nth(slices.Clone(xs), k), sorted[k]
+			if got != want && !(math.IsNaN(got) && math.IsNaN(want)) {
+				t.Fatalf("trial %d: nth(%v, %d) = %v, want %v", trial, xs, k, got, want)
+			}
+		}
 	}
 }
