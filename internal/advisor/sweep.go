@@ -351,6 +351,15 @@ type oneSegment struct {
 
 func newOneSegment() *oneSegment { return &oneSegment{top: -1} }
 
+// oneSegmentFor is a oneSegment for spec's partitions, nil without column profiles:
+// there are no column figures to keep then.
+func oneSegmentFor(spec schema.Table) *oneSegment {
+	if len(spec.Columns) == 0 {
+		return nil
+	}
+	return newOneSegment()
+}
+
 // fits reports whether capacity s is above every partition of parts.
 func (w *oneSegment) fits(spec schema.Table, parts []layout.Partition, s int64) bool {
 	if w.top < 0 {
@@ -462,7 +471,7 @@ func (md *Model) grownEntry(j, month int) (schema.Table, []layout.Partition, *on
 	}
 	e := g.tables[j]
 	if e == nil {
-		e = &grownTableEntry{spec: Grow(t, month), whole: newOneSegment()}
+		e = &grownTableEntry{spec: Grow(t, month), whole: oneSegmentFor(t)}
 		if month == 0 && md.expanded != nil && md.expanded[j] != nil {
 			e.parts = md.expanded[j] // as the analysis expanded it (Expanded)
 		} else {
@@ -785,6 +794,10 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 	clean := false // some candidate fits every budget with no warning left
 	windowRead := false
 	lean := set.Lean && set.Prune
+	// Today's capacity first: its layouts rank above the others' at as few warnings, so
+	// a sweep that prunes by the best layout so far prunes most, and one that may stop
+	// there (PickOnly, Lean) most often does.
+	first := set.PickOnly || lean
 	peakOf := md.Peak // the front reads every peak; a lean sweep only what a miss reads
 	if lean {
 		peakOf = md.missPeak
@@ -809,10 +822,10 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 		if cap(sw.Candidates) == 0 {
 			// Room for every default capacity at once: a candidate is large, and
-			// growing the list copies every one made so far. A pick-only sweep most
-			// often stops at today's.
+			// growing the list copies every one made so far. A sweep that tries today's
+			// capacity first most often stops there.
 			n := len(DefaultCapacities) + 1
-			if set.PickOnly {
+			if first {
 				n = 1
 			}
 			sw.Candidates = make([]Candidate, 0, len(vs)*n)
@@ -820,7 +833,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
-				p = &policy{spec: v.Spec, whole: newOneSegment(), laterWhole: newOneSegment()}
+				p = &policy{spec: v.Spec, whole: oneSegmentFor(v.Spec), laterWhole: oneSegmentFor(v.Spec)}
 				if v.Change == "" {
 					// Today's policy: the partitions and estimates the views share.
 					_, p.parts, p.whole = md.grownEntry(i, 0)
@@ -906,10 +919,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		}
 	}
 	caps := md.capacities(set)
-	// Today's capacity first: its layouts rank above the others' at as few warnings, so
-	// a sweep that prunes by the best layout so far prunes most. The candidates are put
-	// back in capacity order before they are ranked (inOrder).
-	first := set.PickOnly || lean
+	// The candidates are put back in capacity order before they are ranked (inOrder).
 	if first {
 		try(today)
 	}
