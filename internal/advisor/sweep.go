@@ -868,10 +868,11 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				continue
 			}
 			// A rough scan time moves no fit, miss or warning: any layout may have one.
-			// The horizon is skipped only at another capacity than today's (BestAt
-			// ranks today's) and once today's layout is in (better weighs routine
-			// refreshes against it).
-			prune := set.Prune && s != today && sw.Today >= 0
+			// The horizon is skipped only once today's layout is in (better weighs
+			// routine refreshes against it), and at today's capacity only in a lean
+			// sweep, which tries it first: the best so far is then the best at today's
+			// capacity, which outranks the skipped layout for BestAt too.
+			prune := set.Prune && sw.Today >= 0 && (s != today || lean)
 			var f Figures
 			if set.Prune {
 				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole, bytes)
