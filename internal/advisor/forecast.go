@@ -115,7 +115,7 @@ func (md *Model) forecast(i int, spec schema.Table, s int64, start time.Time, ho
 }
 
 // Breaks lists the budgets table i, laid out as spec with segments of s rows, breaks
-// after month months of growth.
+// after month months of growth; a scan_ms miss's figure may be a floor of it.
 func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, error) {
 	spec = Grow(spec, month)
 	var parts []layout.Partition
@@ -130,9 +130,11 @@ func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, e
 		}
 		w = nil
 	}
-	// Figured as far as a miss reads them: the scan is estimated only when its ceiling
-	// is not within scan_ms, the columns only when a memory budget reads their bytes.
-	f, _ := md.boundedFigures(spec, parts, s, w, md.budgets[i].ScanMs, 1, md.memoryBound())
+	// Figured as far as whether it misses reads them (its callers read no miss's
+	// figure): the scan is scheduled only when neither its ceiling is within scan_ms
+	// nor its floor above, the columns estimated only when a memory budget reads their
+	// bytes.
+	f, _ := md.decidedFigures(spec, parts, s, w, md.budgets[i].ScanMs, 1, md.memoryBound(), true)
 	return md.missed(i, f, s, month, md.missPeak(i, f, s, month)), nil
 }
 

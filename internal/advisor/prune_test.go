@@ -16,7 +16,7 @@ import (
 func TestPrunedSweepKeepsThePick(t *testing.T) {
 	r := rand.New(rand.NewPCG(14, 2026))
 	types := []string{"int64", "string", "float64", "bool"}
-	grains, skipped, stopped, held := 0, 0, 0, 0
+	grains, skipped, stopped, held, floored := 0, 0, 0, 0, 0
 	for trial := range 300 {
 		var tables []schema.Table
 		for n := range 1 + r.IntN(3) {
@@ -66,7 +66,8 @@ func TestPrunedSweepKeepsThePick(t *testing.T) {
 				if leanPick(t, fmt.Sprintf("trial %d table %d (lean)", trial, i), full, lean, m.Engine.SegmentRows) {
 					stopped++
 				}
-				skipped += countUnfigured(lean)
+				u, f := countUnfigured(lean)
+				skipped, floored = skipped+u, floored+f
 			}
 			// The months a pick holds for, from what its sweep found at the horizon, are
 			// those a search month by month finds.
@@ -94,8 +95,8 @@ func TestPrunedSweepKeepsThePick(t *testing.T) {
 	if held == 0 {
 		t.Fatal("no growing model's pick held through the horizon: the shortcut went untested")
 	}
-	if skipped == 0 || stopped == 0 {
-		t.Fatalf("%d lean sweeps stopped at today's capacity, %d layouts left unfigured: the test shows too little of the pruning", stopped, skipped)
+	if skipped == 0 || stopped == 0 || floored == 0 {
+		t.Fatalf("%d lean sweeps stopped at today's capacity, %d layouts left unfigured, %d at a scan floor: the test shows too little of the pruning", stopped, skipped, floored)
 	}
 }
 
@@ -157,14 +158,17 @@ func sameAlternative(t *testing.T, name string, a, b *Sweep, today int64) {
 	}
 }
 
-func countUnfigured(sw *Sweep) int {
-	n := 0
+// countUnfigured counts the layouts a lean sweep left unfigured, and those whose scan it
+// left at a floor above scan_ms.
+func countUnfigured(sw *Sweep) (unfigured, floored int) {
 	for k := range sw.Candidates {
-		if sw.Candidates[k].Unfigured {
-			n++
+		if c := &sw.Candidates[k]; c.Unfigured {
+			unfigured++
+		} else if c.over {
+			floored++
 		}
 	}
-	return n
+	return unfigured, floored
 }
 
 func samePick(t *testing.T, name string, full, pruned *Sweep, today int64) {

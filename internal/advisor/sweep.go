@@ -131,7 +131,8 @@ type Candidate struct {
 	// Warnings are not.
 	Unfigured bool
 	pol       *policy
-	held      int // the horizon a check found it keeping every budget at; 0 unchecked or broken
+	held      int  // the horizon a check found it keeping every budget at; 0 unchecked or broken
+	over      bool // WallMs is a floor above scan_ms (a lean sweep): figured in full when nothing fits
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -875,7 +876,9 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			prune := set.Prune && sw.Today >= 0 && (s != today || lean)
 			var f Figures
 			if set.Prune {
-				f, c.rough = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole, bytes)
+				var how figured
+				f, how = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole, bytes, lean)
+				c.rough, c.over = how == byCeiling, how == byFloor
 			} else {
 				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
 			}
@@ -960,8 +963,26 @@ func (md *Model) settle(sw *Sweep, lean, first bool) {
 	if first {
 		inOrder(sw)
 	}
+	if !slices.ContainsFunc(sw.Candidates, func(c Candidate) bool { return c.Fits && !c.Locked }) {
+		md.schedule(sw) // the closest layout weighs every miss by its figure
+	}
 	md.mark(sw, !lean)
 	md.refine(sw)
+}
+
+// schedule figures in full the candidates a lean sweep left at a floor above scan_ms
+// (Candidate.over), and their misses: the closest layout is chosen by how far each
+// layout is from every budget.
+func (md *Model) schedule(sw *Sweep) {
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		if !c.over {
+			continue
+		}
+		f := md.figuresWith(*c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
+		c.Figures, c.over = f, false
+		c.missed = md.missed(sw.Index, f, c.SegmentRows, 0, c.Peak)
+	}
 }
 
 // inOrder puts the candidates in capacity order, each capacity's in the order it
@@ -1042,8 +1063,8 @@ func (md *Model) judgedFigures(j int, spec schema.Table, parts []layout.Partitio
 // roughFigures is figures of table i for a pruned sweep: the scan is scheduled only when
 // its ceiling is not within the warning share of scan_ms (then no miss or warning reads
 // more of it than the schedule gives); rough reports that WallMs is the ceiling.
-func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment, bytes bool) (Figures, bool) {
-	return md.boundedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1), bytes)
+func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition, s int64, lv Levels, w *oneSegment, bytes, over bool) (Figures, figured) {
+	return md.decidedFigures(spec, parts, s, w, md.Budgets(i).ScanMs, min(lv.ScanWarnShare, 1), bytes, over)
 }
 
 // boundedFigures is figuresWith with the scan scheduled only when its list-scheduling
@@ -1052,37 +1073,59 @@ func (md *Model) roughFigures(i int, spec schema.Table, parts []layout.Partition
 // or a peak), the columns are not estimated at all when even their plain ceiling
 // (layout.PlainCeiling) is below, or nothing reads the scan: Widest is then "" and
 // WallMs that ceiling or 0, which no miss or warning reads past.
-func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64, bytes bool) (f Figures, rough bool) {
+func (md *Model) boundedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64, bytes bool) (Figures, bool) {
+	f, how := md.decidedFigures(spec, parts, s, w, scanMs, share, bytes, false)
+	return f, how == byCeiling
+}
+
+// How a layout's WallMs was found (decidedFigures).
+type figured uint8
+
+const (
+	scheduled figured = iota // the schedule's own estimate
+	byCeiling                // a ceiling within share x scanMs
+	byFloor                  // a floor above scanMs: the scan certainly breaks it
+)
+
+// decidedFigures is boundedFigures that, with over set, also leaves the schedule out for
+// a scan certainly above scanMs, whose floor (layout.ScanBounds) is: WallMs is then that
+// floor, which decides the scan_ms miss and the warning as the schedule would, but is
+// not the miss's figure (byFloor).
+func (md *Model) decidedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64, bytes, over bool) (f Figures, how figured) {
 	memo := w.memo(spec)
 	if memo != nil && w.fits(spec, parts, s) && w.done {
-		return md.figuresWith(spec, parts, s, w), false // figured already
+		return md.figuresWith(spec, parts, s, w), scheduled // figured already
 	}
 	md.work++
 	f = Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	if !bytes && len(spec.Columns) > 0 {
 		if scanMs == nil {
-			return f, true
+			return f, byCeiling
 		}
 		// A millionth over, as below.
 		if c := md.plainCeiling(spec, parts, f.Layout, s); c*(1+1e-6) < share**scanMs {
 			f.WallMs = c
-			return f, true
+			return f, byCeiling
 		}
 	}
 	k := md.widest(&f, spec, parts, s, memo)
 	if k < 0 {
-		return f, false
+		return f, scheduled
 	}
 	c, e := spec.Columns[k], md.engineAt(s)
-	ceiling := layout.ScanCeiling(c, spec.Rows, parts, e, at(memo, k))
-	// A millionth over: the ceiling and the schedule sum the same task times in other
-	// orders, so their last bits may differ.
+	floor, ceiling := layout.ScanBounds(c, spec.Rows, parts, e, at(memo, k))
+	// A millionth over (under): the bounds and the schedule sum the same task times in
+	// other orders, so their last bits may differ.
 	if scanMs == nil || ceiling*(1+1e-6) < share**scanMs {
 		f.WallMs = ceiling
-		return f, true
+		return f, byCeiling
+	}
+	if over && floor*(1-1e-6) > *scanMs {
+		f.WallMs = floor
+		return f, byFloor
 	}
 	f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
-	return f, false
+	return f, scheduled
 }
 
 // plainCeiling is the largest plain ceiling of spec's columns laid out as l in segments

@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -39,6 +40,10 @@ func TestScanCeilingBoundsTheSchedule(t *testing.T) {
 		ceiling := ScanCeiling(c, tableRows, parts, e, nil)
 		if s.WallMs > ceiling*(1+1e-9) || s.WallMs < s.BoundMs*(1-1e-9) {
 			t.Fatalf("case %d: schedule %v ms outside [%v, %v] (bound, ceiling)", n, s.WallMs, s.BoundMs, ceiling)
+		}
+		// ScanBounds' floor is the schedule's own bound, from the same task times.
+		if floor, c2 := ScanBounds(c, tableRows, parts, e, nil); c2 != ceiling || math.Abs(floor-s.BoundMs) > 1e-9*s.BoundMs || s.WallMs < floor*(1-1e-9) {
+			t.Fatalf("case %d: bounds [%v, %v], schedule %v with bound %v, ceiling %v", n, floor, c2, s.WallMs, s.BoundMs, ceiling)
 		}
 	}
 }

@@ -67,6 +67,14 @@ func ScanColumnWith(c schema.Column, tableRows int64, parts []Partition, e schem
 // finish starts when its core frees first, before the average load). The task times
 // are ScanColumn's, from the same estimates.
 func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) float64 {
+	_, ceiling := ScanBounds(c, tableRows, parts, e, memo)
+	return ceiling
+}
+
+// ScanBounds is ScanCeiling with the floor no schedule beats, max(sum/cores, longest
+// task) (ScanColumn's BoundMs), from the same estimates in one pass: the schedule's
+// WallMs lies between the two.
+func ScanBounds(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) (floor, ceiling float64) {
 	f, theta, cores := scanRates(e)
 	if tableRows <= 0 {
 		for _, p := range parts {
@@ -86,7 +94,7 @@ func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.E
 			task(1, f+rb/theta)
 		}
 	})
-	return sum/float64(cores) + longest
+	return max(sum/float64(cores), longest), sum/float64(cores) + longest
 }
 
 // PlainCeiling is an upper bound on ScanCeiling that makes no estimate: it reads the
