@@ -970,19 +970,40 @@ func (md *Model) settle(sw *Sweep, lean, first bool) {
 	md.refine(sw)
 }
 
-// schedule figures in full the candidates a lean sweep left at a floor above scan_ms
-// (Candidate.over), and their misses: the closest layout is chosen by how far each
-// layout is from every budget.
+// schedule schedules the scans a lean sweep left at a floor above scan_ms
+// (Candidate.over), and words their misses again: the closest layout is chosen by how
+// far each layout is from every budget. Today's comes first; a layout that breaks a
+// budget today's keeps can never be the closest (noWorse), so its scan is left as it is.
 func (md *Model) schedule(sw *Sweep) {
+	if sw.Today < 0 {
+		return
+	}
+	md.scheduled(sw.Index, &sw.Candidates[sw.Today])
+	now := sw.Candidates[sw.Today].missed
 	for k := range sw.Candidates {
 		c := &sw.Candidates[k]
-		if !c.over {
-			continue
+		if c.over && !slices.ContainsFunc(c.missed, func(m Miss) bool { return !slices.ContainsFunc(now, func(n Miss) bool { return n.Key == m.Key }) }) {
+			md.scheduled(sw.Index, c)
 		}
-		f := md.figuresWith(*c.Spec, c.pol.parts, c.SegmentRows, c.pol.whole)
-		c.Figures, c.over = f, false
-		c.missed = md.missed(sw.Index, f, c.SegmentRows, 0, c.Peak)
 	}
+}
+
+// scheduled gives candidate c of table i, if its scan was left at a floor, the
+// schedule's WallMs and the misses that follow: its bytes and widest column are the
+// ones the floor was found for.
+func (md *Model) scheduled(i int, c *Candidate) {
+	if !c.over {
+		return
+	}
+	spec := *c.Spec
+	// Column names are unique (the loader refuses a second one).
+	if k := slices.IndexFunc(spec.Columns, func(col schema.Column) bool { return col.Name == c.Widest }); k >= 0 {
+		c.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, c.pol.parts, md.engineAt(c.SegmentRows), at(c.pol.whole.memo(spec), k)).WallMs
+	} else {
+		c.Figures = md.figuresWith(spec, c.pol.parts, c.SegmentRows, c.pol.whole)
+	}
+	c.over = false
+	c.missed = md.missed(i, c.Figures, c.SegmentRows, 0, c.Peak)
 }
 
 // inOrder puts the candidates in capacity order, each capacity's in the order it
