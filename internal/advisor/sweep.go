@@ -118,10 +118,10 @@ type Candidate struct {
 	Locked      bool // Engine, but the capacity is fixed (Settings.FixedSegmentRows)
 	Window      bool // keeps a recent window fine and merges older periods
 	Figures
-	Peak     float64  // the model's refresh peak with this layout (layout.RefreshPeak)
-	Front    bool     // on the Pareto front of fixed ms against refresh memory
+	Peak     float64  // the model's refresh peak with this layout (layout.RefreshPeak), but see Settings.Lean
+	Front    bool     // on the Pareto front of fixed ms against refresh memory; a lean sweep marks none
 	Fits     bool     // within every budget and the engine's memory
-	Misses   []string // the budgets it breaks, in words
+	Misses   []string // the budgets it breaks, in words, but see Settings.Lean
 	Warnings []string // what check would still warn about, crossings within ForecastMonths included
 	missed   []Miss   // Misses with their figures, for Closest
 	order    int
@@ -933,7 +933,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		// another capacity (better): the pick is at today's, and so is the alternative.
 		for k := range sw.Candidates {
 			if c := &sw.Candidates[k]; c.Fits && len(c.Warnings) == 0 && !c.Needless() && c.RoutineExtra(sw.routineToday()) == 0 {
-				md.settle(sw, lean, first)
+				md.settle(sw, lean)
 				return sw
 			}
 		}
@@ -953,17 +953,15 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			sw.Largest = s
 		}
 	}
-	md.settle(sw, lean, first)
+	md.settle(sw, lean)
 	return sw
 }
 
-// settle ranks a sweep's candidates, in capacity order (first: today's were tried
-// first), and figures the pick and the closest layout in full.
-func (md *Model) settle(sw *Sweep, lean, first bool) {
-	if first {
-		inOrder(sw)
-	}
-	if !slices.ContainsFunc(sw.Candidates, func(c Candidate) bool { return c.Fits && !c.Locked }) {
+// settle ranks a sweep's candidates, in capacity order, and figures the pick and the
+// closest layout in full.
+func (md *Model) settle(sw *Sweep, lean bool) {
+	inOrder(sw)
+	if lean && !slices.ContainsFunc(sw.Candidates, func(c Candidate) bool { return c.Fits && !c.Locked }) {
 		md.schedule(sw) // the closest layout weighs every miss by its figure
 	}
 	md.mark(sw, !lean)
@@ -978,20 +976,31 @@ func (md *Model) schedule(sw *Sweep) {
 	if sw.Today < 0 {
 		return
 	}
-	md.scheduled(sw.Index, &sw.Candidates[sw.Today])
+	md.scheduleOne(sw.Index, &sw.Candidates[sw.Today])
 	now := sw.Candidates[sw.Today].missed
 	for k := range sw.Candidates {
 		c := &sw.Candidates[k]
-		if c.over && !slices.ContainsFunc(c.missed, func(m Miss) bool { return !slices.ContainsFunc(now, func(n Miss) bool { return n.Key == m.Key }) }) {
-			md.scheduled(sw.Index, c)
+		if c.over && breaksOnly(c.missed, now) {
+			md.scheduleOne(sw.Index, c)
 		}
 	}
 }
 
-// scheduled gives candidate c of table i, if its scan was left at a floor, the
+// breaksOnly reports whether every budget of ms is among those of now (noWorse's first
+// test, without the figures).
+func breaksOnly(ms, now []Miss) bool {
+	for _, m := range ms {
+		if !slices.ContainsFunc(now, func(n Miss) bool { return n.Key == m.Key }) {
+			return false
+		}
+	}
+	return true
+}
+
+// scheduleOne gives candidate c of table i, if its scan was left at a floor, the
 // schedule's WallMs and the misses that follow: its bytes and widest column are the
 // ones the floor was found for.
-func (md *Model) scheduled(i int, c *Candidate) {
+func (md *Model) scheduleOne(i int, c *Candidate) {
 	if !c.over {
 		return
 	}
@@ -1009,7 +1018,8 @@ func (md *Model) scheduled(i int, c *Candidate) {
 // inOrder puts the candidates in capacity order, each capacity's in the order it
 // generated them: a sweep that tried today's capacity first lists them as one that did
 // not, so ties resolve alike. Today's come first as one block and the rest ascend, so
-// the block moves behind the smaller capacities: a rotation, not a sort.
+// the block moves behind the smaller capacities: a rotation, not a sort. A list tried
+// in capacity order is left as it is (no smaller capacity follows its first block).
 func inOrder(sw *Sweep) {
 	cs := sw.Candidates
 	if len(cs) == 0 {
