@@ -189,6 +189,9 @@ type Model struct {
 	expanded    [][]layout.Partition // by table: its partitions as the analysis expanded them (Expanded)
 
 	routinePeak *float64 // RoutinePeak, once computed
+	// sized holds the column estimates of the layout being figured (widest): the widest
+	// column's so far, and the next column's.
+	sized [2]layout.Estimated
 }
 
 type viewKey struct {
@@ -398,8 +401,12 @@ func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int6
 		f.Widest, f.WallMs, f.Bytes = w.cache.Widest, w.cache.WallMs, w.cache.Bytes
 		return f
 	}
-	if k := md.widest(&f, spec, parts, s, memo); k >= 0 {
-		f.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, parts, md.engineAt(s), at(memo, k)).WallMs
+	if k, es := md.widest(&f, spec, parts, s, memo); k >= 0 {
+		if e := md.engineAt(s); es.For(spec.Rows, e) {
+			f.WallMs = es.Scan(e).WallMs
+		} else {
+			f.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, parts, e, at(memo, k)).WallMs
+		}
 	}
 	if whole {
 		w.done, w.cache = true, Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
@@ -424,22 +431,26 @@ func sameColumns(a, b []schema.Column) bool {
 }
 
 // widest sets f's Bytes and Widest and returns the index of the widest column, -1
-// without profiles.
-func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller) int {
+// without profiles, with its estimates (valid until the next call), which its scan
+// reads when they are the scan's own (layout.Estimated.For).
+func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller) (int, *layout.Estimated) {
 	best, widest := -1.0, -1
+	next := 0 // md.sized[next] is free; the other holds the widest so far
 	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
 		// size (layout.TableBytes sums the same figure); only the widest is scheduled.
-		b := layout.ColumnBytesWith(c, parts, s, at(memo, i))
+		b := md.sized[next].Estimate(c, parts, s, at(memo, i))
 		if b > best {
 			best, widest = b, i
+			next = 1 - next
 		}
 		f.Bytes += b
 	}
-	if widest >= 0 {
-		f.Widest = spec.Columns[widest].Name
+	if widest < 0 {
+		return -1, nil
 	}
-	return widest
+	f.Widest = spec.Columns[widest].Name
+	return widest, &md.sized[1-next]
 }
 
 // Expanded hands the model table i's partitions as the manifest has them, already
@@ -1139,12 +1150,18 @@ func (md *Model) decidedFigures(spec schema.Table, parts []layout.Partition, s i
 			return f, byCeiling
 		}
 	}
-	k := md.widest(&f, spec, parts, s, memo)
+	k, es := md.widest(&f, spec, parts, s, memo)
 	if k < 0 {
 		return f, scheduled
 	}
 	c, e := spec.Columns[k], md.engineAt(s)
-	floor, ceiling := layout.ScanBounds(c, spec.Rows, parts, e, at(memo, k))
+	own := es.For(spec.Rows, e) // the scan's own estimates, made once
+	var floor, ceiling float64
+	if own {
+		floor, ceiling = es.Bounds(e)
+	} else {
+		floor, ceiling = layout.ScanBounds(c, spec.Rows, parts, e, at(memo, k))
+	}
 	// A millionth over (under): the bounds and the schedule sum the same task times in
 	// other orders, so their last bits may differ.
 	if scanMs == nil || ceiling*(1+1e-6) < share**scanMs {
@@ -1155,7 +1172,11 @@ func (md *Model) decidedFigures(spec schema.Table, parts []layout.Partition, s i
 		f.WallMs = floor
 		return f, byFloor
 	}
-	f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
+	if own {
+		f.WallMs = es.Scan(e).WallMs
+	} else {
+		f.WallMs = layout.ScanColumnWith(c, spec.Rows, parts, e, at(memo, k)).WallMs
+	}
 	return f, scheduled
 }
 

@@ -132,7 +132,9 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 			Layout:  layout.Compute(parts, m.Engine.SegmentRows, m.Engine.SegmentOverheadMs),
 			model:   md,
 		}
-		t.Widest, t.Scan = widest(spec, parts, m.Engine)
+		var exact bool
+		t.Widest, t.Scan, t.encoded, exact = widest(spec, parts, m.Engine)
+		t.encodedDone = exact
 		t.window = layout.WindowOf(spec, parts)
 		par := m.Engine.RefreshWorkers()
 		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
@@ -178,21 +180,31 @@ func (t *Table) Levels() advisor.Levels {
 // than the whole table.
 func (t *Table) RoutineDeclared() bool { return !t.window.Whole }
 
-// widest finds the column whose full scan costs most, and that scan.
-func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (*schema.Column, layout.Scan) {
+// widest finds the column whose full scan costs most, and that scan, from the same
+// estimates (layout.Estimated); with the columns' summed bytes, which are the table's
+// encoded bytes (EncodedBytes) when exact: when the table's rows are its partitions'.
+func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (_ *schema.Column, _ layout.Scan, bytes float64, exact bool) {
 	// Sizes are cheap; only the widest column's scan is scheduled.
 	var best *schema.Column
 	bestBytes := -1.0
+	var sized [2]layout.Estimated // the widest so far, and the next column
+	next := 0
 	for i := range spec.Columns {
 		c := &spec.Columns[i]
-		if b := layout.ColumnBytes(*c, parts, e.SegmentRows); b > bestBytes {
+		b := sized[next].Estimate(*c, parts, e.SegmentRows, nil)
+		bytes += b // in column order, as layout.TableBytes sums them
+		if b > bestBytes {
 			best, bestBytes = c, b
+			next = 1 - next
 		}
 	}
 	if best == nil {
-		return nil, layout.Scan{}
+		return nil, layout.Scan{}, 0, false
 	}
-	return best, layout.ScanColumn(*best, spec.Rows, parts, e)
+	if es := &sized[1-next]; es.For(spec.Rows, e) {
+		return best, es.Scan(e), bytes, true
+	}
+	return best, layout.ScanColumn(*best, spec.Rows, parts, e), 0, false
 }
 
 // EncodedBytes is the encoded size of the table's profiled columns.

@@ -1,10 +1,12 @@
 package analysis
 
 import (
+	"os"
 	"strings"
 	"testing"
 
 	"github.com/scangate/scangate/internal/advisor"
+	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
 )
 
@@ -100,5 +102,39 @@ func TestAdviseIsTheFullSweepsPick(t *testing.T) {
 				t.Errorf("%s: Advise says %q, the full sweep %q", q.Spec.Name, q.Advice(), f.Advice())
 			}
 		}
+	}
+}
+
+// The encoded size Analyze keeps from sizing the columns is layout.TableBytes to the
+// bit, for a listed table whose declared rows are not its items' sum (TableBytes sizes
+// the dictionaries by the declared rows, so it is computed apart) and for the demo's
+// tables.
+func TestEncodedBytesAreTableBytes(t *testing.T) {
+	cols := "columns: [{name: a, type: int64, distinct: 900}, {name: b, type: string, avg_length: 9, distinct: 40000, order: clustered}]"
+	srcs := []string{
+		"format: 1\nmodel: m\nengine: {segment_rows: 1Mi}\ntables:\n  - {name: t, rows: 3000000, partitions: {scheme: even, count: 7}, " + cols + "}\n",
+		"format: 1\nmodel: m\nengine: {segment_rows: 1Mi}\ntables:\n  - {name: t, rows: 3000000, partitions: {scheme: list, items: [{name: a, rows: 1000}, {name: b, rows: 2000000}]}, " + cols + "}\n",
+	}
+	for _, name := range []string{"billing", "meter-telemetry", "network-assets"} {
+		data, err := os.ReadFile("../../testdata/demo/" + name + ".yaml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		srcs = append(srcs, string(data))
+	}
+	profiled := 0
+	for _, src := range srcs {
+		for _, tb := range Analyze(load(t, src), advisor.DefaultLevels).Tables {
+			want := layout.TableBytes(tb.Spec.Columns, tb.Spec.Rows, tb.Parts, tb.Engine.SegmentRows)
+			if got := tb.EncodedBytes(); got != want {
+				t.Errorf("%s: encoded bytes %v, TableBytes %v", tb.Spec.Name, got, want)
+			}
+			if len(tb.Spec.Columns) > 0 {
+				profiled++
+			}
+		}
+	}
+	if profiled < 4 {
+		t.Fatalf("only %d profiled tables", profiled)
 	}
 }

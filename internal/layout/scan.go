@@ -25,16 +25,52 @@ func ScanColumn(c schema.Column, tableRows int64, parts []Partition, e schema.En
 
 // ScanColumnWith is ScanColumn keeping estimates in memo (nil: none).
 func ScanColumnWith(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) Scan {
-	f, theta, cores := scanRates(e)
+	src := source{c: c, tableRows: tableRowsOr(tableRows, parts), parts: parts, capacity: e.SegmentRows, memo: memo}
+	return scanOf(&src, len(parts), e)
+}
+
+// tableRowsOr is tableRows, or the sum of the partitions when it is not above 0.
+func tableRowsOr(tableRows int64, parts []Partition) int64 {
 	if tableRows <= 0 {
 		for _, p := range parts {
 			tableRows = satAdd(tableRows, max(p.Rows, 0))
 		}
 	}
+	return tableRows
+}
+
+// visitor is called for each partition, in order, with its full-segment count and
+// bytes and its part-empty segment's rows and bytes (columnBytes).
+type visitor = func(full int64, fullBytes float64, partRows int64, partBytes float64)
+
+// source is where a scan's segment estimates come from: columnBytes of a column over
+// partitions, or the estimates kept of them (Estimated).
+type source struct {
+	c         schema.Column
+	tableRows int64
+	parts     []Partition
+	capacity  int64
+	memo      *Smaller
+	kept      *Estimated
+}
+
+// each delivers the estimates to visit in partition order and returns their bytes and
+// segments. (A method, not a function value, so visit stays on the caller's stack.)
+func (src *source) each(visit visitor) (bytes float64, segments int64) {
+	if src.kept != nil {
+		return src.kept.replay(visit)
+	}
+	return columnBytes(src.c, src.tableRows, src.parts, src.capacity, src.memo, visit)
+}
+
+// scanOf is the scan of the segments src delivers, over parts partitions: each
+// segment is a task of overheadMs + b_s/theta, list-scheduled on the engine's cores.
+func scanOf(src *source, parts int, e schema.Engine) Scan {
+	f, theta, cores := scanRates(e)
 	// At most two groups per partition; few partitions keep them on the stack.
 	var buf [32]TaskGroup
 	groups := buf[:0]
-	if n := 2 * len(parts); n > len(buf) {
+	if n := 2 * parts; n > len(buf) {
 		groups = make([]TaskGroup, 0, n)
 	}
 	add := func(n int64, ms float64) {
@@ -44,7 +80,7 @@ func ScanColumnWith(c schema.Column, tableRows int64, parts []Partition, e schem
 		}
 		groups = append(groups, TaskGroup{Count: n, Ms: ms})
 	}
-	bytes, segs := columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
+	bytes, segs := src.each(func(full int64, fb float64, rest int64, rb float64) {
 		if full > 0 {
 			add(full, f+fb/theta)
 		}
@@ -75,12 +111,13 @@ func ScanCeiling(c schema.Column, tableRows int64, parts []Partition, e schema.E
 // task) (ScanColumn's BoundMs), from the same estimates in one pass: the schedule's
 // WallMs lies between the two.
 func ScanBounds(c schema.Column, tableRows int64, parts []Partition, e schema.Engine, memo *Smaller) (floor, ceiling float64) {
+	src := source{c: c, tableRows: tableRowsOr(tableRows, parts), parts: parts, capacity: e.SegmentRows, memo: memo}
+	return boundsOf(&src, e)
+}
+
+// boundsOf is ScanBounds of the segments src delivers.
+func boundsOf(src *source, e schema.Engine) (floor, ceiling float64) {
 	f, theta, cores := scanRates(e)
-	if tableRows <= 0 {
-		for _, p := range parts {
-			tableRows = satAdd(tableRows, max(p.Rows, 0))
-		}
-	}
 	var sum, longest float64
 	task := func(n int64, ms float64) {
 		if n > 0 && ms > 0 && !math.IsInf(ms, 1) {
@@ -88,13 +125,65 @@ func ScanBounds(c schema.Column, tableRows int64, parts []Partition, e schema.En
 			longest = max(longest, ms)
 		}
 	}
-	columnBytes(c, tableRows, parts, e.SegmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
+	src.each(func(full int64, fb float64, rest int64, rb float64) {
 		task(full, f+fb/theta)
 		if rest > 0 {
 			task(1, f+rb/theta)
 		}
 	})
 	return max(sum/float64(cores), longest), sum/float64(cores) + longest
+}
+
+// Estimated is one column's segment estimates over a table's partitions at one
+// capacity, kept as they were made: the scan's bounds and schedule read them instead of
+// estimating every segment again (a sweep sizes every column to find the widest, then
+// bounds and schedules the widest's scan). Its buffer is reused by the next Estimate.
+type Estimated struct {
+	parts     []estimatedPart
+	tableRows int64
+	capacity  int64
+	bytes     float64
+	segments  int64
+}
+
+type estimatedPart struct {
+	full, rest           int64
+	fullBytes, restBytes float64
+}
+
+// Estimate sizes column c over parts in segments of segmentRows rows, keeping every
+// estimate, and returns the bytes ColumnBytesWith would: tableRows as it takes them, the
+// sum of the partitions.
+func (es *Estimated) Estimate(c schema.Column, parts []Partition, segmentRows int64, memo *Smaller) float64 {
+	es.parts, es.tableRows, es.capacity = es.parts[:0], tableRowsOr(0, parts), segmentRows
+	es.bytes, es.segments = columnBytes(c, es.tableRows, parts, segmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
+		es.parts = append(es.parts, estimatedPart{full: full, fullBytes: fb, rest: rest, restBytes: rb})
+	})
+	return es.bytes
+}
+
+// For reports whether the estimates are the ones ScanColumnWith and ScanBounds of the
+// same column and partitions would make with tableRows and engine e.
+func (es *Estimated) For(tableRows int64, e schema.Engine) bool {
+	return (tableRows <= 0 || tableRows == es.tableRows) && e.SegmentRows == es.capacity
+}
+
+// replay delivers the kept estimates as columnBytes delivered them.
+func (es *Estimated) replay(visit visitor) (float64, int64) {
+	for _, p := range es.parts {
+		visit(p.full, p.fullBytes, p.rest, p.restBytes)
+	}
+	return es.bytes, es.segments
+}
+
+// Scan is ScanColumnWith from the kept estimates (For must hold).
+func (es *Estimated) Scan(e schema.Engine) Scan {
+	return scanOf(&source{kept: es}, len(es.parts), e)
+}
+
+// Bounds is ScanBounds from the kept estimates (For must hold).
+func (es *Estimated) Bounds(e schema.Engine) (floor, ceiling float64) {
+	return boundsOf(&source{kept: es}, e)
 }
 
 // PlainCeiling is an upper bound on ScanCeiling that makes no estimate: it reads the

@@ -1,0 +1,71 @@
+package layout
+
+import (
+	"math/rand/v2"
+	"testing"
+
+	"github.com/scangate/scangate/schema"
+)
+
+// Kept estimates give the scan, its bounds and the column's bytes to the bit: a sweep
+// reads them instead of estimating the widest column again, and its outputs must not
+// move. Random columns, partitions, engines and table sizes (some not the partitions'
+// sum, where For refuses them); one Estimated is reused across cases, as a sweep does.
+func TestEstimatedIsTheScanItKeeps(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 11))
+	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
+	var es Estimated
+	refused := 0
+	for n := range 3000 {
+		c := schema.Column{Name: "c", Type: "int64", Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
+		if r.IntN(4) == 0 {
+			c.Type, c.AvgLength = "string", float64(1+r.IntN(40))
+		}
+		if r.IntN(6) == 0 {
+			c.EncodedBytes = 1 + r.Int64N(1e10)
+		}
+		parts := make([]Partition, r.IntN(60))
+		var rows int64
+		for k := range parts {
+			parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
+			rows += parts[k].Rows
+		}
+		e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+		tableRows := rows
+		switch r.IntN(4) {
+		case 0:
+			tableRows = 0
+		case 1:
+			tableRows = rows + 1 + r.Int64N(1000)
+		}
+		var memo Smaller
+		if got, want := es.Estimate(c, parts, e.SegmentRows, &memo), ColumnBytes(c, parts, e.SegmentRows); got != want {
+			t.Fatalf("case %d: kept bytes %v, ColumnBytes %v", n, got, want)
+		}
+		if !es.For(tableRows, e) {
+			if tableRows == rows || tableRows == 0 {
+				t.Fatalf("case %d: refused for the partitions' own rows", n)
+			}
+			refused++
+			continue
+		}
+		if tableRows != rows && tableRows != 0 {
+			t.Fatalf("case %d: kept for %d table rows, made for %d", n, tableRows, rows)
+		}
+		if got, want := es.Scan(e), ScanColumn(c, tableRows, parts, e); got != want {
+			t.Fatalf("case %d: kept scan %+v, ScanColumn %+v", n, got, want)
+		}
+		f1, c1 := es.Bounds(e)
+		if f2, c2 := ScanBounds(c, tableRows, parts, e, nil); f1 != f2 || c1 != c2 {
+			t.Fatalf("case %d: kept bounds [%v, %v], ScanBounds [%v, %v]", n, f1, c1, f2, c2)
+		}
+		other := e
+		other.SegmentRows *= 2
+		if es.For(tableRows, other) {
+			t.Fatalf("case %d: kept for another capacity", n)
+		}
+	}
+	if refused == 0 {
+		t.Fatal("no case had table rows other than its partitions'")
+	}
+}
