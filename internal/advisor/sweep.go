@@ -740,17 +740,17 @@ func (md *Model) warnings(i int, f Figures, lv Levels) []string {
 	var out []string
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > lv.OverheadWarnShare**b.ScanOverheadMs {
-		out = append(out, fmt.Sprintf("scan overhead at %s of the budget", units.Pct(f.Layout.FixedMs / *b.ScanOverheadMs)))
+		out = append(out, "scan overhead at "+units.Pct(f.Layout.FixedMs / *b.ScanOverheadMs)+" of the budget")
 	}
 	if b.ScanMs != nil && f.Widest != "" && f.WallMs > lv.ScanWarnShare**b.ScanMs {
-		out = append(out, fmt.Sprintf("scan time at %s of the budget", units.Pct(f.WallMs / *b.ScanMs)))
+		out = append(out, "scan time at "+units.Pct(f.WallMs / *b.ScanMs)+" of the budget")
 	}
 	l := f.Layout
 	if l.ClosedExcess >= 1 && float64(l.ClosedExcess) >= max(lv.TruncWarnMin, lv.TruncWarnShare*float64(l.ClosedSegments)) {
-		out = append(out, fmt.Sprintf("%s excess segments", units.Num(l.ClosedExcess)))
+		out = append(out, units.Num(l.ClosedExcess)+" excess segments")
 	}
 	if float64(l.Partitions) > lv.PartitionLimit {
-		out = append(out, fmt.Sprintf("%s partitions", units.Num(int64(l.Partitions))))
+		out = append(out, units.Num(int64(l.Partitions))+" partitions")
 	}
 	return out
 }
@@ -824,7 +824,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			if s < today {
 				verb = "lower"
 			}
-			raise = fmt.Sprintf("%s engine.segment_rows from %s to %s", verb, units.Count(today), units.Count(s))
+			raise = verb + " engine.segment_rows from " + units.Count(today) + " to " + units.Count(s)
 		}
 		vs := []Variant{{Spec: spec}}
 		if isTime {

@@ -77,7 +77,7 @@ func timeVariants(spec schema.Table) []Variant {
 				continue
 			}
 			merged, j := MergeTiers(tiers, i, g, 0)
-			out = append(out, withTiers(spec, merged, fmt.Sprintf("turn %s into %s", tierWords(tiers[i:j]), tierWords(merged[i:i+1]))))
+			out = append(out, withTiers(spec, merged, "turn "+tierWords(tiers[i:j])+" into "+tierWords(merged[i:i+1])))
 			if w, ok := windowFor(spec, tier.Grain); ok && i == 0 && tier.Keep > w {
 				merged, _ := MergeTiers(tiers, 0, g, w)
 				if len(merged) > 1 && merged[1].Grain == g {
@@ -120,7 +120,7 @@ func withTiers(spec schema.Table, tiers []schema.Tier, change string) Variant {
 func tierWords(tiers []schema.Tier) string {
 	w := make([]string, len(tiers))
 	for i, t := range tiers {
-		w[i] = fmt.Sprintf("%s %s %s", units.Num(int64(t.Keep)), t.Grain, units.Plural(int64(t.Keep), "partition", "partitions"))
+		w[i] = units.Num(int64(t.Keep)) + " " + string(t.Grain) + " " + units.Plural(int64(t.Keep), "partition", "partitions")
 	}
 	return strings.Join(w, " + ")
 }
@@ -221,13 +221,13 @@ func Label(p schema.Partitions) string {
 	case schema.SchemeTime:
 		w := make([]string, len(p.Tiers))
 		for i, t := range p.Tiers {
-			w[i] = fmt.Sprintf("%s %s", units.Num(int64(t.Keep)), t.Grain)
+			w[i] = units.Num(int64(t.Keep)) + " " + string(t.Grain)
 		}
 		return strings.Join(w, " + ")
 	case schema.SchemeEven:
-		return fmt.Sprintf("even x%s", units.Num(int64(p.Count)))
+		return "even x" + units.Num(int64(p.Count))
 	case schema.SchemeList:
-		return fmt.Sprintf("%s listed", units.Num(int64(len(p.Items))))
+		return units.Num(int64(len(p.Items))) + " listed"
 	}
 	return string(p.Scheme)
 }

@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"fmt"
+	"strconv"
 
 	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/units"
@@ -73,9 +74,9 @@ func (r Recommendation) Holds() string {
 	case r.HoldsMonths < 0:
 		return "breaks a budget today"
 	case r.HoldsMonths < r.Horizon:
-		return fmt.Sprintf("holds every budget only through %s (%d-month horizon)", r.HoldsThrough, r.Horizon)
+		return "holds every budget only through " + r.HoldsThrough + " (" + strconv.Itoa(r.Horizon) + "-month horizon)"
 	}
-	return fmt.Sprintf("holds every budget through %s (%d-month horizon)", r.HoldsThrough, r.Horizon)
+	return "holds every budget through " + r.HoldsThrough + " (" + strconv.Itoa(r.Horizon) + "-month horizon)"
 }
 
 // Recommended is the table's recommendation, computed once; ok is false when there is

@@ -52,7 +52,7 @@ func Count(n int64) string {
 		f int64
 	}{{"Ti", 1 << 40}, {"Gi", 1 << 30}, {"Mi", 1 << 20}} {
 		if n >= u.f && n%u.f == 0 && n/u.f < 1024 {
-			return fmt.Sprintf("%d%s", n/u.f, u.s)
+			return strconv.FormatInt(n/u.f, 10) + u.s
 		}
 	}
 	for _, u := range []struct {
