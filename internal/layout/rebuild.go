@@ -96,15 +96,8 @@ func RefreshSeconds(parts []Partition, parallelism int, rowsPerS float64) float6
 		return 0
 	}
 	m := max(parallelism, 1)
-	var load [stackCores]float64
-	var heap [stackCores]int
-	var h coreHeap
-	if m <= stackCores {
-		h.load, h.heap = load[:m], heap[:m]
-	} else {
-		h.load, h.heap = make([]float64, m), make([]int, m)
-	}
-	h.reset()
+	var buf [stackCores]coreLoad
+	h := newCoreHeap(&buf, m)
 	for i := 0; i < len(parts); {
 		j := i + 1
 		for j < len(parts) && parts[j].Rows == parts[i].Rows {
@@ -120,9 +113,5 @@ func RefreshSeconds(parts []Partition, parallelism int, rowsPerS float64) float6
 		}
 		i = j
 	}
-	var makespan float64
-	for _, l := range h.load {
-		makespan = max(makespan, l)
-	}
-	return makespan
+	return h.makespan()
 }

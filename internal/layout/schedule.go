@@ -22,15 +22,8 @@ func Schedule(groups []TaskGroup, cores int) (makespan, bound float64) {
 	m := max(cores, 1)
 	// Up to stackCores cores the heap lives on the stack: a scan is scheduled for every
 	// layout a sweep tries, so a heap allocation here is one per candidate and column.
-	var load [stackCores]float64
-	var heap [stackCores]int
-	var h coreHeap
-	if m <= stackCores {
-		h.load, h.heap = load[:m], heap[:m]
-	} else {
-		h.load, h.heap = make([]float64, m), make([]int, m)
-	}
-	h.reset()
+	var buf [stackCores]coreLoad
+	h := newCoreHeap(&buf, m)
 	var sum, longest float64
 	for _, g := range groups {
 		c, t := g.Count, g.Ms
@@ -45,54 +38,71 @@ func Schedule(groups []TaskGroup, cores int) (makespan, bound float64) {
 		}
 		h.bulk(c, t)
 	}
-	for _, l := range h.load {
-		makespan = max(makespan, l)
-	}
-	return makespan, max(sum/float64(m), longest)
+	return h.makespan(), max(sum/float64(m), longest)
 }
 
 // coreHeap is a binary min-heap of cores ordered by (load, index), so the root is the
-// core that frees first with ties to the lowest index.
+// core that frees first with ties to the lowest index. Each entry holds its core's load,
+// so a comparison reads the entries it orders and nothing else.
 type coreHeap struct {
-	load []float64
-	heap []int
+	cores []coreLoad
+}
+
+// coreLoad is one core and the time its tasks so far end at.
+type coreLoad struct {
+	load float64
+	core int
 }
 
 const stackCores = 64
 
-// reset sets every core's load to 0.
-func (h *coreHeap) reset() {
-	for i := range h.heap {
-		h.load[i], h.heap[i] = 0, i // all loads 0: index order is a valid heap
+// newCoreHeap is m idle cores, held in buf when they fit.
+func newCoreHeap(buf *[stackCores]coreLoad, m int) coreHeap {
+	h := coreHeap{cores: buf[:min(m, stackCores)]}
+	if m > stackCores {
+		h.cores = make([]coreLoad, m)
 	}
+	for i := range h.cores {
+		h.cores[i] = coreLoad{core: i} // all loads 0: index order is a valid heap
+	}
+	return h
 }
 
-func (h *coreHeap) less(a, b int) bool {
-	la, lb := h.load[a], h.load[b]
-	return la < lb || (la == lb && a < b)
+// makespan is when the last core frees.
+func (h *coreHeap) makespan() float64 {
+	var end float64
+	for _, c := range h.cores {
+		end = max(end, c.load)
+	}
+	return end
+}
+
+func (a coreLoad) before(b coreLoad) bool {
+	return a.load < b.load || (a.load == b.load && a.core < b.core)
 }
 
 func (h *coreHeap) down(i int) {
-	n := len(h.heap)
+	cs := h.cores
+	n := len(cs)
 	for {
 		l := 2*i + 1
 		if l >= n {
 			return
 		}
 		j := l
-		if r := l + 1; r < n && h.less(h.heap[r], h.heap[l]) {
+		if r := l + 1; r < n && cs[r].before(cs[l]) {
 			j = r
 		}
-		if !h.less(h.heap[j], h.heap[i]) {
+		if !cs[j].before(cs[i]) {
 			return
 		}
-		h.heap[i], h.heap[j] = h.heap[j], h.heap[i]
+		cs[i], cs[j] = cs[j], cs[i]
 		i = j
 	}
 }
 
 func (h *coreHeap) init() {
-	for i := len(h.heap)/2 - 1; i >= 0; i-- {
+	for i := len(h.cores)/2 - 1; i >= 0; i-- {
 		h.down(i)
 	}
 }
@@ -100,7 +110,7 @@ func (h *coreHeap) init() {
 // run assigns c tasks of t one at a time.
 func (h *coreHeap) run(c int64, t float64) {
 	for range c {
-		h.load[h.heap[0]] += t
+		h.cores[0].load += t
 		h.down(0)
 	}
 }
@@ -111,12 +121,12 @@ func (h *coreHeap) run(c int64, t float64) {
 // key and within one task of it; every key under T is assigned in one step, the few
 // left one at a time.
 func (h *coreHeap) bulk(c int64, t float64) {
-	m := int64(len(h.load))
+	m := int64(len(h.cores))
 	// below counts the keys under level T, capped at c so it cannot overflow.
 	below := func(T float64) int64 {
 		var s int64
-		for _, l := range h.load {
-			if T > l {
+		for _, cl := range h.cores {
+			if l := cl.load; T > l {
 				k := math.Ceil((T - l) / t)
 				if !(k < float64(c)) {
 					return c
@@ -129,9 +139,9 @@ func (h *coreHeap) bulk(c int64, t float64) {
 		}
 		return s
 	}
-	lo, hi := h.load[0], h.load[0]
-	for _, l := range h.load {
-		lo, hi = min(lo, l), max(hi, l)
+	lo, hi := h.cores[0].load, h.cores[0].load
+	for _, cl := range h.cores {
+		lo, hi = min(lo, cl.load), max(hi, cl.load)
 	}
 	// At hi every core has at least c/m + 1 keys below it: m*(c/m+1) > c.
 	hi += float64(float64(c/m+2) * t)
@@ -154,10 +164,10 @@ func (h *coreHeap) bulk(c int64, t float64) {
 		}
 	}
 	var done int64
-	for i, l := range h.load {
-		if lo > l {
+	for i := range h.cores {
+		if l := h.cores[i].load; lo > l {
 			k := units.Int64(math.Ceil((lo - l) / t))
-			h.load[i] = l + float64(float64(k)*t)
+			h.cores[i].load = l + float64(float64(k)*t)
 			done += k
 		}
 	}
@@ -166,8 +176,8 @@ func (h *coreHeap) bulk(c int64, t float64) {
 	// float; hand those out in whole rounds, which is what the cores would do.
 	if left > 4*m {
 		q := left/m - 1
-		for i, l := range h.load {
-			h.load[i] = l + float64(float64(q)*t)
+		for i := range h.cores {
+			h.cores[i].load += float64(float64(q) * t)
 		}
 		left -= q * m
 	}
