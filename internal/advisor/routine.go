@@ -97,10 +97,12 @@ func (md *Model) RoutinePeak() (peak float64, ok bool) {
 func (md *Model) rebuilds(w layout.Window, spec schema.Table, p *policy) (routine, full layout.Rebuild) {
 	if p.rebuilt == nil {
 		rate := md.M.Engine.RefreshRowsPerS
-		p.rebuilt = &[2]layout.Rebuild{
-			w.Rebuilt(spec, p.parts, md.parallelism, rate),
-			layout.Window{Whole: true}.Rebuilt(spec, p.parts, md.parallelism, rate),
+		full := layout.Window{Whole: true}.Rebuilt(spec, p.parts, md.parallelism, rate)
+		routine := full // without a routine refresh declared, every refresh is a full one
+		if !w.Whole {
+			routine = w.Rebuilt(spec, p.parts, md.parallelism, rate)
 		}
+		p.rebuilt = &[2]layout.Rebuild{routine, full}
 	}
 	return p.rebuilt[0], p.rebuilt[1]
 }
