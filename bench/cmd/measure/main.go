@@ -1,7 +1,9 @@
 // Command measure runs scangate and the decode-only baseline on the benchmark inputs,
 // several times each, and prints median wall time, CPU time and peak memory with their
-// ratios against the targets. Both programs run in the same invocation, so the ratios
-// hold even on a busy machine where the absolute times do not.
+// ratios against the targets. The two runs of a ratio go back to back in each round, in
+// alternating order, and the ratio is the median of the rounds' own ratios: a slow spell
+// of a shared machine moves both runs of a round, so the ratios hold even where the
+// absolute times do not.
 //
 //	go run ./bench/cmd/measure -bin DIR -in DIR [-runs 5]
 package main
@@ -74,6 +76,50 @@ func measure(runs int, name string, args ...string) sample {
 	return median(xs)
 }
 
+// ratio is a/b of wall time, CPU time and peak memory.
+type ratio struct{ wall, cpu, rss float64 }
+
+// paired runs a and b back to back runs times, b first every other round, and returns
+// their medians and the medians of the rounds' ratios a/b.
+func paired(runs int, a, b []string) (sa, sb sample, r ratio) {
+	var as, bs []sample
+	var wall, cpu, rss []float64
+	for i := 0; i < runs; i++ {
+		first, second := a, b
+		if i%2 == 1 {
+			first, second = b, a
+		}
+		x, y := mustRun(first), mustRun(second)
+		if i%2 == 1 {
+			x, y = y, x
+		}
+		as, bs = append(as, x), append(bs, y)
+		wall = append(wall, float64(x.wall)/float64(y.wall))
+		cpu = append(cpu, float64(x.cpu)/float64(y.cpu))
+		rss = append(rss, float64(x.rssKB)/float64(y.rssKB))
+	}
+	return median(as), median(bs), ratio{middle(wall), middle(cpu), middle(rss)}
+}
+
+// middle is the median of xs (the mean of the two middle ones for an even count).
+func middle(xs []float64) float64 {
+	sort.Float64s(xs)
+	n := len(xs)
+	if n%2 == 1 {
+		return xs[n/2]
+	}
+	return (xs[n/2-1] + xs[n/2]) / 2
+}
+
+func mustRun(cmd []string) sample {
+	s, err := run(cmd[0], cmd[1:]...)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, err)
+		os.Exit(1)
+	}
+	return s
+}
+
 func size(dir string) int64 {
 	var n int64
 	filepath.WalkDir(dir, func(_ string, d fs.DirEntry, err error) error {
@@ -105,11 +151,14 @@ func main() {
 		return "MISSED"
 	}
 	var readme []row
-	check := func(dir string, extra ...string) sample {
-		return measure(*runs, scangate, append(append([]string{"check", "--fail-on", "never"}, extra...), dir)...)
+	checkCmd := func(dir string, extra ...string) []string {
+		return append(append([]string{scangate, "check", "--fail-on", "never"}, extra...), dir)
+	}
+	// against is a check of dir, paired with the baseline's decode of it.
+	against := func(dir string) (s, b sample, r ratio) {
+		return paired(*runs, checkCmd(dir), []string{decode, dir})
 	}
 	fmt.Printf("%-24s %10s %10s %9s | %10s %10s %9s | %6s %6s %6s %8s\n", "input", "wall ms", "cpu ms", "peak MiB", "base wall", "base cpu", "base MiB", "wall x", "cpu x", "MiB x", "MiB/in")
-	var text sample // the monorepo's text run, for the json run's ratio
 	for _, c := range []struct{ name, dir, readme string }{
 		{"(a) 100k listed", "listed", "one manifest, 100,000 listed partitions"},
 		{"(b) monorepo 2000x40", "monorepo", "2,000 manifests of about 40 tables, 5% messy"},
@@ -119,10 +168,9 @@ func main() {
 		{"(d) 100k tables", "tables/100000", "one manifest of 100,000 small tables"},
 	} {
 		dir := filepath.Join(*in, c.dir)
-		s, b := check(dir), measure(*runs, decode, dir)
-		wx, cx := float64(s.wall)/float64(b.wall), float64(s.cpu)/float64(b.cpu)
+		s, b, r := against(dir)
+		wx, cx, basex := r.wall, r.cpu, r.rss
 		memx := float64(s.rssKB*1024) / float64(size(dir))
-		basex := float64(s.rssKB) / float64(b.rssKB)
 		fmt.Printf("%-24s %10.0f %10.0f %9.1f | %10.0f %10.0f %9.1f | %6.2f %6.2f %6.2f %8.1f\n", c.name,
 			ms(s.wall), ms(s.cpu), mib(s), ms(b.wall), ms(b.cpu), mib(b), wx, cx, basex, memx)
 		switch c.dir {
@@ -131,39 +179,34 @@ func main() {
 		case "monorepo", "dense":
 			fmt.Printf("    target: cpu within 1.5x of the baseline: %s (aim: 1.2x)\n", verdict(cx <= 1.5))
 		}
-		if c.dir == "monorepo" {
-			text = s
-		}
 		readme = append(readme, row{fmt.Sprintf("%s (%s)", c.readme, sizeWords(size(dir))), fmt.Sprintf("%.2fx", cx), fmt.Sprintf("%.2fx", wx),
 			fmt.Sprintf("%.0f MiB (%.2fx)", mib(s), basex), fmt.Sprintf("%.1fx", memx), fmt.Sprintf("%.0f MiB", mib(b))})
 	}
 
 	mono := filepath.Join(*in, "monorepo")
-	j := check(mono, "--format", "json")
-	jx := float64(j.rssKB) / float64(text.rssKB)
-	fmt.Printf("\n--format json on the monorepo: %.0f ms cpu (%.2fx the text run), %.1f MiB peak (%.2fx the text run's)\n", ms(j.cpu), float64(j.cpu)/float64(text.cpu), mib(j), jx)
-	fmt.Printf("    target: peak memory within 2.5x of the text run's: %s\n", verdict(jx <= 2.5))
-	readme = append(readme, row{"the monorepo, `--format json` (against the text run)", fmt.Sprintf("%.2fx", float64(j.cpu)/float64(text.cpu)), fmt.Sprintf("%.2fx", float64(j.wall)/float64(text.wall)),
-		fmt.Sprintf("%.0f MiB (%.2fx)", mib(j), jx), "", fmt.Sprintf("%.0f MiB", mib(text))})
+	j, text, jr := paired(*runs, checkCmd(mono, "--format", "json"), checkCmd(mono))
+	fmt.Printf("\n--format json on the monorepo: %.0f ms cpu (%.2fx the text run), %.1f MiB peak (%.2fx the text run's)\n", ms(j.cpu), jr.cpu, mib(j), jr.rss)
+	fmt.Printf("    target: peak memory within 2.5x of the text run's: %s\n", verdict(jr.rss <= 2.5))
+	readme = append(readme, row{"the monorepo, `--format json` (against the text run)", fmt.Sprintf("%.2fx", jr.cpu), fmt.Sprintf("%.2fx", jr.wall),
+		fmt.Sprintf("%.0f MiB (%.2fx)", mib(j), jr.rss), "", fmt.Sprintf("%.0f MiB", mib(text))})
 
 	head := filepath.Join(*in, "monorepo-changed")
-	d, h := measure(*runs, scangate, "diff", mono, head), check(head)
-	dx, dm := float64(d.cpu)/float64(h.cpu), float64(d.rssKB)/float64(h.rssKB)
-	fmt.Printf("diff of the monorepo and a copy with 5%% of its files changed: %.0f ms cpu (%.2fx one check of the head side), %.1f MiB peak (%.2fx)\n", ms(d.cpu), dx, mib(d), dm)
-	fmt.Printf("    target: cpu within 1.5x of one check: %s; peak memory within 2x: %s\n", verdict(dx <= 1.5), verdict(dm <= 2))
-	readme = append(readme, row{"`diff` of the monorepo and a copy with 5% of its files changed (against one check of the copy)", fmt.Sprintf("%.2fx", dx), fmt.Sprintf("%.2fx", float64(d.wall)/float64(h.wall)),
-		fmt.Sprintf("%.0f MiB (%.2fx)", mib(d), dm), "", fmt.Sprintf("%.0f MiB", mib(h))})
+	d, h, dr := paired(*runs, []string{scangate, "diff", mono, head}, checkCmd(head))
+	fmt.Printf("diff of the monorepo and a copy with 5%% of its files changed: %.0f ms cpu (%.2fx one check of the head side), %.1f MiB peak (%.2fx)\n", ms(d.cpu), dr.cpu, mib(d), dr.rss)
+	fmt.Printf("    target: cpu within 1.5x of one check: %s; peak memory within 2x: %s\n", verdict(dr.cpu <= 1.5), verdict(dr.rss <= 2))
+	readme = append(readme, row{"`diff` of the monorepo and a copy with 5% of its files changed (against one check of the copy)", fmt.Sprintf("%.2fx", dr.cpu), fmt.Sprintf("%.2fx", dr.wall),
+		fmt.Sprintf("%.0f MiB (%.2fx)", mib(d), dr.rss), "", fmt.Sprintf("%.0f MiB", mib(h))})
 
 	fmt.Println("\ngrowth with partitions (one time-partitioned table):")
 	growth := func(what string, ns []int, dir func(int) string) {
 		var prev sample
 		for i, n := range ns {
-			s, b := check(dir(n)), measure(*runs, decode, dir(n))
+			s, _, r := against(dir(n))
 			g := ""
 			if i > 0 {
 				g = fmt.Sprintf("  x%.1f cpu, x%.1f MiB for %gx the %s", float64(s.cpu)/float64(prev.cpu), float64(s.rssKB)/float64(prev.rssKB), float64(n)/float64(ns[i-1]), what)
 			}
-			fmt.Printf("  %9d %s: %8.0f ms cpu (%.2fx the baseline) %8.1f MiB%s\n", n, what, ms(s.cpu), float64(s.cpu)/float64(b.cpu), mib(s), g)
+			fmt.Printf("  %9d %s: %8.0f ms cpu (%.2fx the baseline) %8.1f MiB%s\n", n, what, ms(s.cpu), r.cpu, mib(s), g)
 			prev = s
 		}
 	}
