@@ -351,6 +351,9 @@ type oneSegment struct {
 	smaller []layout.Smaller // by column
 	done    bool
 	cache   Figures // only Widest, WallMs and Bytes are set
+	// today is the column figures at today's capacity (Widest, WallMs, Bytes), handed
+	// over by the analysis (Scanned) for the table as the manifest has it; nil for none.
+	today *Figures
 }
 
 func newOneSegment() *oneSegment { return &oneSegment{top: -1} }
@@ -396,6 +399,10 @@ func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int6
 	md.work++
 	f := Figures{Rows: spec.Rows, Layout: layout.Compute(parts, s, md.M.Engine.SegmentOverheadMs)}
 	memo := w.memo(spec)
+	if g := md.atToday(w, memo, s); g != nil {
+		f.Widest, f.WallMs, f.Bytes = g.Widest, g.WallMs, g.Bytes
+		return f
+	}
 	whole := memo != nil && w.fits(spec, parts, s)
 	if whole && w.done {
 		f.Widest, f.WallMs, f.Bytes = w.cache.Widest, w.cache.WallMs, w.cache.Bytes
@@ -412,6 +419,16 @@ func (md *Model) figuresWith(spec schema.Table, parts []layout.Partition, s int6
 		w.done, w.cache = true, Figures{Widest: f.Widest, WallMs: f.WallMs, Bytes: f.Bytes}
 	}
 	return f
+}
+
+// atToday is the figures the analysis handed over for w (Scanned) when s is today's
+// capacity and memo (w's, for the spec at hand) is set: w is the table's own entry for
+// its spec, so the same partitions and rows. Nil otherwise.
+func (md *Model) atToday(w *oneSegment, memo []layout.Smaller, s int64) *Figures {
+	if w == nil || w.today == nil || memo == nil || s != md.M.Engine.SegmentRows {
+		return nil
+	}
+	return w.today
 }
 
 // at is &memo[k], nil without a memo.
@@ -461,6 +478,17 @@ func (md *Model) Expanded(i int, parts []layout.Partition) {
 		md.expanded = make([][]layout.Partition, len(md.M.Tables))
 	}
 	md.expanded[i] = parts
+}
+
+// Scanned hands the model table i's column figures as the manifest lays it out (the
+// analysis sizes and schedules them first): the widest column, its scan's WallMs and
+// the columns' bytes. A sweep, a view or a forecast that lays the table out as it is,
+// at today's capacity and today's rows, quotes them instead of figuring them again.
+// Call it after Expanded.
+func (md *Model) Scanned(i int, widest string, wallMs, bytes float64) {
+	if _, _, w := md.grownEntry(i, 0); w != nil {
+		w.today = &Figures{Widest: widest, WallMs: wallMs, Bytes: bytes}
+	}
 }
 
 // grownTable is table j grown for month months, and its partitions, expanded once.
@@ -1135,7 +1163,7 @@ const (
 // not the miss's figure (byFloor).
 func (md *Model) decidedFigures(spec schema.Table, parts []layout.Partition, s int64, w *oneSegment, scanMs *float64, share float64, bytes, over bool) (f Figures, how figured) {
 	memo := w.memo(spec)
-	if memo != nil && w.fits(spec, parts, s) && w.done {
+	if memo != nil && (w.fits(spec, parts, s) && w.done || md.atToday(w, memo, s) != nil) {
 		return md.figuresWith(spec, parts, s, w), scheduled // figured already
 	}
 	md.work++

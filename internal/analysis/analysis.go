@@ -132,9 +132,16 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 			Layout:  layout.Compute(parts, m.Engine.SegmentRows, m.Engine.SegmentOverheadMs),
 			model:   md,
 		}
+		var bytes float64
 		var exact bool
-		t.Widest, t.Scan, t.encoded, exact = widest(spec, parts, m.Engine)
-		t.encodedDone = exact
+		t.Widest, t.Scan, bytes, exact = widest(spec, parts, m.Engine)
+		if t.Widest != nil {
+			// The sweeps and views lay the table out as it is too: they quote these.
+			md.advisor.Scanned(i, t.Widest.Name, t.Scan.WallMs, bytes)
+		}
+		if exact {
+			t.encoded, t.encodedDone = bytes, true
+		}
 		t.window = layout.WindowOf(spec, parts)
 		par := m.Engine.RefreshWorkers()
 		t.Full = layout.Window{Whole: true}.Rebuilt(spec, parts, par, m.Engine.RefreshRowsPerS)
@@ -181,8 +188,9 @@ func (t *Table) Levels() advisor.Levels {
 func (t *Table) RoutineDeclared() bool { return !t.window.Whole }
 
 // widest finds the column whose full scan costs most, and that scan, from the same
-// estimates (layout.Estimated); with the columns' summed bytes, which are the table's
-// encoded bytes (EncodedBytes) when exact: when the table's rows are its partitions'.
+// estimates (layout.Estimated); with the columns' summed bytes (sized by the partitions'
+// rows, as the advisor sizes them), which are the table's encoded bytes (EncodedBytes,
+// sized by the table's rows) when exact: when the two are the same.
 func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (_ *schema.Column, _ layout.Scan, bytes float64, exact bool) {
 	// Sizes are cheap; only the widest column's scan is scheduled.
 	var best *schema.Column
@@ -204,7 +212,7 @@ func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (_ *sc
 	if es := &sized[1-next]; es.For(spec.Rows, e) {
 		return best, es.Scan(e), bytes, true
 	}
-	return best, layout.ScanColumn(*best, spec.Rows, parts, e), 0, false
+	return best, layout.ScanColumn(*best, spec.Rows, parts, e), bytes, false
 }
 
 // EncodedBytes is the encoded size of the table's profiled columns.

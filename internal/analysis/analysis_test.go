@@ -1,10 +1,13 @@
 package analysis
 
 import (
+	"maps"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
+	"github.com/scangate/scangate/bench/gen"
 	"github.com/scangate/scangate/internal/advisor"
 	"github.com/scangate/scangate/internal/layout"
 	"github.com/scangate/scangate/schema"
@@ -136,5 +139,60 @@ func TestEncodedBytesAreTableBytes(t *testing.T) {
 	}
 	if profiled < 4 {
 		t.Fatalf("only %d profiled tables", profiled)
+	}
+}
+
+// The sweeps quote the figures Analyze hands over for each table as it is (Scanned)
+// instead of figuring them again: every pick, closest layout and figured candidate must
+// be what a model without them finds, pruned or in full. Generated manifests with
+// about half the tables flagged (the benchmark's), and the demo.
+func TestScannedFiguresAreTheSweepsOwn(t *testing.T) {
+	var srcs [][]byte
+	files := gen.Dense(12, 5)
+	for _, name := range slices.Sorted(maps.Keys(files)) {
+		srcs = append(srcs, files[name])
+	}
+	for _, name := range []string{"billing", "meter-telemetry", "network-assets"} {
+		data, err := os.ReadFile("../../testdata/demo/" + name + ".yaml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		srcs = append(srcs, data)
+	}
+	quoted := 0
+	for n, src := range srcs {
+		for _, set := range []advisor.Settings{{Prune: true, Lean: true}, {Prune: true}, {}} {
+			m := load(t, string(src))
+			md := Analyze(m, advisor.DefaultLevels)
+			bare := advisor.NewModel(m)
+			for _, tb := range md.Tables {
+				bare.Expanded(tb.Index, tb.Parts)
+			}
+			for _, tb := range md.Tables {
+				got, want := md.advisor.Sweep(tb.Index, set), bare.Sweep(tb.Index, set)
+				if got.Recommended != want.Recommended || got.Closest != want.Closest || len(got.Candidates) != len(want.Candidates) {
+					t.Fatalf("manifest %d, %s (%+v): pick %d closest %d of %d, without the hand-over %d, %d of %d", n, tb.Spec.Name, set,
+						got.Recommended, got.Closest, len(got.Candidates), want.Recommended, want.Closest, len(want.Candidates))
+				}
+				for k := range got.Candidates {
+					g, w := got.Candidates[k], want.Candidates[k]
+					if g.Fits != w.Fits || !slices.Equal(g.Misses, w.Misses) || !slices.Equal(g.Warnings, w.Warnings) || g.Layout != w.Layout || g.Peak != w.Peak {
+						t.Fatalf("manifest %d, %s, candidate %d (%s): %+v, without the hand-over %+v", n, tb.Spec.Name, k, g.Change, g, w)
+					}
+					// A full sweep figures every candidate in full, a pruned one its pick and
+					// closest layout: those column figures are the same. (A pruned sweep may
+					// quote exact figures where the other keeps a ceiling.)
+					if (k == got.Recommended || k == got.Closest || !set.Prune) && g.Figures != w.Figures {
+						t.Fatalf("manifest %d, %s, candidate %d (%s): %+v, without the hand-over %+v", n, tb.Spec.Name, k, g.Change, g.Figures, w.Figures)
+					}
+				}
+				if tb.Widest != nil {
+					quoted++
+				}
+			}
+		}
+	}
+	if quoted < 50 {
+		t.Fatalf("only %d profiled tables swept", quoted)
 	}
 }
