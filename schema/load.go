@@ -321,6 +321,9 @@ func encodingProblem(data []byte) *Problem {
 	if bytes.HasPrefix(body, []byte{0xEF, 0xBB, 0xBF}) {
 		return &Problem{Pos: Pos{1, 1}, Message: "file starts with more than one byte order mark; remove all but one (or save it as UTF-8 again)"}
 	}
+	if utf8.Valid(body) && bytes.IndexByte(body, 0) < 0 {
+		return nil // the common case, checked a word at a time
+	}
 	// The first NUL or invalid byte, reported at its own line and column.
 	for i := 0; i < len(body); {
 		r, size := utf8.DecodeRune(body[i:])
