@@ -558,6 +558,14 @@ func (q *quick) object(m object) verdict {
 	if q.noExtra && q.names == nil {
 		return fails // a key the schema does not name
 	}
+	return r.and(q.others(m))
+}
+
+// others judges the keys of m the schema does not name, and every key's name. (Apart
+// from object, so the verdict object keeps is not captured by the visit and stays on
+// the stack: object runs for every mapping of every file.)
+func (q *quick) others(m object) verdict {
+	r := passes
 	m.each(func(k string, v any) bool {
 		if q.names != nil {
 			if r = r.and(q.names.check(k)); r == fails {
