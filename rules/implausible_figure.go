@@ -64,19 +64,19 @@ func checkImplausibleFigure(t *analysis.Table, cfg Config) []Finding {
 	}
 	rows := t.Layout.Rows
 	for _, c := range spec.Columns {
-		subject := "column:" + c.Name
+		subject := func() string { return "column:" + c.Name } // made only for a finding
 		switch {
 		case c.Type == "bool" && c.Distinct > 2:
-			add(c.Pos, subject, fmt.Sprintf("bool column %s declares %s distinct values; a bool has at most 2", c.Name, units.Count(c.Distinct)),
+			add(c.Pos, subject(), fmt.Sprintf("bool column %s declares %s distinct values; a bool has at most 2", c.Name, units.Count(c.Distinct)),
 				"set distinct: 2 or drop it (2 is the default for bool)", map[string]float64{"distinct": float64(c.Distinct)})
 		case c.Distinct > rows:
-			add(c.Pos, subject, fmt.Sprintf("column %s declares %s distinct values in a table of %s rows; each value needs a row",
+			add(c.Pos, subject(), fmt.Sprintf("column %s declares %s distinct values in a table of %s rows; each value needs a row",
 				c.Name, units.Count(c.Distinct), units.Count(rows)),
 				fmt.Sprintf("set distinct to at most %s (the rows), or drop it: the default is every value unique", units.Count(rows)),
 				map[string]float64{"distinct": float64(c.Distinct), "rows": float64(rows)})
 		}
 		if c.RunLength > rows && rows > 0 {
-			add(c.Pos, subject, fmt.Sprintf("column %s declares runs of %s rows in a table of %s rows", c.Name, units.Count(c.RunLength), units.Count(rows)),
+			add(c.Pos, subject(), fmt.Sprintf("column %s declares runs of %s rows in a table of %s rows", c.Name, units.Count(c.RunLength), units.Count(rows)),
 				fmt.Sprintf("set run_length to at most %s, or drop it", units.Count(rows)),
 				map[string]float64{"run_length": float64(c.RunLength), "rows": float64(rows)})
 		}

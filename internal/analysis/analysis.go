@@ -29,7 +29,8 @@ type Model struct {
 
 	advisor *advisor.Model
 	levels  advisor.Levels
-	peaks   *Peaks // RefreshPeaks, once computed
+	peaks   *Peaks              // RefreshPeaks, once computed
+	sized   [2]layout.Estimated // widest's column estimates, their buffers reused table to table
 }
 
 // Peaks are the model's memory peaks during a full and a routine refresh with today's
@@ -134,7 +135,7 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		}
 		var bytes float64
 		var exact bool
-		t.Widest, t.Scan, bytes, exact = widest(spec, parts, m.Engine)
+		t.Widest, t.Scan, bytes, exact = widest(spec, parts, m.Engine, &md.sized)
 		if t.Widest != nil {
 			// The sweeps and views lay the table out as it is too: they quote these.
 			md.advisor.Scanned(i, t.Widest.Name, t.Scan.WallMs, bytes)
@@ -151,6 +152,7 @@ func Analyze(m *schema.Manifest, lv advisor.Levels) *Model {
 		}
 		md.Tables = append(md.Tables, t)
 	}
+	md.sized = [2]layout.Estimated{} // sized for the largest table; nothing reads them now
 	return md
 }
 
@@ -191,12 +193,11 @@ func (t *Table) RoutineDeclared() bool { return !t.window.Whole }
 // estimates (layout.Estimated); with the columns' summed bytes (sized by the partitions'
 // rows, as the advisor sizes them), which are the table's encoded bytes (EncodedBytes,
 // sized by the table's rows) when exact: when the two are the same.
-func widest(spec schema.Table, parts []layout.Partition, e schema.Engine) (_ *schema.Column, _ layout.Scan, bytes float64, exact bool) {
+func widest(spec schema.Table, parts []layout.Partition, e schema.Engine, sized *[2]layout.Estimated) (_ *schema.Column, _ layout.Scan, bytes float64, exact bool) {
 	// Sizes are cheap; only the widest column's scan is scheduled.
 	var best *schema.Column
 	bestBytes := -1.0
-	var sized [2]layout.Estimated // the widest so far, and the next column
-	next := 0
+	next := 0 // sized[next] is free; the other holds the widest so far
 	for i := range spec.Columns {
 		c := &spec.Columns[i]
 		b := sized[next].Estimate(*c, parts, e.SegmentRows, nil)
