@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strconv"
 	"time"
+
+	"go.yaml.in/yaml/v3"
 )
 
 // MaxPartitions bounds the partitions one table may generate, so a policy such as
@@ -24,7 +26,25 @@ type decoder struct {
 
 // ok reports whether the value at ptr may be checked: neither it nor a value holding it
 // was found wrong.
-func (d *decoder) ok(ptr string) bool { return !d.bad.covers(ptr) }
+func (d *decoder) ok(ptr string) bool { return d.bad.at == nil || !d.bad.covers(ptr) }
+
+// nodePos is where node n is written: pos of the pointer whose walk ends at n (a
+// sequence element, aliases and all), without the walk from the root.
+func nodePos(n *yaml.Node) Pos { return Pos{n.Line, n.Column} }
+
+// valuePos is pos(ptr + "/" + key) for the mapping raw at ptr: the value of its own key,
+// found as locate finds it (lookupKey's first pass); a key a merge brings in is located
+// from the root.
+func (d *decoder) valuePos(raw obj, ptr, key string) Pos {
+	if m := raw.n; m != nil {
+		for i := 0; i+1 < len(m.Content); i += 2 {
+			if k := m.Content[i]; k.Kind == yaml.ScalarNode && k.Tag != "!!merge" && k.Value == key {
+				return nodePos(m.Content[i+1])
+			}
+		}
+	}
+	return d.pos(ptr + "/" + key)
+}
 
 func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
 	d := &decoder{t: t, bad: bad}
@@ -50,12 +70,12 @@ func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifes
 		if !isMap || !d.ok(ptr) {
 			continue
 		}
-		tb := d.table(ptr, tm)
+		tb := d.table(ptr, tm, nodePos(tables.n.Content[i]))
 		if _, named := tm.str("name"); named && d.ok(ptr+"/name") {
 			if first, dup := names[tb.Name]; dup {
 				d.fail(ptr+"/name", fmt.Sprintf("table %s is already declared at line %d; table names must be unique", quoteShort(tb.Name), first.Line))
 			} else {
-				names[tb.Name] = d.pos(ptr + "/name")
+				names[tb.Name] = d.valuePos(tm, ptr, "name")
 			}
 		}
 		m.Tables = append(m.Tables, tb)
@@ -324,19 +344,18 @@ func (d *decoder) budgets(ptr string, b fields) Budgets {
 	return out
 }
 
-func (d *decoder) table(ptr string, raw obj) Table {
-	at := d.pos(ptr)
+func (d *decoder) table(ptr string, raw obj, at Pos) Table {
 	t := Table{Pos: at, RowsPos: at}
 	t.Name, _ = raw.str("name")
 	if v, ok := raw.get("rows"); ok {
 		t.Rows = d.count(ptr+"/rows", v, false)
 		t.RowsDeclared = true
-		t.RowsPos = d.pos(ptr + "/rows")
+		t.RowsPos = d.valuePos(raw, ptr, "rows")
 	}
 	t.GrowthPos = t.Pos
 	if v, ok := raw.get("growth_per_year"); ok {
 		t.GrowthPerYear = number(v)
-		t.GrowthPos = d.pos(ptr + "/growth_per_year")
+		t.GrowthPos = d.valuePos(raw, ptr, "growth_per_year")
 	}
 	if b, ok := raw.field("budgets").(obj); ok {
 		t.Budgets = d.budgets(ptr+"/budgets", b)
@@ -376,7 +395,7 @@ func (d *decoder) table(ptr string, raw obj) Table {
 		if !ok || !d.ok(cp) {
 			continue
 		}
-		col := d.column(cp, cm)
+		col := d.column(cp, cm, nodePos(cols.n.Content[i]))
 		if _, named := cm.str("name"); named && d.ok(cp+"/name") {
 			if line, dup := seen[col.Name]; dup {
 				d.fail(cp+"/name", fmt.Sprintf("column %s is already profiled at line %d; column names must be unique", quoteShort(col.Name), line))
@@ -435,7 +454,7 @@ func (d *decoder) tiers(ptr string, v any) []Tier {
 		if d.ok(tp + "/keep") {
 			keep = number(tm.field("keep"))
 		}
-		tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: d.pos(tp)}
+		tier := Tier{Grain: Grain(g), Keep: int(min(keep, MaxPartitions+1)), Pos: nodePos(tiers.n.Content[i])}
 		if !isMap || !d.ok(tp) || !d.ok(tp+"/grain") || tier.Grain.Rank() < 0 {
 			prev = nil
 			total += keep
@@ -539,8 +558,8 @@ func (d *decoder) routine(ptr string, refresh obj, scheme Scheme) Routine {
 // maxRecentDays is the manifest schema's maximum of refresh.routine.recent_days.
 const maxRecentDays = 36525
 
-func (d *decoder) column(ptr string, raw obj) Column {
-	c := Column{Pos: d.pos(ptr), Order: Random}
+func (d *decoder) column(ptr string, raw obj, at Pos) Column {
+	c := Column{Pos: at, Order: Random}
 	c.Name, _ = raw.str("name")
 	c.Type, _ = raw.str("type")
 	if v, ok := raw.get("distinct"); ok {
