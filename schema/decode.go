@@ -36,14 +36,31 @@ func nodePos(n *yaml.Node) Pos { return Pos{n.Line, n.Column} }
 // found as locate finds it (lookupKey's first pass); a key a merge brings in is located
 // from the root.
 func (d *decoder) valuePos(raw obj, ptr, key string) Pos {
+	if i := ownKeyAt(raw, key); i >= 0 {
+		return nodePos(raw.n.Content[i+1])
+	}
+	return d.pos(ptr + "/" + key)
+}
+
+// keyPosIn is keyPos(ptr + "/" + key) for the mapping raw at ptr, as valuePos is pos.
+func (d *decoder) keyPosIn(raw obj, ptr, key string) Pos {
+	if i := ownKeyAt(raw, key); i >= 0 {
+		return nodePos(raw.n.Content[i])
+	}
+	return d.keyPos(ptr + "/" + key)
+}
+
+// ownKeyAt is the index in raw's content of its own key named key, as lookupKey's first
+// pass finds it; -1 for none.
+func ownKeyAt(raw obj, key string) int {
 	if m := raw.n; m != nil {
 		for i := 0; i+1 < len(m.Content); i += 2 {
 			if k := m.Content[i]; k.Kind == yaml.ScalarNode && k.Tag != "!!merge" && k.Value == key {
-				return nodePos(m.Content[i+1])
+				return i
 			}
 		}
 	}
-	return d.pos(ptr + "/" + key)
+	return -1
 }
 
 func (t *tree) decode(root obj, project *ProjectConfig, bad badValues) (*Manifest, []Problem) {
@@ -362,7 +379,7 @@ func (d *decoder) table(ptr string, raw obj, at Pos) Table {
 	}
 	itemsOK := false
 	if pm, ok := raw.field("partitions").(obj); ok && d.ok(ptr+"/partitions") {
-		t.Partitions, itemsOK = d.partitions(ptr+"/partitions", pm)
+		t.Partitions, itemsOK = d.partitions(ptr+"/partitions", pm, d.keyPosIn(raw, ptr, "partitions"))
 	}
 	ws, _ := raw.field("waivers").(list)
 	for i, w := range ws.items() {
@@ -409,8 +426,8 @@ func (d *decoder) table(ptr string, raw obj, at Pos) Table {
 }
 
 // partitions decodes a policy; itemsOK says a list policy's items are all well-formed.
-func (d *decoder) partitions(ptr string, raw obj) (p Partitions, itemsOK bool) {
-	p = Partitions{Pos: d.keyPos(ptr)}
+func (d *decoder) partitions(ptr string, raw obj, at Pos) (p Partitions, itemsOK bool) {
+	p = Partitions{Pos: at}
 	s, _ := raw.str("scheme")
 	if !d.ok(ptr + "/scheme") {
 		s = ""

@@ -10,7 +10,7 @@ import (
 )
 
 // The decoder takes a table's, column's and tier's position from its node, and a
-// table's rows and growth from its own keys, instead of walking the pointer from the
+// table's rows, growth and partitions from its own keys, instead of walking the pointer from the
 // root: every manifest under testdata that loads, and one of shared profiles, tables
 // and merged keys, must get the positions the walk (locate) gives.
 func TestDecodedPositionsAreTheWalks(t *testing.T) {
@@ -59,6 +59,9 @@ tables:
 			}
 			if tb.GrowthPerYear != 0 && tb.GrowthPos != want(ptr+"/growth_per_year") {
 				t.Errorf("%s: table %s growth at %v, the walk says %v", name, tb.Name, tb.GrowthPos, want(ptr+"/growth_per_year"))
+			}
+			if tb.Partitions.Scheme != "" && tb.Partitions.Pos != d.keyPos(ptr+"/partitions") {
+				t.Errorf("%s: table %s partitions at %v, the walk says %v", name, tb.Name, tb.Partitions.Pos, d.keyPos(ptr+"/partitions"))
 			}
 			for j, c := range tb.Columns {
 				if p := ptr + "/columns/" + strconv.Itoa(j); c.Pos != want(p) {
