@@ -316,6 +316,12 @@ func unboxed(v any) (scal, bool) {
 // equal compares a document value with a const or enum value of the schema.
 func equal(v, want any) verdict {
 	sc, isScalar := unboxed(v)
+	return equalScalar(sc, isScalar, want)
+}
+
+// equalScalar is equal of a value already unboxed: an enum compares one value with
+// each of its members.
+func equalScalar(sc scal, isScalar bool, want any) verdict {
 	switch w := want.(type) {
 	case string:
 		return truth(isScalar && sc.kind == tString && sc.text == w)
@@ -377,8 +383,9 @@ func (q *quick) check(v any) verdict {
 	}
 	if q.enum != nil {
 		best := fails
+		sc, isScalar := unboxed(v)
 		for _, e := range q.enum {
-			best = max(best, equal(v, e))
+			best = max(best, equalScalar(sc, isScalar, e))
 		}
 		if r = r.and(best); r == fails {
 			return fails
