@@ -367,23 +367,27 @@ func (q *quick) check(v any) verdict {
 	if q.never {
 		return fails
 	}
+	// A scalar is unboxed once for every keyword that reads it.
+	var sc scal
+	isScalar := false
 	switch v.(type) {
-	case map[string]any, []any, obj, list, *yaml.Node, string, bool, nil, json.Number:
+	case map[string]any, []any, obj, list:
+	case *yaml.Node, string, bool, nil, json.Number:
+		sc, isScalar = unboxed(v)
 	default:
 		return unsure // not a value the tree holds
 	}
-	r := q.typeOK(v)
+	r := q.typeOK(v, sc, isScalar)
 	if r == fails {
 		return fails
 	}
 	if q.hasConst {
-		if r = r.and(equal(v, q.constant)); r == fails {
+		if r = r.and(equalScalar(sc, isScalar, q.constant)); r == fails {
 			return fails
 		}
 	}
 	if q.enum != nil {
 		best := fails
-		sc, isScalar := unboxed(v)
 		for _, e := range q.enum {
 			best = max(best, equalScalar(sc, isScalar, e))
 		}
@@ -397,7 +401,7 @@ func (q *quick) check(v any) verdict {
 	case string:
 		r = r.and(q.text(v))
 	case *yaml.Node:
-		switch sc := nodeScalar(v); sc.kind {
+		switch sc.kind {
 		case tNumber:
 			r = r.and(q.number(json.Number(sc.text)))
 		case tString:
@@ -459,18 +463,21 @@ const (
 var typeBits = map[string]typeSet{"object": tObject, "array": tArray, "string": tString,
 	"boolean": tBoolean, "null": tNull, "number": tNumber, "integer": tInteger}
 
-func (q *quick) typeOK(v any) verdict {
+// typeOK checks v's type; sc is v unboxed when isScalar.
+func (q *quick) typeOK(v any, sc scal, isScalar bool) verdict {
 	if q.types == 0 {
 		return passes
 	}
 	var bit typeSet
-	switch v := v.(type) {
+	switch v.(type) {
 	case map[string]any, obj:
 		bit = tObject
 	case []any, list:
 		bit = tArray
 	default:
-		sc, _ := unboxed(v)
+		if !isScalar {
+			sc, _ = unboxed(v)
+		}
 		if sc.kind == tNumber {
 			if q.types&tNumber != 0 {
 				return passes
