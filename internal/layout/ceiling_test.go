@@ -16,22 +16,8 @@ import (
 // schedule gives.
 func TestScanCeilingBoundsTheSchedule(t *testing.T) {
 	r := rand.New(rand.NewPCG(1969, 17))
-	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
 	for n := range 3000 {
-		c := schema.Column{Name: "c", Type: "int64", Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
-		if r.IntN(4) == 0 {
-			c.Type, c.AvgLength = "string", float64(1+r.IntN(40))
-		}
-		if r.IntN(6) == 0 {
-			c.EncodedBytes = 1 + r.Int64N(1e10)
-		}
-		parts := make([]Partition, 1+r.IntN(60))
-		var rows int64
-		for k := range parts {
-			parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
-			rows += parts[k].Rows
-		}
-		e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+		c, parts, rows, e := randomScan(r, 1)
 		tableRows := rows
 		if r.IntN(3) == 0 {
 			tableRows = 0
@@ -46,6 +32,28 @@ func TestScanCeilingBoundsTheSchedule(t *testing.T) {
 			t.Fatalf("case %d: bounds [%v, %v], schedule %v with bound %v, ceiling %v", n, floor, c2, s.WallMs, s.BoundMs, ceiling)
 		}
 	}
+}
+
+// randomScan is a random column (any order, some strings, some measured sizes), at
+// least minParts partitions of random rows (their sum is rows) and an engine, for the
+// tests that hold the scan's bounds and kept estimates to ScanColumn.
+func randomScan(r *rand.Rand, minParts int) (schema.Column, []Partition, int64, schema.Engine) {
+	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
+	c := schema.Column{Name: "c", Type: "int64", Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
+	if r.IntN(4) == 0 {
+		c.Type, c.AvgLength = "string", float64(1+r.IntN(40))
+	}
+	if r.IntN(6) == 0 {
+		c.EncodedBytes = 1 + r.Int64N(1e10)
+	}
+	parts := make([]Partition, minParts+r.IntN(61-minParts))
+	var rows int64
+	for k := range parts {
+		parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
+		rows += parts[k].Rows
+	}
+	e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+	return c, parts, rows, e
 }
 
 // The plain ceiling bounds the scan ceiling from the layout alone: each segment's

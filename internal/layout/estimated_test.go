@@ -3,8 +3,6 @@ package layout
 import (
 	"math/rand/v2"
 	"testing"
-
-	"github.com/scangate/scangate/schema"
 )
 
 // Kept estimates give the scan, its bounds and the column's bytes to the bit: a sweep
@@ -13,24 +11,10 @@ import (
 // sum, where For refuses them); one Estimated is reused across cases, as a sweep does.
 func TestEstimatedIsTheScanItKeeps(t *testing.T) {
 	r := rand.New(rand.NewPCG(7, 11))
-	orders := []schema.Order{"", schema.Sorted, schema.Clustered}
 	var es Estimated
 	refused := 0
 	for n := range 3000 {
-		c := schema.Column{Name: "c", Type: "int64", Distinct: r.Int64N(1e7), Order: orders[r.IntN(len(orders))]}
-		if r.IntN(4) == 0 {
-			c.Type, c.AvgLength = "string", float64(1+r.IntN(40))
-		}
-		if r.IntN(6) == 0 {
-			c.EncodedBytes = 1 + r.Int64N(1e10)
-		}
-		parts := make([]Partition, r.IntN(60))
-		var rows int64
-		for k := range parts {
-			parts[k].Rows = r.Int64N(1 << uint(4+r.IntN(28)))
-			rows += parts[k].Rows
-		}
-		e := schema.Engine{SegmentRows: 1 << uint(10+r.IntN(16)), Cores: 1 + r.IntN(96), SegmentOverheadMs: r.Float64() * 5, ScanMBPerS: 50 + r.Float64()*2000}
+		c, parts, rows, e := randomScan(r, 0)
 		tableRows := rows
 		switch r.IntN(4) {
 		case 0:
