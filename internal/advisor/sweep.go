@@ -482,9 +482,9 @@ func (md *Model) Expanded(i int, parts []layout.Partition) {
 
 // Scanned hands the model table i's column figures as the manifest lays it out (the
 // analysis sizes and schedules them first): the widest column, its scan's WallMs and
-// the columns' bytes. A sweep, a view or a forecast that lays the table out as it is,
-// at today's capacity and today's rows, quotes them instead of figuring them again.
-// Call it after Expanded.
+// the columns' bytes. A sweep, a view or Breaks that lays the table out as it is, at
+// today's capacity and today's rows, quotes them instead of figuring them again (a
+// forecast grows the rows, so it figures its own). Call it after Expanded.
 func (md *Model) Scanned(i int, widest string, wallMs, bytes float64) {
 	if _, _, w := md.grownEntry(i, 0); w != nil {
 		w.today = &Figures{Widest: widest, WallMs: wallMs, Bytes: bytes}
