@@ -133,6 +133,7 @@ type Candidate struct {
 	pol       *policy
 	held      int  // the horizon a check found it keeping every budget at; 0 unchecked or broken
 	over      bool // WallMs is a floor above scan_ms (a lean sweep): figured in full when nothing fits
+	partial   bool // over, from one column's bytes: Widest is that column's, Bytes only so far
 
 	Routine layout.Rebuild // what the routine refresh rebuilds in this layout (routine.go)
 	Full    layout.Rebuild // what a full refresh rebuilds: every partition
@@ -451,23 +452,38 @@ func sameColumns(a, b []schema.Column) bool {
 // without profiles, with its estimates (valid until the next call), which its scan
 // reads when they are the scan's own (layout.Estimated.For).
 func (md *Model) widest(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller) (int, *layout.Estimated) {
+	k, es, _ := md.widestOr(f, spec, parts, s, memo, nil)
+	return k, es
+}
+
+// widestOr is widest that, with above set, stops at the first column whose bytes alone
+// put the widest column's scan certainly above *above (layout.Estimated.Least, a
+// millionth under as elsewhere): it returns that column, nil estimates and its bound,
+// and f's Widest and Bytes are then only as far as that column.
+func (md *Model) widestOr(f *Figures, spec schema.Table, parts []layout.Partition, s int64, memo []layout.Smaller, above *float64) (int, *layout.Estimated, float64) {
 	best, widest := -1.0, -1
 	next := 0 // md.sized[next] is free; the other holds the widest so far
 	for i, c := range spec.Columns {
 		// The scan reads every byte of the column, so its bytes are the column's encoded
 		// size (layout.TableBytes sums the same figure); only the widest is scheduled.
 		b := md.sized[next].Estimate(c, parts, s, at(memo, i))
+		f.Bytes += b
+		if above != nil {
+			if least := md.sized[next].Least(md.engineAt(s)); !math.IsInf(least, 1) && least*(1-1e-6) > *above {
+				f.Widest = c.Name
+				return i, nil, least
+			}
+		}
 		if b > best {
 			best, widest = b, i
 			next = 1 - next
 		}
-		f.Bytes += b
 	}
 	if widest < 0 {
-		return -1, nil
+		return -1, nil, 0
 	}
 	f.Widest = spec.Columns[widest].Name
-	return widest, &md.sized[1-next]
+	return widest, &md.sized[1-next], 0
 }
 
 // Expanded hands the model table i's partitions as the manifest has them, already
@@ -917,7 +933,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			if set.Prune {
 				var how figured
 				f, how = md.roughFigures(i, v.Spec, p.parts, s, lv, p.whole, bytes, lean)
-				c.rough, c.over = how == byCeiling, how == byFloor
+				c.rough, c.over, c.partial = how == byCeiling, how == byFloor || how == byColumn, how == byColumn
 			} else {
 				f = md.figuresWith(v.Spec, p.parts, s, p.whole)
 			}
@@ -1045,12 +1061,12 @@ func (md *Model) scheduleOne(i int, c *Candidate) {
 	}
 	spec := *c.Spec
 	// Column names are unique (the loader refuses a second one).
-	if k := slices.IndexFunc(spec.Columns, func(col schema.Column) bool { return col.Name == c.Widest }); k >= 0 {
+	if k := slices.IndexFunc(spec.Columns, func(col schema.Column) bool { return col.Name == c.Widest }); k >= 0 && !c.partial {
 		c.WallMs = layout.ScanColumnWith(spec.Columns[k], spec.Rows, c.pol.parts, md.engineAt(c.SegmentRows), at(c.pol.whole.memo(spec), k)).WallMs
 	} else {
 		c.Figures = md.figuresWith(spec, c.pol.parts, c.SegmentRows, c.pol.whole)
 	}
-	c.over = false
+	c.over, c.partial = false, false
 	c.missed = md.missed(i, c.Figures, c.SegmentRows, 0, c.Peak)
 }
 
@@ -1155,6 +1171,9 @@ const (
 	scheduled figured = iota // the schedule's own estimate
 	byCeiling                // a ceiling within share x scanMs
 	byFloor                  // a floor above scanMs: the scan certainly breaks it
+	// byColumn is byFloor from the bytes of one column, not necessarily the widest:
+	// Widest names that column and Bytes stops there (Candidate.partial).
+	byColumn
 )
 
 // decidedFigures is boundedFigures that, with over set, also leaves the schedule out for
@@ -1178,9 +1197,17 @@ func (md *Model) decidedFigures(spec schema.Table, parts []layout.Partition, s i
 			return f, byCeiling
 		}
 	}
-	k, es := md.widest(&f, spec, parts, s, memo)
+	var above *float64 // a lean sweep's floored scan may stop at the first column that decides it
+	if over && !bytes {
+		above = scanMs
+	}
+	k, es, least := md.widestOr(&f, spec, parts, s, memo, above)
 	if k < 0 {
 		return f, scheduled
+	}
+	if es == nil {
+		f.WallMs = least
+		return f, byColumn
 	}
 	c, e := spec.Columns[k], md.engineAt(s)
 	own := es.For(spec.Rows, e) // the scan's own estimates, made once

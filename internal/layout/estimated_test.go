@@ -5,7 +5,8 @@ import (
 	"testing"
 )
 
-// Kept estimates give the scan, its bounds and the column's bytes to the bit: a sweep
+// Kept estimates give the scan, its bounds and the column's bytes to the bit (and a
+// bound from their total under the floor): a sweep
 // reads them instead of estimating the widest column again, and its outputs must not
 // move. Random columns, partitions, engines and table sizes (some not the partitions'
 // sum, where For refuses them); one Estimated is reused across cases, as a sweep does.
@@ -42,6 +43,11 @@ func TestEstimatedIsTheScanItKeeps(t *testing.T) {
 		f1, c1 := es.Bounds(e)
 		if f2, c2 := ScanBounds(c, tableRows, parts, e, nil); f1 != f2 || c1 != c2 {
 			t.Fatalf("case %d: kept bounds [%v, %v], ScanBounds [%v, %v]", n, f1, c1, f2, c2)
+		}
+		// Least, from the total alone, is under the floor of the column itself (and so of
+		// any wider one): the same task times, summed in another order.
+		if least := es.Least(e); least > f1*(1+1e-9) {
+			t.Fatalf("case %d: least %v above the floor %v", n, least, f1)
 		}
 		other := e
 		other.SegmentRows *= 2

@@ -176,6 +176,16 @@ func (es *Estimated) replay(visit visitor) (float64, int64) {
 	return es.bytes, es.segments
 }
 
+// Least is a lower bound, from the kept estimates' total alone, of the scan of any
+// column over the same segments that is at least as wide (as many bytes): its tasks sum
+// to at least segments x overhead + bytes/theta, spread over the cores at best. It is
+// at most ScanBounds' floor of the widest column, which sums the same tasks; +Inf when
+// a task is (then the floor leaves it out).
+func (es *Estimated) Least(e schema.Engine) float64 {
+	f, theta, cores := scanRates(e)
+	return (float64(float64(es.segments)*f) + es.bytes/theta) / float64(cores)
+}
+
 // Scan is ScanColumnWith from the kept estimates (For must hold).
 func (es *Estimated) Scan(e schema.Engine) Scan {
 	return scanOf(&source{kept: es}, len(es.parts), e)
