@@ -332,16 +332,7 @@ func hybridBytes(w int, uniform, mixed, rleRuns, bpRuns float64) float64 {
 // that a full scan reads. Segments are grouped by size, so 10^9 segments cost one
 // estimate for the full ones plus one per part-empty segment.
 func ColumnBytes(c schema.Column, parts []Partition, segmentRows int64) float64 {
-	return ColumnBytesWith(c, parts, segmentRows, nil)
-}
-
-// ColumnBytesWith is ColumnBytes keeping estimates in memo (nil: none).
-func ColumnBytesWith(c schema.Column, parts []Partition, segmentRows int64, memo *Smaller) float64 {
-	var rows int64
-	for _, p := range parts {
-		rows = satAdd(rows, max(p.Rows, 0))
-	}
-	b, _ := columnBytes(c, rows, parts, segmentRows, memo, nil)
+	b, _ := columnBytes(c, tableRowsOr(0, parts), parts, segmentRows, nil, nil)
 	return b
 }
 

@@ -152,8 +152,8 @@ type estimatedPart struct {
 }
 
 // Estimate sizes column c over parts in segments of segmentRows rows, keeping every
-// estimate, and returns the bytes ColumnBytesWith would: tableRows as it takes them, the
-// sum of the partitions.
+// estimate (memo as ScanColumnWith takes it), and returns the bytes ColumnBytes would:
+// its table rows are the sum of the partitions, as ColumnBytes takes them.
 func (es *Estimated) Estimate(c schema.Column, parts []Partition, segmentRows int64, memo *Smaller) float64 {
 	es.parts, es.tableRows, es.capacity = es.parts[:0], tableRowsOr(0, parts), segmentRows
 	es.bytes, es.segments = columnBytes(c, es.tableRows, parts, segmentRows, memo, func(full int64, fb float64, rest int64, rb float64) {
