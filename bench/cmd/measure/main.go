@@ -47,14 +47,14 @@ func run(name string, args ...string) (sample, error) {
 	return s, nil
 }
 
+// median is the median of each figure of xs, as middle takes it.
 func median(xs []sample) sample {
 	by := func(f func(sample) int64) int64 {
-		v := make([]int64, len(xs))
+		v := make([]float64, len(xs))
 		for i, x := range xs {
-			v[i] = f(x)
+			v[i] = float64(f(x))
 		}
-		sort.Slice(v, func(i, j int) bool { return v[i] < v[j] })
-		return v[len(v)/2]
+		return int64(middle(v))
 	}
 	return sample{
 		wall:  time.Duration(by(func(s sample) int64 { return int64(s.wall) })),
