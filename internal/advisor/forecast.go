@@ -135,7 +135,7 @@ func (md *Model) Breaks(i int, spec schema.Table, s int64, month int) ([]Miss, e
 	// nor its floor above, the columns estimated only when a memory budget reads their
 	// bytes.
 	f, _ := md.decidedFigures(spec, parts, s, w, md.budgets[i].ScanMs, 1, md.memoryBound(), true)
-	return md.missed(i, f, s, month, md.missPeak(i, f, s, month)), nil
+	return md.missed(i, f, s, month, md.missPeak(i, f, s, month), true), nil
 }
 
 // NewlyBroken reports whether growth over months months breaks a budget that table i,
@@ -228,7 +228,7 @@ func (md *Model) Holds(sw *Sweep, months int) *Candidate {
 		}
 		if months > 0 {
 			f, err := md.Evaluate(*c.Spec, c.SegmentRows, months)
-			if err != nil || len(md.missed(sw.Index, f, c.SegmentRows, months, md.missPeak(sw.Index, f, c.SegmentRows, months))) > 0 {
+			if err != nil || len(md.missed(sw.Index, f, c.SegmentRows, months, md.missPeak(sw.Index, f, c.SegmentRows, months), false)) > 0 {
 				continue
 			}
 		}

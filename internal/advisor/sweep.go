@@ -213,7 +213,7 @@ type view struct {
 	filled  bool        // bytes and total hold every table but skip (filled)
 	skip    int         // the table left out, -1 none
 	over    []tableMiss // tables that fit their scan budgets at today's capacity but not at this one, by table
-	listed  bool        // over has been listed
+	judged  int         // tables below this one have been judged for over, but those in lacking
 	lacking []int       // tables over could not judge yet: a view had left them out
 }
 
@@ -627,28 +627,47 @@ func (md *Model) scanOf(v *view, s int64, month, j int) scanState {
 
 // outgrown lists the tables of the model that fit their scan budgets with today's
 // segment capacity but not with s, after month months of growth, by table; table i
-// may be among them (the caller leaves it out). The list is made once per view; a table
-// a view had left out is judged when a what-if of another table first needs it.
-func (md *Model) outgrown(i int, s int64, month int) []tableMiss {
+// may be among them (the caller leaves it out). Without all, the list may stop at the
+// first such table other than i, in table order: whether a layout misses, and its first
+// miss, read no more. The tables are judged in order, each once per view, as far as a
+// caller has needed; a table a view had left out is judged when a what-if of another
+// table first needs it.
+func (md *Model) outgrown(i int, s int64, month int, all bool) []tableMiss {
 	today := md.M.Engine.SegmentRows
 	v, now := md.view(s, month, i), md.view(today, month, i)
-	judge := func(j int) { md.judgeOver(v, now, s, today, month, j) }
-	if !v.listed {
-		v.listed = true
-		for j := range md.M.Tables {
-			judge(j)
-		}
-	}
 	for k := 0; k < len(v.lacking); {
 		if j := v.lacking[k]; j != i {
 			// Both views now hold every table but i.
 			v.lacking = slices.Delete(v.lacking, k, k+1)
-			judge(j)
+			md.judgeOver(v, now, s, today, month, j)
 			continue
 		}
 		k++
 	}
-	return v.over
+	// Every table below v.judged but i is judged now, so the first entry of v.over
+	// other than i is the first in table order.
+	for v.judged < len(md.M.Tables) && (all || firstOther(v.over, i) < 0) {
+		md.judgeOver(v, now, s, today, month, v.judged)
+		v.judged++
+	}
+	if all {
+		return v.over
+	}
+	if k := firstOther(v.over, i); k >= 0 {
+		return v.over[k : k+1]
+	}
+	return nil
+}
+
+// firstOther is the index of the first entry of over (in table order) that is not
+// table i, -1 for none.
+func firstOther(over []tableMiss, i int) int {
+	for k := range min(len(over), 2) {
+		if over[k].j != i {
+			return k
+		}
+	}
+	return -1
 }
 
 // judgeOver adds table j to v.over, in table order, when it fits its scan budgets in
@@ -746,8 +765,11 @@ func Excess(ms []Miss) float64 {
 }
 
 // missed lists the budgets table i breaks. With another segment capacity than today's,
-// a table of the model that fits its scan budgets today must still fit.
-func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Miss {
+// a table of the model that fits its scan budgets today must still fit. Without all,
+// the list names only the first other table it pushes over (outgrown): enough for
+// whether the layout misses, its first miss and, since today's layout pushes no table
+// over, whether it can be the closest layout (noWorse).
+func (md *Model) missed(i int, f Figures, s int64, month int, peak float64, all bool) []Miss {
 	var out []Miss
 	b := md.Budgets(i)
 	if b.ScanOverheadMs != nil && f.Layout.FixedMs > *b.ScanOverheadMs {
@@ -763,7 +785,7 @@ func (md *Model) missed(i int, f Figures, s int64, month int, peak float64) []Mi
 		out = append(out, Miss{Key: "refresh_memory", Value: peak, Limit: *md.refresh})
 	}
 	if s != md.M.Engine.SegmentRows {
-		for _, o := range md.outgrown(i, s, month) {
+		for _, o := range md.outgrown(i, s, month, all) {
 			if o.j != i {
 				out = append(out, o.Miss)
 			}
@@ -940,7 +962,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 			c.Figures, c.pol = f, p
 			c.Routine, c.Full = md.rebuilds(sw.Window, v.Spec, p)
 			c.Peak = peakOf(i, f, s, 0)
-			c.missed = md.missed(i, f, s, 0, c.Peak)
+			c.missed = md.missed(i, f, s, 0, c.Peak, !lean)
 			if !lean {
 				c.Misses = words(c.missed)
 			}
@@ -959,7 +981,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					// A layout that breaks a budget within the forecast's warning horizon
 					// would be flagged by budget-forecast: count it as a warning.
 					if g, ok := md.atHorizon(i, v, p, f, s, horizon, bytes); ok {
-						if miss := md.missed(i, g, s, horizon, peakOf(i, g, s, horizon)); len(miss) > 0 {
+						if miss := md.missed(i, g, s, horizon, peakOf(i, g, s, horizon), false); len(miss) > 0 {
 							c.Warnings = append(c.Warnings, fmt.Sprintf("within %d months: %s", horizon, miss[0].Words()))
 						} else {
 							c.held = horizon
@@ -1067,7 +1089,7 @@ func (md *Model) scheduleOne(i int, c *Candidate) {
 		c.Figures = md.figuresWith(spec, c.pol.parts, c.SegmentRows, c.pol.whole)
 	}
 	c.over, c.partial = false, false
-	c.missed = md.missed(i, c.Figures, c.SegmentRows, 0, c.Peak)
+	c.missed = md.missed(i, c.Figures, c.SegmentRows, 0, c.Peak, false)
 }
 
 // inOrder puts the candidates in capacity order, each capacity's in the order it
