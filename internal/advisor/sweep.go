@@ -911,12 +911,13 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 		for _, v := range vs {
 			p, ok := policies[v.Change]
 			if !ok {
-				p = &policy{spec: v.Spec, whole: oneSegmentFor(v.Spec), laterWhole: oneSegmentFor(v.Spec)}
+				p = &policy{spec: v.Spec}
 				if v.Change == "" {
 					// Today's policy: the partitions and estimates the views share.
 					_, p.parts, p.whole = md.grownEntry(i, 0)
 				} else {
 					p.parts, _ = md.expand(v.Spec)
+					p.whole = oneSegmentFor(v.Spec)
 				}
 				if p.parts != nil {
 					p.label = Label(v.Spec.Partitions)
@@ -1014,6 +1015,11 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 				return sw
 			}
 		}
+	}
+	if first && len(caps) > 1 {
+		// Room for the other capacities' layouts too, as many at each as at today's: a
+		// candidate is large, and growing the list copies every one made so far.
+		sw.Candidates = slices.Grow(sw.Candidates, len(sw.Candidates)*(len(caps)-1))
 	}
 	for _, s := range caps {
 		if !first || s != today {
@@ -1302,7 +1308,7 @@ type policy struct {
 	later    []layout.Partition // its partitions; nil when it cannot be expanded
 	hasLater bool
 	// whole and laterWhole are the column figures of parts and later above every
-	// partition (figuresWith).
+	// partition (figuresWith); laterWhole is made with later.
 	whole, laterWhole *oneSegment
 }
 
@@ -1315,6 +1321,7 @@ func (md *Model) atHorizon(i int, v Variant, p *policy, f Figures, s int64, hori
 	if !p.hasLater {
 		p.grown = Grow(v.Spec, horizon)
 		p.later, _ = md.expand(p.grown)
+		p.laterWhole = oneSegmentFor(p.grown)
 		p.hasLater = true
 	}
 	if p.later == nil {

@@ -137,7 +137,20 @@ func PlainBytes(c schema.Column, n int64) float64 {
 // dictionary) or plain values, whichever is smaller. The scan cost of a column is driven
 // by this number.
 func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
-	return SegmentSize(c, tableRows, n).Bytes()
+	return segmentSize(c, tableRows, n, nil).Bytes()
+}
+
+// segmentBytes is SegmentBytes with share (nil: none) keeping, across the segments of
+// one column and table, the share of a random column's index groups that hold a single
+// value: it depends on the column's distinct count alone (randomIndexBytes).
+func segmentBytes(c schema.Column, tableRows, n int64, share *groupShare) float64 {
+	return segmentSize(c, tableRows, n, share).Bytes()
+}
+
+// groupShare is randomIndexBytes' share of single-value groups, kept once computed.
+type groupShare struct {
+	q   float64
+	set bool
 }
 
 // SegmentSize is SegmentBytes in its parts: the segment's dictionary encoding
@@ -146,7 +159,11 @@ func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
 // then repeats the values and the indexes come on top). A measured encoded_bytes is
 // spread over the rows in proportion and counted as index stream.
 func SegmentSize(c schema.Column, tableRows, n int64) Size {
-	s := DictionarySize(c, tableRows, n)
+	return segmentSize(c, tableRows, n, nil)
+}
+
+func segmentSize(c schema.Column, tableRows, n int64, share *groupShare) Size {
+	s := dictionarySize(c, tableRows, n, share)
 	if c.EncodedBytes > 0 || n <= 0 {
 		return s
 	}
@@ -159,8 +176,15 @@ func SegmentSize(c schema.Column, tableRows, n int64) Size {
 // DictionarySize is the estimated size of column c dictionary encoded in one segment of
 // n rows of a table of tableRows rows: the index stream and the segment's dictionary.
 func DictionarySize(c schema.Column, tableRows, n int64) Size {
+	return dictionarySize(c, tableRows, n, nil)
+}
+
+func dictionarySize(c schema.Column, tableRows, n int64, share *groupShare) Size {
 	if n <= 0 {
 		return Size{}
+	}
+	if n > tableRows {
+		share = nil // the distinct count below follows the segment's rows then
 	}
 	tableRows = max(tableRows, n) // a segment is never larger than its table
 	fn, fr := float64(n), float64(tableRows)
@@ -181,7 +205,7 @@ func DictionarySize(c schema.Column, tableRows, n int64) Size {
 	// different values with probability 1 - 1/d, independently.
 	random := func() Size {
 		ds := SampleDistinct(fd, fn, fr)
-		return Size{Index: randomIndexBytes(fn, IndexBits(ds), 1-1/fd), Dictionary: float64(ds * vb)}
+		return Size{Index: randomIndexBytes(fn, IndexBits(ds), 1-1/fd, share), Dictionary: float64(ds * vb)}
 	}
 	switch c.Order {
 	case schema.Sorted:
@@ -232,8 +256,9 @@ func singleRunBytes(n float64) float64 {
 }
 
 // randomIndexBytes is the expected index stream of n indexes of w bits whose neighbours
-// differ independently with probability p (a randomly ordered column).
-func randomIndexBytes(n float64, w int, p float64) float64 {
+// differ independently with probability p (a randomly ordered column); share, when set,
+// keeps the share of single-value groups for the next call with the same p.
+func randomIndexBytes(n float64, w int, p float64, share *groupShare) float64 {
 	if !(n > 0) {
 		return 0
 	}
@@ -242,7 +267,16 @@ func randomIndexBytes(n float64, w int, p float64) float64 {
 		return singleRunBytes(n)
 	}
 	groups := n / 8
-	q := math.Pow(1-p, 7)     // a group holds one value: its 7 inner pairs are equal
+	var q float64 // a group holds one value: its 7 inner pairs are equal
+	switch {
+	case share == nil:
+		q = math.Pow(1-p, 7)
+	case share.set:
+		q = share.q
+	default:
+		q = math.Pow(1-p, 7)
+		share.q, share.set = q, true
+	}
 	uniform := groups * q     // run-length encoded groups
 	mixed := groups - uniform // bit-packed groups
 	after := max(groups-1, 0)
@@ -347,7 +381,7 @@ type Smaller struct {
 }
 
 // of is the estimate of partition i's one segment of n rows, kept once made.
-func (m *Smaller) of(c schema.Column, tableRows int64, parts int, i int, n int64) float64 {
+func (m *Smaller) of(c schema.Column, tableRows int64, parts int, i int, n int64, share *groupShare) float64 {
 	if m.bytes == nil {
 		m.rows, m.bytes = tableRows, make([]float64, parts)
 		for k := range m.bytes {
@@ -355,12 +389,12 @@ func (m *Smaller) of(c schema.Column, tableRows int64, parts int, i int, n int64
 		}
 	}
 	if m.rows != tableRows || len(m.bytes) != parts {
-		return SegmentBytes(c, tableRows, n)
+		return segmentBytes(c, tableRows, n, share)
 	}
 	if b := m.bytes[i]; b >= 0 {
 		return b
 	}
-	b := SegmentBytes(c, tableRows, n)
+	b := segmentBytes(c, tableRows, n, share)
 	m.bytes[i] = b
 	return b
 }
@@ -376,11 +410,12 @@ func columnBytes(c schema.Column, tableRows int64, parts []Partition, segmentRow
 	fullBytes := -1.0 // computed once, on the first full segment
 	var partial float64
 	lastRows, lastBytes := int64(-1), 0.0
+	var share groupShare // the same column and table rows throughout
 	for i, p := range parts {
 		r := max(p.Rows, 0)
 		k, rest := r/s, r%s
 		if k > 0 && fullBytes < 0 {
-			fullBytes = SegmentBytes(c, tableRows, s)
+			fullBytes = segmentBytes(c, tableRows, s, &share)
 		}
 		full = satAdd(full, k)
 		var rb float64
@@ -388,9 +423,9 @@ func columnBytes(c schema.Column, tableRows int64, parts []Partition, segmentRow
 			switch {
 			case rest == lastRows:
 			case k == 0 && memo != nil:
-				lastRows, lastBytes = rest, memo.of(c, tableRows, len(parts), i, rest)
+				lastRows, lastBytes = rest, memo.of(c, tableRows, len(parts), i, rest, &share)
 			default:
-				lastRows, lastBytes = rest, SegmentBytes(c, tableRows, rest)
+				lastRows, lastBytes = rest, segmentBytes(c, tableRows, rest, &share)
 			}
 			rb = lastBytes
 			partial += rb

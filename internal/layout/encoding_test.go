@@ -345,3 +345,37 @@ func TestEncodedBytesSpread(t *testing.T) {
 		t.Errorf("a segment of 1,000 rows: %+v, want 20,000 bytes as measured", got)
 	}
 }
+
+// columnBytes sizes a column's segments keeping the share of single-value index groups
+// (it depends on the column alone): every segment's estimate is SegmentBytes' own to
+// the bit, with and without the estimates kept across capacities, also where the
+// declared rows are below a segment's (the distinct count then follows the segment).
+func TestSharedGroupShareIsEachSegments(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	for n := range 3000 {
+		c, parts, rows, e := randomScan(r, 1)
+		// Few distinct values, where single-value groups weigh, and any order.
+		c.Distinct = []int64{0, 1, 2, 3, 7, 40, 1000, c.Distinct}[r.IntN(8)]
+		c.Type = []string{"int64", "bool", c.Type}[r.IntN(3)]
+		tableRows := rows
+		switch n % 3 {
+		case 0:
+			tableRows = 1 + r.Int64N(max(rows, 1)) // declared below the partitions' sum
+		case 1:
+			tableRows = 1 + r.Int64N(50) // and below most segments' rows
+		}
+		var memo Smaller
+		for _, m := range []*Smaller{nil, &memo, &memo} {
+			k := 0
+			columnBytes(c, tableRows, parts, e.SegmentRows, m, func(full int64, fb float64, rest int64, rb float64) {
+				if full > 0 && fb != SegmentBytes(c, tableRows, e.SegmentRows) {
+					t.Fatalf("case %d partition %d: full segment %v, SegmentBytes %v", n, k, fb, SegmentBytes(c, tableRows, e.SegmentRows))
+				}
+				if rest > 0 && rb != SegmentBytes(c, tableRows, rest) {
+					t.Fatalf("case %d partition %d: segment of %d rows %v, SegmentBytes %v", n, k, rest, rb, SegmentBytes(c, tableRows, rest))
+				}
+				k++
+			})
+		}
+	}
+}

@@ -155,17 +155,27 @@ func readFile(path string, maxBytes int) Input {
 		return Input{name: name, err: UnwrapPath(err)}
 	}
 	defer f.Close()
-	if info, err := f.Stat(); err != nil || !info.Mode().IsRegular() {
+	info, err := f.Stat()
+	if err != nil || !info.Mode().IsRegular() {
 		return Input{name: name, err: errors.New("not a regular file")}
 	}
-	data, err := ReadLimited(f, maxBytes)
+	data, err := readLimited(f, maxBytes, info.Size())
 	return Input{name: name, data: data, err: err}
 }
 
 // ReadLimited reads at most maxBytes+1 bytes, so the loader can refuse an oversized
 // file without the whole of it in memory.
 func ReadLimited(r io.Reader, maxBytes int) ([]byte, error) {
+	return readLimited(r, maxBytes, 0)
+}
+
+// readLimited is ReadLimited into a buffer sized for size bytes (a file's size when
+// opened; it may still change), so a file is read without growing the buffer.
+func readLimited(r io.Reader, maxBytes int, size int64) ([]byte, error) {
 	var b bytes.Buffer
+	if size > 0 && size <= int64(maxBytes) {
+		b.Grow(int(size) + bytes.MinRead) // room for the read that finds the end
+	}
 	_, err := io.Copy(&b, io.LimitReader(r, int64(maxBytes)+1))
 	return b.Bytes(), UnwrapPath(err)
 }
