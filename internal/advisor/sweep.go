@@ -1052,32 +1052,51 @@ func (md *Model) settle(sw *Sweep, lean bool) {
 }
 
 // schedule schedules the scans a lean sweep left at a floor above scan_ms
-// (Candidate.over), and words their misses again: the closest layout is chosen by how
-// far each layout is from every budget. Today's comes first; a layout that breaks a
-// budget today's keeps can never be the closest (noWorse), so its scan is left as it is.
+// (Candidate.over), and words their misses again, where the closest layout needs them:
+// it is chosen by how far each layout is from every budget (mark). Today's comes first.
+// A floor only understates a scan, so a layout that cannot be the closest by its floor
+// (nearer) cannot be by its scan, and one whose excess at its floor is above that of a
+// layout that may be, figured in full, is not the closest either: those keep their
+// floors. The rest are scheduled, the least excess first, until the next floor's excess
+// is above the least found.
 func (md *Model) schedule(sw *Sweep) {
 	if sw.Today < 0 {
 		return
 	}
-	md.scheduleOne(sw.Index, &sw.Candidates[sw.Today])
-	now := sw.Candidates[sw.Today].missed
+	now := &sw.Candidates[sw.Today]
+	md.scheduleOne(sw.Index, now)
+	nowExcess := Excess(now.missed)
+	best := math.Inf(1) // the least excess of a layout that may be the closest, figured in full
+	type floored struct {
+		k     int
+		least float64
+	}
+	var todo []floored
 	for k := range sw.Candidates {
 		c := &sw.Candidates[k]
-		if c.over && breaksOnly(c.missed, now) {
-			md.scheduleOne(sw.Index, c)
+		if c.Locked || c.Unfigured {
+			continue // never the closest (mark)
+		}
+		e, ok := nearer(c, now, nowExcess)
+		switch {
+		case !ok:
+		case c.over:
+			todo = append(todo, floored{k, e})
+		default:
+			best = min(best, e)
 		}
 	}
-}
-
-// breaksOnly reports whether every budget of ms is among those of now (noWorse's first
-// test, without the figures).
-func breaksOnly(ms, now []Miss) bool {
-	for _, m := range ms {
-		if !slices.ContainsFunc(now, func(n Miss) bool { return n.Key == m.Key }) {
-			return false
+	slices.SortStableFunc(todo, func(a, b floored) int { return cmp.Compare(a.least, b.least) })
+	for _, f := range todo {
+		if f.least > best {
+			break
+		}
+		c := &sw.Candidates[f.k]
+		md.scheduleOne(sw.Index, c)
+		if e, ok := nearer(c, now, nowExcess); ok {
+			best = min(best, e)
 		}
 	}
-	return true
 }
 
 // scheduleOne gives candidate c of table i, if its scan was left at a floor, the
@@ -1377,25 +1396,30 @@ func (md *Model) mark(sw *Sweep, front bool) {
 	bestExcess := 0.0
 	for _, k := range idx {
 		c := &sw.Candidates[k]
-		if !noWorse(c.missed, now.missed) {
-			continue
-		}
-		// Nearer every budget at once than today; ties keep the fewer fixed ms, then the
-		// first generated: the order is part of the output.
-		// A share within a billionth of today's is today's computed another way
-		// (floating point), not a step nearer. As near as today's, a layout still
-		// qualifies when it cuts fixed ms per scan at today's segment size: a budget no
-		// layout can reach (the model's two copies alone past the engine memory, say)
-		// leaves a table's own waste to mend, but it moves no engine setting for nothing.
-		e := Excess(c.missed)
-		tie := math.Abs(e-nowExcess) <= 1e-9*math.Abs(nowExcess)
-		if !(e < nowExcess-1e-9*math.Abs(nowExcess)) && !(tie && !c.Engine && c.Layout.FixedMs < now.Layout.FixedMs) {
-			continue
-		}
-		if sw.Closest < 0 || e < bestExcess || (e == bestExcess && c.Layout.FixedMs < sw.Candidates[sw.Closest].Layout.FixedMs) {
+		// Ties keep the fewer fixed ms, then the first generated: the order is part of
+		// the output.
+		if e, ok := nearer(c, now, nowExcess); ok && (sw.Closest < 0 || e < bestExcess || (e == bestExcess && c.Layout.FixedMs < sw.Candidates[sw.Closest].Layout.FixedMs)) {
 			sw.Closest, bestExcess = k, e
 		}
 	}
+}
+
+// nearer is candidate c's excess over every budget at once (Excess) and whether it may
+// be the closest layout for it: it is no worse than today's layout now (of excess
+// nowExcess) on any budget and nearer every budget at once. A share within a billionth
+// of today's is today's computed another way (floating point), not a step nearer. As
+// near as today's, a layout still qualifies when it cuts fixed ms per scan at today's
+// segment size: a budget no layout can reach (the model's two copies alone past the
+// engine memory, say) leaves a table's own waste to mend, but it moves no engine setting
+// for nothing. The excess and every test only grow with a miss's figure, so a layout
+// that does not qualify by a floor of its scan does not by the scan itself.
+func nearer(c, now *Candidate, nowExcess float64) (float64, bool) {
+	if !noWorse(c.missed, now.missed) {
+		return 0, false
+	}
+	e := Excess(c.missed)
+	tie := math.Abs(e-nowExcess) <= 1e-9*math.Abs(nowExcess)
+	return e, e < nowExcess-1e-9*math.Abs(nowExcess) || (tie && !c.Engine && c.Layout.FixedMs < now.Layout.FixedMs)
 }
 
 // noWorse reports whether a layout that breaks the budgets ms keeps every budget that
