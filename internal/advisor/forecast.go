@@ -207,6 +207,33 @@ func (sw *Sweep) BestAt(s, today int64) *Candidate {
 	return best
 }
 
+// EndingExcess is the layout that fits every budget with segments of s rows and ends at
+// least half of today's excess segments, keeping the most partitions (then the fewest
+// segments, then the first generated): what the truncated-segments note points at when
+// today's layout is kept. Nil when today's layout has no excess segments or none does.
+func (sw *Sweep) EndingExcess(s int64) *Candidate {
+	if sw.Today < 0 {
+		return nil
+	}
+	now := &sw.Candidates[sw.Today].Layout
+	if now.ClosedExcess <= 0 {
+		return nil
+	}
+	target := now.Segments - (now.ClosedExcess+1)/2
+	var best *Candidate
+	for k := range sw.Candidates {
+		c := &sw.Candidates[k]
+		if c.SegmentRows != s || !c.Fits || c.Today() || c.Layout.Segments > target {
+			continue
+		}
+		if best == nil || c.Layout.Partitions > best.Layout.Partitions ||
+			(c.Layout.Partitions == best.Layout.Partitions && c.Layout.Segments < best.Layout.Segments) {
+			best = c
+		}
+	}
+	return best
+}
+
 // Format writes a crossing's figure with its unit.
 func (c Crossing) Format(v float64) string {
 	if c.Unit == "bytes" {

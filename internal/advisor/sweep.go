@@ -80,11 +80,15 @@ type Settings struct {
 	// full. plan, which prints every candidate, sweeps without it.
 	Prune bool
 	// Lean, with Prune, is check's sweep when no report charts the front: the front is
-	// not marked (every Front is false) and, once a layout fits, a layout at another
-	// capacity than today's that it outranks even at the warnings its layout alone
-	// raises (a lower bound of its own) is laid out but not figured (Unfigured): it can
-	// be neither the pick, nor the closest layout (something fits), nor the alternative
-	// (which is at today's capacity). Refresh peaks are computed only where a memory
+	// not marked (every Front is false) and, once a layout fits, a layout that it
+	// outranks even at the warnings its layout alone raises (a lower bound of its own)
+	// is laid out but not figured (Unfigured): it can be neither the pick, nor the
+	// closest layout (something fits), nor the alternative. At another capacity than
+	// today's, the alternative is at today's; at today's, the layout that outranks it is
+	// at today's too (the lean sweep tries today's capacity first), and ranks above it
+	// as the best there, and, when it is not today's own layout, it leaves today's
+	// layout no pick, whose alternative (the layout ending most of its excess segments)
+	// ranks otherwise. Refresh peaks are computed only where a memory
 	// budget reads them, and a miss is worded only for the pick and the closest layout.
 	// Like PickOnly, it stops at today's capacity when the pick is there. The pick,
 	// closest layout and alternative are the pruned sweep's; the list of candidates is
@@ -942,7 +946,7 @@ func (md *Model) Sweep(i int, set Settings) *Sweep {
 					c.Change += " and " + raise
 				}
 			}
-			if lean && s != today && best >= 0 && md.outranked(sw, best, &c, i, v.Spec, p, lv) {
+			if lean && best >= 0 && (s != today || !sw.Candidates[best].Today()) && md.outranked(sw, best, &c, i, v.Spec, p, lv) {
 				sw.Candidates = append(sw.Candidates, c)
 				continue
 			}
@@ -1148,10 +1152,11 @@ func inOrder(sw *Sweep) {
 	}
 }
 
-// outranked reports whether candidate c (not yet figured, at another capacity than
-// today's) ranks below the best candidate so far even at the warnings its layout alone
-// raises, a lower bound of its own; then it is laid out only (Unfigured). A locked
-// candidate is never picked.
+// outranked reports whether candidate c (not yet figured) ranks below the best candidate
+// so far even at the warnings its layout alone raises, a lower bound of its own; then it
+// is laid out only (Unfigured). A locked candidate is never picked. Such a layout is
+// neither the pick nor the best at its capacity (Settings.Lean says when it may be left
+// so).
 func (md *Model) outranked(sw *Sweep, best int, c *Candidate, i int, spec schema.Table, p *policy, lv Levels) bool {
 	c.Figures = Figures{Rows: spec.Rows, Layout: layout.Compute(p.parts, c.SegmentRows, md.M.Engine.SegmentOverheadMs)}
 	c.pol = p

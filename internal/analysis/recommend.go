@@ -192,20 +192,8 @@ func (t *Table) Alternative() string {
 		if c := sw.BestAt(s, s); c != nil && !c.Today() {
 			return fmt.Sprintf("alternative if engine.segment_rows must stay %s: %s: %s", units.Count(s), c.Change, advisor.Effect(now, c))
 		}
-	case !ok && t.Layout.ClosedExcess > 0:
-		target := t.Layout.Segments - (t.Layout.ClosedExcess+1)/2
-		var best *advisor.Candidate
-		for k := range sw.Candidates {
-			c := &sw.Candidates[k]
-			if c.SegmentRows != s || !c.Fits || c.Today() || c.Layout.Segments > target {
-				continue
-			}
-			if best == nil || c.Layout.Partitions > best.Layout.Partitions ||
-				(c.Layout.Partitions == best.Layout.Partitions && c.Layout.Segments < best.Layout.Segments) {
-				best = c
-			}
-		}
-		if best != nil {
+	case !ok:
+		if best := sw.EndingExcess(s); best != nil {
 			return fmt.Sprintf("alternative, not the recommendation, ending most of the excess: %s: %s", best.Change, advisor.Effect(now, best))
 		}
 	}
