@@ -83,16 +83,16 @@ type Settings struct {
 	// not marked (every Front is false) and, once a layout fits, a layout that it
 	// outranks even at the warnings its layout alone raises (a lower bound of its own)
 	// is laid out but not figured (Unfigured): it can be neither the pick, nor the
-	// closest layout (something fits), nor the alternative. At another capacity than
-	// today's, the alternative is at today's; at today's, the layout that outranks it is
-	// at today's too (the lean sweep tries today's capacity first), and ranks above it
-	// as the best there, and, when it is not today's own layout, it leaves today's
-	// layout no pick, whose alternative (the layout ending most of its excess segments)
-	// ranks otherwise. Refresh peaks are computed only where a memory
-	// budget reads them, and a miss is worded only for the pick and the closest layout.
-	// Like PickOnly, it stops at today's capacity when the pick is there. The pick,
-	// closest layout and alternative are the pruned sweep's; the list of candidates is
-	// not.
+	// closest layout (something fits), nor an alternative. At another capacity than
+	// today's that is so because every alternative is at today's. At today's it is so
+	// only while the best so far is not today's own layout: that best (at today's, as the
+	// lean sweep tries today's capacity first) is then the best there (BestAt), and
+	// today's layout is not the pick, so no hint quotes the layout ending its excess
+	// segments (EndingExcess), which ranks otherwise. Refresh peaks are computed only
+	// where a memory budget reads them, and a miss is worded only for the pick and the
+	// closest layout. Like PickOnly, it stops at today's capacity when the pick is
+	// there. The pick, closest layout and alternatives are the pruned sweep's; the list
+	// of candidates is not.
 	Lean bool
 }
 
@@ -664,7 +664,7 @@ func (md *Model) outgrown(i int, s int64, month int, all bool) []tableMiss {
 }
 
 // firstOther is the index of the first entry of over (in table order) that is not
-// table i, -1 for none.
+// table i, -1 for none: over holds each table once, so it is one of the first two.
 func firstOther(over []tableMiss, i int) int {
 	for k := range min(len(over), 2) {
 		if over[k].j != i {

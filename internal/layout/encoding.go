@@ -137,7 +137,7 @@ func PlainBytes(c schema.Column, n int64) float64 {
 // dictionary) or plain values, whichever is smaller. The scan cost of a column is driven
 // by this number.
 func SegmentBytes(c schema.Column, tableRows, n int64) float64 {
-	return segmentSize(c, tableRows, n, nil).Bytes()
+	return segmentBytes(c, tableRows, n, nil)
 }
 
 // segmentBytes is SegmentBytes with share (nil: none) keeping, across the segments of
